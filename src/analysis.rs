@@ -1,0 +1,214 @@
+//! One analysis: measurements turned into strains and judged. This is the one result that every
+//! output (CSV, JSON, terminal, plots, report) is written from, so they never disagree.
+
+use crate::assess::{judge, Judgement, Settings, Zone};
+use crate::error::Location;
+use crate::job::Job;
+use crate::kinematics::StrainState;
+use crate::limit::LimitCurve;
+use crate::measure::{Measurement, MeasurementSet, RejectedRow};
+use crate::units::LengthUnit;
+use std::path::PathBuf;
+
+/// The caution carried by every output.
+pub const CAUTION: &str = "Caution: neckline is an aid to judgement. The user's own forming-limit \
+data, local codes and licensed engineering practice govern every decision on parts and tools.";
+
+/// Lengths that apply to every row unless a row says otherwise.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Lengths {
+    /// Unit of all lengths in the measurement file.
+    pub unit: LengthUnit,
+    /// Initial circle diameter (a per-row `d0` overrides it).
+    pub d0: Option<f64>,
+    /// Initial sheet thickness.
+    pub t0: Option<f64>,
+}
+
+/// One judged location.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PointResult {
+    /// The measurement as read.
+    pub input: Measurement,
+    /// The initial diameter used.
+    pub d0: f64,
+    /// The strains.
+    pub strain: StrainState,
+    /// Computed thickness, when t0 is known.
+    pub thickness: Option<f64>,
+    /// The judgement against the curve.
+    pub judgement: Judgement,
+}
+
+impl PointResult {
+    /// The zone.
+    pub fn zone(&self) -> Zone {
+        self.judgement.zone
+    }
+}
+
+/// A whole analysed file.
+#[derive(Debug, Clone)]
+pub struct Analysis {
+    /// The measurement file.
+    pub input: PathBuf,
+    /// Job description.
+    pub job: Job,
+    /// The lengths used.
+    pub lengths: Lengths,
+    /// The curve judged against.
+    pub curve: LimitCurve,
+    /// The settings used.
+    pub settings: Settings,
+    /// Judged locations, in file order.
+    pub points: Vec<PointResult>,
+    /// Rows that were not accepted, with reasons.
+    pub rejected: Vec<RejectedRow>,
+    /// Things the user should know (clamps, ignored columns).
+    pub warnings: Vec<String>,
+}
+
+/// The overall verdict of an analysis.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Verdict {
+    /// At least one failed location.
+    Fail,
+    /// No failure, at least one marginal location.
+    Marginal,
+    /// No failure or marginal location, but some locations could not be judged.
+    Incomplete,
+    /// Every location judged and none failed or marginal.
+    Pass,
+}
+
+impl Verdict {
+    /// Name as written in files.
+    pub fn name(self) -> &'static str {
+        match self {
+            Verdict::Fail => "fail",
+            Verdict::Marginal => "marginal",
+            Verdict::Incomplete => "incomplete",
+            Verdict::Pass => "pass",
+        }
+    }
+}
+
+/// Judge every accepted row of `set`. A row with no d0 (none in the row, none given) is rejected.
+pub fn analyse(
+    set: MeasurementSet,
+    job: Job,
+    lengths: Lengths,
+    curve: LimitCurve,
+    settings: Settings,
+) -> Analysis {
+    let mut rejected = set.rejected;
+    let mut points = Vec::with_capacity(set.points.len());
+    for m in set.points {
+        match analyse_point(m, &set.source, &lengths, &curve, &settings) {
+            Ok(p) => points.push(p),
+            Err(r) => rejected.push(r),
+        }
+    }
+    rejected.sort_by_key(|r| r.location.line);
+    let mut warnings = curve.warnings.clone();
+    if !set.ignored_columns.is_empty() {
+        warnings.push(format!(
+            "ignored columns: {}",
+            set.ignored_columns.join(", ")
+        ));
+    }
+    Analysis {
+        input: set.source,
+        job,
+        lengths,
+        curve,
+        settings,
+        points,
+        rejected,
+        warnings,
+    }
+}
+
+fn analyse_point(
+    m: Measurement,
+    file: &std::path::Path,
+    lengths: &Lengths,
+    curve: &LimitCurve,
+    settings: &Settings,
+) -> Result<PointResult, RejectedRow> {
+    let reject = |reason: String| RejectedRow {
+        location: Location::file(file).at_line(m.line),
+        id: Some(m.id.clone()),
+        reason,
+    };
+    let d0 = m.d0.or(lengths.d0).ok_or_else(|| {
+        reject("no initial circle diameter: give a d0 column, --d0 or d0 in the job file".into())
+    })?;
+    let strain = StrainState::from_circle(d0, m.major, m.minor).ok_or_else(|| {
+        reject(format!(
+            "axes {} and {} with d0 {d0} give no strain",
+            m.major, m.minor
+        ))
+    })?;
+    let judgement = judge(&strain, curve, settings);
+    let thickness = lengths.t0.map(|t0| strain.thickness(t0));
+    Ok(PointResult {
+        input: m,
+        d0,
+        strain,
+        thickness,
+        judgement,
+    })
+}
+
+impl Analysis {
+    /// Number of points in each zone, worst zone first.
+    pub fn counts(&self) -> Vec<(Zone, usize)> {
+        Zone::ALL
+            .into_iter()
+            .map(|z| (z, self.points.iter().filter(|p| p.zone() == z).count()))
+            .collect()
+    }
+
+    /// Number of points in `zone`.
+    pub fn count(&self, zone: Zone) -> usize {
+        self.points.iter().filter(|p| p.zone() == zone).count()
+    }
+
+    /// The `n` judged points with the smallest vertical margin, smallest first.
+    pub fn worst(&self, n: usize) -> Vec<&PointResult> {
+        let mut judged: Vec<&PointResult> = self
+            .points
+            .iter()
+            .filter(|p| p.judgement.margin_pct.is_some())
+            .collect();
+        judged.sort_by(|a, b| {
+            let (ma, mb) = (a.judgement.margin_pct, b.judgement.margin_pct);
+            ma.unwrap_or(f64::INFINITY)
+                .total_cmp(&mb.unwrap_or(f64::INFINITY))
+        });
+        judged.truncate(n);
+        judged
+    }
+
+    /// The overall verdict.
+    pub fn verdict(&self) -> Verdict {
+        if self.count(Zone::Failed) > 0 {
+            Verdict::Fail
+        } else if self.count(Zone::Marginal) > 0 {
+            Verdict::Marginal
+        } else if self.count(Zone::Uncovered) > 0 {
+            Verdict::Incomplete
+        } else {
+            Verdict::Pass
+        }
+    }
+
+    /// Whether `--fail-on zone` should make the run exit 1: any point in `zone` or a worse one
+    /// (failed is worse than marginal). Uncovered points always count: they cannot be shown safe.
+    pub fn trips(&self, zone: Zone) -> bool {
+        self.points
+            .iter()
+            .any(|p| p.zone() <= zone || p.zone() == Zone::Uncovered)
+    }
+}

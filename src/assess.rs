@@ -1,0 +1,216 @@
+//! Judging each location against the forming-limit curve.
+//!
+//! Zones, checked in this order (the first that applies wins):
+//! 1. `uncovered`: the point's minor strain is outside the curve's range: no verdict, never safe;
+//! 2. `failed`: on or above the curve, or thinning at or past the set maximum;
+//! 3. `marginal`: inside the safety band below the curve (default 10 percentage points of
+//!    engineering major strain, common practice for steel);
+//! 4. `thickening`: `ε1 + ε2 < 0`, the sheet got thicker (wrinkle tendency, common practice);
+//! 5. `low-stretch`: engineering major strain below the threshold (default 2 %, common practice);
+//! 6. `safe`.
+
+use crate::kinematics::StrainState;
+use crate::limit::LimitCurve;
+use crate::strain::EngStrain;
+use serde::{Deserialize, Serialize};
+use std::fmt;
+use std::str::FromStr;
+
+/// Where a location stands. Declared from worst to best.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Zone {
+    /// On or above the limit curve, or thinned to or past the maximum.
+    Failed,
+    /// Inside the safety band below the curve.
+    Marginal,
+    /// Minor strain outside the curve's range: no verdict possible.
+    Uncovered,
+    /// Thickness grew (`ε1 + ε2 < 0`): wrinkle tendency.
+    Thickening,
+    /// Major strain below the under-stretch threshold.
+    LowStretch,
+    /// None of the above.
+    Safe,
+}
+
+impl Zone {
+    /// All zones, worst first.
+    pub const ALL: [Zone; 6] = [
+        Zone::Failed,
+        Zone::Marginal,
+        Zone::Uncovered,
+        Zone::Thickening,
+        Zone::LowStretch,
+        Zone::Safe,
+    ];
+
+    /// Name as written in files.
+    pub fn name(self) -> &'static str {
+        match self {
+            Zone::Failed => "failed",
+            Zone::Marginal => "marginal",
+            Zone::Uncovered => "uncovered",
+            Zone::Thickening => "thickening",
+            Zone::LowStretch => "low-stretch",
+            Zone::Safe => "safe",
+        }
+    }
+}
+
+impl fmt::Display for Zone {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+impl FromStr for Zone {
+    type Err = String;
+    fn from_str(s: &str) -> Result<Self, String> {
+        Zone::ALL
+            .into_iter()
+            .find(|z| z.name() == s)
+            .ok_or_else(|| format!("unknown zone `{s}`: expected one of failed, marginal, uncovered, thickening, low-stretch, safe"))
+    }
+}
+
+/// The judgement settings.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct Settings {
+    /// Safety band below the curve, percentage points of engineering major strain.
+    pub margin_pct: f64,
+    /// Under-stretch threshold, percent engineering major strain.
+    pub low_stretch_pct: f64,
+    /// Maximum thinning, percent of the initial thickness; `None` = not checked.
+    pub max_thinning_pct: Option<f64>,
+}
+
+impl Default for Settings {
+    fn default() -> Self {
+        Settings {
+            margin_pct: 10.0,
+            low_stretch_pct: 2.0,
+            max_thinning_pct: None,
+        }
+    }
+}
+
+impl Settings {
+    /// Check ranges; `Err` names the setting and the allowed range.
+    pub fn validate(&self) -> Result<(), String> {
+        if !(self.margin_pct.is_finite() && (0.0..=50.0).contains(&self.margin_pct)) {
+            return Err(format!(
+                "margin {} is outside 0..=50 percentage points",
+                self.margin_pct
+            ));
+        }
+        if !(self.low_stretch_pct.is_finite() && (0.0..=50.0).contains(&self.low_stretch_pct)) {
+            return Err(format!(
+                "low-stretch {} is outside 0..=50 %",
+                self.low_stretch_pct
+            ));
+        }
+        if let Some(t) = self.max_thinning_pct {
+            if !(t.is_finite() && t > 0.0 && t < 100.0) {
+                return Err(format!("max-thinning {t} is outside 0 < x < 100 %"));
+            }
+        }
+        Ok(())
+    }
+}
+
+/// The judgement of one location.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Judgement {
+    /// The curve's engineering major strain at the point's minor strain.
+    pub limit_major: Option<EngStrain>,
+    /// Vertical margin: limit minus the point's engineering major strain, percentage points.
+    pub margin_pct: Option<f64>,
+    /// Limit use along the point's own strain path, percent (100 = on the curve).
+    pub limit_use_pct: Option<f64>,
+    /// The zone.
+    pub zone: Zone,
+}
+
+/// Judge one location's strains against `curve` with `settings`.
+pub fn judge(state: &StrainState, curve: &LimitCurve, settings: &Settings) -> Judgement {
+    let limit_major = curve.limit_major_eng(state.true_strain.minor);
+    let margin_pct = limit_major.map(|l| l.percent() - state.eng.major.percent());
+    let limit_use_pct = limit_major.and(curve.limit_use_pct(state));
+    let zone = zone_of(state, margin_pct, settings);
+    Judgement {
+        limit_major,
+        margin_pct,
+        limit_use_pct,
+        zone,
+    }
+}
+
+/// The zone from the vertical margin (`None` = uncovered) and the point's strains.
+pub fn zone_of(state: &StrainState, margin_pct: Option<f64>, settings: &Settings) -> Zone {
+    let Some(margin) = margin_pct else {
+        return Zone::Uncovered;
+    };
+    let thinned_out = settings
+        .max_thinning_pct
+        .is_some_and(|m| state.thinning * 100.0 >= m);
+    if margin <= 0.0 || thinned_out {
+        Zone::Failed
+    } else if margin < settings.margin_pct {
+        Zone::Marginal
+    } else if state.true_strain.major.value() + state.true_strain.minor.value() < 0.0 {
+        Zone::Thickening
+    } else if state.eng.major.percent() < settings.low_stretch_pct {
+        Zone::LowStretch
+    } else {
+        Zone::Safe
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::path::Path;
+
+    fn curve() -> LimitCurve {
+        LimitCurve::parse(
+            "name = \"flat\"\nsource = \"test\"\npoints = [[-30, 30], [30, 30]]\n",
+            Path::new("c.toml"),
+        )
+        .unwrap()
+    }
+
+    fn at(major_pct: f64, minor_pct: f64) -> StrainState {
+        StrainState::from_circle(100.0, 100.0 + major_pct, 100.0 + minor_pct).unwrap()
+    }
+
+    #[test]
+    fn zones_in_order() {
+        let s = Settings {
+            max_thinning_pct: Some(25.0),
+            ..Settings::default()
+        };
+        let c = curve();
+        let z = |ma, mi| judge(&at(ma, mi), &c, &s).zone;
+        assert_eq!(z(10.0, -40.0), Zone::Uncovered);
+        assert_eq!(z(30.0, 0.0), Zone::Failed); // on the curve counts as failed
+        assert_eq!(z(28.0, 20.0), Zone::Failed); // thinning 1 - 1/(1.28·1.2) = 34.9 %
+        assert_eq!(z(25.0, 0.0), Zone::Marginal);
+        assert_eq!(z(10.0, -15.0), Zone::Thickening);
+        assert_eq!(z(1.0, 0.5), Zone::LowStretch);
+        assert_eq!(z(10.0, 5.0), Zone::Safe);
+    }
+
+    #[test]
+    fn margin_is_vertical_distance() {
+        let j = judge(&at(12.0, 3.0), &curve(), &Settings::default());
+        assert!((j.margin_pct.unwrap() - 18.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn zone_names_round_trip() {
+        for z in Zone::ALL {
+            assert_eq!(z.name().parse::<Zone>(), Ok(z));
+        }
+    }
+}

@@ -1,0 +1,67 @@
+//! Command-line arguments (clap only; the work is done in [`crate::commands`]).
+
+use crate::assess::Zone;
+use crate::units::LengthUnit;
+use clap::{Args, Parser, Subcommand};
+use std::path::PathBuf;
+
+/// Sheet-metal forming-limit analysis from circle grids.
+#[derive(Debug, Parser)]
+#[command(name = "neckline", version, about, long_about = None, after_help = AFTER_HELP)]
+pub struct Cli {
+    /// What to do.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+const AFTER_HELP: &str =
+    "Exit status: 0 done, 1 a --fail-on zone was reached, 2 usage or input error.\n\
+Caution: an aid to judgement; your own limit data, local codes and licensed practice govern.";
+
+/// The subcommands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Judge measured circles against a forming-limit curve; write points.csv and summary.json.
+    Check(crate::commands::check::CheckArgs),
+    /// Compute the strains of measured circles and write them to stdout as CSV.
+    Strains(crate::commands::strains::StrainsArgs),
+}
+
+/// Lengths and the job file, shared by the commands that read measurements.
+#[derive(Debug, Clone, Args)]
+pub struct LengthArgs {
+    /// Job file (TOML): part, tryout, material, d0, t0, unit, limit and settings.
+    /// Flags given here override it.
+    #[arg(long, value_name = "JOB.toml")]
+    pub job: Option<PathBuf>,
+    /// Initial circle diameter, in --unit (a `d0` column in the file overrides it per row).
+    #[arg(long, value_name = "LENGTH")]
+    pub d0: Option<f64>,
+    /// Initial sheet thickness, in --unit (for thickness; thinning needs no t0).
+    #[arg(long, value_name = "LENGTH")]
+    pub t0: Option<f64>,
+    /// Length unit of the file, --d0 and --t0 [default: mm, or the job file's].
+    #[arg(long, value_name = "mm|in")]
+    pub unit: Option<LengthUnit>,
+}
+
+/// The limit curve and the judgement settings.
+#[derive(Debug, Clone, Args)]
+pub struct JudgeArgs {
+    /// Forming-limit curve file (TOML, see limits/) [default: the job file's `limit`].
+    #[arg(long, value_name = "LIMIT.toml")]
+    pub limit: Option<PathBuf>,
+    /// Safety band below the curve, percentage points of engineering major strain [default: 10].
+    #[arg(long, value_name = "PCT")]
+    pub margin: Option<f64>,
+    /// Under-stretch threshold, percent engineering major strain [default: 2].
+    #[arg(long, value_name = "PCT")]
+    pub low_stretch: Option<f64>,
+    /// Maximum thinning, percent of t0; a point at or past it is failed [default: not checked].
+    #[arg(long, value_name = "PCT")]
+    pub max_thinning: Option<f64>,
+    /// Exit with status 1 when any location is in this zone or a worse one
+    /// (failed, marginal); uncovered locations always count.
+    #[arg(long, value_name = "ZONE")]
+    pub fail_on: Option<Zone>,
+}

@@ -1,0 +1,102 @@
+//! One module per subcommand: its arguments, its help text and a short `run`.
+
+pub mod check;
+pub mod strains;
+
+use crate::analysis::{analyse, Analysis, Lengths};
+use crate::assess::Settings;
+use crate::cli::{JudgeArgs, LengthArgs};
+use crate::error::{Error, Result};
+use crate::job::Job;
+use crate::limit::LimitCurve;
+use crate::measure::read_measurements;
+use std::path::{Path, PathBuf};
+
+/// What a command asks `main` to exit with.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Outcome {
+    /// Done (exit 0).
+    Done,
+    /// Done, and a `--fail-on` zone was reached (exit 1).
+    Tripped,
+}
+
+/// Read the job file, if any.
+pub fn load_job(args: &LengthArgs) -> Result<Job> {
+    args.job
+        .as_deref()
+        .map_or_else(|| Ok(Job::default()), Job::load)
+}
+
+/// The lengths from flags over the job file; each given length must be positive.
+pub fn resolve_lengths(args: &LengthArgs, job: &Job) -> Result<Lengths> {
+    let positive = |v: Option<f64>, what: &str| match v {
+        Some(x) if !(x.is_finite() && x > 0.0) => Err(Error::Usage(format!(
+            "{what} must be a positive length, found {x}"
+        ))),
+        _ => Ok(v),
+    };
+    Ok(Lengths {
+        unit: args.unit.or(job.unit).unwrap_or_default(),
+        d0: positive(args.d0.or(job.d0), "d0")?,
+        t0: positive(args.t0.or(job.t0), "t0")?,
+    })
+}
+
+/// The settings from flags over the job file over the defaults.
+pub fn resolve_settings(args: &JudgeArgs, job: &Job) -> Result<Settings> {
+    let d = Settings::default();
+    let s = Settings {
+        margin_pct: args.margin.or(job.margin).unwrap_or(d.margin_pct),
+        low_stretch_pct: args
+            .low_stretch
+            .or(job.low_stretch)
+            .unwrap_or(d.low_stretch_pct),
+        max_thinning_pct: args.max_thinning.or(job.max_thinning),
+    };
+    s.validate().map_err(Error::Usage)?;
+    Ok(s)
+}
+
+/// The limit curve file: the flag, else the job file's.
+pub fn limit_path(args: &JudgeArgs, job: &Job) -> Result<PathBuf> {
+    args.limit
+        .clone()
+        .or_else(|| job.limit.clone())
+        .ok_or_else(|| {
+            Error::Usage(
+                "no limit curve: give --limit LIMIT.toml or `limit` in the job file".into(),
+            )
+        })
+}
+
+/// Read, compute and judge a measurement file: the data path shared by `check` and `strains`.
+pub fn run_analysis(
+    measurements: &Path,
+    lengths: &LengthArgs,
+    judge: &JudgeArgs,
+    curve: Option<LimitCurve>,
+) -> Result<Analysis> {
+    let job = load_job(lengths)?;
+    let l = resolve_lengths(lengths, &job)?;
+    let settings = resolve_settings(judge, &job)?;
+    let curve = match curve {
+        Some(c) => c,
+        None => LimitCurve::load(&limit_path(judge, &job)?)?,
+    };
+    let set = read_measurements(measurements)?;
+    let a = analyse(set, job, l, curve, settings);
+    if a.points.is_empty() {
+        let first = a
+            .rejected
+            .first()
+            .map(|r| format!("; first: {r}"))
+            .unwrap_or_default();
+        return Err(Error::Usage(format!(
+            "{}: no location could be judged ({} rows rejected{first})",
+            measurements.display(),
+            a.rejected.len()
+        )));
+    }
+    Ok(a)
+}

@@ -1,0 +1,98 @@
+//! Errors: every input problem names its file, and where known its line and column.
+
+use std::fmt;
+use std::path::{Path, PathBuf};
+
+/// Where in an input file a problem was found.
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub struct Location {
+    /// The file as the user named it (`-` for standard input).
+    pub file: PathBuf,
+    /// 1-based line number, if known.
+    pub line: Option<u64>,
+    /// 1-based column: a CSV field number or a TOML character column.
+    pub column: Option<u64>,
+    /// The column's name (CSV header or TOML key), if known.
+    pub column_name: Option<String>,
+}
+
+impl Location {
+    /// A location naming only the file.
+    pub fn file(path: &Path) -> Self {
+        Location {
+            file: path.to_path_buf(),
+            ..Default::default()
+        }
+    }
+    /// This location at a line.
+    pub fn at_line(mut self, line: u64) -> Self {
+        self.line = Some(line);
+        self
+    }
+    /// This location at a named column (1-based field number).
+    pub fn at_column(mut self, number: u64, name: &str) -> Self {
+        self.column = Some(number);
+        self.column_name = Some(name.to_string());
+        self
+    }
+}
+
+impl fmt::Display for Location {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{}", self.file.display())?;
+        if let Some(line) = self.line {
+            write!(f, ":{line}")?;
+            if let Some(col) = self.column {
+                write!(f, ":{col}")?;
+            }
+        }
+        if let Some(name) = &self.column_name {
+            write!(f, " (column `{name}`)")?;
+        }
+        Ok(())
+    }
+}
+
+/// Everything that can stop a command.
+#[derive(Debug, thiserror::Error)]
+pub enum Error {
+    /// A file could not be read or written.
+    #[error("{}: {source}", path.display())]
+    Io {
+        /// The file concerned.
+        path: PathBuf,
+        /// The operating system's reason.
+        source: std::io::Error,
+    },
+    /// An input file is wrong as a whole, or at a given place.
+    #[error("{location}: {message}")]
+    Input {
+        /// Where the problem is.
+        location: Location,
+        /// What was found and what was expected.
+        message: String,
+    },
+    /// Settings that contradict each other or are out of range.
+    #[error("{0}")]
+    Usage(String),
+}
+
+impl Error {
+    /// An input error at `location`.
+    pub fn input(location: Location, message: impl Into<String>) -> Self {
+        Error::Input {
+            location,
+            message: message.into(),
+        }
+    }
+    /// An I/O error on `path`.
+    pub fn io(path: &Path, source: std::io::Error) -> Self {
+        Error::Io {
+            path: path.to_path_buf(),
+            source,
+        }
+    }
+}
+
+/// Result with this crate's [`Error`].
+pub type Result<T, E = Error> = std::result::Result<T, E>;

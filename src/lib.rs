@@ -1,0 +1,27 @@
+//! # neckline
+//!
+//! Sheet-metal forming-limit analysis from circle grids. The modules follow the data:
+//!
+//! measurements ([`measure`]) → strains ([`strain`], [`kinematics`]) → limit curve ([`limit`])
+//! → judgement ([`assess`]) → one result ([`analysis`]) → outputs ([`output`]).
+//!
+//! Caution: an aid to judgement. The user's own forming-limit data, local codes and licensed
+//! engineering practice govern.
+#![warn(missing_docs)]
+#![deny(clippy::float_cmp)]
+
+pub mod analysis;
+pub mod assess;
+pub mod cli;
+pub mod commands;
+pub mod error;
+pub mod job;
+pub mod kinematics;
+pub mod limit;
+pub mod measure;
+pub mod output;
+pub mod strain;
+pub mod units;
+
+pub use analysis::{Analysis, CAUTION};
+pub use error::{Error, Result};

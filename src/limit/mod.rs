@@ -1,0 +1,321 @@
+//! Forming-limit curves: loading from TOML, interpolation, and distances along strain paths.
+//!
+//! A curve file (`limits/*.toml`) carries `name`, `source` (required: where the curve comes from),
+//! optional `material` and `thickness_mm`, `strain = "engineering" | "true"` (default
+//! engineering), and either `points = [[minor, major], ...]` in percent with minor strictly
+//! increasing, or a `[keeler_brazier]` table that generates the empirical steel curve.
+//! Between points the curve is linear in the file's own strain measure.
+
+pub mod keeler_brazier;
+
+use crate::error::{Error, Location, Result};
+use crate::kinematics::StrainState;
+use crate::strain::{EngStrain, StrainMeasure, TrueStrain};
+use keeler_brazier::KeelerBrazier;
+use serde::Deserialize;
+use std::path::Path;
+use toml::Spanned;
+
+/// A forming-limit curve, ready to judge points against.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LimitCurve {
+    /// Short name shown on outputs.
+    pub name: String,
+    /// Where the curve comes from (test report, model and parameters, publication).
+    pub source: String,
+    /// Material grade and lot, if stated.
+    pub material: Option<String>,
+    /// Sheet thickness the curve is for, mm, if stated.
+    pub thickness_mm: Option<f64>,
+    /// The strain measure of `points`.
+    pub measure: StrainMeasure,
+    /// `[minor, major]` as fractions in `measure`, minor strictly increasing.
+    pub points: Vec<[f64; 2]>,
+    /// Warnings raised while building the curve (clamps that acted).
+    pub warnings: Vec<String>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct CurveFile {
+    name: String,
+    source: String,
+    material: Option<String>,
+    thickness_mm: Option<f64>,
+    #[serde(default)]
+    strain: StrainMeasure,
+    points: Option<Vec<Spanned<Vec<f64>>>>,
+    keeler_brazier: Option<KeelerBrazier>,
+}
+
+/// Largest strain magnitude accepted in a curve file, percent (a plausibility bound).
+const PLAUSIBLE_PCT: f64 = 300.0;
+
+/// 1-based line and column of byte `offset` in `text`.
+pub fn line_col(text: &str, offset: usize) -> (u64, u64) {
+    let before = &text[..offset.min(text.len())];
+    let line = before.matches('\n').count() as u64 + 1;
+    let col = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) as u64 + 1;
+    (line, col)
+}
+
+impl LimitCurve {
+    /// Load and validate a curve file.
+    pub fn load(path: &Path) -> Result<Self> {
+        let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+        Self::parse(&text, path)
+    }
+
+    /// Parse and validate curve TOML; `path` is used in messages.
+    pub fn parse(text: &str, path: &Path) -> Result<Self> {
+        let at = |offset: usize| {
+            let (l, c) = line_col(text, offset);
+            let mut loc = Location::file(path).at_line(l);
+            loc.column = Some(c);
+            loc
+        };
+        let file: CurveFile = toml::from_str(text).map_err(|e| {
+            let loc = e
+                .span()
+                .map_or_else(|| Location::file(path), |s| at(s.start));
+            Error::input(loc, e.message().trim().to_string())
+        })?;
+        let whole = |m: String| Error::input(Location::file(path), m);
+        if file.source.trim().is_empty() {
+            return Err(whole(
+                "`source` is empty: say where the curve comes from".into(),
+            ));
+        }
+        if let Some(t) = file.thickness_mm {
+            if !(t.is_finite() && t > 0.0 && t <= 25.0) {
+                return Err(whole(format!("thickness_mm = {t} is outside 0 < t <= 25")));
+            }
+        }
+        let (pct, warnings) = match (file.points, file.keeler_brazier) {
+            (Some(_), Some(_)) => {
+                return Err(whole(
+                    "give either `points` or `[keeler_brazier]`, not both".into(),
+                ))
+            }
+            (None, None) => {
+                return Err(whole(
+                    "no curve: give `points = [[minor, major], ...]` in percent \
+                                  or a `[keeler_brazier]` table"
+                        .into(),
+                ))
+            }
+            (None, Some(kb)) => {
+                kb.validate()
+                    .map_err(|m| whole(format!("[keeler_brazier]: {m}")))?;
+                if file.strain != StrainMeasure::Engineering {
+                    return Err(whole(
+                        "a [keeler_brazier] curve is defined in engineering strain: \
+                         remove `strain = \"true\"`"
+                            .into(),
+                    ));
+                }
+                let (_, _, w) = kb.clamped();
+                (kb.points_pct(), w)
+            }
+            (Some(points), None) => (validate_points(&points, &at, file.strain)?, Vec::new()),
+        };
+        Ok(LimitCurve {
+            name: file.name,
+            source: file.source,
+            material: file.material,
+            thickness_mm: file.thickness_mm,
+            measure: file.strain,
+            points: pct.iter().map(|p| [p[0] / 100.0, p[1] / 100.0]).collect(),
+            warnings,
+        })
+    }
+
+    /// The minor-strain range covered by the curve, in its own measure.
+    pub fn minor_range(&self) -> (f64, f64) {
+        (self.points[0][0], self.points[self.points.len() - 1][0])
+    }
+
+    /// Major limit strain at a minor strain, both in the curve's own measure; `None` outside range.
+    pub fn major_at(&self, minor: f64) -> Option<f64> {
+        let (lo, hi) = self.minor_range();
+        if !(minor >= lo && minor <= hi) {
+            return None;
+        }
+        let i = self.points.partition_point(|p| p[0] < minor).max(1);
+        let ([x0, y0], [x1, y1]) = (self.points[i - 1], self.points[i]);
+        Some(y0 + (y1 - y0) * (minor - x0) / (x1 - x0))
+    }
+
+    /// The curve's engineering major strain at a point's minor strain; `None` when the minor
+    /// strain is outside the curve's range.
+    pub fn limit_major_eng(&self, minor: TrueStrain) -> Option<EngStrain> {
+        let own = self.measure.from_true(minor);
+        let major = self.major_at(own)?;
+        self.measure.to_true(major).map(TrueStrain::to_eng)
+    }
+
+    /// The curve as a polyline in true strain `[ε2, ε1]`; each straight piece of an engineering
+    /// curve is split in `pieces` so that the bend it takes in true strain is followed.
+    pub fn true_polyline(&self, pieces: usize) -> Vec<[f64; 2]> {
+        let conv = |v: f64| self.measure.to_true(v).map_or(f64::NAN, |t| t.value());
+        let pieces = if self.measure == StrainMeasure::True {
+            1
+        } else {
+            pieces.max(1)
+        };
+        let mut out = Vec::with_capacity(self.points.len() * pieces);
+        for w in self.points.windows(2) {
+            for k in 0..pieces {
+                let s = k as f64 / pieces as f64;
+                let minor = w[0][0] + s * (w[1][0] - w[0][0]);
+                let major = w[0][1] + s * (w[1][1] - w[0][1]);
+                out.push([conv(minor), conv(major)]);
+            }
+        }
+        let last = self.points[self.points.len() - 1];
+        out.push([conv(last[0]), conv(last[1])]);
+        out
+    }
+
+    /// Limit use along the point's own strain path, percent: 100 × (distance of the point from
+    /// the origin in true strain) / (distance from the origin to the curve along the same ray).
+    /// `None` for a point whose ray does not meet the curve.
+    pub fn limit_use_pct(&self, state: &StrainState) -> Option<f64> {
+        let p = [
+            state.true_strain.minor.value(),
+            state.true_strain.major.value(),
+        ];
+        if p[0].hypot(p[1]) < 1e-12 {
+            return Some(0.0);
+        }
+        ray_hit(&self.true_polyline(16), p).map(|s| 100.0 / s)
+    }
+}
+
+/// Smallest `s > 0` with `s·d` on the polyline, or `None`.
+fn ray_hit(poly: &[[f64; 2]], d: [f64; 2]) -> Option<f64> {
+    let cross = |a: [f64; 2], b: [f64; 2]| a[0] * b[1] - a[1] * b[0];
+    poly.windows(2)
+        .filter_map(|w| {
+            let (p, q) = (w[0], w[1]);
+            let e = [q[0] - p[0], q[1] - p[1]];
+            let den = cross(d, e);
+            if den.abs() < 1e-15 {
+                return None;
+            }
+            let s = cross(p, e) / den;
+            let u = cross(p, d) / den;
+            (s > 0.0 && (-1e-12..=1.0 + 1e-12).contains(&u)).then_some(s)
+        })
+        .min_by(|a, b| a.total_cmp(b))
+}
+
+fn validate_points(
+    points: &[Spanned<Vec<f64>>],
+    at: &dyn Fn(usize) -> Location,
+    measure: StrainMeasure,
+) -> Result<Vec<[f64; 2]>> {
+    if points.len() < 2 {
+        let loc = points.first().map_or_else(|| at(0), |p| at(p.span().start));
+        return Err(Error::input(
+            loc,
+            "a curve needs at least two points [minor, major]",
+        ));
+    }
+    let mut out: Vec<[f64; 2]> = Vec::with_capacity(points.len());
+    for p in points {
+        let loc = at(p.span().start);
+        let v = p.get_ref();
+        if v.len() != 2 {
+            return Err(Error::input(
+                loc,
+                format!("expected [minor, major], found {} numbers", v.len()),
+            ));
+        }
+        let [minor, major] = [v[0], v[1]];
+        if !v.iter().all(|x| x.is_finite() && x.abs() <= PLAUSIBLE_PCT) {
+            return Err(Error::input(
+                loc,
+                format!("[{minor}, {major}]: strains must be finite percent values within ±{PLAUSIBLE_PCT}"),
+            ));
+        }
+        if measure == StrainMeasure::Engineering && minor <= -100.0 {
+            return Err(Error::input(
+                loc,
+                format!("minor {minor} %: engineering strain must be above -100 %"),
+            ));
+        }
+        if major <= 0.0 || major < minor {
+            return Err(Error::input(
+                loc,
+                format!("[{minor}, {major}]: the limit major strain must be positive and at least the minor strain"),
+            ));
+        }
+        if let Some(prev) = out.last() {
+            if minor <= prev[0] {
+                return Err(Error::input(
+                    loc,
+                    format!("minor strain {minor} does not increase (previous point has {}): sort the points by minor strain", prev[0]),
+                ));
+            }
+        }
+        out.push([minor, major]);
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use approx::assert_abs_diff_eq;
+
+    fn curve(text: &str) -> Result<LimitCurve> {
+        LimitCurve::parse(text, Path::new("c.toml"))
+    }
+
+    const TAB: &str = "name = \"t\"\nsource = \"test\"\npoints = [[-20, 50], [0, 30], [20, 40]]\n";
+
+    #[test]
+    fn linear_interpolation_in_own_measure() {
+        let c = curve(TAB).unwrap();
+        assert_abs_diff_eq!(c.major_at(-0.1).unwrap(), 0.40, epsilon = 1e-12);
+        assert_abs_diff_eq!(c.major_at(0.1).unwrap(), 0.35, epsilon = 1e-12);
+        assert!(c.major_at(0.25).is_none());
+    }
+
+    #[test]
+    fn unsorted_points_name_the_line() {
+        let e = curve("name = \"t\"\nsource = \"s\"\npoints = [\n [0, 30],\n [-5, 40],\n]\n")
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.starts_with("c.toml:5:") && e.contains("does not increase"),
+            "{e}"
+        );
+    }
+
+    #[test]
+    fn missing_source_is_a_toml_error_with_position() {
+        let e = curve("name = \"t\"\npoints = [[0, 30], [1, 31]]\n")
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("source"), "{e}");
+    }
+
+    // A point on the curve along its own ray has limit use 100 %; half way, 50 %.
+    #[test]
+    fn limit_use_along_the_ray() {
+        let c = curve("name = \"t\"\nsource = \"s\"\nstrain = \"true\"\npoints = [[-20, 40], [0, 20], [20, 40]]\n")
+            .unwrap();
+        let on = StrainState::from_stretches(
+            crate::strain::TrueStrain(0.2).stretch(),
+            crate::strain::TrueStrain(0.0).stretch(),
+        );
+        assert_abs_diff_eq!(c.limit_use_pct(&on).unwrap(), 100.0, epsilon = 1e-9);
+        let half = StrainState::from_stretches(
+            crate::strain::TrueStrain(0.1).stretch(),
+            crate::strain::TrueStrain(0.0).stretch(),
+        );
+        assert_abs_diff_eq!(c.limit_use_pct(&half).unwrap(), 50.0, epsilon = 1e-9);
+    }
+}

@@ -1,0 +1,27 @@
+//! The `neckline` command: parse arguments, run the library, report errors, set the exit status.
+
+use clap::Parser;
+use neckline::cli::{Cli, Command};
+use neckline::commands::{self, Outcome};
+use std::process::ExitCode;
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match &cli.command {
+        Command::Check(args) => commands::check::run(args),
+        Command::Strains(args) => commands::strains::run(args),
+    };
+    match result {
+        Ok(Outcome::Done) => ExitCode::SUCCESS,
+        Ok(Outcome::Tripped) => ExitCode::from(1),
+        Err(e) => {
+            eprintln!("error: {e}");
+            let mut source = std::error::Error::source(&e);
+            while let Some(cause) = source {
+                eprintln!("  caused by: {cause}");
+                source = cause.source();
+            }
+            ExitCode::from(2)
+        }
+    }
+}
