@@ -95,8 +95,8 @@ pub fn summary_text(a: &Analysis) -> String {
         );
         let _ = writeln!(
             s,
-            "  {:<14}{:>9}{:>9}{:>10}{:>9}{:>9}  {}",
-            "id", "major %", "minor %", "margin pp", "use %", "thin %", "zone"
+            "  {:<14}{:>9}{:>9}{:>10}{:>9}{:>9}  zone",
+            "id", "major %", "minor %", "margin pp", "use %", "thin %"
         );
         for p in worst {
             let _ = writeln!(
