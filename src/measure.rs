@@ -413,7 +413,7 @@ mod tests {
     fn reads_semicolon_decimal_comma() {
         let s = read("ID;Major;Minor;d0\nA1;3,25;2,40;2,5\n").unwrap();
         assert_eq!(s.dialect, Dialect::Semicolon);
-        assert_eq!(s.points[0].major, 3.25);
+        assert!((s.points[0].major - 3.25).abs() < 1e-12);
         assert_eq!(s.points[0].d0, Some(2.5));
     }
 
