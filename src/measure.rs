@@ -381,7 +381,9 @@ fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<(String, St
     let mut prefix = String::new();
     loop {
         let start = prefix.len();
-        let n = input.read_line(&mut prefix).map_err(|e| Error::io(name, e))?;
+        let n = input
+            .read_line(&mut prefix)
+            .map_err(|e| Error::io(name, e))?;
         if n == 0 {
             return Ok((prefix, String::new()));
         }
