@@ -60,7 +60,7 @@ pub fn push_fixed(buf: &mut String, v: f64, decimals: usize) {
     use std::fmt::Write as _;
     let scale = 10f64.powi(decimals.min(9) as i32);
     let scaled = (v * scale).round_ties_even();
-    if !(scaled.abs() < 9.0e15) || decimals > 9 {
+    if scaled.is_nan() || scaled.abs() >= 9.0e15 || decimals > 9 {
         let _ = write!(buf, "{v:.decimals$}");
         return;
     }
