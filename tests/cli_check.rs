@@ -346,3 +346,47 @@ fn help_lists_commands_and_exit_codes() {
     let (_d, r) = run(&["check"]);
     assert_eq!(r.code, 2, "{r}");
 }
+
+// A 0.100 in grid (common practice in inch shops) gives the same strains as a metric one:
+// 0.130/0.100 = 3.25/2.50 = 1.30 (field notes, section 2 check values); thickness stays in inches.
+#[test]
+fn inch_files_give_the_same_strains() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join("in.csv"),
+        "id,major,minor\nP1,0.130,0.096\n",
+    )
+    .unwrap();
+    std::fs::write(
+        dir.path().join("job.toml"),
+        "unit = \"in\"\nd0 = 0.1\nt0 = 0.0315\n",
+    )
+    .unwrap();
+    let r = run_in(
+        dir.path(),
+        &["strains", "in.csv", "--job", "job.toml"],
+        None,
+    );
+    assert_eq!(r.code, 0, "{r}");
+    let row: Vec<String> = r
+        .stdout
+        .lines()
+        .nth(1)
+        .unwrap()
+        .split(',')
+        .map(String::from)
+        .collect();
+    assert_eq!(row[1], "30.000", "{r}");
+    assert_eq!(row[2], "-4.000", "{r}");
+    let t: f64 = row[6].parse().unwrap();
+    assert!((t - 0.0315 * 0.80128).abs() < 1e-4, "{r}");
+    // A unit the tool does not know is refused with the file and line.
+    std::fs::write(dir.path().join("bad.toml"), "unit = \"cm\"\n").unwrap();
+    let r = run_in(
+        dir.path(),
+        &["strains", "in.csv", "--job", "bad.toml"],
+        None,
+    );
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("bad.toml:1:8"), "{r}");
+}
