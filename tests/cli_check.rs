@@ -390,3 +390,52 @@ fn inch_files_give_the_same_strains() {
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("bad.toml:1:8"), "{r}");
 }
+
+#[test]
+fn compare_joins_two_tryouts_by_id() {
+    let dir = tempfile::tempdir().unwrap();
+    for t in [1u8, 2] {
+        let [csv, job] = demo(t);
+        let r = run_in(
+            dir.path(),
+            &["check", &csv, "--job", &job, "--out", &format!("t{t}")],
+            None,
+        );
+        assert_eq!(r.code, 0, "{r}");
+    }
+    let r = run_in(
+        dir.path(),
+        &[
+            "compare",
+            "t1/points.csv",
+            "t2/points.csv",
+            "--out",
+            "c.csv",
+        ],
+        None,
+    );
+    assert_eq!(r.code, 0, "{r}");
+    assert!(
+        r.stdout
+            .contains("120 locations in both; 0 only before, 0 only after"),
+        "{r}"
+    );
+    assert!(r.stdout.contains("aid to judgement"), "{r}");
+    let c = std::fs::read_to_string(dir.path().join("c.csv")).unwrap();
+    assert_eq!(c.lines().count(), 121);
+    // The four corners that failed in T1 are marginal after the rework (demo scenario).
+    let failed_to_marginal = c
+        .lines()
+        .filter(|l| l.contains(",failed,marginal,"))
+        .count();
+    assert_eq!(failed_to_marginal, 4, "{c}");
+    // A file that is not a result of `check` is refused with its name and what was expected.
+    let good = repo("tests/data/good.csv").display().to_string();
+    let r = run_in(dir.path(), &["compare", &good, "t2/points.csv"], None);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(
+        r.stderr
+            .contains("good.csv:1: missing column `major_eng_pct`"),
+        "{r}"
+    );
+}

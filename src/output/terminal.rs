@@ -7,7 +7,8 @@ use std::fmt::Write as _;
 /// How many worst locations the summary lists.
 pub const WORST_SHOWN: usize = 8;
 
-fn wrap(text: &str, width: usize, indent: &str) -> String {
+/// Wrap `text` at word boundaries to `width` columns, each line starting with `indent`.
+pub fn wrap(text: &str, width: usize, indent: &str) -> String {
     let mut out = String::new();
     let mut line = String::new();
     for word in text.split_whitespace() {
