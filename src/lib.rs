@@ -17,6 +17,8 @@ pub mod assess;
 pub mod cli;
 pub mod commands;
 pub mod error;
+pub mod fit;
+pub mod grid;
 pub mod job;
 pub mod kinematics;
 pub mod limit;
