@@ -25,6 +25,10 @@ pub enum Command {
     Check(crate::commands::check::CheckArgs),
     /// Compute the strains of measured circles and write them to stdout as CSV.
     Strains(crate::commands::strains::StrainsArgs),
+    /// Strains from grid node positions (flat blank and formed part), judged like `check`.
+    Grid(crate::commands::grid::GridArgs),
+    /// Fit ellipses to outline points; write a measurement CSV that `check` reads.
+    Fit(crate::commands::fit::FitArgs),
 }
 
 /// Lengths and the job file, shared by the commands that read measurements.

@@ -10,6 +10,8 @@ fn main() -> ExitCode {
     let result = match &cli.command {
         Command::Check(args) => commands::check::run(args),
         Command::Strains(args) => commands::strains::run(args),
+        Command::Grid(args) => commands::grid::run(args),
+        Command::Fit(args) => commands::fit::run(args),
     };
     match result {
         Ok(Outcome::Done) => ExitCode::SUCCESS,

@@ -76,18 +76,57 @@ fn carried_fields(p: &PointResult) -> Vec<String> {
     ]
 }
 
-/// Write the full points table.
+/// Columns added at the end when the locations were computed from grid nodes: major direction
+/// in the blank (degrees from +X), in-plane rotation (2-D), formed-surface normal and centre
+/// height (3-D), element centre in the blank, node count.
+pub const GRID_COLUMNS: [&str; 9] = [
+    "major_dir_deg",
+    "rotation_deg",
+    "normal_x",
+    "normal_y",
+    "normal_z",
+    "z",
+    "ref_x",
+    "ref_y",
+    "nodes",
+];
+
+fn grid_fields(p: &PointResult) -> Vec<String> {
+    let Some(g) = &p.grid else {
+        return vec![String::new(); GRID_COLUMNS.len()];
+    };
+    let n = |i: usize| fmt_opt(g.normal.map(|n| n[i]), 6);
+    vec![
+        fmt_opt(g.major_angle_deg, 2),
+        fmt_opt(g.rotation_deg, 3),
+        n(0),
+        n(1),
+        n(2),
+        fmt_opt(g.z, 3),
+        format!("{:.3}", g.reference_centre[0]),
+        format!("{:.3}", g.reference_centre[1]),
+        g.nodes.to_string(),
+    ]
+}
+
+/// Write the full points table (with [`GRID_COLUMNS`] when any location came from grid nodes).
 pub fn write_points(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
     let mut w = csv::Writer::from_writer(out);
+    let with_grid = a.points.iter().any(|p| p.grid.is_some());
+    let extra: &[&str] = if with_grid { &GRID_COLUMNS } else { &[] };
     let header = STRAIN_COLUMNS
         .iter()
         .chain(&JUDGEMENT_COLUMNS)
-        .chain(&CARRIED_COLUMNS);
+        .chain(&CARRIED_COLUMNS)
+        .chain(extra);
     w.write_record(header)?;
     for p in &a.points {
         let mut row = strain_fields(p);
         row.extend(judgement_fields(p));
         row.extend(carried_fields(p));
+        if with_grid {
+            row.extend(grid_fields(p));
+        }
         w.write_record(&row)?;
     }
     w.flush()
