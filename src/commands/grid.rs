@@ -65,6 +65,9 @@ pub fn grid_analysis(args: &GridArgs) -> Result<Analysis> {
     let source = args.elements.clone().unwrap_or_else(|| args.nodes.clone());
     let (states, mut bad) = evaluate(&mesh, &source);
     rejected.append(&mut bad);
+    rejected.sort_by(|a, b| {
+        (&a.location.file, a.location.line).cmp(&(&b.location.file, b.location.line))
+    });
     let job_d0 = job.d0.is_some();
     let mut a = analyse_states(
         args.nodes.clone(),

@@ -217,3 +217,86 @@ fn xy(p: &[Vector3<f64>]) -> Vec<Vector2<f64>> {
 fn arr<T: Copy, const N: usize>(v: &[T]) -> [T; N] {
     std::array::from_fn(|i| v[i])
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use approx::assert_abs_diff_eq;
+
+    fn square() -> [Vector2<f64>; 4] {
+        [
+            Vector2::new(0.0, 0.0),
+            Vector2::new(5.0, 0.0),
+            Vector2::new(5.0, 5.0),
+            Vector2::new(0.0, 5.0),
+        ]
+    }
+
+    // A homogeneous deformation is reproduced exactly by the centre gradient (isoparametric
+    // elements represent linear fields exactly: Zienkiewicz & Taylor, vol. 1, completeness).
+    #[test]
+    fn homogeneous_quad_is_exact() {
+        let f = Matrix2::new(1.2, 0.1, -0.05, 0.9);
+        let x = square().map(|p| f * p + Vector2::new(3.0, -1.0));
+        assert_abs_diff_eq!(quad_gradient_2d(&square(), &x).unwrap(), f, epsilon = 1e-12);
+    }
+
+    #[test]
+    fn bad_quads_have_reasons() {
+        let mut dart = square();
+        dart[2] = Vector2::new(1.0, 1.0); // re-entrant corner
+        assert_eq!(
+            quad_gradient_2d(&dart, &dart),
+            Err(Degenerate::ReferenceNotConvex)
+        );
+        let mut folded = square();
+        folded[2] = Vector2::new(-1.0, -1.0); // one corner pulled through the opposite one
+        assert!(matches!(
+            quad_gradient_2d(&square(), &folded),
+            Err(Degenerate::Inverted { .. }) | Err(Degenerate::Collapsed { .. })
+        ));
+        let mut kinked = square();
+        kinked[1] = Vector2::new(2.0, 3.5); // corner 2 crosses the diagonal: corner triangle flips
+        assert!(matches!(
+            quad_gradient_2d(&square(), &kinked),
+            Err(Degenerate::Inverted { .. })
+        ));
+        let point = [Vector2::new(1.0, 1.0); 4];
+        assert!(matches!(
+            quad_gradient_2d(&point, &square()),
+            Err(Degenerate::ReferenceCollapsed { .. })
+        ));
+    }
+
+    // Equivalent diameter: a 5 mm square cell has the area of a circle of √(100/π) = 5.6419 mm.
+    #[test]
+    fn equivalent_diameter_of_a_cell() {
+        let nodes = square()
+            .iter()
+            .enumerate()
+            .map(|(i, p)| Node {
+                key: i.to_string(),
+                line: 2 + i as u64,
+                reference: *p,
+                deformed: Vector3::new(p.x, p.y, 0.0),
+            })
+            .collect();
+        let mesh = Mesh {
+            nodes,
+            elements: vec![],
+            three_d: false,
+        };
+        let e = Element {
+            id: "q".into(),
+            line: 2,
+            nodes: vec![0, 1, 2, 3],
+        };
+        let r = mesh.evaluate(&e).unwrap();
+        assert_abs_diff_eq!(
+            r.equivalent_d0(),
+            (100.0 / std::f64::consts::PI).sqrt(),
+            epsilon = 1e-12
+        );
+        assert_abs_diff_eq!(r.reference_centre, Vector2::new(2.5, 2.5), epsilon = 1e-12);
+    }
+}

@@ -31,6 +31,8 @@ pub struct Table {
     pub dialect: Dialect,
     /// Header names, trimmed (case kept).
     pub header: Vec<String>,
+    /// 1-based line of the header (after any leading comment lines).
+    pub header_line: u64,
     /// Data rows with their 1-based line numbers.
     pub rows: Vec<(u64, csv::StringRecord)>,
 }
@@ -52,6 +54,7 @@ pub fn read_table_from(mut input: impl BufRead, name: &Path, what: &str) -> Resu
         ));
     }
     let dialect = Dialect::detect(&header_line);
+    let header_line_no = prefix.trim_end_matches(['\n', '\r']).matches('\n').count() as u64 + 1;
     let mut reader = csv::ReaderBuilder::new()
         .delimiter(dialect.delimiter())
         .flexible(true)
@@ -79,6 +82,7 @@ pub fn read_table_from(mut input: impl BufRead, name: &Path, what: &str) -> Resu
         source: name.to_path_buf(),
         dialect,
         header,
+        header_line: header_line_no,
         rows,
     })
 }
@@ -163,17 +167,11 @@ impl Table {
 
     /// A header error at column `col` (0-based), or at the header line when `None`.
     pub fn header_error(&self, col: Option<usize>, message: String) -> Error {
-        let mut loc = Location::file(&self.source).at_line(self.header_line());
+        let mut loc = Location::file(&self.source).at_line(self.header_line);
         if let Some(c) = col {
             loc = loc.at_column(c as u64 + 1, &self.header[c]);
         }
         Error::input(loc, message)
-    }
-
-    fn header_line(&self) -> u64 {
-        // The header is the line before the first data row unless comments sit between them;
-        // the first data row's line is an upper bound, 1 the usual case.
-        1
     }
 }
 
@@ -224,6 +222,8 @@ pub struct NodeSet {
     pub has_id: bool,
     /// Whether the file has a `z` column.
     pub three_d: bool,
+    /// Line of the header.
+    pub header_line: u64,
     /// Rows not accepted, with reasons.
     pub rejected: Vec<RejectedRow>,
     /// Grid places `(row, col)` of rejected rows whose place could be read.
@@ -305,6 +305,7 @@ pub fn nodes_from_table(t: Table) -> Result<NodeSet> {
         has_grid,
         has_id,
         three_d: cols.contains_key(&NodeColumn::Z),
+        header_line: t.header_line,
         rejected: Vec::new(),
         rejected_places: BTreeMap::new(),
         ignored_columns: ignored,
@@ -352,6 +353,11 @@ pub fn nodes_from_table(t: Table) -> Result<NodeSet> {
                 if let Some(p) = place {
                     set.rejected_places.insert(p, *line);
                     e.id = Some(format!("r{}c{}", p.0, p.1));
+                }
+                if let Some(id) = cols.get(&NodeColumn::Id).and_then(|&c| r.get(c)) {
+                    e.id = Some(id.trim().to_string())
+                        .filter(|t| !t.is_empty())
+                        .or(e.id);
                 }
                 set.rejected.push(e);
             }
@@ -554,7 +560,7 @@ pub fn read_mesh(
         None if set.has_grid => grid_cells(&set),
         None => {
             return Err(Error::input(
-                Location::file(nodes).at_line(1),
+                Location::file(nodes).at_line(set.header_line),
                 "the nodes file has `id` but no `row, col`: give --elements ELEMENTS.csv (id, n1, n2, n3[, n4])",
             ))
         }
@@ -567,4 +573,141 @@ pub fn read_mesh(
         three_d: set.three_d,
     };
     Ok((mesh, all, set.ignored_columns))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn table(text: &str, name: &str) -> Table {
+        read_table_from(text.as_bytes(), Path::new(name), "test").unwrap()
+    }
+
+    fn nodes(text: &str) -> Result<NodeSet> {
+        nodes_from_table(table(text, "n.csv"))
+    }
+
+    /// A 3 × 3 grid of nodes, unit pitch, stretched 10 % in x; `skip` leaves a node out and
+    /// `bad` writes `abc` for its x.
+    fn grid_text(skip: Option<(i64, i64)>, bad: Option<(i64, i64)>) -> String {
+        let mut s = String::from("# a comment line\nrow,col,X,Y,x,y\n");
+        for r in 0..3 {
+            for c in 0..3 {
+                if skip == Some((r, c)) {
+                    continue;
+                }
+                let x = if bad == Some((r, c)) {
+                    "abc".to_string()
+                } else {
+                    format!("{}", 1.1 * c as f64)
+                };
+                s += &format!("{r},{c},{c},{r},{x},{r}\n");
+            }
+        }
+        s
+    }
+
+    #[test]
+    fn regular_grid_gives_its_cells() {
+        let set = nodes(&grid_text(None, None)).unwrap();
+        assert_eq!(set.nodes.len(), 9);
+        let (cells, rejected) = grid_cells(&set);
+        assert!(rejected.is_empty(), "{rejected:?}");
+        let ids: Vec<&str> = cells.iter().map(|c| c.id.as_str()).collect();
+        assert_eq!(ids, ["r0c0", "r0c1", "r1c0", "r1c1"]);
+        assert_eq!(cells[0].line, 3);
+    }
+
+    #[test]
+    fn missing_node_rejects_the_four_cells_around_it() {
+        let set = nodes(&grid_text(Some((1, 1)), None)).unwrap();
+        let (cells, rejected) = grid_cells(&set);
+        assert!(cells.is_empty());
+        assert_eq!(rejected.len(), 4);
+        assert!(
+            rejected
+                .iter()
+                .all(|r| r.reason.contains("node r1c1 missing")),
+            "{rejected:?}"
+        );
+    }
+
+    #[test]
+    fn bad_node_is_rejected_with_line_and_column_and_its_cells_say_why() {
+        let set = nodes(&grid_text(None, Some((0, 0)))).unwrap();
+        assert_eq!(set.rejected.len(), 1);
+        let r = set.rejected[0].to_string();
+        assert!(
+            r.starts_with("n.csv:3:5 (column `x`)") && r.contains("`abc`"),
+            "{r}"
+        );
+        let (cells, rejected) = grid_cells(&set);
+        assert_eq!(cells.len(), 3);
+        assert_eq!(rejected.len(), 1);
+        assert!(
+            rejected[0].reason.contains("r0c0 (rejected, line 3)"),
+            "{rejected:?}"
+        );
+    }
+
+    #[test]
+    fn header_problems_reject_the_file() {
+        // `x0` is an accepted name for the blank position X.
+        assert!(nodes("row,col,x0,Y,x,y\n0,0,0,0,0,0\n").is_ok());
+        let e = nodes("row,col,X,x,y\n0,0,0,0,0\n").unwrap_err().to_string();
+        assert!(
+            e.contains("n.csv:1") && e.contains("missing column `Y`"),
+            "{e}"
+        );
+        let e = nodes("name,X,Y,x,y\nA,0,0,0,0\n").unwrap_err().to_string();
+        assert!(e.contains("needs `row, col`"), "{e}");
+        let e = nodes("id,X,x0,Y,x,y\nA,0,0,0,0,0\n")
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("n.csv:1:3 (column `x0`)") && e.contains("same role"),
+            "{e}"
+        );
+    }
+
+    #[test]
+    fn semicolon_dialect_and_decimal_comma() {
+        let set = nodes("id;X;Y;x;y;z\nA;1,5;2;1,6;2,1;0,25\n").unwrap();
+        assert!(set.three_d);
+        assert!((set.nodes[0].reference.x - 1.5).abs() < 1e-12);
+        assert!((set.nodes[0].deformed.z - 0.25).abs() < 1e-12);
+    }
+
+    #[test]
+    fn duplicate_node_is_rejected() {
+        let set = nodes("id,X,Y,x,y\nA,0,0,0,0\nA,1,0,1,0\n").unwrap();
+        assert_eq!(set.nodes.len(), 1);
+        assert!(
+            set.rejected[0].to_string().contains("n.csv:3:1")
+                && set.rejected[0].reason.contains("appears twice")
+        );
+    }
+
+    #[test]
+    fn elements_refer_to_nodes() {
+        let set = nodes("id,X,Y,x,y\nA,0,0,0,0\nB,1,0,1,0\nC,0,1,0,1\nD,1,1,abc,1\n").unwrap();
+        let t = table(
+            "id,n1,n2,n3,n4\nT1,A,B,C,\nT2,A,B,Z,\nT3,A,B,D,\nT1,A,C,B,\n",
+            "e.csv",
+        );
+        let (elements, rejected) = elements_from_table(&t, &set).unwrap();
+        assert_eq!(elements.len(), 1);
+        assert_eq!(elements[0].nodes, vec![0, 1, 2]);
+        let msgs: Vec<String> = rejected.iter().map(ToString::to_string).collect();
+        assert!(
+            msgs[0].starts_with("e.csv:3:4 (column `n3`)")
+                && msgs[0].contains("`Z` is not in n.csv"),
+            "{msgs:?}"
+        );
+        assert!(msgs[1].contains("`D` was rejected (line 5"), "{msgs:?}");
+        assert!(
+            msgs[2].contains("e.csv:5:1") && msgs[2].contains("appears twice"),
+            "{msgs:?}"
+        );
+    }
 }

@@ -91,14 +91,24 @@ pub const GRID_COLUMNS: [&str; 9] = [
     "nodes",
 ];
 
+/// `fmt_opt` without a `-0.000` for a value that rounds to zero.
+fn fmt_signed(v: Option<f64>, decimals: usize) -> String {
+    let s = fmt_opt(v, decimals);
+    if s.starts_with('-') && s[1..].chars().all(|c| c == '0' || c == '.') {
+        s[1..].to_string()
+    } else {
+        s
+    }
+}
+
 fn grid_fields(p: &PointResult) -> Vec<String> {
     let Some(g) = &p.grid else {
         return vec![String::new(); GRID_COLUMNS.len()];
     };
-    let n = |i: usize| fmt_opt(g.normal.map(|n| n[i]), 6);
+    let n = |i: usize| fmt_signed(g.normal.map(|n| n[i]), 6);
     vec![
-        fmt_opt(g.major_angle_deg, 2),
-        fmt_opt(g.rotation_deg, 3),
+        fmt_signed(g.major_angle_deg, 2),
+        fmt_signed(g.rotation_deg, 3),
         n(0),
         n(1),
         n(2),
