@@ -72,21 +72,34 @@ def write_nodes(path):
                 f.write(f"{r},{c},{X:.3f},{Y:.3f},{x:.4f},{y:.4f},{z:.4f}\n")
 
 
-def write_outlines(path, d0=2.5, n_points=16):
+def singular_values(F):
+    """Singular values of a 2x2 matrix: square roots of the eigenvalues of F^T F."""
+    a = F[0][0] ** 2 + F[1][0] ** 2
+    b = F[0][0] * F[0][1] + F[1][0] * F[1][1]
+    c = F[0][1] ** 2 + F[1][1] ** 2
+    m, d = (a + c) / 2, math.sqrt(((a - c) / 2) ** 2 + b * b)
+    return math.sqrt(m + d), math.sqrt(max(m - d, 0.0))
+
+
+def write_outlines(path, exact_path, d0=2.5, n_points=16):
     """Outline points of etched circles (d0 = 2.5 mm) at 36 places, photographed square to the
     surface: the circle mapped by the in-plane gradient, placed at the formed plan position."""
-    with open(path, "w") as f:
+    with open(path, "w") as f, open(exact_path, "w") as g:
         f.write("# INVENTED demo: points digitised along etched 2.5 mm circles, mm\n")
         f.write("id,x,y\n")
+        g.write("# the axes each outline would have without reading noise: d0 x singular values of F\n")
+        g.write("id,major,minor\n")
         k = 0
         for i in range(6):
             for j in range(6):
                 X, Y = 12.5 + 19.0 * j, 7.5 + 13.0 * i
                 if i == 4 and j == 4:
-                    X, Y = 92.0, 62.0   # on the tight corner
+                    X, Y = 92.0, 62.0   # the middle of the tight corner (E55)
                 Fh = in_plane(gradient(X, Y))
                 x0, y0, _ = formed(X, Y)
                 cid = f"E{i + 1}{j + 1}"
+                s1, s2 = singular_values(Fh)
+                g.write(f"{cid},{d0 * s1:.6f},{d0 * s2:.6f}\n")
                 for p in range(n_points):
                     t = 2 * math.pi * p / n_points
                     cx, cy = 0.5 * d0 * math.cos(t), 0.5 * d0 * math.sin(t)
@@ -98,4 +111,4 @@ def write_outlines(path, d0=2.5, n_points=16):
 
 if __name__ == "__main__":
     write_nodes("nodes.csv")
-    write_outlines("outlines.csv")
+    write_outlines("outlines.csv", "outlines-exact.csv")
