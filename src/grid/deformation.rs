@@ -161,8 +161,8 @@ pub fn area_ratio_3d(f: &Matrix3x2<f64>) -> f64 {
     f.column(0).cross(&f.column(1)).norm()
 }
 
-/// Unit normal of the deformed surface: `n = F e1 × F e2 / |F e1 × F e2|`, oriented as the
-/// blank's +Z (the side the nodes were listed counter-clockwise from, in the blank).
+/// Unit normal of the deformed surface: `n = F e1 × F e2 / |F e1 × F e2|`, the image of the
+/// blank's +Z side (it does not depend on the order in which the nodes are listed).
 pub fn surface_normal(f: &Matrix3x2<f64>) -> Vector3<f64> {
     f.column(0).cross(&f.column(1)).normalize()
 }
