@@ -38,6 +38,8 @@ pub struct PointResult {
     pub thickness: Option<f64>,
     /// The judgement against the curve.
     pub judgement: Judgement,
+    /// Element values when the location was computed from grid nodes (`None` for a circle).
+    pub grid: Option<crate::grid::GridExtras>,
 }
 
 impl PointResult {
@@ -158,7 +160,49 @@ fn analyse_point(
         strain,
         thickness,
         judgement,
+        grid: None,
     })
+}
+
+/// Judge locations whose strains are already known (computed from grid nodes): the sibling of
+/// [`analyse`] for inputs that are not measured circles. `rejected` lists what could not be
+/// computed; `ignored_columns` are reported as a warning.
+#[allow(clippy::too_many_arguments)]
+pub fn analyse_states(
+    source: PathBuf,
+    states: Vec<crate::grid::StateInput>,
+    rejected: Vec<RejectedRow>,
+    ignored_columns: &[String],
+    job: Job,
+    lengths: Lengths,
+    curve: LimitCurve,
+    settings: Settings,
+) -> Analysis {
+    let points = states
+        .into_iter()
+        .map(|s| PointResult {
+            judgement: judge(&s.strain, &curve, &settings),
+            thickness: lengths.t0.map(|t0| s.strain.thickness(t0)),
+            input: s.input,
+            d0: s.d0,
+            strain: s.strain,
+            grid: s.grid,
+        })
+        .collect();
+    let mut warnings = curve.warnings.clone();
+    if !ignored_columns.is_empty() {
+        warnings.push(format!("ignored columns: {}", ignored_columns.join(", ")));
+    }
+    Analysis {
+        input: source,
+        job,
+        lengths,
+        curve,
+        settings,
+        points,
+        rejected,
+        warnings,
+    }
 }
 
 impl Analysis {

@@ -27,6 +27,10 @@ pub enum Command {
     Strains(crate::commands::strains::StrainsArgs),
     /// Compare two tryouts location by location (two points.csv files written by `check`).
     Compare(crate::commands::compare::CompareArgs),
+    /// Strains from grid node positions (flat blank and formed part), judged like `check`.
+    Grid(crate::commands::grid::GridArgs),
+    /// Fit ellipses to outline points; write a measurement CSV that `check` reads.
+    Fit(crate::commands::fit::FitArgs),
 }
 
 /// Lengths and the job file, shared by the commands that read measurements.

@@ -18,6 +18,8 @@ pub mod cli;
 pub mod commands;
 pub mod compare;
 pub mod error;
+pub mod fit;
+pub mod grid;
 pub mod job;
 pub mod kinematics;
 pub mod limit;

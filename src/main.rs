@@ -11,6 +11,8 @@ fn main() -> ExitCode {
         Command::Check(args) => commands::check::run(args),
         Command::Strains(args) => commands::strains::run(args),
         Command::Compare(args) => commands::compare::run(args),
+        Command::Grid(args) => commands::grid::run(args),
+        Command::Fit(args) => commands::fit::run(args),
     };
     match result {
         Ok(Outcome::Done) => ExitCode::SUCCESS,

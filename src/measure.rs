@@ -34,7 +34,7 @@ impl Dialect {
             Dialect::Comma
         }
     }
-    fn delimiter(self) -> u8 {
+    pub(crate) fn delimiter(self) -> u8 {
         match self {
             Dialect::Comma => b',',
             Dialect::Semicolon => b';',
@@ -377,7 +377,7 @@ pub fn read_measurements_from(mut input: impl BufRead, name: &Path) -> Result<Me
 
 /// Read up to and including the first line that is neither blank nor a `#` comment.
 /// Returns everything read (to be fed to the CSV reader) and that header line.
-fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<(String, String)> {
+pub(crate) fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<(String, String)> {
     let mut prefix = String::new();
     loop {
         let start = prefix.len();
@@ -395,7 +395,7 @@ fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<(String, St
     }
 }
 
-fn csv_error(loc: &Location, e: csv::Error) -> Error {
+pub(crate) fn csv_error(loc: &Location, e: csv::Error) -> Error {
     let line = e.position().map(|p| p.line());
     let message = match e.kind() {
         csv::ErrorKind::Utf8 { .. } => "the file is not valid UTF-8 text".to_string(),

@@ -90,13 +90,49 @@ fn carried_fields<W: Write>(f: &mut Fields<'_, W>, p: &PointResult) -> csv::Resu
     f.text(m.note.as_deref().unwrap_or(""))
 }
 
-/// Write the full points table.
+/// Columns added at the end when the locations were computed from grid nodes: major direction
+/// in the blank (degrees from +X), in-plane rotation (2-D), formed-surface normal and centre
+/// height (3-D), element centre in the blank, node count.
+pub const GRID_COLUMNS: [&str; 9] = [
+    "major_dir_deg",
+    "rotation_deg",
+    "normal_x",
+    "normal_y",
+    "normal_z",
+    "z",
+    "ref_x",
+    "ref_y",
+    "nodes",
+];
+
+fn grid_fields<W: Write>(f: &mut Fields<'_, W>, p: &PointResult) -> csv::Result<()> {
+    let Some(g) = &p.grid else {
+        for _ in GRID_COLUMNS {
+            f.text("")?;
+        }
+        return Ok(());
+    };
+    f.num(g.major_angle_deg, 2)?;
+    f.num(g.rotation_deg, 3)?;
+    for i in 0..3 {
+        f.num(g.normal.map(|n| n[i]), 6)?;
+    }
+    f.num(g.z, 3)?;
+    f.num(Some(g.reference_centre[0]), 3)?;
+    f.num(Some(g.reference_centre[1]), 3)?;
+    f.text(&g.nodes.to_string())
+}
+
+/// Write the full points table (with [`GRID_COLUMNS`] when any location came from grid nodes).
 pub fn write_points(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
     let mut w = csv::Writer::from_writer(out);
+    let with_grid = a.points.iter().any(|p| p.grid.is_some());
+    let extra: &[&str] = if with_grid { &GRID_COLUMNS } else { &[] };
     let header = STRAIN_COLUMNS
         .iter()
         .chain(&JUDGEMENT_COLUMNS)
-        .chain(&CARRIED_COLUMNS);
+        .chain(&CARRIED_COLUMNS)
+        .chain(extra);
     w.write_record(header)?;
     let mut f = Fields {
         w: &mut w,
@@ -106,6 +142,9 @@ pub fn write_points(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
         strain_fields(&mut f, p)?;
         judgement_fields(&mut f, p)?;
         carried_fields(&mut f, p)?;
+        if with_grid {
+            grid_fields(&mut f, p)?;
+        }
         f.end()?;
     }
     w.flush()

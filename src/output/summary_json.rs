@@ -19,7 +19,7 @@ pub fn summary(a: &Analysis) -> Value {
         .rejected
         .iter()
         .map(|r| {
-            json!({ "line": r.location.line, "column": r.location.column_name,
+            json!({ "file": r.location.file.display().to_string(), "line": r.location.line, "column": r.location.column_name,
                          "id": r.id, "reason": r.reason })
         })
         .collect();

@@ -1,0 +1,143 @@
+//! `neckline grid`: strains from grid nodes (flat blank and formed part), judged like `check`.
+
+use super::{
+    limit_path, load_job, resolve_lengths, resolve_settings, write_analysis_outputs, Outcome,
+};
+use crate::analysis::{analyse_states, Analysis};
+use crate::cli::{JudgeArgs, LengthArgs};
+use crate::error::{Error, Result};
+use crate::grid::{evaluate, read::read_mesh};
+use crate::limit::LimitCurve;
+use crate::output::terminal;
+use crate::units::LengthUnit;
+use clap::Args;
+use std::path::PathBuf;
+
+/// Arguments of `grid`.
+#[derive(Debug, Clone, Args)]
+pub struct GridArgs {
+    /// Nodes file (CSV: row, col (or id), X, Y, x, y[, z]): X, Y in the flat blank, x, y[, z] on
+    /// the formed part; `-` = stdin.
+    #[arg(value_name = "NODES.csv")]
+    pub nodes: PathBuf,
+    /// Elements file for an irregular mesh (CSV: id, n1, n2, n3[, n4], node ids in order around
+    /// each element) [default: the cells of the row, col grid].
+    #[arg(long, value_name = "ELEMENTS.csv")]
+    pub elements: Option<PathBuf>,
+    /// Folder for points.csv and summary.json (created if missing).
+    #[arg(long, value_name = "DIR", default_value = "neckline-out")]
+    pub out: PathBuf,
+    /// Refuse the whole run (exit 2, nothing written) if any node row or element is rejected.
+    #[arg(long)]
+    pub strict: bool,
+    /// Job file (TOML): part, tryout, material, t0, unit, limit and settings (its d0 is not
+    /// used: each element's own size is). Flags given here override it.
+    #[arg(long, value_name = "JOB.toml")]
+    pub job: Option<PathBuf>,
+    /// Initial sheet thickness, in --unit (for thickness; thinning needs no t0).
+    #[arg(long, value_name = "LENGTH")]
+    pub t0: Option<f64>,
+    /// Length unit of the node positions and --t0 [default: mm, or the job file's].
+    #[arg(long, value_name = "mm|in")]
+    pub unit: Option<LengthUnit>,
+    /// Curve and settings.
+    #[command(flatten)]
+    pub judge: JudgeArgs,
+}
+
+fn length_args(args: &GridArgs) -> LengthArgs {
+    LengthArgs {
+        job: args.job.clone(),
+        d0: None,
+        t0: args.t0,
+        unit: args.unit,
+    }
+}
+
+/// Read the mesh, compute every element's strains and judge them.
+pub fn grid_analysis(args: &GridArgs) -> Result<Analysis> {
+    let job = load_job(&length_args(args))?;
+    let mut lengths = resolve_lengths(&length_args(args), &job)?;
+    lengths.d0 = None;
+    let settings = resolve_settings(&args.judge, &job)?;
+    let curve = LimitCurve::load(&limit_path(&args.judge, &job)?)?;
+    let (mesh, mut rejected, ignored) = read_mesh(&args.nodes, args.elements.as_deref())?;
+    let source = args.elements.clone().unwrap_or_else(|| args.nodes.clone());
+    let (states, mut bad) = evaluate(&mesh, &source);
+    rejected.append(&mut bad);
+    rejected.sort_by(|a, b| {
+        (&a.location.file, a.location.line).cmp(&(&b.location.file, b.location.line))
+    });
+    let job_d0 = job.d0.is_some();
+    let mut a = analyse_states(
+        args.nodes.clone(),
+        states,
+        rejected,
+        &ignored,
+        job,
+        lengths,
+        curve,
+        settings,
+    );
+    if job_d0 {
+        a.warnings.push(
+            "d0 in the job file is not used by grid: each element's blank area gives its own"
+                .into(),
+        );
+    }
+    if a.points.is_empty() {
+        let first = a
+            .rejected
+            .first()
+            .map(|r| format!("; first: {r}"))
+            .unwrap_or_default();
+        return Err(Error::Usage(format!(
+            "{}: no element could be evaluated ({} rows or elements rejected{first})",
+            args.nodes.display(),
+            a.rejected.len()
+        )));
+    }
+    Ok(a)
+}
+
+/// Run `grid`.
+pub fn run(args: &GridArgs) -> Result<Outcome> {
+    let a = grid_analysis(args)?;
+    if args.strict && !a.rejected.is_empty() {
+        return Err(Error::Usage(format!(
+            "--strict: {} node rows or elements rejected, first: {}",
+            a.rejected.len(),
+            a.rejected[0]
+        )));
+    }
+    let mut inputs = vec![args.nodes.clone()];
+    inputs.extend(args.elements.clone());
+    inputs.extend(args.job.clone());
+    inputs.extend(args.judge.limit.clone());
+    inputs.extend(a.job.limit.clone());
+    let written = write_analysis_outputs(&a, &args.out, &inputs)?;
+    let three_d = a
+        .points
+        .iter()
+        .any(|p| p.grid.is_some_and(|g| g.normal.is_some()));
+    println!(
+        "Grid: {} elements evaluated from node positions ({}), quads at their centre",
+        a.points.len(),
+        if three_d { "3-D formed part" } else { "2-D" }
+    );
+    print!("{}", terminal::summary_text(&a));
+    println!(
+        "Wrote {}",
+        written
+            .iter()
+            .map(|p| p.display().to_string())
+            .collect::<Vec<_>>()
+            .join(", ")
+    );
+    let tripped = args.judge.fail_on.is_some_and(|z| a.trips(z));
+    Ok(if tripped {
+        Outcome::Tripped
+    } else {
+        Outcome::Done
+    })
+}
