@@ -219,17 +219,25 @@ impl Analysis {
         self.points.iter().filter(|p| p.zone() == zone).count()
     }
 
-    /// The `n` judged points with the smallest vertical margin, smallest first.
+    /// The `n` worst judged points: failed before marginal before the rest (a point failed by
+    /// thinning can keep a vertical margin), then smallest vertical margin first.
     pub fn worst(&self, n: usize) -> Vec<&PointResult> {
         let mut judged: Vec<&PointResult> = self
             .points
             .iter()
             .filter(|p| p.judgement.margin_pct.is_some())
             .collect();
+        let rank = |p: &PointResult| match p.zone() {
+            Zone::Failed => 0,
+            Zone::Marginal => 1,
+            _ => 2,
+        };
         judged.sort_by(|a, b| {
             let (ma, mb) = (a.judgement.margin_pct, b.judgement.margin_pct);
-            ma.unwrap_or(f64::INFINITY)
-                .total_cmp(&mb.unwrap_or(f64::INFINITY))
+            rank(a).cmp(&rank(b)).then(
+                ma.unwrap_or(f64::INFINITY)
+                    .total_cmp(&mb.unwrap_or(f64::INFINITY)),
+            )
         });
         judged.truncate(n);
         judged
