@@ -7,6 +7,8 @@
 //! Between points the curve is linear in the file's own strain measure.
 
 pub mod keeler_brazier;
+pub mod mk;
+pub mod necking;
 
 use crate::error::{Error, Location, Result};
 use crate::kinematics::StrainState;
