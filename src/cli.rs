@@ -25,6 +25,9 @@ pub enum Command {
     Check(crate::commands::check::CheckArgs),
     /// Compute the strains of measured circles and write them to stdout as CSV.
     Strains(crate::commands::strains::StrainsArgs),
+    /// Build a forming-limit curve from material data (Keeler-Brazier, analytic necking,
+    /// Marciniak-Kuczynski) as curve TOML, or compare two curves.
+    Limit(crate::commands::limit::LimitArgs),
 }
 
 /// Lengths and the job file, shared by the commands that read measurements.

@@ -9,6 +9,7 @@
 pub mod keeler_brazier;
 pub mod mk;
 pub mod necking;
+pub mod writer;
 
 use crate::error::{Error, Location, Result};
 use crate::kinematics::StrainState;
