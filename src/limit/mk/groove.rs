@@ -99,8 +99,8 @@ pub struct NoConvergence {
     pub step: usize,
     /// Bulk major strain at the start of the step.
     pub major: f64,
-    /// Largest residual at the last iteration.
-    pub residual: f64,
+    /// Largest residual at the last iteration; `None` when the run used up its step budget.
+    pub residual: Option<f64>,
 }
 
 /// Groove-frame matrices of one step (they depend only on the groove angle).
@@ -290,6 +290,9 @@ pub fn run(md: &Model, bulk: &Bulk, psi0: f64, rs: &RunSettings) -> Result<RunEn
     // Enough steps for the groove to reach several times the bound.
     let max_steps = ((4.0 * rs.bound.max(0.1) * (1.0 + bulk.k)) / h).ceil() as usize + 10;
     let mut step = 0;
+    // The state before the last accepted step: a step with no solution may mean that the step
+    // before it overshot the peak of the groove's load capacity, so both are redone smaller.
+    let mut back: Option<(State, [f64; 3])> = None;
     while step < 4 * max_steps {
         step += 1;
         let fr = Frame::new(&y_inv, bulk, groove_angle(psi0, bulk.rho, st.major));
@@ -299,15 +302,20 @@ pub fn run(md: &Model, bulk: &Bulk, psi0: f64, rs: &RunSettings) -> Result<RunEn
                 return Err(NoConvergence {
                     step,
                     major: st.major,
-                    residual,
+                    residual: Some(residual),
                 })
             }
             Err(_) => {
+                if let Some((prev, prev_x)) = back.take() {
+                    st = prev;
+                    x = prev_x;
+                }
                 h *= 0.5;
                 x = x.map(|v| 0.5 * v);
                 continue;
             }
         };
+        back = Some((st, x));
         let [a, e, _] = sol;
         st.major += a;
         st.bulk_eff += a * bulk.k;
@@ -324,8 +332,15 @@ pub fn run(md: &Model, bulk: &Bulk, psi0: f64, rs: &RunSettings) -> Result<RunEn
             return Ok(RunEnd::Beyond);
         }
         let grow = (2.0 * h).min(rs.step) / h;
+        if grow > 1.0 {
+            back = None; // the saved guess belongs to the smaller step
+        }
         h *= grow;
         x = sol.map(|v| v * grow);
     }
-    Ok(RunEnd::Beyond)
+    Err(NoConvergence {
+        step,
+        major: st.major,
+        residual: None,
+    })
 }

@@ -152,13 +152,19 @@ impl fmt::Display for MkError {
                 beta,
                 psi0_deg,
                 detail,
-            } => write!(
-                f,
-                "M-K: Newton's method did not converge on step {} (path beta = {beta:.4}, initial \
-                 groove angle {psi0_deg:.2} deg, bulk major true strain {:.4}, residual {:.2e}); \
-                 no curve written: try a smaller step",
-                detail.step, detail.major, detail.residual
-            ),
+            } => {
+                let what = detail.residual.map_or_else(
+                    || "the step budget ran out".to_string(),
+                    |r| format!("Newton's method did not converge (residual {r:.2e})"),
+                );
+                write!(
+                    f,
+                    "M-K: {what} on step {} (path beta = {beta:.4}, initial groove angle \
+                     {psi0_deg:.2} deg, bulk major true strain {:.4}); no curve written: try a \
+                     smaller step",
+                    detail.step, detail.major
+                )
+            }
             MkError::NoLocalisation { beta, max_strain } => write!(
                 f,
                 "M-K: no groove localised on path beta = {beta:.4} before the bulk major true \

@@ -144,3 +144,35 @@ fn settings_out_of_range_name_the_range() {
     };
     assert!(s.validate().unwrap_err().to_string().contains("psi fine"));
 }
+
+// A step that Newton cannot solve is an error naming the step, never a point on the curve
+// (one iteration allowed per step cannot meet the tolerance).
+#[test]
+fn non_convergence_is_an_error() {
+    let md = groove::Model {
+        yield_fn: hill48::Hill48::von_mises(),
+        n: 0.2,
+        eps0: 0.0,
+        f0: 0.99,
+    };
+    let rs = groove::RunSettings {
+        step: 0.002,
+        ratio: 10.0,
+        bound: 2.0,
+        tol: 1e-9,
+        max_iter: 1,
+    };
+    let e = groove::run(&md, &groove::Bulk::new(&md.yield_fn, 0.0), 0.0, &rs).unwrap_err();
+    assert_eq!(e.step, 11, "{e:?}"); // ten halvings of the step, then the error
+    assert!(e.residual.is_some_and(|r| r > 0.0));
+    let msg = MkError::NoConvergence {
+        beta: 0.0,
+        psi0_deg: 0.0,
+        detail: e,
+    }
+    .to_string();
+    assert!(
+        msg.contains("did not converge") && msg.contains("no curve written"),
+        "{msg}"
+    );
+}
