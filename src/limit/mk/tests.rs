@@ -176,3 +176,74 @@ fn non_convergence_is_an_error() {
         "{msg}"
     );
 }
+
+/// An independent M-K integration for a groove across the major strain (ψ = 0, von Mises), as
+/// Marciniak & Kuczynski 1967 set it up: the bulk major strain is stepped by `d`, and the groove's
+/// major strain increment is found by bisection on the force balance, with von Mises written in
+/// principal stresses (α = (2ρ+1)/(ρ+2), σ̄/σ1 = √(1 − α + α²), dε̄ = (2/√3)√(d1² + d1 d2 + d2²)).
+fn bulk_controlled_reference(n: f64, f0: f64, beta: f64, d: f64) -> f64 {
+    let eff = |d1: f64, d2: f64| 2.0 / 3f64.sqrt() * (d1 * d1 + d1 * d2 + d2 * d2).sqrt();
+    let s1_per_eff = |rho: f64| {
+        let a = (2.0 * rho + 1.0) / (rho + 2.0);
+        1.0 / (1.0 - a + a * a).sqrt()
+    };
+    let (mut e1a, mut ea, mut eb, mut t3a, mut t3b) = (0.0, 0.0, 0.0, 0.0, f0.ln());
+    loop {
+        let d2 = beta * d;
+        let bulk_force = (ea + eff(d, d2)).powf(n) * s1_per_eff(beta) * (t3a - d - d2).exp();
+        let gap = |x: f64| {
+            let groove = (eb + eff(x, d2)).powf(n) * s1_per_eff(d2 / x) * (t3b - x - d2).exp();
+            groove - bulk_force
+        };
+        // The first x at which the groove carries the bulk's force, scanning up from the bulk's own
+        // increment; none before 10x the bulk's effective increment means localisation.
+        let mut lo = d;
+        let mut hi = None;
+        while lo < 12.0 * d {
+            let next = lo + 0.01 * d;
+            if gap(next) >= 0.0 {
+                hi = Some(next);
+                break;
+            }
+            lo = next;
+        }
+        let Some(mut hi) = hi else { return e1a + d };
+        for _ in 0..60 {
+            let mid = 0.5 * (lo + hi);
+            if gap(mid) >= 0.0 {
+                hi = mid;
+            } else {
+                lo = mid;
+            }
+        }
+        let (db, dab) = (eff(hi, d2), eff(d, d2));
+        e1a += d;
+        ea += dab;
+        eb += db;
+        t3a -= d + d2;
+        t3b -= hi + d2;
+        if db >= 10.0 * dab {
+            return e1a;
+        }
+    }
+}
+
+// The groove solver against the independent bulk-controlled integration above, on the right side
+// where a groove across the major strain governs an isotropic sheet.
+#[test]
+fn right_side_matches_an_independent_integration() {
+    let s = MkSettings {
+        step: 0.0005,
+        ..MkSettings::default()
+    };
+    for beta in [0.0, 0.5, 1.0] {
+        let (mk, _) = limit_at_angle(&material(0.2, 1.0, 0.99), &s, beta, 0.0, 2.0)
+            .unwrap()
+            .unwrap();
+        let reference = bulk_controlled_reference(0.2, 0.99, beta, 2e-4);
+        assert!(
+            (mk - reference).abs() < 1e-3,
+            "beta {beta}: groove solver {mk:.5}, reference {reference:.5}"
+        );
+    }
+}
