@@ -304,7 +304,7 @@ fn bad_inputs_exit_2_with_a_clear_message() {
     );
     assert_eq!(r.status, 2, "{}", r.context());
     assert!(
-        r.stderr.contains("f0 = 1.2") && r.stderr.contains("0.5 ..= 0.9999"),
+        r.stderr.contains("f0 = 1.2") && r.stderr.contains("0.9 ..= 0.9999"),
         "{}",
         r.context()
     );

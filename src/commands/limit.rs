@@ -64,10 +64,10 @@ pub struct KeelerBrazierArgs {
     /// Unit of --thickness.
     #[arg(long, value_name = "mm|in", default_value = "mm")]
     pub unit: LengthUnit,
-    /// n above this is clamped to it, with a warning [default: 0.21, common practice].
+    /// n above this is clamped to it, with a warning (common practice).
     #[arg(long, value_name = "N", default_value_t = 0.21)]
     pub n_max: f64,
-    /// Thickness above this (mm) is clamped to it, with a warning [default: 3, common practice].
+    /// Thickness above this (mm) is clamped to it, with a warning (common practice).
     #[arg(long, value_name = "MM", default_value_t = 3.0)]
     pub thickness_max_mm: f64,
     /// Output file and name.
@@ -107,7 +107,7 @@ pub struct MkArgs {
     /// Lankford r-value across the rolling direction.
     #[arg(long, value_name = "R")]
     pub r90: f64,
-    /// Initial groove/bulk thickness ratio f0 (0.5 ..= 0.9999; typical 0.98-0.998).
+    /// Initial groove/bulk thickness ratio f0 (0.9 ..= 0.9999), in practice a fitting parameter.
     #[arg(long, value_name = "F0")]
     pub f0: f64,
     /// Swift pre-strain ε0 (0 ..= 0.1).

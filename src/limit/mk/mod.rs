@@ -94,7 +94,7 @@ impl MkMaterial {
         in_range("r0", self.r0, 0.1, 5.0)?;
         in_range("r45", self.r45, 0.1, 5.0)?;
         in_range("r90", self.r90, 0.1, 5.0)?;
-        in_range("f0", self.f0, 0.5, 0.9999)
+        in_range("f0", self.f0, 0.9, 0.9999)
     }
 
     fn model(&self) -> Model {

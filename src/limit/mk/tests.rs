@@ -137,7 +137,7 @@ fn settings_out_of_range_name_the_range() {
     let mut m = material(0.2, 1.0, 0.99);
     m.f0 = 1.0;
     let e = m.validate().unwrap_err().to_string();
-    assert!(e.contains("f0") && e.contains("0.5 ..= 0.9999"), "{e}");
+    assert!(e.contains("f0") && e.contains("0.9 ..= 0.9999"), "{e}");
     let s = MkSettings {
         psi_fine_deg: 2.0,
         ..MkSettings::default()
