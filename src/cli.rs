@@ -31,6 +31,9 @@ pub enum Command {
     Grid(crate::commands::grid::GridArgs),
     /// Fit ellipses to outline points; write a measurement CSV that `check` reads.
     Fit(crate::commands::fit::FitArgs),
+    /// Build a forming-limit curve from material data (Keeler-Brazier, analytic necking,
+    /// Marciniak-Kuczynski) as curve TOML, or compare two curves.
+    Limit(crate::commands::limit::LimitArgs),
 }
 
 /// Lengths and the job file, shared by the commands that read measurements.

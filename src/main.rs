@@ -13,6 +13,7 @@ fn main() -> ExitCode {
         Command::Compare(args) => commands::compare::run(args),
         Command::Grid(args) => commands::grid::run(args),
         Command::Fit(args) => commands::fit::run(args),
+        Command::Limit(args) => commands::limit::run(args),
     };
     match result {
         Ok(Outcome::Done) => ExitCode::SUCCESS,

@@ -4,6 +4,7 @@ pub mod check;
 pub mod compare;
 pub mod fit;
 pub mod grid;
+pub mod limit;
 pub mod strains;
 
 use crate::analysis::{analyse, Analysis, Lengths};

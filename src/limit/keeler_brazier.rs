@@ -177,6 +177,15 @@ mod tests {
         }
     }
 
+    // The inch form reproduces the same check values (project field notes, section 5) with the
+    // thickness converted at 25.4 mm per inch (exact, NIST SP 811).
+    #[test]
+    fn inch_form_reproduces_check_values() {
+        for (n, t_mm, flc0) in [(0.20, 0.8, 32.96), (0.21, 1.0, 37.43), (0.18, 1.5, 38.14)] {
+            assert_abs_diff_eq!(flc0_pct_inch(n, t_mm / 25.4), flc0, epsilon = 0.02);
+        }
+    }
+
     #[test]
     fn clamps_warn_and_act() {
         let kb = KeelerBrazier::new(0.25, 4.0);

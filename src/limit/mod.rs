@@ -7,6 +7,9 @@
 //! Between points the curve is linear in the file's own strain measure.
 
 pub mod keeler_brazier;
+pub mod mk;
+pub mod necking;
+pub mod writer;
 
 use crate::error::{Error, Location, Result};
 use crate::kinematics::StrainState;

@@ -1,0 +1,454 @@
+//! `neckline limit`: forming-limit curves from material data (Keeler-Brazier, analytic necking
+//! limits, Marciniak-Kuczynski), written as the curve TOML `check` reads, and `limit compare`.
+
+use super::Outcome;
+use crate::analysis::CAUTION;
+use crate::error::{Error, Result};
+use crate::limit::keeler_brazier::{self, KeelerBrazier};
+use crate::limit::mk::{self, MkMaterial, MkSettings, PathLimit};
+use crate::limit::necking::{self, RightSide};
+use crate::limit::writer::{GeneratedCurve, TOOL_VERSION};
+use crate::limit::LimitCurve;
+use crate::output::write_atomic;
+use crate::strain::{EngStrain, StrainMeasure};
+use crate::units::{LengthUnit, MM_PER_INCH};
+use clap::{Args, Subcommand};
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+/// Arguments of `limit`.
+#[derive(Debug, Clone, Args)]
+pub struct LimitArgs {
+    /// Which curve to build, or `compare`.
+    #[command(subcommand)]
+    pub model: LimitCommand,
+}
+
+/// The `limit` subcommands.
+#[derive(Debug, Clone, Subcommand)]
+pub enum LimitCommand {
+    /// Empirical steel curve from n and thickness (Keeler-Brazier; steels only), engineering strain.
+    KeelerBrazier(KeelerBrazierArgs),
+    /// Analytic necking limits of a power-law material (Hill 1952 left; Swift 1952 or
+    /// Storen-Rice 1975 right), true strain.
+    Necking(NeckingArgs),
+    /// Marciniak-Kuczynski prediction (Hill 1948 with r0, r45, r90; Swift hardening), true strain.
+    Mk(MkArgs),
+    /// Print two curves' engineering major strain and their difference at a set of minor strains.
+    Compare(CompareArgs),
+}
+
+/// Where and under which name a generated curve goes.
+#[derive(Debug, Clone, Args)]
+pub struct CurveOutArgs {
+    /// Write the curve to this file (atomically) instead of standard output.
+    #[arg(long, value_name = "FILE.toml")]
+    pub out: Option<PathBuf>,
+    /// Curve name shown on outputs [default: built from the model and its parameters].
+    #[arg(long, value_name = "NAME")]
+    pub name: Option<String>,
+    /// Material grade and lot, recorded in the file.
+    #[arg(long, value_name = "TEXT")]
+    pub material: Option<String>,
+}
+
+/// Arguments of `limit keeler-brazier`.
+#[derive(Debug, Clone, Args)]
+pub struct KeelerBrazierArgs {
+    /// Strain-hardening exponent n (tensile test).
+    #[arg(long, value_name = "N")]
+    pub n: f64,
+    /// Sheet thickness, in --unit.
+    #[arg(long, value_name = "LENGTH")]
+    pub thickness: f64,
+    /// Unit of --thickness.
+    #[arg(long, value_name = "mm|in", default_value = "mm")]
+    pub unit: LengthUnit,
+    /// n above this is clamped to it, with a warning (common practice).
+    #[arg(long, value_name = "N", default_value_t = 0.21)]
+    pub n_max: f64,
+    /// Thickness above this (mm) is clamped to it, with a warning (common practice).
+    #[arg(long, value_name = "MM", default_value_t = 3.0)]
+    pub thickness_max_mm: f64,
+    /// Output file and name.
+    #[command(flatten)]
+    pub out: CurveOutArgs,
+}
+
+/// Arguments of `limit necking`.
+#[derive(Debug, Clone, Args)]
+pub struct NeckingArgs {
+    /// Strain-hardening exponent n (power law σ = K εⁿ).
+    #[arg(long, value_name = "N")]
+    pub n: f64,
+    /// Model of the right side (β > 0).
+    #[arg(long, value_name = "swift|storen-rice", default_value = "swift")]
+    pub right: RightSide,
+    /// Number of strain ratios from -0.5 to 1.
+    #[arg(long, value_name = "P", default_value_t = 31)]
+    pub paths: usize,
+    /// Output file and name.
+    #[command(flatten)]
+    pub out: CurveOutArgs,
+}
+
+/// Arguments of `limit mk`.
+#[derive(Debug, Clone, Args)]
+pub struct MkArgs {
+    /// Strain-hardening exponent n of Swift hardening σ = K (ε0 + ε)ⁿ.
+    #[arg(long, value_name = "N")]
+    pub n: f64,
+    /// Lankford r-value along the rolling direction.
+    #[arg(long, value_name = "R")]
+    pub r0: f64,
+    /// Lankford r-value at 45° to the rolling direction.
+    #[arg(long, value_name = "R")]
+    pub r45: f64,
+    /// Lankford r-value across the rolling direction.
+    #[arg(long, value_name = "R")]
+    pub r90: f64,
+    /// Initial groove/bulk thickness ratio f0 (0.9 ..= 0.9999), in practice a fitting parameter.
+    #[arg(long, value_name = "F0")]
+    pub f0: f64,
+    /// Swift pre-strain ε0 (0 ..= 0.1).
+    #[arg(long, value_name = "E", default_value_t = 0.0)]
+    pub eps0: f64,
+    /// Strength coefficient K, MPa (recorded; it does not change a rate-independent limit).
+    #[arg(long, value_name = "MPA", default_value_t = 500.0)]
+    pub k: f64,
+    /// Number of strain ratios from -0.5 to 1.
+    #[arg(long, value_name = "P", default_value_t = 31)]
+    pub paths: usize,
+    /// Groove effective-strain increment per step.
+    #[arg(long, value_name = "H", default_value_t = MkSettings::default().step)]
+    pub step: f64,
+    /// Localisation: groove effective strain increment over the bulk's.
+    #[arg(long, value_name = "X", default_value_t = 10.0)]
+    pub ratio: f64,
+    /// Coarse scan step of the initial groove angle, degrees.
+    #[arg(long, value_name = "DEG", default_value_t = 5.0)]
+    pub psi_coarse: f64,
+    /// Fine scan step near the best angle, degrees (at most 1).
+    #[arg(long, value_name = "DEG", default_value_t = 0.5)]
+    pub psi_fine: f64,
+    /// Output file and name.
+    #[command(flatten)]
+    pub out: CurveOutArgs,
+}
+
+/// Arguments of `limit compare`.
+#[derive(Debug, Clone, Args)]
+pub struct CompareArgs {
+    /// First curve (TOML).
+    #[arg(value_name = "A.toml")]
+    pub a: PathBuf,
+    /// Second curve (TOML).
+    #[arg(value_name = "B.toml")]
+    pub b: PathBuf,
+    /// Minor strains to compare at, percent engineering, comma-separated.
+    #[arg(
+        long,
+        value_name = "PCT,...",
+        value_delimiter = ',',
+        allow_hyphen_values = true,
+        default_value = "-40,-30,-20,-10,0,10,20,30"
+    )]
+    pub at: Vec<f64>,
+}
+
+/// Run `limit`.
+pub fn run(args: &LimitArgs) -> Result<Outcome> {
+    match &args.model {
+        LimitCommand::KeelerBrazier(a) => emit(&keeler_brazier_curve(a)?, &a.out),
+        LimitCommand::Necking(a) => emit(&necking_curve(a)?, &a.out),
+        LimitCommand::Mk(a) => emit(&mk_curve(a)?, &a.out),
+        LimitCommand::Compare(a) => compare(a),
+    }
+}
+
+/// The Keeler-Brazier curve of the arguments; clamp warnings go to standard error.
+pub fn keeler_brazier_curve(a: &KeelerBrazierArgs) -> Result<GeneratedCurve> {
+    let t_mm = a.thickness * a.unit.mm();
+    let kb = KeelerBrazier {
+        n_max: a.n_max,
+        thickness_max_mm: a.thickness_max_mm,
+        ..KeelerBrazier::new(a.n, t_mm)
+    };
+    kb.validate()
+        .map_err(|m| Error::Usage(format!("keeler-brazier: {m}")))?;
+    if !(a.n_max > 0.0 && a.n_max < 1.0 && a.thickness_max_mm > 0.0) {
+        return Err(Error::Usage(format!(
+            "keeler-brazier: --n-max {} must be in 0 < n < 1 and --thickness-max-mm {} positive",
+            a.n_max, a.thickness_max_mm
+        )));
+    }
+    let (n, t, warnings) = kb.clamped();
+    for w in &warnings {
+        eprintln!("warning: {w}");
+    }
+    let given = match a.unit {
+        LengthUnit::Mm => format!("{} mm", a.thickness),
+        LengthUnit::In => format!(
+            "{} in = {t_mm:.4} mm; inch form (23.3 + 359 t) n / 0.21 gives {:.2} %",
+            a.thickness,
+            keeler_brazier::flc0_pct_inch(n, t / MM_PER_INCH)
+        ),
+    };
+    let source = format!(
+        "Keeler-Brazier empirical FLC for steels (Keeler & Brazier 1977, NADDRG; formula from \
+         memory): FLC0 = (23.3 + 14.13 t) n / 0.21 % engineering = {:.2} %; n = {}, thickness = \
+         {given}; clamps n <= {}, t <= {} mm{}; left side constant thickness strain, right side \
+         e1 = FLC0 + 0.6 e2 up to e2 = 20 % (common practice); engineering strain; generated by \
+         neckline {TOOL_VERSION}",
+        kb.flc0(),
+        a.n,
+        a.n_max,
+        a.thickness_max_mm,
+        if warnings.is_empty() {
+            String::new()
+        } else {
+            format!(" (applied: n = {n}, t = {t} mm)")
+        }
+    );
+    Ok(GeneratedCurve {
+        name: a
+            .out
+            .name
+            .clone()
+            .unwrap_or_else(|| format!("Keeler-Brazier n {} t {t_mm:.2} mm", a.n)),
+        source,
+        material: a.out.material.clone(),
+        thickness_mm: Some(t_mm),
+        measure: StrainMeasure::Engineering,
+        points_pct: kb.points_pct(),
+        notes: Vec::new(),
+    })
+}
+
+/// The analytic necking curve of the arguments (true strain).
+pub fn necking_curve(a: &NeckingArgs) -> Result<GeneratedCurve> {
+    necking::validate_n(a.n).map_err(|m| Error::Usage(format!("necking: {m}")))?;
+    check_paths(a.paths)?;
+    let pts = necking::curve_points(a.n, a.right, &necking::strain_ratios(a.paths));
+    let source = format!(
+        "Analytic necking limits of a power-law material, proportional paths: Hill 1952 localized \
+         neck eps1 + eps2 = n for beta <= 0 (J. Mech. Phys. Solids 1) and {} for beta > 0; n = \
+         {}; {} strain ratios from -0.5 to 1; imperfection-free sheet; true strain; generated by \
+         neckline {TOOL_VERSION}",
+        a.right.citation(),
+        a.n,
+        a.paths
+    );
+    Ok(GeneratedCurve {
+        name: a
+            .out
+            .name
+            .clone()
+            .unwrap_or_else(|| format!("Hill + {} n {}", a.right, a.n)),
+        source,
+        material: a.out.material.clone(),
+        thickness_mm: None,
+        measure: StrainMeasure::True,
+        points_pct: pts.iter().map(|p| [100.0 * p[0], 100.0 * p[1]]).collect(),
+        notes: Vec::new(),
+    })
+}
+
+fn check_paths(paths: usize) -> Result<()> {
+    if (2..=301).contains(&paths) {
+        Ok(())
+    } else {
+        Err(Error::Usage(format!(
+            "--paths {paths} is outside the allowed range 2 ..= 301"
+        )))
+    }
+}
+
+/// The Marciniak-Kuczynski curve of the arguments (true strain).
+pub fn mk_curve(a: &MkArgs) -> Result<GeneratedCurve> {
+    let mat = MkMaterial {
+        n: a.n,
+        k: a.k,
+        eps0: a.eps0,
+        r0: a.r0,
+        r45: a.r45,
+        r90: a.r90,
+        f0: a.f0,
+    };
+    let s = MkSettings {
+        step: a.step,
+        ratio: a.ratio,
+        paths: a.paths,
+        psi_coarse_deg: a.psi_coarse,
+        psi_fine_deg: a.psi_fine,
+        ..MkSettings::default()
+    };
+    let usage = |e: mk::MkError| Error::Usage(format!("mk: {e}"));
+    mat.validate().map_err(usage)?;
+    s.validate().map_err(usage)?;
+    let limits = mk::curve(&mat, &s).map_err(usage)?;
+    Ok(GeneratedCurve {
+        name: a
+            .out
+            .name
+            .clone()
+            .unwrap_or_else(|| format!("M-K n {} r {}/{}/{} f0 {}", a.n, a.r0, a.r45, a.r90, a.f0)),
+        source: mk_source(&mat, &s),
+        material: a.out.material.clone(),
+        thickness_mm: None,
+        measure: StrainMeasure::True,
+        points_pct: limits
+            .iter()
+            .map(|p| [100.0 * p.minor(), 100.0 * p.major])
+            .collect(),
+        notes: mk_notes(&limits),
+    })
+}
+
+/// The `source` line of an M-K curve: model, every parameter and setting, tool version.
+pub fn mk_source(m: &MkMaterial, s: &MkSettings) -> String {
+    format!(
+        "Marciniak-Kuczynski prediction (Marciniak & Kuczynski 1967, Int. J. Mech. Sci. 9; \
+         inclined groove as Hutchinson & Neale 1978): plane stress, Hill 1948 yield r0 = {}, r45 = \
+         {}, r90 = {}; Swift hardening sigma = K (eps0 + eps)^n with K = {} MPa, eps0 = {}, n = {}; \
+         groove thickness ratio f0 = {}; rate-independent flow theory; localisation when the \
+         groove effective strain increment exceeds {} times the bulk's; initial groove angle \
+         minimised over 0-90 deg (coarse {} deg, fine {} deg); groove effective strain step {}; \
+         {} strain ratios from -0.5 to 1; true strain; generated by neckline {TOOL_VERSION}",
+        m.r0,
+        m.r45,
+        m.r90,
+        m.k,
+        m.eps0,
+        m.n,
+        m.f0,
+        s.ratio,
+        s.psi_coarse_deg,
+        s.psi_fine_deg,
+        s.step,
+        s.paths
+    )
+}
+
+fn mk_notes(limits: &[PathLimit]) -> Vec<String> {
+    let mut v = vec![
+        "per path: beta, eps1 %, eps2 % (true), initial groove angle deg, angle at \
+                      localisation deg"
+            .to_string(),
+    ];
+    v.extend(limits.iter().map(|p| {
+        format!(
+            "  {:>6.3} {:>8.3} {:>8.3} {:>6.1} {:>6.1}",
+            p.beta,
+            100.0 * p.major,
+            100.0 * p.minor(),
+            p.psi0_deg,
+            p.psi_deg
+        )
+    }));
+    v
+}
+
+/// Check the curve by reading it back, then write it to `--out` (atomically) or to standard
+/// output. With `--out`, a short table and the caution go to standard output.
+fn emit(curve: &GeneratedCurve, out: &CurveOutArgs) -> Result<Outcome> {
+    let shown = out.out.clone().unwrap_or_else(|| PathBuf::from("<stdout>"));
+    let (text, parsed) = curve.render_checked(&shown)?;
+    match &out.out {
+        None => {
+            let mut o = std::io::stdout().lock();
+            o.write_all(text.as_bytes())
+                .map_err(|e| Error::io(Path::new("<stdout>"), e))?;
+            eprintln!("{CAUTION}");
+        }
+        Some(path) => {
+            write_atomic(path, &[], |w| w.write_all(text.as_bytes()))?;
+            print!("{}", summary(&parsed, path));
+        }
+    }
+    Ok(Outcome::Done)
+}
+
+/// A few lines for people: the file written, its plane-strain limit and the caution.
+fn summary(c: &LimitCurve, path: &Path) -> String {
+    let plane = c
+        .limit_major_eng(crate::strain::TrueStrain(0.0))
+        .map_or_else(|| "not covered".into(), |e| format!("{:.2} %", e.percent()));
+    format!(
+        "Wrote {} ({} points, {} strain): {}\n\
+         Plane-strain limit (FLC0): {plane} engineering major strain\n\
+         A curve from a model is a prediction, not a tested curve.\n{CAUTION}\n",
+        path.display(),
+        c.points.len(),
+        c.measure,
+        c.name
+    )
+}
+
+/// Run `limit compare`: both curves' engineering major strain at each `--at` minor strain.
+fn compare(a: &CompareArgs) -> Result<Outcome> {
+    let ca = LimitCurve::load(&a.a)?;
+    let cb = LimitCurve::load(&a.b)?;
+    for w in ca.warnings.iter().chain(&cb.warnings) {
+        eprintln!("warning: {w}");
+    }
+    if a.at.is_empty() {
+        return Err(Error::Usage("--at needs at least one minor strain".into()));
+    }
+    let mut minors = Vec::with_capacity(a.at.len());
+    for &m in &a.at {
+        let t = EngStrain::from_percent(m)
+            .to_true()
+            .filter(|_| m.is_finite() && m.abs() <= 300.0)
+            .ok_or_else(|| {
+                Error::Usage(format!(
+                    "--at {m}: a minor strain must be a percentage above -100 and at most 300"
+                ))
+            })?;
+        minors.push((m, t));
+    }
+    print!("{}", compare_table(&ca, &a.a, &cb, &a.b, &minors));
+    Ok(Outcome::Done)
+}
+
+/// The comparison table text.
+fn compare_table(
+    ca: &LimitCurve,
+    pa: &Path,
+    cb: &LimitCurve,
+    pb: &Path,
+    minors: &[(f64, crate::strain::TrueStrain)],
+) -> String {
+    let mut s = format!(
+        "A: {} ({}, {} strain)\nB: {} ({}, {} strain)\n\
+         Engineering major strain (%) at each minor strain; '-' = outside the curve's range.\n\n\
+         {:>10} {:>10} {:>10} {:>10}\n",
+        ca.name,
+        pa.display(),
+        ca.measure,
+        cb.name,
+        pb.display(),
+        cb.measure,
+        "minor %",
+        "A %",
+        "B %",
+        "B - A"
+    );
+    let cell = |v: Option<f64>| v.map_or_else(|| "-".to_string(), |v| format!("{v:.2}"));
+    for &(m, t) in minors {
+        let va = ca.limit_major_eng(t).map(|e| e.percent());
+        let vb = cb.limit_major_eng(t).map(|e| e.percent());
+        let diff = va.zip(vb).map(|(x, y)| y - x);
+        s.push_str(&format!(
+            "{:>10.2} {:>10} {:>10} {:>10}\n",
+            m,
+            cell(va),
+            cell(vb),
+            cell(diff)
+        ));
+    }
+    s.push('\n');
+    s.push_str(CAUTION);
+    s.push('\n');
+    s
+}
