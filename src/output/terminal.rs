@@ -1,8 +1,76 @@
-//! The short summary for people, fitted to 80 columns.
+//! The short summary for people, fitted to 80 columns. Colour (plain ANSI SGR codes) only when
+//! the stream is a terminal and `NO_COLOR` is unset or empty (no-color.org convention).
 
-use crate::analysis::{Analysis, CAUTION};
+use crate::analysis::{Analysis, Verdict, CAUTION};
+use crate::assess::Zone;
 use crate::output::fmt_opt;
 use std::fmt::Write as _;
+
+/// Width the summary fits in, columns.
+pub const WIDTH: usize = 80;
+
+/// Whether to colour a stream: it is a terminal and `NO_COLOR` is unset or empty.
+pub fn use_colour(is_terminal: bool) -> bool {
+    is_terminal && std::env::var_os("NO_COLOR").map_or(true, |v| v.is_empty())
+}
+
+/// ANSI SGR code of a zone: red, yellow, magenta, blue, cyan, green.
+fn zone_sgr(z: Zone) -> &'static str {
+    match z {
+        Zone::Failed => "1;31",
+        Zone::Marginal => "1;33",
+        Zone::Uncovered => "35",
+        Zone::Thickening => "34",
+        Zone::LowStretch => "36",
+        Zone::Safe => "32",
+    }
+}
+
+fn verdict_sgr(v: Verdict) -> &'static str {
+    match v {
+        Verdict::Fail => "1;37;41",
+        Verdict::Marginal => "1;30;43",
+        Verdict::Incomplete => "1;37;45",
+        Verdict::Pass => "1;37;42",
+    }
+}
+
+fn paint(s: &str, sgr: &str, colour: bool) -> String {
+    if colour {
+        format!("\x1b[{sgr}m{s}\x1b[0m")
+    } else {
+        s.to_string()
+    }
+}
+
+/// The summary, coloured when `colour` is true; the visible text is [`summary_text`].
+pub fn summary(a: &Analysis, colour: bool) -> String {
+    if !colour {
+        return summary_text(a);
+    }
+    let verdict = a.verdict();
+    let verdict_line = format!("Verdict: {}", verdict.name().to_uppercase());
+    summary_text(a)
+        .lines()
+        .map(|l| {
+            if l == verdict_line {
+                return paint(l, verdict_sgr(verdict), true);
+            }
+            // A zone name at the end of a worst-table row or at the start of a count row.
+            for z in Zone::ALL {
+                let name = z.name();
+                if let Some(head) = l.strip_suffix(name).filter(|h| h.ends_with("  ")) {
+                    return format!("{head}{}", paint(name, zone_sgr(z), true));
+                }
+                if let Some(tail) = l.strip_prefix(&format!("  {name} ")) {
+                    return format!("  {} {tail}", paint(name, zone_sgr(z), true));
+                }
+            }
+            l.to_string()
+        })
+        .map(|l| l + "\n")
+        .collect()
+}
 
 /// How many worst locations the summary lists.
 pub const WORST_SHOWN: usize = 8;
@@ -41,30 +109,28 @@ pub fn summary_text(a: &Analysis) -> String {
     let mut s = String::new();
     let job = &a.job;
     let field = |v: &Option<String>| v.clone().unwrap_or_else(|| "-".into());
-    let _ = writeln!(
-        s,
-        "neckline {} | {}",
-        env!("CARGO_PKG_VERSION"),
-        a.input.display()
-    );
+    let version = format!("neckline {} | ", env!("CARGO_PKG_VERSION"));
+    let input = clip(&a.input.display().to_string(), WIDTH - version.len());
+    let _ = writeln!(s, "{version}{input}");
     let _ = writeln!(
         s,
         "Part: {}   Tryout: {}",
-        clip(&field(&job.part), 40),
-        field(&job.tryout)
+        clip(&field(&job.part), 50),
+        clip(&field(&job.tryout), 16)
     );
     if job.material.is_some() || job.lot.is_some() {
         let _ = writeln!(
             s,
             "Material: {}   Lot: {}",
-            field(&job.material),
-            field(&job.lot)
+            clip(&field(&job.material), 40),
+            clip(&field(&job.lot), 22)
         );
     }
     let _ = writeln!(
         s,
         "Limit curve: {} ({} strain)",
-        a.curve.name, a.curve.measure
+        clip(&a.curve.name, 45),
+        a.curve.measure
     );
     s.push_str(&wrap(&format!("Source: {}", a.curve.source), 80, "  "));
     let st = &a.settings;
