@@ -315,18 +315,15 @@ pub fn read_measurements(path: &Path) -> Result<MeasurementSet> {
 /// Read measurements from any reader; `name` is used in messages.
 pub fn read_measurements_from(mut input: impl BufRead, name: &Path) -> Result<MeasurementSet> {
     let loc = Location::file(name);
-    let mut header = String::new();
-    input
-        .read_line(&mut header)
-        .map_err(|e| Error::io(name, e))?;
-    if header.trim().trim_start_matches('\u{feff}').is_empty() {
+    let (prefix, header) = read_header_line(&mut input, name)?;
+    if header.is_empty() {
         return Err(Error::input(
             loc,
             "the file is empty: expected a header row naming id, major, minor",
         ));
     }
     let dialect = Dialect::detect(&header);
-    let chained = Cursor::new(header.into_bytes()).chain(input);
+    let chained = Cursor::new(prefix.into_bytes()).chain(input);
     let mut reader = csv::ReaderBuilder::new()
         .delimiter(dialect.delimiter())
         .flexible(true)
@@ -376,6 +373,26 @@ pub fn read_measurements_from(mut input: impl BufRead, name: &Path) -> Result<Me
         ));
     }
     Ok(set)
+}
+
+/// Read up to and including the first line that is neither blank nor a `#` comment.
+/// Returns everything read (to be fed to the CSV reader) and that header line.
+fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<(String, String)> {
+    let mut prefix = String::new();
+    loop {
+        let start = prefix.len();
+        let n = input
+            .read_line(&mut prefix)
+            .map_err(|e| Error::io(name, e))?;
+        if n == 0 {
+            return Ok((prefix, String::new()));
+        }
+        let line = prefix[start..].trim().trim_start_matches('\u{feff}').trim();
+        if !line.is_empty() && !line.starts_with('#') {
+            let header = line.to_string();
+            return Ok((prefix, header));
+        }
+    }
 }
 
 fn csv_error(loc: &Location, e: csv::Error) -> Error {
@@ -451,6 +468,13 @@ mod tests {
             r[4].contains(":7") && r[4].contains("expected 3 fields"),
             "{r:?}"
         );
+    }
+
+    #[test]
+    fn leading_comments_do_not_decide_the_dialect() {
+        let s = read("# made by a, b, c\n\nid;major;minor\nA;3,1;2,6\n").unwrap();
+        assert_eq!(s.dialect, Dialect::Semicolon);
+        assert_eq!(s.points[0].line, 4);
     }
 
     #[test]

@@ -182,7 +182,8 @@ pub fn summary_text(a: &Analysis) -> String {
         let _ = writeln!(s);
         let _ = writeln!(s, "Rejected rows (not judged):");
         for r in a.rejected.iter().take(20) {
-            s.push_str(&wrap(&format!("{}: {}", r.location, r.reason), 80, "  "));
+            // One line each, unwrapped, so that `file:line:col` can be grepped and clicked.
+            let _ = writeln!(s, "  {r}");
         }
         if a.rejected.len() > 20 {
             let _ = writeln!(

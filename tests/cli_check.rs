@@ -1,0 +1,348 @@
+//! Integration tests: run the real `neckline` binary on good and bad files.
+
+use assert_cmd::Command;
+use std::path::{Path, PathBuf};
+
+fn repo(p: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join(p)
+}
+
+/// The outcome of one run, printed in full when an assertion fails.
+struct Run {
+    dir: PathBuf,
+    code: i32,
+    stdout: String,
+    stderr: String,
+}
+
+impl std::fmt::Display for Run {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "dir: {}\nexit: {}\n--- stdout\n{}\n--- stderr\n{}",
+            self.dir.display(),
+            self.code,
+            self.stdout,
+            self.stderr
+        )
+    }
+}
+
+fn run_in(dir: &Path, args: &[&str], stdin: Option<&str>) -> Run {
+    let mut cmd = Command::cargo_bin("neckline").unwrap();
+    cmd.current_dir(dir).args(args).env("NO_COLOR", "1");
+    if let Some(s) = stdin {
+        cmd.write_stdin(s);
+    }
+    let out = cmd.output().unwrap();
+    Run {
+        dir: dir.to_path_buf(),
+        code: out.status.code().unwrap_or(-1),
+        stdout: String::from_utf8_lossy(&out.stdout).into_owned(),
+        stderr: String::from_utf8_lossy(&out.stderr).into_owned(),
+    }
+}
+
+fn run(args: &[&str]) -> (tempfile::TempDir, Run) {
+    let dir = tempfile::tempdir().unwrap();
+    let r = run_in(dir.path(), args, None);
+    (dir, r)
+}
+
+fn demo(t: u8) -> [String; 2] {
+    [
+        repo(&format!("demo-parts/rear-floor-pan/tryout-{t}.csv"))
+            .display()
+            .to_string(),
+        repo(&format!("demo-parts/rear-floor-pan/job-t{t}.toml"))
+            .display()
+            .to_string(),
+    ]
+}
+
+fn read_json(p: &Path) -> serde_json::Value {
+    serde_json::from_str(&std::fs::read_to_string(p).unwrap()).unwrap()
+}
+
+#[test]
+fn check_on_demo_writes_points_and_summary() {
+    let [csv, job] = demo(1);
+    let (dir, r) = run(&["check", &csv, "--job", &job, "--out", "res"]);
+    assert_eq!(r.code, 0, "{r}");
+    assert!(r.stdout.contains("Verdict: FAIL"), "{r}");
+    assert!(r.stdout.contains("Keeler-Brazier"), "{r}");
+    assert!(r.stdout.contains("aid to judgement"), "{r}");
+    let points = std::fs::read_to_string(dir.path().join("res/points.csv")).unwrap();
+    let header = points.lines().next().unwrap();
+    assert!(header.starts_with(
+        "id,major_eng_pct,minor_eng_pct,major_true_pct,minor_true_pct,thickness_true_pct,\
+         thickness,thinning_pct,major_green_pct,minor_green_pct,major_almansi_pct,\
+         minor_almansi_pct,beta,effective_true_pct,limit_major_eng_pct,margin_pct,\
+         limit_use_pct,zone"
+    ));
+    assert_eq!(points.lines().count(), 121);
+    let s = read_json(&dir.path().join("res/summary.json"));
+    assert_eq!(s["points"], 120);
+    assert_eq!(s["verdict"], "fail");
+    let zone_total: u64 = s["zones"]
+        .as_object()
+        .unwrap()
+        .values()
+        .map(|v| v.as_u64().unwrap())
+        .sum();
+    assert_eq!(zone_total, 120);
+    // The zone counts in the summary agree with the zone column of points.csv.
+    let failed_rows = points.lines().filter(|l| l.contains(",failed,")).count() as u64;
+    assert_eq!(s["zones"]["failed"].as_u64().unwrap(), failed_rows);
+    assert!(s["worst"]["margin_pct"].as_f64().unwrap() < 0.0);
+    assert!(s["limit"]["source"].as_str().unwrap().contains("Keeler"));
+    // Nothing half-written is left behind.
+    let leftovers: Vec<_> = std::fs::read_dir(dir.path().join("res"))
+        .unwrap()
+        .filter_map(|e| e.ok())
+        .filter(|e| e.file_name().to_string_lossy().ends_with(".tmp"))
+        .collect();
+    assert!(leftovers.is_empty());
+}
+
+#[test]
+fn fail_on_sets_exit_status() {
+    let [csv1, job1] = demo(1);
+    let [csv2, job2] = demo(2);
+    let (_d, r) = run(&[
+        "check",
+        &csv1,
+        "--job",
+        &job1,
+        "--out",
+        "o",
+        "--fail-on",
+        "failed",
+    ]);
+    assert_eq!(r.code, 1, "{r}");
+    let (_d, r) = run(&[
+        "check",
+        &csv2,
+        "--job",
+        &job2,
+        "--out",
+        "o",
+        "--fail-on",
+        "failed",
+    ]);
+    assert_eq!(r.code, 0, "{r}");
+    let (_d, r) = run(&[
+        "check",
+        &csv2,
+        "--job",
+        &job2,
+        "--out",
+        "o",
+        "--fail-on",
+        "marginal",
+    ]);
+    assert_eq!(r.code, 1, "{r}");
+}
+
+// Check values of the strains (project field notes, section 2, computed from the textbook
+// formulas): d0 = 2.5, d1 = 3.25, d2 = 2.40 -> e = 30 %, -4 %; eps = 26.236 %, -4.082 %.
+#[test]
+fn strains_command_gives_reference_values() {
+    let (_d, r) = run(&[
+        "strains",
+        &repo("tests/data/good.csv").display().to_string(),
+        "--d0",
+        "2.5",
+        "--t0",
+        "1",
+    ]);
+    assert_eq!(r.code, 0, "{r}");
+    let mut rdr = csv::Reader::from_reader(r.stdout.as_bytes());
+    let row = rdr.records().next().unwrap().unwrap();
+    assert_eq!(&row[0], "P1");
+    let f = |i: usize| row[i].parse::<f64>().unwrap();
+    assert!(
+        (f(1) - 30.0).abs() < 1e-3 && (f(2) + 4.0).abs() < 1e-3,
+        "{r}"
+    );
+    assert!(
+        (f(3) - 26.236).abs() < 1e-3 && (f(4) + 4.082).abs() < 1e-3,
+        "{r}"
+    );
+    assert!((f(5) + 22.154).abs() < 1e-3, "{r}");
+    assert!((f(6) - 0.8013).abs() < 1e-4, "{r}");
+    assert!(
+        (f(10) - 20.414).abs() < 1e-3 && (f(11) + 4.254).abs() < 1e-3,
+        "{r}"
+    );
+}
+
+#[test]
+fn semicolon_file_gives_the_same_strains() {
+    let comma = run(&[
+        "strains",
+        &repo("tests/data/good.csv").display().to_string(),
+        "--d0",
+        "2.5",
+    ])
+    .1;
+    let semi = run(&[
+        "strains",
+        &repo("tests/data/good-semicolon.csv").display().to_string(),
+        "--d0",
+        "2.5",
+    ])
+    .1;
+    assert_eq!(comma.code, 0, "{comma}");
+    assert_eq!(comma.stdout, semi.stdout, "{semi}");
+}
+
+#[test]
+fn bad_rows_are_listed_not_dropped() {
+    let csv = repo("tests/data/bad-rows.csv").display().to_string();
+    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let (dir, r) = run(&["check", &csv, "--limit", &lim, "--d0", "2.5", "--out", "o"]);
+    assert_eq!(r.code, 0, "{r}");
+    assert!(
+        r.stdout.contains("1 locations judged, 5 rows rejected"),
+        "{r}"
+    );
+    for needle in [
+        "bad-rows.csv:3:2 (column `major`): expected a finite number, found `abc`",
+        "bad-rows.csv:4:3 (column `minor`): major axis 2.3 is smaller than minor axis 2.4",
+        "bad-rows.csv:5:2 (column `major`): the major axis must be greater than zero",
+        "bad-rows.csv:6:1 (column `id`): duplicate id `P1`",
+        "bad-rows.csv:7: expected 3 fields as in the header, found 2",
+    ] {
+        assert!(r.stdout.contains(needle), "missing `{needle}`\n{r}");
+    }
+    let s = read_json(&dir.path().join("o/summary.json"));
+    assert_eq!(s["rejected_rows"], 5);
+    assert_eq!(s["rejected"][0]["line"], 3);
+    // --strict refuses the whole file and writes nothing.
+    let (dir, r) = run(&[
+        "check", &csv, "--limit", &lim, "--d0", "2.5", "--out", "o", "--strict",
+    ]);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("--strict: 5 rows rejected"), "{r}");
+    assert!(!dir.path().join("o/points.csv").exists());
+}
+
+#[test]
+fn whole_file_errors_exit_2_with_location() {
+    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let cases = [
+        (
+            "missing-column.csv",
+            "missing-column.csv:1: missing column `minor`",
+        ),
+        ("empty.csv", "empty.csv: the file is empty"),
+    ];
+    for (file, needle) in cases {
+        let csv = repo(&format!("tests/data/{file}")).display().to_string();
+        let (_d, r) = run(&["check", &csv, "--limit", &lim, "--d0", "2.5"]);
+        assert_eq!(r.code, 2, "{r}");
+        assert!(
+            r.stderr.starts_with("error: ") && r.stderr.contains(needle),
+            "{r}"
+        );
+    }
+}
+
+#[test]
+fn usage_errors_exit_2() {
+    let csv = repo("tests/data/good.csv").display().to_string();
+    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let (_d, r) = run(&[
+        "check", &csv, "--limit", &lim, "--d0", "2.5", "--unit", "cm",
+    ]);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("expected `mm` or `in`"), "{r}");
+    let (_d, r) = run(&["check", &csv, "--d0", "2.5"]);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("no limit curve"), "{r}");
+    let (_d, r) = run(&["check", &csv, "--limit", &lim]);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("no initial circle diameter"), "{r}");
+    let (_d, r) = run(&["check", &csv, "--limit", &lim, "--d0", "-1"]);
+    assert_eq!(r.code, 2, "{r}");
+    let (_d, r) = run(&[
+        "check",
+        &csv,
+        "--limit",
+        &lim,
+        "--d0",
+        "2.5",
+        "--fail-on",
+        "bad",
+    ]);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("unknown zone"), "{r}");
+    let unsorted = repo("tests/data/unsorted.toml").display().to_string();
+    let (_d, r) = run(&["check", &csv, "--limit", &unsorted, "--d0", "2.5"]);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(
+        r.stderr.contains("unsorted.toml:5:") && r.stderr.contains("does not increase"),
+        "{r}"
+    );
+}
+
+#[test]
+fn never_writes_over_an_input() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::copy(repo("tests/data/good.csv"), dir.path().join("points.csv")).unwrap();
+    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let r = run_in(
+        dir.path(),
+        &[
+            "check",
+            "points.csv",
+            "--limit",
+            &lim,
+            "--d0",
+            "2.5",
+            "--out",
+            ".",
+        ],
+        None,
+    );
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("refusing to write"), "{r}");
+    let kept = std::fs::read_to_string(dir.path().join("points.csv")).unwrap();
+    assert_eq!(
+        kept,
+        std::fs::read_to_string(repo("tests/data/good.csv")).unwrap()
+    );
+}
+
+#[test]
+fn reads_measurements_from_stdin() {
+    let dir = tempfile::tempdir().unwrap();
+    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let input = std::fs::read_to_string(repo("tests/data/good.csv")).unwrap();
+    let r = run_in(
+        dir.path(),
+        &["check", "-", "--limit", &lim, "--d0", "2.5", "--out", "o"],
+        Some(&input),
+    );
+    assert_eq!(r.code, 0, "{r}");
+    // P1: e1 = 30 % on a flat 30 % curve is on the curve: failed (on or above counts).
+    let points = std::fs::read_to_string(dir.path().join("o/points.csv")).unwrap();
+    assert!(
+        points.lines().nth(1).unwrap().contains(",failed,"),
+        "{points}"
+    );
+}
+
+#[test]
+fn help_lists_commands_and_exit_codes() {
+    let (_d, r) = run(&["--help"]);
+    assert_eq!(r.code, 0);
+    assert!(
+        r.stdout.contains("check") && r.stdout.contains("strains"),
+        "{r}"
+    );
+    assert!(r.stdout.contains("Exit status"), "{r}");
+    let (_d, r) = run(&["check"]);
+    assert_eq!(r.code, 2, "{r}");
+}

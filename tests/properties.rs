@@ -1,0 +1,112 @@
+//! Property tests of the kinematics, the curve interpolation and the judgement.
+
+use approx::assert_relative_eq;
+use neckline::assess::{judge, Settings, Zone};
+use neckline::kinematics::StrainState;
+use neckline::limit::LimitCurve;
+use neckline::strain::{EngStrain, Stretch, TrueStrain};
+use proptest::prelude::*;
+use std::path::Path;
+
+fn stretch() -> impl Strategy<Value = f64> {
+    0.5f64..2.0
+}
+
+fn demo_curve() -> LimitCurve {
+    LimitCurve::load(
+        &Path::new(env!("CARGO_MANIFEST_DIR")).join("limits/demo-tabulated-invented.toml"),
+    )
+    .unwrap()
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(256))]
+
+    // Plastic incompressibility (volume constancy, any plasticity text): λ1 λ2 λ3 = 1, so
+    // ε3 = −(ε1 + ε2) and t = t0 / (λ1 λ2).
+    #[test]
+    fn incompressibility(a in stretch(), b in stretch(), t0 in 0.3f64..4.0) {
+        let s = StrainState::from_stretches(Stretch::new(a).unwrap(), Stretch::new(b).unwrap());
+        let e = s.true_strain;
+        assert_relative_eq!(s.thickness_strain.value(), -(e.major.value() + e.minor.value()), epsilon = 1e-12);
+        assert_relative_eq!(s.thickness(t0), t0 / (a * b), max_relative = 1e-12);
+        assert_relative_eq!(s.stretch.major.value() * s.stretch.minor.value() * s.thickness(t0) / t0, 1.0, max_relative = 1e-12);
+    }
+
+    // Principal values are ordered whatever order the axes come in, and every measure keeps
+    // the order (each is an increasing function of λ).
+    #[test]
+    fn major_not_below_minor_after_ordering(a in stretch(), b in stretch()) {
+        let s = StrainState::from_stretches(Stretch::new(a).unwrap(), Stretch::new(b).unwrap());
+        let t = StrainState::from_stretches(Stretch::new(b).unwrap(), Stretch::new(a).unwrap());
+        prop_assert_eq!(s, t);
+        prop_assert!(s.eng.major >= s.eng.minor);
+        prop_assert!(s.true_strain.major >= s.true_strain.minor);
+        prop_assert!(s.green.major >= s.green.minor);
+        prop_assert!(s.almansi.major >= s.almansi.minor);
+    }
+
+    // The measures agree with each other: e = exp(ε) − 1, E = ((1+e)² − 1)/2 = e + e²/2,
+    // a = E / λ² (definitions; any continuum mechanics text).
+    #[test]
+    fn measures_are_consistent(a in stretch()) {
+        let l = Stretch::new(a).unwrap();
+        let e = EngStrain::from(l).value();
+        let t = TrueStrain::from(l);
+        assert_relative_eq!(t.to_eng().value(), e, epsilon = 1e-12);
+        assert_relative_eq!(EngStrain(e).to_true().unwrap().value(), t.value(), epsilon = 1e-12);
+        let green = neckline::strain::GreenStrain::from(l).value();
+        assert_relative_eq!(green, e + e * e / 2.0, epsilon = 1e-12);
+        let almansi = neckline::strain::AlmansiStrain::from(l).value();
+        assert_relative_eq!(almansi, green / (a * a), epsilon = 1e-12);
+    }
+
+    // Linear interpolation stays between the two neighbouring points, and is monotone on each
+    // segment.
+    #[test]
+    fn interpolation_is_monotone_between_points(x1 in -0.35f64..0.30, dx in 0.0f64..0.05) {
+        let c = demo_curve();
+        let x2 = (x1 + dx).min(0.30);
+        let (y1, y2) = (c.major_at(x1).unwrap(), c.major_at(x2).unwrap());
+        let i = c.points.partition_point(|p| p[0] < x1).max(1);
+        let (lo, hi) = (c.points[i - 1][1].min(c.points[i][1]), c.points[i - 1][1].max(c.points[i][1]));
+        prop_assert!(y1 >= lo - 1e-12 && y1 <= hi + 1e-12);
+        if x2 <= c.points[i][0] {
+            let slope = c.points[i][1] - c.points[i - 1][1];
+            prop_assert!((y2 - y1) * slope >= -1e-12);
+        }
+    }
+
+    // The sign of the vertical margin agrees with the zone.
+    #[test]
+    fn margin_sign_agrees_with_zone(a in 0.8f64..1.8, b in 0.55f64..1.4, band in 0.0f64..20.0) {
+        let c = demo_curve();
+        let settings = Settings { margin_pct: band, ..Settings::default() };
+        let s = StrainState::from_stretches(Stretch::new(a).unwrap(), Stretch::new(b).unwrap());
+        let j = judge(&s, &c, &settings);
+        match (j.zone, j.margin_pct) {
+            (Zone::Uncovered, m) => prop_assert!(m.is_none()),
+            (Zone::Failed, Some(m)) => prop_assert!(m <= 0.0),
+            (Zone::Marginal, Some(m)) => prop_assert!(m > 0.0 && m < band),
+            (_, Some(m)) => prop_assert!(m >= band),
+            (z, None) => prop_assert!(false, "zone {z} without a margin"),
+        }
+        if let Some(u) = j.limit_use_pct {
+            // On or above the curve along the path ⇔ limit use ≥ 100 %, up to the bend that a
+            // straight engineering segment takes in true strain (sampled in 16 pieces).
+            if j.margin_pct.unwrap() < -0.5 { prop_assert!(u > 99.0, "use {u}"); }
+            if j.margin_pct.unwrap() > 0.5 { prop_assert!(u < 101.0, "use {u}"); }
+        }
+    }
+
+    // Limit use is proportional to the distance along a straight path: scaling the true
+    // strains by k scales the limit use by k.
+    #[test]
+    fn limit_use_scales_along_the_path(e1 in 0.05f64..0.3, beta in -0.5f64..1.0, k in 0.2f64..1.5) {
+        let c = demo_curve();
+        let state = |f: f64| StrainState::from_stretches(TrueStrain(f * e1).stretch(), TrueStrain(f * beta * e1).stretch());
+        if let (Some(u1), Some(uk)) = (c.limit_use_pct(&state(1.0)), c.limit_use_pct(&state(k))) {
+            assert_relative_eq!(uk, k * u1, max_relative = 1e-9);
+        }
+    }
+}
