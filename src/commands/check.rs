@@ -46,7 +46,12 @@ pub struct CheckArgs {
     pub out: PathBuf,
     /// Which outputs to write, comma-separated: csv (points.csv), json (summary.json),
     /// svg (fld.svg, map.svg), png (fld.png, map.png), html (report.html) [default: all].
-    #[arg(long, value_name = "LIST", value_delimiter = ',', default_value = "csv,json,svg,png,html")]
+    #[arg(
+        long,
+        value_name = "LIST",
+        value_delimiter = ',',
+        default_value = "csv,json,svg,png,html"
+    )]
     pub format: Vec<Format>,
     /// Where the points CSV goes instead of DIR/points.csv; `-` = standard output (the summary
     /// then goes to standard error).
@@ -145,13 +150,17 @@ pub fn run(args: &CheckArgs) -> Result<Outcome> {
         )));
     }
     let written = write_outputs(&a, args, &plan)?;
-    let wrote = format!(
-        "Wrote {}\n",
-        written
-            .iter()
-            .map(|p| p.display().to_string())
-            .collect::<Vec<_>>()
-            .join(", ")
+    let wrote = terminal::wrap(
+        &format!(
+            "Wrote {}",
+            written
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
+        terminal::WIDTH,
+        "",
     );
     let mut text = String::new();
     if map::placed(&a).is_empty() && (plan.svg.is_some() || plan.png.is_some()) {
@@ -224,7 +233,10 @@ fn write_outputs(a: &Analysis, args: &CheckArgs, plan: &Plan) -> Result<Vec<Path
     }
     let opts = fld_options(args);
     if let Some((f, m)) = &plan.svg {
-        put(f, fld::fld_svg(a, &opts).map_err(|e| render(f, e))?.as_bytes())?;
+        put(
+            f,
+            fld::fld_svg(a, &opts).map_err(|e| render(f, e))?.as_bytes(),
+        )?;
         if let Some(svg) = map::map_svg(a).map_err(|e| render(m, e))? {
             put(m, svg.as_bytes())?;
         }
@@ -236,7 +248,12 @@ fn write_outputs(a: &Analysis, args: &CheckArgs, plan: &Plan) -> Result<Vec<Path
         }
     }
     if let Some(p) = &plan.html {
-        put(p, report::report_html(a, &opts).map_err(|e| render(p, e))?.as_bytes())?;
+        put(
+            p,
+            report::report_html(a, &opts)
+                .map_err(|e| render(p, e))?
+                .as_bytes(),
+        )?;
     }
     Ok(written)
 }

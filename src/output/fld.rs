@@ -188,6 +188,8 @@ fn draw<DB: DrawingBackend>(
         .y_desc(format!("major strain ε1, {word} %"))
         .axis_desc_style(plot::text(17.0))
         .label_style(plot::text(14.0))
+        .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
+        .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
         .light_line_style(RGBColor(240, 240, 240))
         .bold_line_style(RGBColor(215, 215, 215))
         .draw()?;
@@ -234,7 +236,12 @@ fn draw<DB: DrawingBackend>(
         root.draw(&PathElement::new(run.clone(), BLACK.stroke_width(3)))?;
     }
     let plot_box = plot_rect(&chart);
-    let mut placer = Placer::new((plot_box.0 + 2, plot_box.1 + 2, plot_box.2 - 2, plot_box.3 - 2));
+    let mut placer = Placer::new((
+        plot_box.0 + 2,
+        plot_box.1 + 2,
+        plot_box.2 - 2,
+        plot_box.3 - 2,
+    ));
     draw_points(root, a, m, &px, &mut placer)?;
     draw_worst_labels(root, a, opts, &px, &mut placer)?;
     if let Some(end) = curve.first().and_then(|r| r.iter().min_by_key(|p| p.1)) {
@@ -254,7 +261,10 @@ fn draw<DB: DrawingBackend>(
 }
 
 fn plot_rect<DB: DrawingBackend>(
-    chart: &ChartContext<DB, Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>>,
+    chart: &ChartContext<
+        DB,
+        Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
+    >,
 ) -> Rect {
     let (xs, ys) = chart.plotting_area().get_pixel_range();
     (xs.start, ys.start, xs.end, ys.end)
@@ -420,12 +430,18 @@ fn draw_legend<DB: DrawingBackend>(
     root.draw_text(&band, &plot::text(14.0), (x + 50, y))?;
     y += 22;
     for d in plot::dashes(&sample(y), 10.0, 4.0) {
-        root.draw(&PathElement::new(d, RGBColor(120, 120, 120).stroke_width(1)))?;
+        root.draw(&PathElement::new(
+            d,
+            RGBColor(120, 120, 120).stroke_width(1),
+        ))?;
     }
     root.draw_text("strain paths", &plot::text(14.0), (x + 50, y))?;
     y += 22;
     for d in plot::dashes(&sample(y), 3.0, 4.0) {
-        root.draw(&PathElement::new(d, RGBColor(165, 165, 165).stroke_width(1)))?;
+        root.draw(&PathElement::new(
+            d,
+            RGBColor(165, 165, 165).stroke_width(1),
+        ))?;
     }
     root.draw_text("thinning iso-lines", &plot::text(14.0), (x + 50, y))?;
     y += 34;
@@ -448,7 +464,10 @@ fn draw_legend<DB: DrawingBackend>(
 }
 
 /// The caution and a provenance line at the bottom of a picture.
-pub fn draw_footer<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> DrawResult<DB> {
+pub fn draw_footer<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+) -> DrawResult<DB> {
     let style = plot::text(13.0).color(&RGBColor(60, 60, 60));
     let mut y = FOOTER_TOP + 8;
     root.draw(&PathElement::new(
@@ -466,4 +485,154 @@ pub fn draw_footer<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analys
     );
     let prov = plot::fit_px(root, &prov, &style, SIZE.0 - 30);
     root.draw_text(&prov, &style, (15, y))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::output::fixture;
+    use crate::output::plot::hex;
+
+    /// Markers of each zone in an SVG diagram, in [`Zone::ALL`] order (the legend's one included).
+    fn marker_counts(svg: &str) -> Vec<usize> {
+        let count = |needle: &str| svg.matches(needle).count();
+        Zone::ALL
+            .iter()
+            .map(|z| {
+                let c = hex(zone_colour(*z)).to_uppercase();
+                match zone_shape(*z) {
+                    plot::Shape::Cross => count(&format!("stroke=\"{c}\" stroke-width=\"4\"")) / 2,
+                    plot::Shape::Diamond => count(&format!("stroke=\"{c}\" stroke-width=\"3\"")),
+                    plot::Shape::Square | plot::Shape::Disc => {
+                        count(&format!("fill=\"{c}\" stroke=\"none\""))
+                    }
+                    plot::Shape::Triangle | plot::Shape::TriangleDown => {
+                        count(&format!("fill=\"{c}\" points="))
+                    }
+                }
+            })
+            .collect()
+    }
+
+    #[test]
+    fn svg_holds_curve_every_point_and_labels() {
+        let a = fixture::analysis(true);
+        let svg = fld_svg(&a, &FldOptions::default()).unwrap();
+        // The curve: one black 3-px polyline with every vertex of the true-strain polyline
+        // (the axis ranges are built to hold the whole curve, so nothing is clipped).
+        let n = a.curve.true_polyline(16).len();
+        let curve = svg
+            .lines()
+            .find(|l| {
+                l.contains("stroke=\"#000000\" stroke-width=\"3\"") && l.matches(',').count() > 2
+            })
+            .expect("curve polyline");
+        assert_eq!(curve.matches(',').count(), n, "{curve}");
+        // Every point, by zone (+1 for the legend's sample marker).
+        let expected: Vec<usize> = a.counts().iter().map(|(_, n)| n + 1).collect();
+        assert_eq!(marker_counts(&svg), expected);
+        for text in [
+            "Forming-limit diagram: TP-1 test panel &lt;LH&gt; &amp; co (invented)",
+            "tryout T1",
+            "test curve (invented)",
+            "limit curve",
+            "safety band −10 pp",
+            "uniaxial β = −½",
+            "plane strain β = 0",
+            "equibiaxial β = 1",
+            "constant thickness ε1 = −ε2",
+            "10 % thinning",
+            "20 % thinning",
+            "30 % thinning",
+            "minor strain ε2, engineering %",
+            "Caution: neckline is an aid to judgement.",
+        ] {
+            assert!(svg.contains(text), "missing `{text}`");
+        }
+        for p in a.worst(FldOptions::default().labelled) {
+            assert!(
+                svg.contains(&worst_label(p)),
+                "worst {} not labelled",
+                p.input.id
+            );
+        }
+        for (z, n) in a.counts() {
+            assert!(svg.contains(z.name()), "legend lacks {z}");
+            assert!(
+                svg.contains(&format!(">\n{n}\n<")),
+                "legend lacks count {n}"
+            );
+        }
+    }
+
+    #[test]
+    fn png_has_expected_size_and_text_in_title() {
+        let a = fixture::analysis(true);
+        let png = fld_png(&a, &FldOptions::default()).unwrap();
+        let img = image::load_from_memory(&png).unwrap().to_rgb8();
+        assert_eq!((img.width(), img.height()), SIZE);
+        // Text pixels in the title band (above the plot): dark pixels exist there only if the
+        // embedded font was found and rasterised.
+        let dark = |x0: u32, x1: u32, y0: u32, y1: u32| {
+            (y0..y1)
+                .flat_map(|y| (x0..x1).map(move |x| (x, y)))
+                .filter(|&(x, y)| img.get_pixel(x, y).0.iter().all(|&c| c < 100))
+                .count()
+        };
+        let title = dark(0, SIZE.0, 0, TITLE_H as u32);
+        assert!(title > 2000, "only {title} dark pixels in the title band");
+        // ... and the band is mostly white, so it is text, not a filled block.
+        assert!(title < (SIZE.0 * TITLE_H as u32) as usize / 5, "{title}");
+        // The footer holds the caution.
+        assert!(dark(0, SIZE.0, FOOTER_TOP as u32, SIZE.1) > 500);
+    }
+
+    #[test]
+    fn true_strain_axes_on_request() {
+        let a = fixture::analysis(true);
+        let opts = FldOptions {
+            measure: StrainMeasure::True,
+            ..FldOptions::default()
+        };
+        let svg = fld_svg(&a, &opts).unwrap();
+        assert!(svg.contains("major strain ε1, true %"));
+        // A point at engineering (38 %, −5 %) sits at true (32.2 %, −5.13 %): ln 1.38, ln 0.95.
+        let p = a.points.iter().find(|p| p.input.id == "F1").unwrap();
+        let (x, y) = point_xy(p, StrainMeasure::True);
+        assert!((y - 100.0 * 1.38f64.ln()).abs() < 1e-9 && (x - 100.0 * 0.95f64.ln()).abs() < 1e-9);
+    }
+
+    #[test]
+    fn thinning_lines_hold_constant_thickness_product() {
+        // t/t0 = 1/(λ1 λ2) by constant volume (any continuum mechanics text): on the 20 % line,
+        // (1 + e1)(1 + e2) = 1 / 0.8 = 1.25 in engineering strain.
+        for (x, y) in thinning_line(20.0, StrainMeasure::Engineering) {
+            assert!(((1.0 + x / 100.0) * (1.0 + y / 100.0) - 1.25).abs() < 1e-9);
+            assert!(y >= x - 1e-9, "major below minor at ({x}, {y})");
+        }
+    }
+
+    #[test]
+    fn reference_paths_have_their_strain_ratios() {
+        // Uniaxial tension of an isotropic sheet: β = ε2/ε1 = −1/2 in true strain, i.e.
+        // 1 + e2 = (1 + e1)^(−1/2) in engineering strain (FIELD notes §2, common practice).
+        let paths = reference_paths(StrainMeasure::Engineering);
+        for (x, y) in &paths[0].1[1..] {
+            let beta = (1.0 + x / 100.0).ln() / (1.0 + y / 100.0).ln();
+            assert!((beta + 0.5).abs() < 1e-9);
+        }
+        // Equibiaxial: e1 = e2.
+        assert!(paths[2].1.iter().all(|(x, y)| (x - y).abs() < 1e-9));
+    }
+
+    #[test]
+    fn band_is_curve_minus_margin_in_engineering_major() {
+        let a = fixture::analysis(true);
+        let c = curve_line(&a, StrainMeasure::Engineering);
+        let b = band_line(&a, StrainMeasure::Engineering);
+        assert_eq!(c.len(), b.len());
+        for (p, q) in c.iter().zip(&b) {
+            assert!((p.0 - q.0).abs() < 1e-9 && (p.1 - q.1 - 10.0).abs() < 1e-9);
+        }
+    }
 }

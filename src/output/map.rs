@@ -38,10 +38,11 @@ pub fn map_png(a: &Analysis) -> io::Result<Option<Vec<u8>>> {
     plot::render_png(SIZE, |root| draw(root, a)).map(Some)
 }
 
-/// The colour scale: margins from `lo` to `hi` percentage points, with the zone boundaries at 0
-/// and `band`. Anchors from the ColorBrewer RdYlBu scheme (Brewer, colorbrewer2.org, marked
-/// safe for colour-blind readers): dark red for deep failure, red at the curve, pale yellow at
-/// the edge of the band, blue for ample margin.
+/// The colour scale: margins from `lo` to `hi` percentage points. Continuous inside each zone,
+/// with a visible step at the zone boundaries 0 (on the curve: failed at or below) and `band`
+/// (edge of the safety band), so that a change of zone shows as a change of hue. Colours from the
+/// ColorBrewer RdYlBu scheme (Brewer, colorbrewer2.org, marked safe for colour-blind readers):
+/// dark red to red for failed, orange to yellow for marginal, light to dark blue beyond the band.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct MarginScale {
     /// Low end, pp.
@@ -52,7 +53,10 @@ pub struct MarginScale {
     pub hi: f64,
 }
 
-const ANCHORS: [(u8, u8, u8); 4] = [(0xa5, 0x00, 0x26), (0xf4, 0x6d, 0x43), (0xfe, 0xe0, 0x90), (0x31, 0x36, 0x95)];
+type Rgb = (u8, u8, u8);
+const FAILED: (Rgb, Rgb) = ((0xa5, 0x00, 0x26), (0xd7, 0x30, 0x27));
+const MARGINAL: (Rgb, Rgb) = ((0xf4, 0x6d, 0x43), (0xfe, 0xe0, 0x90));
+const BEYOND: (Rgb, Rgb) = ((0xab, 0xd9, 0xe9), (0x31, 0x36, 0x95));
 
 impl MarginScale {
     /// A scale that holds every margin of `a`, at least `−band/2 ..= 3·band`.
@@ -67,14 +71,21 @@ impl MarginScale {
         }
     }
 
-    /// The colour of a margin: piecewise linear between the anchors at lo, 0, band, hi.
+    /// The colour of a margin.
     pub fn colour(&self, m: f64) -> RGBColor {
-        let stops = [self.lo, 0.0, self.band, self.hi];
         let m = m.clamp(self.lo, self.hi);
-        let i = (1..stops.len()).find(|&i| m <= stops[i]).unwrap_or(3);
-        let span = stops[i] - stops[i - 1];
-        let t = if span > 0.0 { (m - stops[i - 1]) / span } else { 1.0 };
-        let (a, b) = (ANCHORS[i - 1], ANCHORS[i]);
+        let (from, to, (a, b)) = if m <= 0.0 {
+            (self.lo, 0.0, FAILED)
+        } else if m < self.band {
+            (0.0, self.band, MARGINAL)
+        } else {
+            (self.band, self.hi, BEYOND)
+        };
+        let t = if to > from {
+            (m - from) / (to - from)
+        } else {
+            1.0
+        };
         let mix = |x: u8, y: u8| (x as f64 + t * (y as f64 - x as f64)).round() as u8;
         RGBColor(mix(a.0, b.0), mix(a.1, b.1), mix(a.2, b.2))
     }
@@ -85,7 +96,9 @@ pub fn equal_ranges(pts: &[(f64, f64)], w: f64, h: f64) -> ((f64, f64), (f64, f6
     let fold = |f: fn(&(f64, f64)) -> f64| {
         pts.iter()
             .map(f)
-            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), v| (l.min(v), h.max(v)))
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), v| {
+                (l.min(v), h.max(v))
+            })
     };
     let (x0, x1) = fold(|p| p.0);
     let (y0, y1) = fold(|p| p.1);
@@ -154,6 +167,8 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
         .y_desc(format!("y, {unit}"))
         .axis_desc_style(plot::text(17.0))
         .label_style(plot::text(14.0))
+        .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
+        .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
         .light_line_style(RGBColor(244, 244, 244))
         .bold_line_style(RGBColor(220, 220, 220))
         .draw()?;
@@ -161,24 +176,24 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
     let outline: Vec<(i32, i32)> = hull(&pts).into_iter().map(px).collect();
     if outline.len() >= 3 {
         for d in plot::dashes(&outline, 6.0, 5.0) {
-            root.draw(&PathElement::new(d, RGBColor(150, 150, 150).stroke_width(1)))?;
+            root.draw(&PathElement::new(
+                d,
+                RGBColor(150, 150, 150).stroke_width(1),
+            ))?;
         }
     }
     let scale = MarginScale::of(a);
     let (xs, ys) = chart.plotting_area().get_pixel_range();
     let mut placer = Placer::new((xs.start + 2, ys.start + 2, xs.end - 2, ys.end - 2));
     let mut order = at.clone();
-    order.sort_by(|(p, _), (q, _)| q.zone().cmp(&p.zone()));
+    order.sort_by_key(|(p, _)| std::cmp::Reverse(p.zone()));
     for (p, xy) in &order {
         let c = px(*xy);
         let fill = p
             .judgement
             .margin_pct
             .map_or(RGBColor(190, 190, 190), |m| scale.colour(m));
-        let shape = match zone_shape(p.zone()) {
-            plot::Shape::Ring => plot::Shape::Disc,
-            s => s,
-        };
+        let shape = zone_shape(p.zone());
         marker(root, shape, c, 7, fill, BLACK)?;
         if shape == plot::Shape::Cross || shape == plot::Shape::Diamond {
             // Open shapes: a thin black halo keeps pale colours visible on white.
@@ -214,8 +229,14 @@ fn draw_worst<DB: DrawingBackend>(
         let at = placer.place(c, w, h);
         let to = (c.0.clamp(at.0, at.0 + w), c.1.clamp(at.1, at.1 + h));
         root.draw(&PathElement::new(vec![c, to], BLACK.stroke_width(1)))?;
-        root.draw(&Rectangle::new([at, (at.0 + w, at.1 + h)], WHITE.mix(0.85).filled()))?;
-        root.draw(&Rectangle::new([at, (at.0 + w, at.1 + h)], BLACK.stroke_width(1)))?;
+        root.draw(&Rectangle::new(
+            [at, (at.0 + w, at.1 + h)],
+            WHITE.mix(0.85).filled(),
+        ))?;
+        root.draw(&Rectangle::new(
+            [at, (at.0 + w, at.1 + h)],
+            BLACK.stroke_width(1),
+        ))?;
         root.draw_text(&text, &style, (at.0 + 3, at.1 + 2))?;
     }
     Ok(())
@@ -245,33 +266,61 @@ fn draw_title<DB: DrawingBackend>(
 }
 
 /// The vertical colour bar with its ticks and the zone boundaries.
-fn draw_scale<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, s: &MarginScale) -> DrawResult<DB> {
+fn draw_scale<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    s: &MarginScale,
+) -> DrawResult<DB> {
     let (x, top, bottom, w) = (PANEL_LEFT, TITLE_H + 44, TITLE_H + 364, 26);
     root.draw_text("Margin, pp", &plot::bold(16.0), (x, TITLE_H + 16))?;
-    let y_of = |m: f64| bottom - ((m - s.lo) / (s.hi - s.lo) * (bottom - top) as f64).round() as i32;
+    let y_of =
+        |m: f64| bottom - ((m - s.lo) / (s.hi - s.lo) * (bottom - top) as f64).round() as i32;
     for y in top..=bottom {
         let m = s.lo + (bottom - y) as f64 / (bottom - top) as f64 * (s.hi - s.lo);
-        root.draw(&PathElement::new(vec![(x, y), (x + w, y)], s.colour(m).stroke_width(1)))?;
+        root.draw(&PathElement::new(
+            vec![(x, y), (x + w, y)],
+            s.colour(m).stroke_width(1),
+        ))?;
     }
-    root.draw(&Rectangle::new([(x, top), (x + w, bottom)], BLACK.stroke_width(1)))?;
+    root.draw(&Rectangle::new(
+        [(x, top), (x + w, bottom)],
+        BLACK.stroke_width(1),
+    ))?;
     let step = if s.hi - s.lo > 60.0 { 10.0 } else { 5.0 };
     let mut m = (s.lo / step).ceil() * step;
     while m <= s.hi + 1e-9 {
         let y = y_of(m);
-        root.draw(&PathElement::new(vec![(x + w, y), (x + w + 5, y)], BLACK.stroke_width(1)))?;
-        root.draw_text(&format!("{m:.0}"), &plot::text(13.0), (x + w + 8, y - 7))?;
+        // The boundaries carry their own label below.
+        if (m - 0.0).abs() > 1e-9 && (m - s.band).abs() > 1e-9 {
+            root.draw(&PathElement::new(
+                vec![(x + w, y), (x + w + 5, y)],
+                BLACK.stroke_width(1),
+            ))?;
+            root.draw_text(&format!("{m:.0}"), &plot::text(13.0), (x + w + 8, y - 7))?;
+        }
         m += step;
     }
-    for (v, label) in [(0.0, "0: on the curve"), (s.band, "band edge")] {
+    for (v, label) in [(0.0, "on the curve"), (s.band, "band edge")] {
         let y = y_of(v);
-        root.draw(&PathElement::new(vec![(x - 6, y), (x + w + 40, y)], BLACK.stroke_width(3)))?;
-        let text = if v > 0.0 { format!("{v:.0}: {label}") } else { label.to_string() };
+        root.draw(&PathElement::new(
+            vec![(x - 6, y), (x + w + 40, y)],
+            BLACK.stroke_width(3),
+        ))?;
+        let text = format!("{v:.0}: {label}");
         root.draw_text(&text, &plot::bold(13.0), (x + w + 46, y - 8))?;
     }
     let mid = |a: f64, b: f64| y_of((a + b) / 2.0) - 7;
     let zone_text = plot::text(13.0).color(&RGBColor(70, 70, 70));
-    root.draw_text("failed", &zone_text, (x + w + 46, mid(s.lo, 0.0).min(y_of(0.0) + 12)))?;
+    root.draw_text(
+        "failed",
+        &zone_text,
+        (x + w + 46, mid(s.lo, 0.0).max(y_of(0.0) + 10)),
+    )?;
     root.draw_text("marginal", &zone_text, (x + w + 46, mid(0.0, s.band)))?;
+    root.draw_text(
+        "beyond the band",
+        &zone_text,
+        (x + w + 46, mid(s.band, s.hi)),
+    )?;
     Ok(())
 }
 
@@ -281,23 +330,32 @@ fn draw_shapes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) 
     root.draw_text("Shape = zone (locations)", &plot::bold(16.0), (x, y))?;
     y += 26;
     for (zone, n) in a.counts() {
-        let shape = match zone_shape(zone) {
-            plot::Shape::Ring => plot::Shape::Disc,
-            s => s,
-        };
+        let shape = zone_shape(zone);
         let fill = if zone == Zone::Uncovered {
             RGBColor(190, 190, 190)
         } else {
             RGBColor(110, 110, 110)
         };
         marker(root, shape, (x + 10, y + 8), 6, fill, BLACK)?;
-        root.draw_text(&format!("{}  {n}", zone.name()), &plot::text(14.0), (x + 28, y))?;
+        root.draw_text(
+            &format!("{}  {n}", zone.name()),
+            &plot::text(14.0),
+            (x + 28, y),
+        )?;
         y += 22;
     }
     y += 8;
-    root.draw_text("grey fill: no margin (uncovered)", &plot::text(13.0), (x, y))?;
+    root.draw_text(
+        "grey fill: no margin (uncovered)",
+        &plot::text(13.0),
+        (x, y),
+    )?;
     y += 18;
-    root.draw_text("dashed: hull of the measured locations", &plot::text(13.0), (x, y))?;
+    root.draw_text(
+        "dashed: hull of the measured locations",
+        &plot::text(13.0),
+        (x, y),
+    )?;
     Ok(())
 }
 
@@ -315,9 +373,14 @@ mod tests {
 
     #[test]
     fn scale_hits_its_anchors() {
-        let s = MarginScale { lo: -10.0, band: 10.0, hi: 40.0 };
-        assert_eq!(s.colour(0.0), RGBColor(0xf4, 0x6d, 0x43));
-        assert_eq!(s.colour(10.0), RGBColor(0xfe, 0xe0, 0x90));
+        let s = MarginScale {
+            lo: -10.0,
+            band: 10.0,
+            hi: 40.0,
+        };
+        assert_eq!(s.colour(0.0), RGBColor(0xd7, 0x30, 0x27)); // on the curve: failed
+        assert_eq!(s.colour(1e-9), RGBColor(0xf4, 0x6d, 0x43)); // just below: marginal
+        assert_eq!(s.colour(10.0), RGBColor(0xab, 0xd9, 0xe9)); // band edge: beyond the band
         assert_eq!(s.colour(99.0), RGBColor(0x31, 0x36, 0x95));
     }
 
@@ -326,5 +389,72 @@ mod tests {
         let h = hull(&[(0.0, 0.0), (1.0, 0.0), (1.0, 1.0), (0.0, 1.0), (0.5, 0.5)]);
         assert_eq!(h.len(), 5); // four corners, closed
         assert!(!h.contains(&(0.5, 0.5)));
+    }
+}
+
+#[cfg(test)]
+mod render_tests {
+    use super::*;
+    use crate::output::fixture;
+
+    #[test]
+    fn no_positions_no_map() {
+        let a = fixture::analysis(false);
+        assert!(map_svg(&a).unwrap().is_none());
+        assert!(map_png(&a).unwrap().is_none());
+    }
+
+    #[test]
+    fn svg_holds_every_location_and_the_scale() {
+        let a = fixture::analysis(true);
+        let svg = map_svg(&a).unwrap().unwrap();
+        let count = |needle: &str| svg.matches(needle).count();
+        let n = |z: Zone| a.count(z);
+        // Marker primitives at the map's size (r = 7) against the zone counts; the legend's
+        // markers are drawn at r = 6.
+        assert_eq!(count("r=\"7\" opacity=\"1\" fill=\"#"), n(Zone::Safe));
+        assert_eq!(
+            count("width=\"12\" height=\"12\" opacity=\"1\" fill=\"#"),
+            n(Zone::Thickening)
+        );
+        assert_eq!(
+            count("<polygon"),
+            n(Zone::Marginal) + n(Zone::LowStretch) + 2,
+            "triangles up and down, legend included"
+        );
+        // A failed cross is drawn fill, black halo, fill again: 3 × 2 strokes; legend 2.
+        assert_eq!(count("stroke-width=\"4\""), 6 * n(Zone::Failed) + 2);
+        for text in [
+            "Part map: TP-1 test panel &lt;LH&gt; &amp; co (invented)",
+            "x, mm",
+            "y, mm",
+            "0: on the curve",
+            "10: band edge",
+            "Margin, pp",
+            "Caution: neckline is an aid to judgement.",
+        ] {
+            assert!(svg.contains(text), "missing `{text}`");
+        }
+        for p in a.worst(LABELLED) {
+            assert!(
+                svg.contains(&worst_label(p)),
+                "worst {} not labelled",
+                p.input.id
+            );
+        }
+    }
+
+    #[test]
+    fn png_has_expected_size_and_text_in_title() {
+        let a = fixture::analysis(true);
+        let img = image::load_from_memory(&map_png(&a).unwrap().unwrap())
+            .unwrap()
+            .to_rgb8();
+        assert_eq!((img.width(), img.height()), SIZE);
+        let dark = (0..TITLE_H as u32)
+            .flat_map(|y| (0..SIZE.0).map(move |x| (x, y)))
+            .filter(|&(x, y)| img.get_pixel(x, y).0.iter().all(|&c| c < 100))
+            .count();
+        assert!(dark > 2000, "only {dark} dark pixels in the title band");
     }
 }

@@ -10,8 +10,9 @@ use plotters::style::{register_font, FontStyle};
 use std::io::{self, Write};
 use std::sync::Once;
 
-/// The font family name the pictures use; the embedded DejaVu Sans is registered under it.
-pub const FONT: &str = "sans-serif";
+/// The font family the pictures use. The embedded DejaVu Sans is registered under this name for
+/// the PNG; an SVG viewer reads it as a CSS font list and falls back to any sans-serif font.
+pub const FONT: &str = "DejaVu Sans, sans-serif";
 
 /// Size of both pictures, pixels (SVG user units are the same).
 pub const SIZE: (u32, u32) = (1200, 860);
@@ -85,8 +86,8 @@ pub enum Shape {
     Diamond,
     /// A square.
     Square,
-    /// A ring.
-    Ring,
+    /// A triangle, point down.
+    TriangleDown,
     /// A disc.
     Disc,
 }
@@ -98,7 +99,7 @@ pub fn zone_shape(z: Zone) -> Shape {
         Zone::Marginal => Shape::Triangle,
         Zone::Uncovered => Shape::Diamond,
         Zone::Thickening => Shape::Square,
-        Zone::LowStretch => Shape::Ring,
+        Zone::LowStretch => Shape::TriangleDown,
         Zone::Safe => Shape::Disc,
     }
 }
@@ -130,15 +131,30 @@ pub fn marker<DB: DrawingBackend>(
             area.draw(&PathElement::new(closed(pts), outline))
         }
         Shape::Diamond => {
-            let pts = vec![(x, y - r - 1), (x + r + 1, y), (x, y + r + 1), (x - r - 1, y)];
+            let pts = vec![
+                (x, y - r - 1),
+                (x + r + 1, y),
+                (x, y + r + 1),
+                (x - r - 1, y),
+            ];
             area.draw(&PathElement::new(closed(pts), fill.stroke_width(3)))
         }
         Shape::Square => {
             let rr = r - 1;
-            area.draw(&Rectangle::new([(x - rr, y - rr), (x + rr, y + rr)], fill.filled()))?;
-            area.draw(&Rectangle::new([(x - rr, y - rr), (x + rr, y + rr)], outline))
+            area.draw(&Rectangle::new(
+                [(x - rr, y - rr), (x + rr, y + rr)],
+                fill.filled(),
+            ))?;
+            area.draw(&Rectangle::new(
+                [(x - rr, y - rr), (x + rr, y + rr)],
+                outline,
+            ))
         }
-        Shape::Ring => area.draw(&Circle::new((x, y), r, fill.stroke_width(3))),
+        Shape::TriangleDown => {
+            let pts = vec![(x, y + r + 1), (x + r + 1, y - r), (x - r - 1, y - r)];
+            area.draw(&Polygon::new(pts.clone(), fill.filled()))?;
+            area.draw(&PathElement::new(closed(pts), outline))
+        }
         Shape::Disc => {
             area.draw(&Circle::new((x, y), r, fill.filled()))?;
             area.draw(&Circle::new((x, y), r, outline))
@@ -156,6 +172,27 @@ fn closed(mut pts: Vec<(i32, i32)>) -> Vec<(i32, i32)> {
 /// A true strain (fraction) as a diagram coordinate: percent in the axis `measure`.
 pub fn axis_value(measure: StrainMeasure, true_strain: f64) -> f64 {
     measure.from_true(TrueStrain(true_strain)) * 100.0
+}
+
+/// A tick label: as many decimals as an axis spanning `span` needs (none from 20 up).
+pub fn tick(v: f64, span: f64) -> String {
+    let d = if span >= 20.0 {
+        0
+    } else if span >= 2.0 {
+        1
+    } else {
+        2
+    };
+    let s = format!("{v:.d$}");
+    // No "-0".
+    if s.trim_start_matches('-')
+        .chars()
+        .all(|c| c == '0' || c == '.')
+    {
+        s.trim_start_matches('-').to_string()
+    } else {
+        s
+    }
 }
 
 /// The axis title word for a measure.
@@ -195,25 +232,18 @@ pub fn clip_segment(
             }
         }
     }
-    (t0 <= t1).then(|| {
-        (
-            (p.0 + t0 * dx, p.1 + t0 * dy),
-            (p.0 + t1 * dx, p.1 + t1 * dy),
-        )
-    })
+    (t0 <= t1).then_some((
+        (p.0 + t0 * dx, p.1 + t0 * dy),
+        (p.0 + t1 * dx, p.1 + t1 * dy),
+    ))
 }
 
 /// Clip a polyline to a box: the visible runs, each with at least two points.
-pub fn clip_polyline(
-    line: &[(f64, f64)],
-    x: (f64, f64),
-    y: (f64, f64),
-) -> Vec<Vec<(f64, f64)>> {
+pub fn clip_polyline(line: &[(f64, f64)], x: (f64, f64), y: (f64, f64)) -> Vec<Vec<(f64, f64)>> {
     let mut runs: Vec<Vec<(f64, f64)>> = Vec::new();
     let mut current: Vec<(f64, f64)> = Vec::new();
     for w in line.windows(2) {
-        if !(w[0].0.is_finite() && w[0].1.is_finite() && w[1].0.is_finite() && w[1].1.is_finite())
-        {
+        if !(w[0].0.is_finite() && w[0].1.is_finite() && w[1].0.is_finite() && w[1].1.is_finite()) {
             continue;
         }
         match clip_segment(w[0], w[1], x, y) {
@@ -250,7 +280,10 @@ pub fn dashes(path: &[(i32, i32)], on: f64, off: f64) -> Vec<Vec<(i32, i32)>> {
     let mut current: Vec<(i32, i32)> = Vec::new();
     let (mut drawing, mut left) = (true, on);
     for w in path.windows(2) {
-        let (a, b) = ((w[0].0 as f64, w[0].1 as f64), (w[1].0 as f64, w[1].1 as f64));
+        let (a, b) = (
+            (w[0].0 as f64, w[0].1 as f64),
+            (w[1].0 as f64, w[1].1 as f64),
+        );
         let len = dist(a, b);
         let mut done = 0.0;
         while done < len {
@@ -320,7 +353,10 @@ impl Placer {
     pub fn place(&mut self, anchor: (i32, i32), w: i32, h: i32) -> (i32, i32) {
         let candidates = candidates(anchor, w, h);
         let inside = |r: Rect| {
-            r.0 >= self.bounds.0 && r.1 >= self.bounds.1 && r.2 <= self.bounds.2 && r.3 <= self.bounds.3
+            r.0 >= self.bounds.0
+                && r.1 >= self.bounds.1
+                && r.2 <= self.bounds.2
+                && r.3 <= self.bounds.3
         };
         let free = |r: Rect, list: &[Rect]| list.iter().all(|o| !overlaps(r, *o));
         let boxed = |c: (i32, i32)| (c.0, c.1, c.0 + w, c.1 + h);
@@ -379,9 +415,35 @@ pub fn render_svg(
     {
         let root = SVGBackend::with_string(&mut s, size).into_drawing_area();
         draw(&root).map_err(|e| io::Error::other(e.to_string()))?;
-        root.present().map_err(|e| io::Error::other(e.to_string()))?;
+        root.present()
+            .map_err(|e| io::Error::other(e.to_string()))?;
     }
-    Ok(s)
+    Ok(scale_font_sizes(&s, SVG_FONT_SCALE))
+}
+
+/// plotters lays text out with the glyph scale of `ab_glyph`, where a size `s` spans the font's
+/// ascent-to-descent height, i.e. an em of `s / 1.164` for DejaVu Sans ((1901 + 483) / 2048
+/// units, from the font's `hhea` table), but writes `font-size = s / 1.24` into SVG. Scaling the
+/// SVG sizes by 1.24 / 1.164 makes SVG text as wide as the boxes laid out for it.
+pub const SVG_FONT_SCALE: f64 = 1.24 / 1.164;
+
+/// Multiply every `font-size="…"` in an SVG document by `k`.
+pub fn scale_font_sizes(svg: &str, k: f64) -> String {
+    const KEY: &str = "font-size=\"";
+    let mut out = String::with_capacity(svg.len());
+    let mut rest = svg;
+    while let Some(i) = rest.find(KEY) {
+        let (head, tail) = rest.split_at(i + KEY.len());
+        out.push_str(head);
+        let end = tail.find('"').unwrap_or(0);
+        match tail[..end].parse::<f64>() {
+            Ok(v) => out.push_str(&format!("{:.2}", v * k)),
+            Err(_) => out.push_str(&tail[..end]),
+        }
+        rest = &tail[end..];
+    }
+    out.push_str(rest);
+    out
 }
 
 /// Render `draw` to a PNG image.
@@ -394,7 +456,8 @@ pub fn render_png(
     {
         let root = BitMapBackend::with_buffer(&mut rgb, size).into_drawing_area();
         draw(&root).map_err(|e| io::Error::other(e.to_string()))?;
-        root.present().map_err(|e| io::Error::other(e.to_string()))?;
+        root.present()
+            .map_err(|e| io::Error::other(e.to_string()))?;
     }
     let mut png = Vec::new();
     write_png(&rgb, size, &mut png)?;
@@ -436,7 +499,10 @@ pub fn fit_px<DB: DrawingBackend>(
     style: &TextStyle,
     width: u32,
 ) -> String {
-    let fits = |s: &str| area.estimate_text_size(s, style).map_or(true, |d| d.0 <= width);
+    let fits = |s: &str| {
+        area.estimate_text_size(s, style)
+            .map_or(true, |d| d.0 <= width)
+    };
     if fits(text) {
         return text.to_string();
     }
@@ -469,6 +535,12 @@ mod tests {
         // 100 px of 10 on + 5 off: dashes start at 0, 15, 30, 45, 60, 75, 90 -> 7 dashes.
         assert_eq!(d.len(), 7);
         assert_eq!(d[1][0], (15, 0));
+    }
+
+    #[test]
+    fn font_sizes_are_scaled() {
+        let s = scale_font_sizes("<text font-size=\"10\" x=\"1\">a</text>", 1.5);
+        assert_eq!(s, "<text font-size=\"15.00\" x=\"1\">a</text>");
     }
 
     #[test]

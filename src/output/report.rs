@@ -82,7 +82,7 @@ pub fn zone_badge(z: Zone) -> String {
         Shape::Triangle => format!("<path d=\"M6 1L11 11H1Z\" fill=\"{c}\" stroke=\"#000\" stroke-width=\"0.7\"/>"),
         Shape::Diamond => format!("<path d=\"M6 1L11 6L6 11L1 6Z\" fill=\"none\" stroke=\"{c}\" stroke-width=\"2\"/>"),
         Shape::Square => format!("<rect x=\"2\" y=\"2\" width=\"8\" height=\"8\" fill=\"{c}\" stroke=\"#000\" stroke-width=\"0.7\"/>"),
-        Shape::Ring => format!("<circle cx=\"6\" cy=\"6\" r=\"4\" fill=\"none\" stroke=\"{c}\" stroke-width=\"2\"/>"),
+        Shape::TriangleDown => format!("<path d=\"M6 11L11 1H1Z\" fill=\"{c}\" stroke=\"#000\" stroke-width=\"0.7\"/>"),
         Shape::Disc => format!("<circle cx=\"6\" cy=\"6\" r=\"4.5\" fill=\"{c}\" stroke=\"#000\" stroke-width=\"0.7\"/>"),
     };
     format!(
@@ -98,7 +98,11 @@ fn inline_svg(svg: &str) -> String {
 }
 
 fn row(label: &str, value: &str) -> String {
-    format!("<tr><th>{}</th><td>{}</td></tr>\n", escape(label), escape(value))
+    format!(
+        "<tr><th>{}</th><td>{}</td></tr>\n",
+        escape(label),
+        escape(value)
+    )
 }
 
 fn or_dash(v: &Option<String>) -> String {
@@ -137,16 +141,21 @@ fn header(a: &Analysis) -> String {
 }
 
 fn file_name(a: &Analysis) -> String {
-    a.input
-        .file_name()
-        .map_or_else(|| a.input.display().to_string(), |n| n.to_string_lossy().into_owned())
+    a.input.file_name().map_or_else(
+        || a.input.display().to_string(),
+        |n| n.to_string_lossy().into_owned(),
+    )
 }
 
 fn verdict_text(v: Verdict) -> &'static str {
     match v {
-        Verdict::Fail => "at least one location is on or above the limit curve (or past the thinning limit)",
+        Verdict::Fail => {
+            "at least one location is on or above the limit curve (or past the thinning limit)"
+        }
         Verdict::Marginal => "no failure, but at least one location is inside the safety band",
-        Verdict::Incomplete => "no failure or marginal location, but some locations lie outside the curve's range",
+        Verdict::Incomplete => {
+            "no failure or marginal location, but some locations lie outside the curve's range"
+        }
         Verdict::Pass => "every location judged; none failed or marginal",
     }
 }
@@ -193,7 +202,12 @@ fn verdict(a: &Analysis) -> String {
     if !a.rejected.is_empty() {
         s.push_str("<h3>Rejected rows (not judged)</h3>\n<ul>\n");
         for r in &a.rejected {
-            let _ = writeln!(s, "<li>line {}: {}</li>", fmt_line(r.location.line), escape(&r.reason));
+            let _ = writeln!(
+                s,
+                "<li>line {}: {}</li>",
+                fmt_line(r.location.line),
+                escape(&r.reason)
+            );
         }
         s.push_str("</ul>\n");
     }
@@ -253,7 +267,8 @@ fn curve_section(a: &Analysis) -> String {
     s.push_str(&row("Material", &or_dash(&c.material)));
     s.push_str(&row(
         "Thickness",
-        &c.thickness_mm.map_or_else(|| "—".into(), |t| format!("{t} mm")),
+        &c.thickness_mm
+            .map_or_else(|| "—".into(), |t| format!("{t} mm")),
     ));
     s.push_str(&row("Strain measure of the points", c.measure.name()));
     s.push_str("</table>\n<table><thead><tr><th class=\"n\">minor %</th><th class=\"n\">major %</th></tr></thead><tbody>\n");
@@ -274,7 +289,10 @@ fn settings_section(a: &Analysis) -> String {
     let mut s = String::from("<h2>Settings</h2>\n<table class=\"job\">\n");
     s.push_str(&row(
         "Safety band",
-        &format!("{:.1} percentage points of engineering major strain", st.margin_pct),
+        &format!(
+            "{:.1} percentage points of engineering major strain",
+            st.margin_pct
+        ),
     ));
     s.push_str(&row(
         "Low stretch below",
@@ -326,12 +344,20 @@ pub fn report_html(a: &Analysis, opts: &FldOptions) -> io::Result<String> {
     );
     section(&mut s, "summary", &[&header(a), &verdict(a), &caution()]);
     let fig = format!(
-        "<h2>Forming-limit diagram</h2>\n<figure>{}</figure>\n",
-        inline_svg(&fld_svg)
+        "<h2>Forming-limit diagram</h2>\n<figure>{}</figure>\n<p class=\"note\">Labelled: the {} \
+         locations with the smallest margin; the number in brackets is the margin in percentage \
+         points of engineering major strain (negative = above the curve).</p>\n",
+        inline_svg(&fld_svg),
+        opts.labelled
     );
     section(&mut s, "diagram", &[&fig]);
     let map_html = match &map_svg {
-        Some(svg) => format!("<h2>Part map</h2>\n<figure>{}</figure>\n", inline_svg(svg)),
+        Some(svg) => format!(
+            "<h2>Part map</h2>\n<figure>{}</figure>\n<p class=\"note\">Colour: margin to the \
+             limit curve; shape: zone; labelled: the {} locations with the smallest margin.</p>\n",
+            inline_svg(svg),
+            map::LABELLED
+        ),
         None => "<h2>Part map</h2>\n<p class=\"note\">No map: no location carries x, y coordinates.</p>\n".into(),
     };
     section(&mut s, "map", &[&map_html]);
@@ -350,7 +376,11 @@ pub fn report_html(a: &Analysis, opts: &FldOptions) -> io::Result<String> {
     );
     section(&mut s, "points", &[&all_html]);
     section(&mut s, "curve", &[&curve_section(a), &settings_section(a)]);
-    section(&mut s, "method", &[METHOD, "<h2>Caution</h2>\n", &caution(), &provenance(a)]);
+    section(
+        &mut s,
+        "method",
+        &[METHOD, "<h2>Caution</h2>\n", &caution(), &provenance(a)],
+    );
     s.push_str("</body>\n</html>\n");
     Ok(s)
 }
@@ -387,7 +417,9 @@ pub fn visible_text(html: &str) -> String {
     for tag in ["style", "svg"] {
         while let Some(start) = s.find(&format!("<{tag}")) {
             let close = format!("</{tag}>");
-            let Some(end) = s[start..].find(&close) else { break };
+            let Some(end) = s[start..].find(&close) else {
+                break;
+            };
             s.replace_range(start..start + end + close.len(), " ");
         }
     }
@@ -424,12 +456,93 @@ mod tests {
 
     #[test]
     fn escapes_markup() {
-        assert_eq!(escape("<a href='x'>&\"</a>"), "&lt;a href=&#39;x&#39;&gt;&amp;&quot;&lt;/a&gt;");
+        assert_eq!(
+            escape("<a href='x'>&\"</a>"),
+            "&lt;a href=&#39;x&#39;&gt;&amp;&quot;&lt;/a&gt;"
+        );
     }
 
     #[test]
     fn visible_text_drops_tags_style_and_svg() {
         let t = visible_text("<style>p{}</style><p>a &amp; b</p><svg><text>x</text></svg><p>c</p>");
         assert_eq!(t, "a & b c");
+    }
+}
+
+#[cfg(test)]
+mod render_tests {
+    use super::*;
+    use crate::output::{fixture, points_csv};
+
+    fn report() -> (Analysis, String) {
+        let a = fixture::analysis(true);
+        let html = report_html(&a, &FldOptions::default()).unwrap();
+        (a, html)
+    }
+
+    #[test]
+    fn text_content_snapshot() {
+        let (_, html) = report();
+        let text = visible_text(&html).replace(env!("CARGO_PKG_VERSION"), "VERSION");
+        insta::assert_snapshot!(text);
+    }
+
+    #[test]
+    fn self_contained_and_escaped() {
+        let (_, html) = report();
+        for bad in [
+            "http://", "https://", "src=", "href=", "@import", "url(", "<script", "<link",
+        ] {
+            assert!(!html.contains(bad), "report contains `{bad}`");
+        }
+        assert!(!html.contains("<LH>"));
+        assert!(html.contains("TP-1 test panel &lt;LH&gt; &amp; co (invented)"));
+        assert_eq!(html.matches("<section class=\"page\"").count(), 7);
+        assert_eq!(
+            html.matches("<svg width=\"1200\"").count(),
+            2,
+            "diagram and map inline"
+        );
+        assert!(html.contains(&escape(CAUTION)));
+    }
+
+    #[test]
+    fn tables_agree_with_points_csv() {
+        let (a, html) = report();
+        let mut csv = Vec::new();
+        points_csv::write_points(&a, &mut csv).unwrap();
+        let mut r = csv::Reader::from_reader(csv.as_slice());
+        let head = r.headers().unwrap().clone();
+        let col = |name: &str| head.iter().position(|h| h == name).unwrap();
+        let (id, margin, zone) = (col("id"), col("margin_pct"), col("zone"));
+        let text = visible_text(&html);
+        for rec in r.records() {
+            let rec = rec.unwrap();
+            // The points-table line of this id (the last one: after the worst table).
+            let line = text
+                .lines()
+                .rfind(|l| l.starts_with(&format!("{} ", &rec[id])))
+                .unwrap_or_else(|| panic!("{} not in the report", &rec[id]));
+            let cells: Vec<&str> = line.split(' ').collect();
+            assert_eq!(cells.last().copied(), Some(&rec[zone]), "{line}");
+            match rec[margin].parse::<f64>() {
+                // id, 5 strains, beta, limit, margin, use, x, y, zone: margin is the 9th cell;
+                // the CSV has 3 decimals and the report 1, so they agree to 0.05 pp.
+                Ok(m) => {
+                    let shown: f64 = cells[8].parse().unwrap();
+                    assert!((shown - m).abs() <= 0.05 + 1e-9, "{line} vs {m}");
+                }
+                // No margin: limit, margin and use are empty.
+                Err(_) => assert_eq!(cells.len(), 10, "{line}"),
+            }
+        }
+    }
+
+    #[test]
+    fn no_map_note_without_positions() {
+        let a = fixture::analysis(false);
+        let html = report_html(&a, &FldOptions::default()).unwrap();
+        assert!(html.contains("No map: no location carries x, y coordinates."));
+        assert_eq!(html.matches("<svg width=\"1200\"").count(), 1);
     }
 }

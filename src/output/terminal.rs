@@ -75,11 +75,22 @@ pub fn summary(a: &Analysis, colour: bool) -> String {
 /// How many worst locations the summary lists.
 pub const WORST_SHOWN: usize = 8;
 
-fn wrap(text: &str, width: usize, indent: &str) -> String {
+/// Wrap `text` at word boundaries into lines of at most `width` columns, each after `indent`.
+pub fn wrap(text: &str, width: usize, indent: &str) -> String {
     let mut out = String::new();
     let mut line = String::new();
-    for word in text.split_whitespace() {
-        if !line.is_empty() && line.len() + 1 + word.len() > width - indent.len() {
+    let room = width - indent.len();
+    // A word longer than a line is cut into line-long pieces.
+    let pieces = text.split_whitespace().flat_map(|w| {
+        let chars: Vec<char> = w.chars().collect();
+        chars
+            .chunks(room)
+            .map(|c| c.iter().collect::<String>())
+            .collect::<Vec<_>>()
+    });
+    for word in pieces {
+        let word = word.as_str();
+        if !line.is_empty() && line.chars().count() + 1 + word.chars().count() > room {
             let _ = writeln!(out, "{indent}{line}");
             line.clear();
         }
@@ -115,8 +126,8 @@ pub fn summary_text(a: &Analysis) -> String {
     let _ = writeln!(
         s,
         "Part: {}   Tryout: {}",
-        clip(&field(&job.part), 50),
-        clip(&field(&job.tryout), 16)
+        clip(&field(&job.part), 45),
+        clip(&field(&job.tryout), 14)
     );
     if job.material.is_some() || job.lot.is_some() {
         let _ = writeln!(
@@ -200,4 +211,65 @@ pub fn summary_text(a: &Analysis) -> String {
     let _ = writeln!(s, "Verdict: {}", a.verdict().name().to_uppercase());
     s.push_str(&wrap(CAUTION, 80, ""));
     s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::output::fixture;
+
+    #[test]
+    fn summary_snapshot() {
+        let a = fixture::analysis(true);
+        let text = summary_text(&a).replace(env!("CARGO_PKG_VERSION"), "VERSION");
+        insta::assert_snapshot!(text);
+    }
+
+    #[test]
+    fn fits_80_columns_with_long_names() {
+        let mut a = fixture::analysis(true);
+        let long = "x".repeat(200);
+        a.input = std::path::PathBuf::from(format!("/very/{long}/tryout.csv"));
+        a.job.part = Some(long.clone());
+        a.job.tryout = Some(long.clone());
+        a.job.material = Some(long.clone());
+        a.job.lot = Some(long.clone());
+        a.curve.name = long.clone();
+        a.curve.source = format!("{long} {long}");
+        a.warnings
+            .push(format!("a warning with a long word {long}"));
+        for line in summary_text(&a).lines() {
+            assert!(
+                line.chars().count() <= WIDTH,
+                "{} columns: {line}",
+                line.chars().count()
+            );
+        }
+    }
+
+    #[test]
+    fn colour_only_adds_escape_codes() {
+        let a = fixture::analysis(true);
+        let plain = summary(&a, false);
+        let coloured = summary(&a, true);
+        assert!(!plain.contains('\x1b'));
+        assert!(coloured.contains("\x1b[1;37;41mVerdict: FAIL\x1b[0m"));
+        let stripped = coloured
+            .split('\x1b')
+            .enumerate()
+            .map(|(i, s)| {
+                if i == 0 {
+                    s
+                } else {
+                    &s[s.find('m').unwrap() + 1..]
+                }
+            })
+            .collect::<String>();
+        assert_eq!(stripped, plain);
+    }
+
+    #[test]
+    fn no_colour_off_a_terminal() {
+        assert!(!use_colour(false));
+    }
 }
