@@ -123,6 +123,13 @@ impl Plan {
     pub fn prepare(&self, inputs: &[PathBuf]) -> Result<()> {
         for f in self.files() {
             if let Some(dir) = f.parent().filter(|d| !d.as_os_str().is_empty()) {
+                if dir.exists() && !dir.is_dir() {
+                    return Err(Error::Usage(format!(
+                        "cannot write {}: {} is a file, not a folder; choose another --out",
+                        f.display(),
+                        dir.display()
+                    )));
+                }
                 std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
             }
             if f.is_dir() {
