@@ -199,6 +199,7 @@ fn verdict(a: &Analysis) -> String {
         );
     }
     s.push_str("</tbody></table>\n");
+    s.push_str(&worst_brief(a));
     if !a.rejected.is_empty() {
         s.push_str("<h3>Rejected rows (not judged)</h3>\n<ul>\n");
         for r in &a.rejected {
@@ -214,6 +215,39 @@ fn verdict(a: &Analysis) -> String {
     for w in &a.warnings {
         let _ = writeln!(s, "<p class=\"note\">Warning: {}</p>", escape(w));
     }
+    s
+}
+
+/// Rows of the short worst list on the first page.
+pub const WORST_BRIEF: usize = 5;
+
+fn worst_brief(a: &Analysis) -> String {
+    let worst = a.worst(WORST_BRIEF);
+    if worst.is_empty() {
+        return String::new();
+    }
+    let mut s = String::from(
+        "<h3>Smallest margins</h3>\n<table class=\"brief\"><thead><tr><th>id</th>\
+         <th class=\"n\">margin pp</th><th class=\"n\">major %</th><th class=\"n\">minor %</th>\
+         <th class=\"n\">thinning %</th><th class=\"n\">x</th><th class=\"n\">y</th><th>zone</th>\
+         </tr></thead><tbody>\n",
+    );
+    for p in worst {
+        let _ = writeln!(
+            s,
+            "<tr><td>{}</td><td class=\"n\">{}</td><td class=\"n\">{:.1}</td><td class=\"n\">{:.1}</td>\
+             <td class=\"n\">{:.1}</td><td class=\"n\">{}</td><td class=\"n\">{}</td><td>{}</td></tr>",
+            escape(&p.input.id),
+            fmt_opt(p.judgement.margin_pct, 1),
+            p.strain.eng.major.percent(),
+            p.strain.eng.minor.percent(),
+            p.strain.thinning * 100.0,
+            fmt_opt(p.input.x, 1),
+            fmt_opt(p.input.y, 1),
+            zone_badge(p.zone())
+        );
+    }
+    s.push_str("</tbody></table>\n");
     s
 }
 
