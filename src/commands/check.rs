@@ -45,7 +45,7 @@ pub struct CheckArgs {
     #[arg(long, value_name = "DIR", default_value = "neckline-out")]
     pub out: PathBuf,
     /// Which outputs to write, comma-separated: csv (points.csv), json (summary.json),
-    /// svg (fld.svg, map.svg), png (fld.png, map.png), html (report.html) [default: all].
+    /// svg (fld.svg, map.svg), png (fld.png, map.png), html (report.html).
     #[arg(
         long,
         value_name = "LIST",

@@ -291,6 +291,8 @@ fn draw_points<DB: DrawingBackend>(
 /// Label text of a worst location: its id and vertical margin.
 pub fn worst_label(p: &PointResult) -> String {
     match p.judgement.margin_pct {
+        // On the curve to the shown precision: no sign.
+        Some(mg) if mg.abs() < 0.05 => format!("{} (0.0)", p.input.id),
         Some(mg) => format!("{} ({mg:+.1})", p.input.id),
         None => p.input.id.clone(),
     }
