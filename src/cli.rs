@@ -26,6 +26,8 @@ pub enum Command {
     Check(crate::commands::check::CheckArgs),
     /// Compute the strains of measured circles and write them to stdout as CSV.
     Strains(crate::commands::strains::StrainsArgs),
+    /// Compare two tryouts location by location (two points.csv files written by `check`).
+    Compare(crate::commands::compare::CompareArgs),
 }
 
 /// Lengths and the job file, shared by the commands that read measurements.

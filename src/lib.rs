@@ -16,6 +16,7 @@ pub mod analysis;
 pub mod assess;
 pub mod cli;
 pub mod commands;
+pub mod compare;
 pub mod error;
 pub mod job;
 pub mod kinematics;

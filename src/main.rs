@@ -10,6 +10,7 @@ fn main() -> ExitCode {
     let result = match &cli.command {
         Command::Check(args) => commands::check::run(args),
         Command::Strains(args) => commands::strains::run(args),
+        Command::Compare(args) => commands::compare::run(args),
     };
     match result {
         Ok(Outcome::Done) => ExitCode::SUCCESS,

@@ -346,3 +346,96 @@ fn help_lists_commands_and_exit_codes() {
     let (_d, r) = run(&["check"]);
     assert_eq!(r.code, 2, "{r}");
 }
+
+// A 0.100 in grid (common practice in inch shops) gives the same strains as a metric one:
+// 0.130/0.100 = 3.25/2.50 = 1.30 (field notes, section 2 check values); thickness stays in inches.
+#[test]
+fn inch_files_give_the_same_strains() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join("in.csv"),
+        "id,major,minor\nP1,0.130,0.096\n",
+    )
+    .unwrap();
+    std::fs::write(
+        dir.path().join("job.toml"),
+        "unit = \"in\"\nd0 = 0.1\nt0 = 0.0315\n",
+    )
+    .unwrap();
+    let r = run_in(
+        dir.path(),
+        &["strains", "in.csv", "--job", "job.toml"],
+        None,
+    );
+    assert_eq!(r.code, 0, "{r}");
+    let row: Vec<String> = r
+        .stdout
+        .lines()
+        .nth(1)
+        .unwrap()
+        .split(',')
+        .map(String::from)
+        .collect();
+    assert_eq!(row[1], "30.000", "{r}");
+    assert_eq!(row[2], "-4.000", "{r}");
+    let t: f64 = row[6].parse().unwrap();
+    assert!((t - 0.0315 * 0.80128).abs() < 1e-4, "{r}");
+    // A unit the tool does not know is refused with the file and line.
+    std::fs::write(dir.path().join("bad.toml"), "unit = \"cm\"\n").unwrap();
+    let r = run_in(
+        dir.path(),
+        &["strains", "in.csv", "--job", "bad.toml"],
+        None,
+    );
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("bad.toml:1:8"), "{r}");
+}
+
+#[test]
+fn compare_joins_two_tryouts_by_id() {
+    let dir = tempfile::tempdir().unwrap();
+    for t in [1u8, 2] {
+        let [csv, job] = demo(t);
+        let r = run_in(
+            dir.path(),
+            &["check", &csv, "--job", &job, "--out", &format!("t{t}")],
+            None,
+        );
+        assert_eq!(r.code, 0, "{r}");
+    }
+    let r = run_in(
+        dir.path(),
+        &[
+            "compare",
+            "t1/points.csv",
+            "t2/points.csv",
+            "--out",
+            "c.csv",
+        ],
+        None,
+    );
+    assert_eq!(r.code, 0, "{r}");
+    assert!(
+        r.stdout
+            .contains("120 locations in both; 0 only before, 0 only after"),
+        "{r}"
+    );
+    assert!(r.stdout.contains("aid to judgement"), "{r}");
+    let c = std::fs::read_to_string(dir.path().join("c.csv")).unwrap();
+    assert_eq!(c.lines().count(), 121);
+    // The four corners that failed in T1 are marginal after the rework (demo scenario).
+    let failed_to_marginal = c
+        .lines()
+        .filter(|l| l.contains(",failed,marginal,"))
+        .count();
+    assert_eq!(failed_to_marginal, 4, "{c}");
+    // A file that is not a result of `check` is refused with its name and what was expected.
+    let good = repo("tests/data/good.csv").display().to_string();
+    let r = run_in(dir.path(), &["compare", &good, "t2/points.csv"], None);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(
+        r.stderr
+            .contains("good.csv:1: missing column `major_eng_pct`"),
+        "{r}"
+    );
+}

@@ -109,4 +109,28 @@ proptest! {
             assert_relative_eq!(uk, k * u1, max_relative = 1e-9);
         }
     }
+
+    // The fast ray search agrees with a brute-force check of every segment of the curve in
+    // true strain (an independent method written here).
+    #[test]
+    fn limit_use_matches_brute_force(e1 in 0.01f64..0.6, beta in -0.9f64..1.0) {
+        let c = LimitCurve::load(&Path::new(env!("CARGO_MANIFEST_DIR")).join("limits/steel-0.80mm-n0.20-keeler-brazier.toml")).unwrap();
+        let st = StrainState::from_stretches(TrueStrain(e1).stretch(), TrueStrain(beta * e1).stretch());
+        let d = [st.true_strain.minor.value(), st.true_strain.major.value()];
+        let poly = c.true_polyline(16);
+        let brute = poly.windows(2).filter_map(|w| {
+            let (p, q) = (w[0], w[1]);
+            // Solve s·d = p + u (q − p) by Cramer's rule.
+            let (a, b, c2, d2) = (d[0], p[0] - q[0], d[1], p[1] - q[1]);
+            let det = a * d2 - b * c2;
+            if det.abs() < 1e-15 { return None; }
+            let s = (p[0] * d2 - b * p[1]) / det;
+            let u = (a * p[1] - c2 * p[0]) / det;
+            (s > 0.0 && (0.0..=1.0).contains(&u)).then_some(100.0 / s)
+        }).fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))));
+        match (c.limit_use_pct(&st), brute) {
+            (Some(a), Some(b)) => assert_relative_eq!(a, b, max_relative = 1e-9),
+            (a, b) => prop_assert_eq!(a.is_some(), b.is_some(), "fast {:?} brute {:?}", a, b),
+        }
+    }
 }

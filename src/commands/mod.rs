@@ -1,6 +1,7 @@
 //! One module per subcommand: its arguments, its help text and a short `run`.
 
 pub mod check;
+pub mod compare;
 pub mod strains;
 
 use crate::analysis::{analyse, Analysis, Lengths};

@@ -33,6 +33,7 @@ fn unbounded_curve() -> LimitCurve {
         measure: crate::strain::StrainMeasure::True,
         points: vec![[-1e6, 1e6], [1e6, 1e6]],
         warnings: Vec::new(),
+        true_path: Default::default(),
     }
 }
 

@@ -14,6 +14,7 @@ use crate::strain::{EngStrain, StrainMeasure, TrueStrain};
 use keeler_brazier::KeelerBrazier;
 use serde::Deserialize;
 use std::path::Path;
+use std::sync::OnceLock;
 use toml::Spanned;
 
 /// A forming-limit curve, ready to judge points against.
@@ -33,6 +34,8 @@ pub struct LimitCurve {
     pub points: Vec<[f64; 2]>,
     /// Warnings raised while building the curve (clamps that acted).
     pub warnings: Vec<String>,
+    /// The curve in true strain, built on first use by [`LimitCurve::limit_use_pct`].
+    pub true_path: OnceLock<TruePath>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -46,6 +49,27 @@ struct CurveFile {
     strain: StrainMeasure,
     points: Option<Vec<Spanned<Vec<f64>>>>,
     keeler_brazier: Option<KeelerBrazier>,
+}
+
+/// A curve as a polyline in true strain, ready for ray queries.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TruePath {
+    /// Vertices `[ε2, ε1]`, minor strain increasing.
+    pub points: Vec<[f64; 2]>,
+    /// Whether the origin sees the vertices under a strictly turning angle (true of every
+    /// forming-limit curve drawn above the origin): then a ray meets at most one segment.
+    pub star_shaped: bool,
+}
+
+impl TruePath {
+    /// Build from vertices.
+    pub fn new(points: Vec<[f64; 2]>) -> Self {
+        let star_shaped = points.windows(2).all(|w| cross(w[0], w[1]) < 0.0);
+        TruePath {
+            points,
+            star_shaped,
+        }
+    }
 }
 
 /// Largest strain magnitude accepted in a curve file, percent (a plausibility bound).
@@ -127,6 +151,7 @@ impl LimitCurve {
             measure: file.strain,
             points: pct.iter().map(|p| [p[0] / 100.0, p[1] / 100.0]).collect(),
             warnings,
+            true_path: OnceLock::new(),
         })
     }
 
@@ -188,25 +213,44 @@ impl LimitCurve {
         if p[0].hypot(p[1]) < 1e-12 {
             return Some(0.0);
         }
-        ray_hit(&self.true_polyline(16), p).map(|s| 100.0 / s)
+        ray_hit(
+            self.true_path
+                .get_or_init(|| TruePath::new(self.true_polyline(16))),
+            p,
+        )
+        .map(|s| 100.0 / s)
     }
 }
 
-/// Smallest `s > 0` with `s·d` on the polyline, or `None`.
-fn ray_hit(poly: &[[f64; 2]], d: [f64; 2]) -> Option<f64> {
-    let cross = |a: [f64; 2], b: [f64; 2]| a[0] * b[1] - a[1] * b[0];
+fn cross(a: [f64; 2], b: [f64; 2]) -> f64 {
+    a[0] * b[1] - a[1] * b[0]
+}
+
+/// Where the ray `s·d, s > 0` meets the segment `p`–`q`: `Some(s)`, or `None`.
+fn segment_hit(p: [f64; 2], q: [f64; 2], d: [f64; 2]) -> Option<f64> {
+    let e = [q[0] - p[0], q[1] - p[1]];
+    let den = cross(d, e);
+    if den.abs() < 1e-15 {
+        return None;
+    }
+    let s = cross(p, e) / den;
+    let u = cross(p, d) / den;
+    (s > 0.0 && (-1e-12..=1.0 + 1e-12).contains(&u)).then_some(s)
+}
+
+/// Smallest `s > 0` with `s·d` on the path, or `None`.
+///
+/// On a star-shaped path the vertices lie on the left of the ray, then on its right, so the
+/// one segment it can cross is found by bisection; any other path is searched segment by segment.
+fn ray_hit(path: &TruePath, d: [f64; 2]) -> Option<f64> {
+    let poly = &path.points;
+    if path.star_shaped {
+        let i = poly.partition_point(|&p| cross(d, p) > 0.0);
+        let i = i.clamp(1, poly.len() - 1);
+        return segment_hit(poly[i - 1], poly[i], d);
+    }
     poly.windows(2)
-        .filter_map(|w| {
-            let (p, q) = (w[0], w[1]);
-            let e = [q[0] - p[0], q[1] - p[1]];
-            let den = cross(d, e);
-            if den.abs() < 1e-15 {
-                return None;
-            }
-            let s = cross(p, e) / den;
-            let u = cross(p, d) / den;
-            (s > 0.0 && (-1e-12..=1.0 + 1e-12).contains(&u)).then_some(s)
-        })
+        .filter_map(|w| segment_hit(w[0], w[1], d))
         .min_by(|a, b| a.total_cmp(b))
 }
 

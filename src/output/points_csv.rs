@@ -1,7 +1,7 @@
 //! `points.csv`: one row per judged location, strains in percent.
 
 use crate::analysis::{Analysis, PointResult};
-use crate::output::fmt_opt;
+use crate::output::push_fixed;
 use std::io::{self, Write};
 
 /// The strain columns, in order (shared by `check` and `strains`).
@@ -29,51 +29,65 @@ pub const JUDGEMENT_COLUMNS: [&str; 4] =
 /// Input columns carried at the end.
 pub const CARRIED_COLUMNS: [&str; 6] = ["d0", "x", "y", "stage", "thickness_measured", "note"];
 
-fn pct(v: f64) -> String {
-    format!("{:.3}", v * 100.0)
+/// Writes one record field by field through a reused buffer (no allocation per field).
+struct Fields<'a, W: Write> {
+    w: &'a mut csv::Writer<W>,
+    buf: String,
 }
 
-/// The strain fields of one point, in [`STRAIN_COLUMNS`] order.
-pub fn strain_fields(p: &PointResult) -> Vec<String> {
+impl<W: Write> Fields<'_, W> {
+    fn num(&mut self, v: Option<f64>, decimals: usize) -> csv::Result<()> {
+        self.buf.clear();
+        if let Some(v) = v {
+            push_fixed(&mut self.buf, v, decimals);
+        }
+        self.w.write_field(&self.buf)
+    }
+    fn pct(&mut self, fraction: f64) -> csv::Result<()> {
+        self.num(Some(fraction * 100.0), 3)
+    }
+    fn text(&mut self, s: &str) -> csv::Result<()> {
+        self.w.write_field(s)
+    }
+    fn end(&mut self) -> csv::Result<()> {
+        self.w.write_record(None::<&[u8]>)
+    }
+}
+
+fn strain_fields<W: Write>(f: &mut Fields<'_, W>, p: &PointResult) -> csv::Result<()> {
     let s = &p.strain;
-    vec![
-        p.input.id.clone(),
-        pct(s.eng.major.value()),
-        pct(s.eng.minor.value()),
-        pct(s.true_strain.major.value()),
-        pct(s.true_strain.minor.value()),
-        pct(s.thickness_strain.value()),
-        fmt_opt(p.thickness, 4),
-        pct(s.thinning),
-        pct(s.green.major.value()),
-        pct(s.green.minor.value()),
-        pct(s.almansi.major.value()),
-        pct(s.almansi.minor.value()),
-        fmt_opt(s.beta, 4),
-        pct(s.effective.value()),
-    ]
+    f.text(&p.input.id)?;
+    f.pct(s.eng.major.value())?;
+    f.pct(s.eng.minor.value())?;
+    f.pct(s.true_strain.major.value())?;
+    f.pct(s.true_strain.minor.value())?;
+    f.pct(s.thickness_strain.value())?;
+    f.num(p.thickness, 4)?;
+    f.pct(s.thinning)?;
+    f.pct(s.green.major.value())?;
+    f.pct(s.green.minor.value())?;
+    f.pct(s.almansi.major.value())?;
+    f.pct(s.almansi.minor.value())?;
+    f.num(s.beta, 4)?;
+    f.pct(s.effective.value())
 }
 
-fn judgement_fields(p: &PointResult) -> Vec<String> {
+fn judgement_fields<W: Write>(f: &mut Fields<'_, W>, p: &PointResult) -> csv::Result<()> {
     let j = &p.judgement;
-    vec![
-        fmt_opt(j.limit_major.map(|l| l.percent()), 3),
-        fmt_opt(j.margin_pct, 3),
-        fmt_opt(j.limit_use_pct, 2),
-        j.zone.name().to_string(),
-    ]
+    f.num(j.limit_major.map(|l| l.percent()), 3)?;
+    f.num(j.margin_pct, 3)?;
+    f.num(j.limit_use_pct, 2)?;
+    f.text(j.zone.name())
 }
 
-fn carried_fields(p: &PointResult) -> Vec<String> {
+fn carried_fields<W: Write>(f: &mut Fields<'_, W>, p: &PointResult) -> csv::Result<()> {
     let m = &p.input;
-    vec![
-        format!("{}", p.d0),
-        fmt_opt(m.x, 3),
-        fmt_opt(m.y, 3),
-        m.stage.clone().unwrap_or_default(),
-        fmt_opt(m.thickness, 4),
-        m.note.clone().unwrap_or_default(),
-    ]
+    f.text(&p.d0.to_string())?;
+    f.num(m.x, 3)?;
+    f.num(m.y, 3)?;
+    f.text(m.stage.as_deref().unwrap_or(""))?;
+    f.num(m.thickness, 4)?;
+    f.text(m.note.as_deref().unwrap_or(""))
 }
 
 /// Write the full points table.
@@ -84,11 +98,15 @@ pub fn write_points(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
         .chain(&JUDGEMENT_COLUMNS)
         .chain(&CARRIED_COLUMNS);
     w.write_record(header)?;
+    let mut f = Fields {
+        w: &mut w,
+        buf: String::new(),
+    };
     for p in &a.points {
-        let mut row = strain_fields(p);
-        row.extend(judgement_fields(p));
-        row.extend(carried_fields(p));
-        w.write_record(&row)?;
+        strain_fields(&mut f, p)?;
+        judgement_fields(&mut f, p)?;
+        carried_fields(&mut f, p)?;
+        f.end()?;
     }
     w.flush()
 }
@@ -97,8 +115,13 @@ pub fn write_points(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
 pub fn write_strains(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
     let mut w = csv::Writer::from_writer(out);
     w.write_record(STRAIN_COLUMNS)?;
+    let mut f = Fields {
+        w: &mut w,
+        buf: String::new(),
+    };
     for p in &a.points {
-        w.write_record(strain_fields(p))?;
+        strain_fields(&mut f, p)?;
+        f.end()?;
     }
     w.flush()
 }

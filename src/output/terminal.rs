@@ -75,7 +75,7 @@ pub fn summary(a: &Analysis, colour: bool) -> String {
 /// How many worst locations the summary lists.
 pub const WORST_SHOWN: usize = 8;
 
-/// Wrap `text` at word boundaries into lines of at most `width` columns, each after `indent`.
+/// Wrap `text` at word boundaries to `width` columns, each line starting with `indent`.
 pub fn wrap(text: &str, width: usize, indent: &str) -> String {
     let mut out = String::new();
     let mut line = String::new();
