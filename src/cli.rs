@@ -21,7 +21,8 @@ Caution: an aid to judgement; your own limit data, local codes and licensed prac
 /// The subcommands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Judge measured circles against a forming-limit curve; write points.csv and summary.json.
+    /// Judge measured circles against a forming-limit curve; write points.csv, summary.json,
+    /// the forming-limit diagram, the part map and report.html.
     Check(crate::commands::check::CheckArgs),
     /// Compute the strains of measured circles and write them to stdout as CSV.
     Strains(crate::commands::strains::StrainsArgs),

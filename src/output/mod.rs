@@ -2,7 +2,13 @@
 //! Files are written atomically (a temporary file in the same folder, then a rename), and never
 //! over a file that was read as input.
 
+#[cfg(test)]
+pub mod fixture;
+pub mod fld;
+pub mod map;
+pub mod plot;
 pub mod points_csv;
+pub mod report;
 pub mod summary_json;
 pub mod terminal;
 

@@ -1,0 +1,460 @@
+//! The part map (`map.svg`, `map.png`): every location with `x, y` at its place on the part,
+//! coloured by its vertical margin on a continuous scale whose zone boundaries (0 = on the
+//! curve, the margin setting = edge of the safety band) are marked, shaped by zone, the worst
+//! labelled, axes in the job's length unit at equal scale.
+
+use super::fld::{draw_footer, title_lines, worst_label};
+use super::plot::{self, marker, zone_shape, DrawResult, Placer, SIZE};
+use crate::analysis::{Analysis, PointResult};
+use crate::assess::Zone;
+use plotters::coord::Shift;
+use plotters::prelude::*;
+use std::io;
+
+/// How many of the worst locations carry their id.
+pub const LABELLED: usize = 6;
+
+/// Locations that carry both `x` and `y`, with their position.
+pub fn placed(a: &Analysis) -> Vec<(&PointResult, (f64, f64))> {
+    a.points
+        .iter()
+        .filter_map(|p| Some((p, (p.input.x?, p.input.y?))))
+        .collect()
+}
+
+/// The map as SVG, or `None` when no location has `x, y`.
+pub fn map_svg(a: &Analysis) -> io::Result<Option<String>> {
+    if placed(a).is_empty() {
+        return Ok(None);
+    }
+    plot::render_svg(SIZE, |root| draw(root, a)).map(Some)
+}
+
+/// The map as PNG, or `None` when no location has `x, y`.
+pub fn map_png(a: &Analysis) -> io::Result<Option<Vec<u8>>> {
+    if placed(a).is_empty() {
+        return Ok(None);
+    }
+    plot::render_png(SIZE, |root| draw(root, a)).map(Some)
+}
+
+/// The colour scale: margins from `lo` to `hi` percentage points. Continuous inside each zone,
+/// with a visible step at the zone boundaries 0 (on the curve: failed at or below) and `band`
+/// (edge of the safety band), so that a change of zone shows as a change of hue. Colours from the
+/// ColorBrewer RdYlBu scheme (Brewer, colorbrewer2.org, marked safe for colour-blind readers):
+/// dark red to red for failed, orange to yellow for marginal, light to dark blue beyond the band.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct MarginScale {
+    /// Low end, pp.
+    pub lo: f64,
+    /// The safety band, pp.
+    pub band: f64,
+    /// High end, pp.
+    pub hi: f64,
+}
+
+type Rgb = (u8, u8, u8);
+const FAILED: (Rgb, Rgb) = ((0xa5, 0x00, 0x26), (0xd7, 0x30, 0x27));
+const MARGINAL: (Rgb, Rgb) = ((0xf4, 0x6d, 0x43), (0xfe, 0xe0, 0x90));
+const BEYOND: (Rgb, Rgb) = ((0xab, 0xd9, 0xe9), (0x31, 0x36, 0x95));
+
+impl MarginScale {
+    /// A scale that holds every margin of `a`, at least `−band/2 ..= 3·band`.
+    pub fn of(a: &Analysis) -> Self {
+        let band = a.settings.margin_pct.max(1.0);
+        let margins = a.points.iter().filter_map(|p| p.judgement.margin_pct);
+        let (lo, hi) = margins.fold((-band / 2.0, 3.0 * band), |(l, h), m| (l.min(m), h.max(m)));
+        MarginScale {
+            lo: (lo / 5.0).floor() * 5.0,
+            band,
+            hi: (hi / 5.0).ceil() * 5.0,
+        }
+    }
+
+    /// The colour of a margin.
+    pub fn colour(&self, m: f64) -> RGBColor {
+        let m = m.clamp(self.lo, self.hi);
+        let (from, to, (a, b)) = if m <= 0.0 {
+            (self.lo, 0.0, FAILED)
+        } else if m < self.band {
+            (0.0, self.band, MARGINAL)
+        } else {
+            (self.band, self.hi, BEYOND)
+        };
+        let t = if to > from {
+            (m - from) / (to - from)
+        } else {
+            1.0
+        };
+        let mix = |x: u8, y: u8| (x as f64 + t * (y as f64 - x as f64)).round() as u8;
+        RGBColor(mix(a.0, b.0), mix(a.1, b.1), mix(a.2, b.2))
+    }
+}
+
+/// Ranges with equal scale on both axes for a plot `w × h` pixels holding `pts`.
+pub fn equal_ranges(pts: &[(f64, f64)], w: f64, h: f64) -> ((f64, f64), (f64, f64)) {
+    let fold = |f: fn(&(f64, f64)) -> f64| {
+        pts.iter()
+            .map(f)
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), v| {
+                (l.min(v), h.max(v))
+            })
+    };
+    let (x0, x1) = fold(|p| p.0);
+    let (y0, y1) = fold(|p| p.1);
+    let pad = 0.06 * (x1 - x0).max(y1 - y0).max(1.0);
+    let (x0, x1, y0, y1) = (x0 - pad, x1 + pad, y0 - pad, y1 + pad);
+    let per_px = ((x1 - x0) / w).max((y1 - y0) / h);
+    let (cx, cy) = ((x0 + x1) / 2.0, (y0 + y1) / 2.0);
+    let (hw, hh) = (per_px * w / 2.0, per_px * h / 2.0);
+    ((cx - hw, cx + hw), (cy - hh, cy + hh))
+}
+
+/// Convex hull (Andrew's monotone chain, Andrew 1979, Inf. Process. Lett. 9(5)), closed.
+pub fn hull(pts: &[(f64, f64)]) -> Vec<(f64, f64)> {
+    let mut p = pts.to_vec();
+    p.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1)));
+    p.dedup_by(|a, b| (a.0 - b.0).abs() < 1e-12 && (a.1 - b.1).abs() < 1e-12);
+    if p.len() < 3 {
+        return p;
+    }
+    let cross = |o: (f64, f64), a: (f64, f64), b: (f64, f64)| {
+        (a.0 - o.0) * (b.1 - o.1) - (a.1 - o.1) * (b.0 - o.0)
+    };
+    let mut h: Vec<(f64, f64)> = Vec::new();
+    for pass in [p.clone(), p.iter().rev().copied().collect()] {
+        let start = h.len();
+        for q in pass {
+            while h.len() >= start + 2 && cross(h[h.len() - 2], h[h.len() - 1], q) <= 0.0 {
+                h.pop();
+            }
+            h.push(q);
+        }
+        h.pop();
+    }
+    h.push(h[0]);
+    h
+}
+
+const TITLE_H: i32 = 92;
+const PLOT_RIGHT: i32 = 870;
+const FOOTER_TOP: i32 = 800;
+const PANEL_LEFT: i32 = 895;
+const MARGIN: i32 = 12;
+const X_LABEL: i32 = 50;
+const Y_LABEL: i32 = 70;
+
+fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> DrawResult<DB> {
+    root.fill(&WHITE)?;
+    let at = placed(a);
+    let pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
+    let plot_w = (PLOT_RIGHT - 2 * MARGIN - Y_LABEL) as f64;
+    let plot_h = (FOOTER_TOP - TITLE_H - 2 * MARGIN - X_LABEL) as f64;
+    let (xr, yr) = equal_ranges(&pts, plot_w, plot_h);
+    let area = root.clone().shrink(
+        (0, TITLE_H),
+        (PLOT_RIGHT as u32, (FOOTER_TOP - TITLE_H) as u32),
+    );
+    let mut chart = ChartBuilder::on(&area)
+        .margin(MARGIN)
+        .x_label_area_size(X_LABEL)
+        .y_label_area_size(Y_LABEL)
+        .build_cartesian_2d(xr.0..xr.1, yr.0..yr.1)?;
+    let unit = a.lengths.unit.name();
+    chart
+        .configure_mesh()
+        .x_desc(format!("x, {unit}"))
+        .y_desc(format!("y, {unit}"))
+        .axis_desc_style(plot::text(17.0))
+        .label_style(plot::text(14.0))
+        .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
+        .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
+        .light_line_style(RGBColor(244, 244, 244))
+        .bold_line_style(RGBColor(220, 220, 220))
+        .draw()?;
+    let px = |p: (f64, f64)| chart.backend_coord(&p);
+    let outline: Vec<(i32, i32)> = hull(&pts).into_iter().map(px).collect();
+    if outline.len() >= 3 {
+        for d in plot::dashes(&outline, 6.0, 5.0) {
+            root.draw(&PathElement::new(
+                d,
+                RGBColor(150, 150, 150).stroke_width(1),
+            ))?;
+        }
+    }
+    let scale = MarginScale::of(a);
+    let (xs, ys) = chart.plotting_area().get_pixel_range();
+    let mut placer = Placer::new((xs.start + 2, ys.start + 2, xs.end - 2, ys.end - 2));
+    let mut order = at.clone();
+    order.sort_by_key(|(p, _)| std::cmp::Reverse(p.zone()));
+    for (p, xy) in &order {
+        let c = px(*xy);
+        let fill = p
+            .judgement
+            .margin_pct
+            .map_or(RGBColor(190, 190, 190), |m| scale.colour(m));
+        let shape = zone_shape(p.zone());
+        marker(root, shape, c, 7, fill, BLACK)?;
+        if shape == plot::Shape::Cross || shape == plot::Shape::Diamond {
+            // Open shapes: a thin black halo keeps pale colours visible on white.
+            marker(root, shape, c, 9, BLACK, BLACK)?;
+            marker(root, shape, c, 7, fill, BLACK)?;
+        }
+        placer.obstacles.push((c.0 - 8, c.1 - 8, c.0 + 8, c.1 + 8));
+    }
+    draw_worst(root, a, &px, &mut placer)?;
+    draw_title(root, a, at.len())?;
+    draw_scale(root, &scale)?;
+    draw_shapes(root, a)?;
+    draw_footer(root, a)
+}
+
+fn draw_worst<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    px: &dyn Fn((f64, f64)) -> (i32, i32),
+    placer: &mut Placer,
+) -> DrawResult<DB> {
+    let style = plot::bold(15.0);
+    let worst = a.worst(a.points.len());
+    let shown = worst
+        .into_iter()
+        .filter_map(|p| Some((p, (p.input.x?, p.input.y?))))
+        .take(LABELLED);
+    for (p, xy) in shown {
+        let c = px(xy);
+        let text = worst_label(p);
+        let (w, h) = root.estimate_text_size(&text, &style)?;
+        let (w, h) = (w as i32 + 6, h as i32 + 4);
+        let at = placer.place(c, w, h);
+        let to = (c.0.clamp(at.0, at.0 + w), c.1.clamp(at.1, at.1 + h));
+        root.draw(&PathElement::new(vec![c, to], BLACK.stroke_width(1)))?;
+        root.draw(&Rectangle::new(
+            [at, (at.0 + w, at.1 + h)],
+            WHITE.mix(0.85).filled(),
+        ))?;
+        root.draw(&Rectangle::new(
+            [at, (at.0 + w, at.1 + h)],
+            BLACK.stroke_width(1),
+        ))?;
+        root.draw_text(&text, &style, (at.0 + 3, at.1 + 2))?;
+    }
+    Ok(())
+}
+
+fn draw_title<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    shown: usize,
+) -> DrawResult<DB> {
+    let (part, second, _) = title_lines(a);
+    let width = SIZE.0 - 30;
+    let head = plot::fit_px(root, &format!("Part map: {part}"), &plot::bold(23.0), width);
+    root.draw_text(&head, &plot::bold(23.0), (15, 10))?;
+    let t2 = plot::fit_px(root, &second, &plot::text(16.0), width);
+    root.draw_text(&t2, &plot::text(16.0), (15, 40))?;
+    let missing = a.points.len() - shown;
+    let mut t3 = format!(
+        "Colour: margin to the limit curve \"{}\" (pp of engineering major strain); equal scale on both axes",
+        a.curve.name
+    );
+    if missing > 0 {
+        t3.push_str(&format!("; {missing} locations without x, y not shown"));
+    }
+    let t3 = plot::fit_px(root, &t3, &plot::text(14.0), width);
+    root.draw_text(&t3, &plot::text(14.0), (15, 64))
+}
+
+/// The vertical colour bar with its ticks and the zone boundaries.
+fn draw_scale<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    s: &MarginScale,
+) -> DrawResult<DB> {
+    let (x, top, bottom, w) = (PANEL_LEFT, TITLE_H + 44, TITLE_H + 364, 26);
+    root.draw_text("Margin, pp", &plot::bold(16.0), (x, TITLE_H + 16))?;
+    let y_of =
+        |m: f64| bottom - ((m - s.lo) / (s.hi - s.lo) * (bottom - top) as f64).round() as i32;
+    for y in top..=bottom {
+        let m = s.lo + (bottom - y) as f64 / (bottom - top) as f64 * (s.hi - s.lo);
+        root.draw(&PathElement::new(
+            vec![(x, y), (x + w, y)],
+            s.colour(m).stroke_width(1),
+        ))?;
+    }
+    root.draw(&Rectangle::new(
+        [(x, top), (x + w, bottom)],
+        BLACK.stroke_width(1),
+    ))?;
+    let step = if s.hi - s.lo > 60.0 { 10.0 } else { 5.0 };
+    let mut m = (s.lo / step).ceil() * step;
+    while m <= s.hi + 1e-9 {
+        let y = y_of(m);
+        // The boundaries carry their own label below.
+        if (m - 0.0).abs() > 1e-9 && (m - s.band).abs() > 1e-9 {
+            root.draw(&PathElement::new(
+                vec![(x + w, y), (x + w + 5, y)],
+                BLACK.stroke_width(1),
+            ))?;
+            root.draw_text(&format!("{m:.0}"), &plot::text(13.0), (x + w + 8, y - 7))?;
+        }
+        m += step;
+    }
+    for (v, label) in [(0.0, "on the curve"), (s.band, "band edge")] {
+        let y = y_of(v);
+        root.draw(&PathElement::new(
+            vec![(x - 6, y), (x + w + 40, y)],
+            BLACK.stroke_width(3),
+        ))?;
+        let text = format!("{v:.0}: {label}");
+        root.draw_text(&text, &plot::bold(13.0), (x + w + 46, y - 8))?;
+    }
+    let mid = |a: f64, b: f64| y_of((a + b) / 2.0) - 7;
+    let zone_text = plot::text(13.0).color(&RGBColor(70, 70, 70));
+    root.draw_text(
+        "failed",
+        &zone_text,
+        (x + w + 46, mid(s.lo, 0.0).max(y_of(0.0) + 10)),
+    )?;
+    root.draw_text("marginal", &zone_text, (x + w + 46, mid(0.0, s.band)))?;
+    root.draw_text(
+        "beyond the band",
+        &zone_text,
+        (x + w + 46, mid(s.band, s.hi)),
+    )?;
+    Ok(())
+}
+
+fn draw_shapes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> DrawResult<DB> {
+    let x = PANEL_LEFT;
+    let mut y = TITLE_H + 390;
+    root.draw_text("Shape = zone (locations)", &plot::bold(16.0), (x, y))?;
+    y += 26;
+    for (zone, n) in a.counts() {
+        let shape = zone_shape(zone);
+        let fill = if zone == Zone::Uncovered {
+            RGBColor(190, 190, 190)
+        } else {
+            RGBColor(110, 110, 110)
+        };
+        marker(root, shape, (x + 10, y + 8), 6, fill, BLACK)?;
+        root.draw_text(
+            &format!("{}  {n}", zone.name()),
+            &plot::text(14.0),
+            (x + 28, y),
+        )?;
+        y += 22;
+    }
+    y += 8;
+    root.draw_text(
+        "grey fill: no margin (uncovered)",
+        &plot::text(13.0),
+        (x, y),
+    )?;
+    y += 18;
+    root.draw_text(
+        "dashed: hull of the measured locations",
+        &plot::text(13.0),
+        (x, y),
+    )?;
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn equal_ranges_have_equal_scale() {
+        let ((x0, x1), (y0, y1)) = equal_ranges(&[(0.0, 0.0), (1000.0, 200.0)], 700.0, 600.0);
+        let (sx, sy) = ((x1 - x0) / 700.0, (y1 - y0) / 600.0);
+        assert!((sx - sy).abs() < 1e-9 * sx, "{sx} {sy}");
+        assert!(x0 < 0.0 && x1 > 1000.0 && y0 < 0.0 && y1 > 200.0);
+    }
+
+    #[test]
+    fn scale_hits_its_anchors() {
+        let s = MarginScale {
+            lo: -10.0,
+            band: 10.0,
+            hi: 40.0,
+        };
+        assert_eq!(s.colour(0.0), RGBColor(0xd7, 0x30, 0x27)); // on the curve: failed
+        assert_eq!(s.colour(1e-9), RGBColor(0xf4, 0x6d, 0x43)); // just below: marginal
+        assert_eq!(s.colour(10.0), RGBColor(0xab, 0xd9, 0xe9)); // band edge: beyond the band
+        assert_eq!(s.colour(99.0), RGBColor(0x31, 0x36, 0x95));
+    }
+
+    #[test]
+    fn hull_of_square_with_inner_point() {
+        let h = hull(&[(0.0, 0.0), (1.0, 0.0), (1.0, 1.0), (0.0, 1.0), (0.5, 0.5)]);
+        assert_eq!(h.len(), 5); // four corners, closed
+        assert!(!h.contains(&(0.5, 0.5)));
+    }
+}
+
+#[cfg(test)]
+mod render_tests {
+    use super::*;
+    use crate::output::fixture;
+
+    #[test]
+    fn no_positions_no_map() {
+        let a = fixture::analysis(false);
+        assert!(map_svg(&a).unwrap().is_none());
+        assert!(map_png(&a).unwrap().is_none());
+    }
+
+    #[test]
+    fn svg_holds_every_location_and_the_scale() {
+        let a = fixture::analysis(true);
+        let svg = map_svg(&a).unwrap().unwrap();
+        let count = |needle: &str| svg.matches(needle).count();
+        let n = |z: Zone| a.count(z);
+        // Marker primitives at the map's size (r = 7) against the zone counts; the legend's
+        // markers are drawn at r = 6.
+        assert_eq!(count("r=\"7\" opacity=\"1\" fill=\"#"), n(Zone::Safe));
+        assert_eq!(
+            count("width=\"12\" height=\"12\" opacity=\"1\" fill=\"#"),
+            n(Zone::Thickening)
+        );
+        assert_eq!(
+            count("<polygon"),
+            n(Zone::Marginal) + n(Zone::LowStretch) + 2,
+            "triangles up and down, legend included"
+        );
+        // A failed cross is drawn fill, black halo, fill again: 3 × 2 strokes; legend 2.
+        assert_eq!(count("stroke-width=\"4\""), 6 * n(Zone::Failed) + 2);
+        for text in [
+            "Part map: TP-1 test panel &lt;LH&gt; &amp; co (invented)",
+            "x, mm",
+            "y, mm",
+            "0: on the curve",
+            "10: band edge",
+            "Margin, pp",
+            "Caution: neckline is an aid to judgement.",
+        ] {
+            assert!(svg.contains(text), "missing `{text}`");
+        }
+        for p in a.worst(LABELLED) {
+            assert!(
+                svg.contains(&worst_label(p)),
+                "worst {} not labelled",
+                p.input.id
+            );
+        }
+    }
+
+    #[test]
+    fn png_has_expected_size_and_text_in_title() {
+        let a = fixture::analysis(true);
+        let img = image::load_from_memory(&map_png(&a).unwrap().unwrap())
+            .unwrap()
+            .to_rgb8();
+        assert_eq!((img.width(), img.height()), SIZE);
+        let dark = (0..TITLE_H as u32)
+            .flat_map(|y| (0..SIZE.0).map(move |x| (x, y)))
+            .filter(|&(x, y)| img.get_pixel(x, y).0.iter().all(|&c| c < 100))
+            .count();
+        assert!(dark > 2000, "only {dark} dark pixels in the title band");
+    }
+}

@@ -1,0 +1,265 @@
+//! The report in a real browser: `check` writes report.html, headless Chromium prints it to PDF
+//! (Letter and A4) and takes a screenshot. Asserts: the expected number of pages, a screenshot
+//! that is not blank, and no request from the page other than the report file itself.
+//!
+//! Skipped with a message when `chromium` is not installed and `CI` is unset; in CI its absence
+//! fails (`.ci/run` installs Debian's `chromium`).
+
+use assert_cmd::Command;
+use std::path::{Path, PathBuf};
+
+fn repo(p: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join(p)
+}
+
+/// `chromium` on PATH, or `None` (after the skip message) outside CI.
+fn chromium() -> Option<PathBuf> {
+    let found = std::env::var_os("PATH").and_then(|paths| {
+        std::env::split_paths(&paths)
+            .map(|d| d.join("chromium"))
+            .find(|p| p.is_file())
+    });
+    match found {
+        Some(p) => Some(p),
+        None if std::env::var_os("CI").is_some() => {
+            panic!("CI is set but `chromium` is not on PATH: install it (apt-get install chromium)")
+        }
+        None => {
+            eprintln!(
+                "SKIPPED report_browser: `chromium` is not installed (apt-get install chromium); \
+                 in CI this test fails instead"
+            );
+            None
+        }
+    }
+}
+
+/// Run headless Chromium on `page` with `action` flags and verbose logging; returns its log.
+fn run_chromium(chromium: &Path, page: &Path, action: &[String]) -> String {
+    let profile = tempfile::tempdir().unwrap();
+    let out = std::process::Command::new(chromium)
+        .args([
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--no-first-run",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+            "--enable-logging=stderr",
+            "--v=1",
+        ])
+        .arg(format!("--user-data-dir={}", profile.path().display()))
+        .args(action)
+        .arg(format!("file://{}", page.display()))
+        .output()
+        .unwrap();
+    let log = String::from_utf8_lossy(&out.stderr).into_owned();
+    assert!(
+        out.status.success(),
+        "chromium failed: {}\n{log}",
+        out.status
+    );
+    log
+}
+
+/// URLs the page asked for: every file loaded other than the page itself, and every network
+/// request except Chromium's own housekeeping calls (update, clock and account services on
+/// google.com / googleapis.com hosts, which it makes with any page, even a blank one).
+fn page_requests(log: &str, page: &Path) -> Vec<String> {
+    let own = format!("file://{}", page.display());
+    let url_after = |line: &str, key: &str| {
+        line.split_once(key)
+            .map(|(_, rest)| rest.split_whitespace().next().unwrap_or("").to_string())
+    };
+    let housekeeping = |u: &str| {
+        let host = u
+            .split("://")
+            .nth(1)
+            .unwrap_or("")
+            .split(['/', '?', ':'])
+            .next()
+            .unwrap_or("");
+        host.ends_with(".google.com") || host.ends_with(".googleapis.com")
+    };
+    log.lines()
+        .filter_map(|l| {
+            url_after(l, "FileURLLoader::Start:")
+                .filter(|u| *u != own)
+                .or_else(|| url_after(l, "NotifyBeforeURLRequest:").filter(|u| !housekeeping(u)))
+        })
+        .collect()
+}
+
+/// Number of page objects in a PDF: `/Type /Page` not followed by `s` (which is `/Pages`).
+fn pdf_pages(pdf: &[u8]) -> usize {
+    let key = b"/Type /Page";
+    pdf.windows(key.len() + 1)
+        .filter(|w| &w[..key.len()] == key && w[key.len()] != b's')
+        .count()
+}
+
+/// Width and height of the first page's MediaBox, points.
+fn media_box(pdf: &[u8]) -> (f64, f64) {
+    let text = String::from_utf8_lossy(pdf);
+    let at = text.find("/MediaBox [").expect("MediaBox");
+    let nums: Vec<f64> = text[at + 11..]
+        .split(']')
+        .next()
+        .unwrap()
+        .split_whitespace()
+        .map(|n| n.parse().unwrap())
+        .collect();
+    (nums[2] - nums[0], nums[3] - nums[1])
+}
+
+fn check(dir: &Path, csv: &Path, extra: &[&str]) -> PathBuf {
+    let out = dir.join("out");
+    let st = Command::cargo_bin("neckline")
+        .unwrap()
+        .current_dir(dir)
+        .arg("check")
+        .arg(csv)
+        .args(["--out", out.to_str().unwrap(), "--format", "html"])
+        .args(extra)
+        .env("NO_COLOR", "1")
+        .output()
+        .unwrap();
+    assert!(
+        st.status.success(),
+        "{}",
+        String::from_utf8_lossy(&st.stderr)
+    );
+    out.join("report.html")
+}
+
+#[test]
+fn report_prints_on_letter_and_a4_and_loads_nothing_else() {
+    let Some(chromium) = chromium() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    // Four located points: every section fits on one page, so 7 sections give 7 pages.
+    let report = check(
+        dir.path(),
+        &repo("tests/data/good.csv"),
+        &[
+            "--limit",
+            repo("tests/data/flat-30.toml").to_str().unwrap(),
+            "--d0",
+            "2.5",
+        ],
+    );
+    let html = std::fs::read_to_string(&report).unwrap();
+    for bad in [
+        "http://", "https://", "src=", "href=", "@import", "url(", "<script", "<link",
+    ] {
+        assert!(!html.contains(bad), "report.html contains `{bad}`");
+    }
+    let sections = html.matches("<section class=\"page\"").count();
+    assert_eq!(sections, 7);
+
+    // Letter: Chromium's default paper when the page does not set one.
+    let letter = dir.path().join("letter.pdf");
+    let log = run_chromium(
+        &chromium,
+        &report,
+        &[
+            "--no-pdf-header-footer".into(),
+            format!("--print-to-pdf={}", letter.display()),
+        ],
+    );
+    assert_eq!(page_requests(&log, &report), Vec::<String>::new());
+    let pdf = std::fs::read(&letter).unwrap();
+    let (w, h) = media_box(&pdf);
+    assert!(
+        (w - 612.0).abs() < 1.0 && (h - 792.0).abs() < 1.0,
+        "Letter is 612 x 792 pt: {w} x {h}"
+    );
+    assert_eq!(pdf_pages(&pdf), sections, "one page per section on Letter");
+
+    // A4: the same report with the paper size set, as a printer set to A4 would use.
+    let a4_html = dir.path().join("out/report-a4.html");
+    std::fs::write(
+        &a4_html,
+        html.replace("</style>", "@page { size: A4; }\n</style>"),
+    )
+    .unwrap();
+    let a4 = dir.path().join("a4.pdf");
+    run_chromium(
+        &chromium,
+        &a4_html,
+        &[
+            "--no-pdf-header-footer".into(),
+            format!("--print-to-pdf={}", a4.display()),
+        ],
+    );
+    let pdf = std::fs::read(&a4).unwrap();
+    let (w, h) = media_box(&pdf);
+    // ISO 216: A4 is 210 x 297 mm = 595.3 x 841.9 pt.
+    assert!(
+        (w - 595.3).abs() < 1.0 && (h - 841.9).abs() < 1.0,
+        "A4: {w} x {h}"
+    );
+    assert_eq!(pdf_pages(&pdf), sections, "one page per section on A4");
+}
+
+#[test]
+fn demo_report_screenshot_is_not_blank() {
+    let Some(chromium) = chromium() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let report = check(
+        dir.path(),
+        &repo("demo-parts/rear-floor-pan/tryout-1.csv"),
+        &[
+            "--job",
+            repo("demo-parts/rear-floor-pan/job-t1.toml")
+                .to_str()
+                .unwrap(),
+        ],
+    );
+    let shot = dir.path().join("shot.png");
+    let log = run_chromium(
+        &chromium,
+        &report,
+        &[
+            format!("--screenshot={}", shot.display()),
+            "--window-size=1200,1600".into(),
+        ],
+    );
+    assert_eq!(page_requests(&log, &report), Vec::<String>::new());
+    let img = image::open(&shot).unwrap().to_rgb8();
+    assert_eq!((img.width(), img.height()), (1200, 1600));
+    let mut colours: Vec<[u8; 3]> = img.pixels().map(|p| p.0).collect();
+    colours.sort_unstable();
+    colours.dedup();
+    assert!(
+        colours.len() > 200,
+        "only {} distinct colours: blank page?",
+        colours.len()
+    );
+    let dark = img.pixels().filter(|p| p.0.iter().all(|&c| c < 80)).count();
+    assert!(dark > 5_000, "only {dark} dark (text) pixels");
+}
+
+#[test]
+fn request_check_catches_a_page_that_loads_things() {
+    // Control: the detector must see both a local file and a network request made by a page.
+    let Some(chromium) = chromium() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let page = dir.path().join("control.html");
+    std::fs::write(
+        &page,
+        "<html><body><img src=\"missing.png\"><img src=\"https://example.invalid/x.png\">x</body></html>",
+    )
+    .unwrap();
+    let log = run_chromium(
+        &chromium,
+        &page,
+        &[
+            format!("--screenshot={}", dir.path().join("c.png").display()),
+            "--window-size=300,200".into(),
+        ],
+    );
+    let got = page_requests(&log, &page);
+    assert!(got.iter().any(|u| u.ends_with("/missing.png")), "{got:?}");
+    assert!(got.iter().any(|u| u.contains("example.invalid")), "{got:?}");
+}
