@@ -439,3 +439,28 @@ fn compare_joins_two_tryouts_by_id() {
         "{r}"
     );
 }
+
+// `grid` and `check` share one output path: the same files come out of both.
+#[test]
+fn grid_writes_the_same_outputs_as_check() {
+    let nodes = repo("demo-parts/rear-floor-pan-grid/nodes.csv")
+        .display()
+        .to_string();
+    let job = repo("demo-parts/rear-floor-pan-grid/job.toml")
+        .display()
+        .to_string();
+    let (dir, r) = run(&["grid", &nodes, "--job", &job, "--out", "g"]);
+    assert_eq!(r.code, 0, "{r}");
+    for f in [
+        "points.csv",
+        "summary.json",
+        "fld.svg",
+        "fld.png",
+        "map.svg",
+        "map.png",
+        "report.html",
+    ] {
+        assert!(dir.path().join("g").join(f).is_file(), "missing {f}\n{r}");
+    }
+    assert!(r.stdout.starts_with("Grid: 384 elements"), "{r}");
+}

@@ -1,14 +1,12 @@
 //! `neckline grid`: strains from grid nodes (flat blank and formed part), judged like `check`.
 
-use super::{
-    limit_path, load_job, resolve_lengths, resolve_settings, write_analysis_outputs, Outcome,
-};
+use super::outputs::{emit, OutputArgs, Plan};
+use super::{limit_path, load_job, resolve_lengths, resolve_settings, Outcome};
 use crate::analysis::{analyse_states, Analysis};
 use crate::cli::{JudgeArgs, LengthArgs};
 use crate::error::{Error, Result};
 use crate::grid::{evaluate, read::read_mesh};
 use crate::limit::LimitCurve;
-use crate::output::terminal;
 use crate::units::LengthUnit;
 use clap::Args;
 use std::path::PathBuf;
@@ -24,9 +22,6 @@ pub struct GridArgs {
     /// each element) [default: the cells of the row, col grid].
     #[arg(long, value_name = "ELEMENTS.csv")]
     pub elements: Option<PathBuf>,
-    /// Folder for points.csv and summary.json (created if missing).
-    #[arg(long, value_name = "DIR", default_value = "neckline-out")]
-    pub out: PathBuf,
     /// Refuse the whole run (exit 2, nothing written) if any node row or element is rejected.
     #[arg(long)]
     pub strict: bool,
@@ -40,6 +35,9 @@ pub struct GridArgs {
     /// Length unit of the node positions and --t0 [default: mm, or the job file's].
     #[arg(long, value_name = "mm|in")]
     pub unit: Option<LengthUnit>,
+    /// Outputs.
+    #[command(flatten)]
+    pub output: OutputArgs,
     /// Curve and settings.
     #[command(flatten)]
     pub judge: JudgeArgs,
@@ -102,6 +100,12 @@ pub fn grid_analysis(args: &GridArgs) -> Result<Analysis> {
 
 /// Run `grid`.
 pub fn run(args: &GridArgs) -> Result<Outcome> {
+    let mut inputs = vec![args.nodes.clone()];
+    inputs.extend(args.elements.clone());
+    inputs.extend(args.job.clone());
+    inputs.extend(args.judge.limit.clone());
+    let plan = Plan::of(&args.output);
+    plan.prepare(&inputs)?;
     let a = grid_analysis(args)?;
     if args.strict && !a.rejected.is_empty() {
         return Err(Error::Usage(format!(
@@ -110,30 +114,17 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
             a.rejected[0]
         )));
     }
-    let mut inputs = vec![args.nodes.clone()];
-    inputs.extend(args.elements.clone());
-    inputs.extend(args.job.clone());
-    inputs.extend(args.judge.limit.clone());
     inputs.extend(a.job.limit.clone());
-    let written = write_analysis_outputs(&a, &args.out, &inputs)?;
     let three_d = a
         .points
         .iter()
         .any(|p| p.grid.is_some_and(|g| g.normal.is_some()));
-    println!(
-        "Grid: {} elements evaluated from node positions ({}), quads at their centre",
+    let preface = format!(
+        "Grid: {} elements evaluated from node positions ({}), quads at their centre\n",
         a.points.len(),
         if three_d { "3-D formed part" } else { "2-D" }
     );
-    print!("{}", terminal::summary_text(&a));
-    println!(
-        "Wrote {}",
-        written
-            .iter()
-            .map(|p| p.display().to_string())
-            .collect::<Vec<_>>()
-            .join(", ")
-    );
+    emit(&a, &args.output, &plan, &inputs, &preface)?;
     let tripped = args.judge.fail_on.is_some_and(|z| a.trips(z));
     Ok(if tripped {
         Outcome::Tripped

@@ -5,6 +5,7 @@ pub mod compare;
 pub mod fit;
 pub mod grid;
 pub mod limit;
+pub mod outputs;
 pub mod strains;
 
 use crate::analysis::{analyse, Analysis, Lengths};
@@ -103,26 +104,4 @@ pub fn run_analysis(
         )));
     }
     Ok(a)
-}
-
-/// Write `points.csv` and `summary.json` of `a` into `out` (created if missing), never over one
-/// of `inputs`. Used by `grid`; `check` writes the same two files.
-pub fn write_analysis_outputs(
-    a: &Analysis,
-    out: &Path,
-    inputs: &[PathBuf],
-) -> Result<Vec<PathBuf>> {
-    std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
-    let points = out.join("points.csv");
-    let summary = out.join("summary.json");
-    for p in [&points, &summary] {
-        crate::output::guard_inputs(p, inputs)?;
-    }
-    crate::output::write_atomic(&points, inputs, |w| {
-        crate::output::points_csv::write_points(a, w)
-    })?;
-    crate::output::write_atomic(&summary, inputs, |w| {
-        crate::output::summary_json::write_summary(a, w)
-    })?;
-    Ok(vec![points, summary])
 }
