@@ -464,3 +464,34 @@ fn grid_writes_the_same_outputs_as_check() {
     }
     assert!(r.stdout.starts_with("Grid: 384 elements"), "{r}");
 }
+
+#[test]
+fn generated_curve_can_be_drawn() {
+    let (dir, r) = run(&[
+        "limit",
+        "keeler-brazier",
+        "--n",
+        "0.2",
+        "--thickness",
+        "0.8",
+        "--out",
+        "kb.toml",
+        "--plot",
+        "kb.png",
+    ]);
+    assert_eq!(r.code, 0, "{r}");
+    let img = image::open(dir.path().join("kb.png")).unwrap();
+    assert!(img.width() > 600 && img.height() > 400);
+    let (_d, r) = run(&[
+        "limit",
+        "keeler-brazier",
+        "--n",
+        "0.2",
+        "--thickness",
+        "0.8",
+        "--plot",
+        "kb.pdf",
+    ]);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("must end in .svg or .png"), "{r}");
+}

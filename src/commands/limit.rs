@@ -2,13 +2,16 @@
 //! limits, Marciniak-Kuczynski), written as the curve TOML `check` reads, and `limit compare`.
 
 use super::Outcome;
-use crate::analysis::CAUTION;
+use crate::analysis::{Analysis, Lengths, CAUTION};
+use crate::assess::Settings;
 use crate::error::{Error, Result};
+use crate::job::Job;
 use crate::limit::keeler_brazier::{self, KeelerBrazier};
 use crate::limit::mk::{self, MkMaterial, MkSettings, PathLimit};
 use crate::limit::necking::{self, RightSide};
 use crate::limit::writer::{GeneratedCurve, TOOL_VERSION};
 use crate::limit::LimitCurve;
+use crate::output::fld::{self, FldOptions};
 use crate::output::write_atomic;
 use crate::strain::{EngStrain, StrainMeasure};
 use crate::units::{LengthUnit, MM_PER_INCH};
@@ -50,6 +53,9 @@ pub struct CurveOutArgs {
     /// Material grade and lot, recorded in the file.
     #[arg(long, value_name = "TEXT")]
     pub material: Option<String>,
+    /// Also draw the curve on a forming-limit diagram: FILE.svg or FILE.png.
+    #[arg(long, value_name = "FILE.svg|FILE.png")]
+    pub plot: Option<PathBuf>,
 }
 
 /// Arguments of `limit keeler-brazier`.
@@ -240,11 +246,13 @@ pub fn necking_curve(a: &NeckingArgs) -> Result<GeneratedCurve> {
         a.paths
     );
     Ok(GeneratedCurve {
-        name: a
-            .out
-            .name
-            .clone()
-            .unwrap_or_else(|| format!("Hill + {} n {}", a.right, a.n)),
+        name: a.out.name.clone().unwrap_or_else(|| {
+            let right = match a.right {
+                RightSide::Swift => "Swift 1952",
+                RightSide::StorenRice => "Storen-Rice 1975",
+            };
+            format!("Hill 1952 + {right}, n {}", a.n)
+        }),
         source,
         material: a.out.material.clone(),
         thickness_mm: None,
@@ -352,8 +360,12 @@ fn mk_notes(limits: &[PathLimit]) -> Vec<String> {
 /// Check the curve by reading it back, then write it to `--out` (atomically) or to standard
 /// output. With `--out`, a short table and the caution go to standard output.
 fn emit(curve: &GeneratedCurve, out: &CurveOutArgs) -> Result<Outcome> {
+    let plot_kind = out.plot.as_deref().map(plot_kind).transpose()?;
     let shown = out.out.clone().unwrap_or_else(|| PathBuf::from("<stdout>"));
     let (text, parsed) = curve.render_checked(&shown)?;
+    if let (Some(path), Some(kind)) = (&out.plot, plot_kind) {
+        plot_curve(&parsed, path, kind)?;
+    }
     match &out.out {
         None => {
             let mut o = std::io::stdout().lock();
@@ -367,6 +379,59 @@ fn emit(curve: &GeneratedCurve, out: &CurveOutArgs) -> Result<Outcome> {
         }
     }
     Ok(Outcome::Done)
+}
+
+/// Whether a plot path asks for SVG (`true`) or PNG (`false`), from its extension.
+fn plot_kind(path: &Path) -> Result<bool> {
+    match path
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(str::to_ascii_lowercase)
+        .as_deref()
+    {
+        Some("svg") => Ok(true),
+        Some("png") => Ok(false),
+        _ => Err(Error::Usage(format!(
+            "--plot {}: the file name must end in .svg or .png",
+            path.display()
+        ))),
+    }
+}
+
+/// Draw the curve alone on a forming-limit diagram (no locations), through the same drawing
+/// code as `check`, so the two pictures read the same.
+fn plot_curve(curve: &LimitCurve, path: &Path, svg: bool) -> Result<()> {
+    let a = Analysis {
+        input: PathBuf::from("(generated curve)"),
+        job: Job {
+            part: Some(format!("generated curve: {}", curve.name)),
+            material: curve.material.clone(),
+            ..Job::default()
+        },
+        lengths: Lengths {
+            unit: Default::default(),
+            d0: None,
+            t0: None,
+        },
+        curve: curve.clone(),
+        settings: Settings::default(),
+        points: Vec::new(),
+        rejected: Vec::new(),
+        warnings: Vec::new(),
+    };
+    let opts = FldOptions {
+        measure: curve.measure,
+        ..FldOptions::default()
+    };
+    let bytes = if svg {
+        fld::fld_svg(&a, &opts).map(String::into_bytes)
+    } else {
+        fld::fld_png(&a, &opts)
+    }
+    .map_err(|e| Error::io(path, e))?;
+    write_atomic(path, &[], |w| w.write_all(&bytes))?;
+    eprintln!("Drew {}", path.display());
+    Ok(())
 }
 
 /// A few lines for people: the file written, its plane-strain limit and the caution.
