@@ -57,12 +57,12 @@ impl fmt::Display for Location {
 #[derive(Debug, thiserror::Error)]
 pub enum Error {
     /// A file could not be read or written.
-    #[error("{}: {source}", path.display())]
+    #[error("{}: {reason}", path.display())]
     Io {
         /// The file concerned.
         path: PathBuf,
-        /// The operating system's reason.
-        source: std::io::Error,
+        /// The operating system's reason (shown in the message itself, so not chained again).
+        reason: std::io::Error,
     },
     /// An input file is wrong as a whole, or at a given place.
     #[error("{location}: {message}")]
@@ -89,7 +89,7 @@ impl Error {
     pub fn io(path: &Path, source: std::io::Error) -> Self {
         Error::Io {
             path: path.to_path_buf(),
-            source,
+            reason: source,
         }
     }
 }

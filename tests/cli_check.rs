@@ -261,6 +261,11 @@ fn usage_errors_exit_2() {
     let (_d, r) = run(&["check", &csv, "--d0", "2.5"]);
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("no limit curve"), "{r}");
+    // A missing file is named once, with the system's reason once.
+    let (_d, r) = run(&["check", "no-such.csv", "--limit", &lim, "--d0", "2.5"]);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.starts_with("error: no-such.csv: "), "{r}");
+    assert_eq!(r.stderr.lines().count(), 1, "{r}");
     let (_d, r) = run(&["check", &csv, "--limit", &lim]);
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("no initial circle diameter"), "{r}");
