@@ -95,6 +95,20 @@ impl Verdict {
     }
 }
 
+/// A location computed from nodes, ready to be judged.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StateInput {
+    /// The location as if measured (for grid elements: id, line, axes `λ·d0` of the equivalent
+    /// circle, centre x, y).
+    pub input: Measurement,
+    /// The initial circle diameter (for grid elements: `d0 = √(4A/π)` of the blank area).
+    pub d0: f64,
+    /// The strains.
+    pub strain: StrainState,
+    /// A grid element's extra values.
+    pub grid: Option<crate::grid::GridExtras>,
+}
+
 /// Judge every accepted row of `set`. A row with no d0 (none in the row, none given) is rejected.
 pub fn analyse(
     set: MeasurementSet,
@@ -104,40 +118,32 @@ pub fn analyse(
     settings: Settings,
 ) -> Analysis {
     let mut rejected = set.rejected;
-    let mut points = Vec::with_capacity(set.points.len());
+    let mut states = Vec::with_capacity(set.points.len());
     for m in set.points {
-        match analyse_point(m, &set.source, &lengths, &curve, &settings) {
-            Ok(p) => points.push(p),
+        match circle_state(m, &set.source, &lengths) {
+            Ok(s) => states.push(s),
             Err(r) => rejected.push(r),
         }
     }
     rejected.sort_by_key(|r| r.location.line);
-    let mut warnings = curve.warnings.clone();
-    if !set.ignored_columns.is_empty() {
-        warnings.push(format!(
-            "ignored columns: {}",
-            set.ignored_columns.join(", ")
-        ));
-    }
-    Analysis {
-        input: set.source,
+    analyse_states(
+        set.source,
+        states,
+        rejected,
+        &set.ignored_columns,
         job,
         lengths,
         curve,
         settings,
-        points,
-        rejected,
-        warnings,
-    }
+    )
 }
 
-fn analyse_point(
+/// The strains of one measured circle, or why the row cannot give them.
+fn circle_state(
     m: Measurement,
     file: &std::path::Path,
     lengths: &Lengths,
-    curve: &LimitCurve,
-    settings: &Settings,
-) -> Result<PointResult, RejectedRow> {
+) -> Result<StateInput, RejectedRow> {
     let reject = |reason: String| RejectedRow {
         location: Location::file(file).at_line(m.line),
         id: Some(m.id.clone()),
@@ -152,14 +158,10 @@ fn analyse_point(
             m.major, m.minor
         ))
     })?;
-    let judgement = judge(&strain, curve, settings);
-    let thickness = lengths.t0.map(|t0| strain.thickness(t0));
-    Ok(PointResult {
+    Ok(StateInput {
         input: m,
         d0,
         strain,
-        thickness,
-        judgement,
         grid: None,
     })
 }
@@ -170,7 +172,7 @@ fn analyse_point(
 #[allow(clippy::too_many_arguments)]
 pub fn analyse_states(
     source: PathBuf,
-    states: Vec<crate::grid::StateInput>,
+    states: Vec<StateInput>,
     rejected: Vec<RejectedRow>,
     ignored_columns: &[String],
     job: Job,

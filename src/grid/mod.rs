@@ -35,18 +35,7 @@ pub struct GridExtras {
     pub reference_centre: [f64; 2],
 }
 
-/// A location computed from nodes, ready to be judged.
-#[derive(Debug, Clone, PartialEq)]
-pub struct StateInput {
-    /// The location as if measured: id, line, axes `λ·d0` of the equivalent circle, centre x, y.
-    pub input: Measurement,
-    /// The equivalent circle diameter `d0 = √(4A/π)` of the element's blank area.
-    pub d0: f64,
-    /// The strains.
-    pub strain: StrainState,
-    /// The element's extra values.
-    pub grid: Option<GridExtras>,
-}
+pub use crate::analysis::StateInput;
 
 /// The location of one element: strains from its principal stretches, the equivalent circle's
 /// axes as `major`/`minor`, the deformed centre as `x, y`.
