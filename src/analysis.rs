@@ -43,6 +43,13 @@ pub struct PointResult {
 }
 
 impl PointResult {
+    /// Measured minus computed thickness, percent of the computed one: a cross-check of the
+    /// reading (or of d0, t0) where a thickness was measured and t0 is known.
+    pub fn thickness_diff_pct(&self) -> Option<f64> {
+        let computed = self.thickness?;
+        Some(100.0 * (self.input.thickness? - computed) / computed)
+    }
+
     /// The zone.
     pub fn zone(&self) -> Zone {
         self.judgement.zone
@@ -207,7 +214,36 @@ pub fn analyse_states(
     }
 }
 
+/// The thickness cross-check over a whole file.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ThicknessCheck<'a> {
+    /// Locations with a measured thickness (and a computed one).
+    pub measured: usize,
+    /// The location whose measured thickness differs most from the computed one.
+    pub largest: &'a PointResult,
+    /// That difference, percent of the computed thickness.
+    pub largest_diff_pct: f64,
+}
+
 impl Analysis {
+    /// Compare measured with computed thickness; `None` when no location has both.
+    pub fn thickness_check(&self) -> Option<ThicknessCheck<'_>> {
+        let with: Vec<(&PointResult, f64)> = self
+            .points
+            .iter()
+            .filter_map(|p| p.thickness_diff_pct().map(|d| (p, d)))
+            .collect();
+        let (largest, d) = with
+            .iter()
+            .copied()
+            .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()))?;
+        Some(ThicknessCheck {
+            measured: with.len(),
+            largest,
+            largest_diff_pct: d,
+        })
+    }
+
     /// Number of points in each zone, worst zone first.
     pub fn counts(&self) -> Vec<(Zone, usize)> {
         Zone::ALL

@@ -500,3 +500,40 @@ fn generated_curve_can_be_drawn() {
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("must end in .svg or .png"), "{r}");
 }
+
+// Measured thickness is carried and checked against t0·exp(ε3) (incompressibility): for
+// d0 = 2.5, axes 3.25 x 2.40, t0 = 1.0 the computed thickness is 0.80128 (field notes, section 2).
+#[test]
+fn measured_thickness_is_cross_checked() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join("t.csv"),
+        "id,major,minor,thickness\nP1,3.25,2.40,0.78\nP2,2.6,2.55,\n",
+    )
+    .unwrap();
+    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let r = run_in(
+        dir.path(),
+        &[
+            "check", "t.csv", "--limit", &lim, "--d0", "2.5", "--t0", "1.0", "--out", "o",
+            "--format", "csv,json",
+        ],
+        None,
+    );
+    assert_eq!(r.code, 0, "{r}");
+    // (0.78 − 0.80128) / 0.80128 = −2.66 %
+    assert!(
+        r.stdout
+            .contains("Thickness cross-check: 1 locations measured; largest difference -2.7 %"),
+        "{r}"
+    );
+    let points = std::fs::read_to_string(dir.path().join("o/points.csv")).unwrap();
+    let mut rdr = csv::Reader::from_reader(points.as_bytes());
+    let h = rdr.headers().unwrap().clone();
+    let col = h.iter().position(|c| c == "thickness_diff_pct").unwrap();
+    let rows: Vec<csv::StringRecord> = rdr.records().map(|r| r.unwrap()).collect();
+    assert_eq!(&rows[0][col], "-2.66");
+    assert_eq!(&rows[1][col], "");
+    let s = read_json(&dir.path().join("o/summary.json"));
+    assert_eq!(s["thickness_check"]["id"], "P1");
+}

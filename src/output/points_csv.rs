@@ -27,7 +27,15 @@ pub const JUDGEMENT_COLUMNS: [&str; 4] =
     ["limit_major_eng_pct", "margin_pct", "limit_use_pct", "zone"];
 
 /// Input columns carried at the end.
-pub const CARRIED_COLUMNS: [&str; 6] = ["d0", "x", "y", "stage", "thickness_measured", "note"];
+pub const CARRIED_COLUMNS: [&str; 7] = [
+    "d0",
+    "x",
+    "y",
+    "stage",
+    "thickness_measured",
+    "thickness_diff_pct",
+    "note",
+];
 
 /// Writes one record field by field through a reused buffer (no allocation per field).
 struct Fields<'a, W: Write> {
@@ -87,6 +95,7 @@ fn carried_fields<W: Write>(f: &mut Fields<'_, W>, p: &PointResult) -> csv::Resu
     f.num(m.y, 3)?;
     f.text(m.stage.as_deref().unwrap_or(""))?;
     f.num(m.thickness, 4)?;
+    f.num(p.thickness_diff_pct(), 2)?;
     f.text(m.note.as_deref().unwrap_or(""))
 }
 

@@ -204,6 +204,17 @@ pub fn summary_text(a: &Analysis) -> String {
             );
         }
     }
+    if let Some(tc) = a.thickness_check() {
+        s.push_str(&wrap(
+            &format!(
+                "Thickness cross-check: {} locations measured; largest difference {:+.1} % \
+                 (measured vs from strains) at {}",
+                tc.measured, tc.largest_diff_pct, tc.largest.input.id
+            ),
+            80,
+            "",
+        ));
+    }
     for w in &a.warnings {
         s.push_str(&wrap(&format!("warning: {w}"), 80, ""));
     }
