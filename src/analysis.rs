@@ -1,7 +1,7 @@
 //! One analysis: measurements turned into strains and judged. This is the one result that every
 //! output (CSV, JSON, terminal, plots, report) is written from, so they never disagree.
 
-use crate::assess::{judge, Judgement, Settings, Zone};
+use crate::assess::{judge_reading, Judgement, Settings, Zone};
 use crate::error::Location;
 use crate::job::Job;
 use crate::kinematics::StrainState;
@@ -190,7 +190,7 @@ pub fn analyse_states(
     let points = states
         .into_iter()
         .map(|s| PointResult {
-            judgement: judge(&s.strain, &curve, &settings),
+            judgement: judge_reading(&s.strain, s.d0, &curve, &settings),
             thickness: lengths.t0.map(|t0| s.strain.thickness(t0)),
             input: s.input,
             d0: s.d0,
@@ -255,6 +255,14 @@ impl Analysis {
     /// Number of points in `zone`.
     pub fn count(&self, zone: Zone) -> usize {
         self.points.iter().filter(|p| p.zone() == zone).count()
+    }
+
+    /// Points whose zone could change within the reading error, in file order.
+    pub fn borderline(&self) -> Vec<&PointResult> {
+        self.points
+            .iter()
+            .filter(|p| p.judgement.borderline)
+            .collect()
     }
 
     /// The `n` worst judged points: failed before marginal before the rest (a point failed by

@@ -83,6 +83,10 @@ pub struct Settings {
     pub low_stretch_pct: f64,
     /// Maximum thinning, percent of the initial thickness; `None` = not checked.
     pub max_thinning_pct: Option<f64>,
+    /// Reading error of one axis, in the measurement's length unit (e.g. 0.02 mm); `None` = no
+    /// borderline flag.
+    #[serde(default)]
+    pub reading_error: Option<f64>,
 }
 
 impl Default for Settings {
@@ -91,6 +95,7 @@ impl Default for Settings {
             margin_pct: 10.0,
             low_stretch_pct: 2.0,
             max_thinning_pct: None,
+            reading_error: None,
         }
     }
 }
@@ -109,6 +114,11 @@ impl Settings {
                 "low-stretch {} is outside 0..=50 %",
                 self.low_stretch_pct
             ));
+        }
+        if let Some(r) = self.reading_error {
+            if !(r.is_finite() && r > 0.0) {
+                return Err(format!("reading-error {r} must be a positive length"));
+            }
         }
         if let Some(t) = self.max_thinning_pct {
             if !(t.is_finite() && t > 0.0 && t < 100.0) {
@@ -130,6 +140,11 @@ pub struct Judgement {
     pub limit_use_pct: Option<f64>,
     /// The zone.
     pub zone: Zone,
+    /// Uncertainty of the vertical margin from the reading error, percentage points.
+    pub uncertainty_pct: Option<f64>,
+    /// Whether the zone could change within that uncertainty (the margin is that close to 0 or
+    /// to the band edge).
+    pub borderline: bool,
 }
 
 /// Judge one location's strains against `curve` with `settings`.
@@ -143,7 +158,48 @@ pub fn judge(state: &StrainState, curve: &LimitCurve, settings: &Settings) -> Ju
         margin_pct,
         limit_use_pct,
         zone,
+        uncertainty_pct: None,
+        borderline: false,
     }
+}
+
+/// Uncertainty of the vertical margin, percentage points, from a reading error `dd` on each axis
+/// of a circle of diameter `d0`: `δe = δd / d0` on the major strain (from `e = d/d0 − 1`), plus
+/// the same error on the minor strain times the curve's local slope, since the limit is read at
+/// the minor strain: `u = 100 (δd/d0) (1 + |de1_lim/de2|)` (first-order error propagation; the
+/// rule δe ≈ δd/d0 is common practice, 0.025 mm on a 2.5 mm circle being 1 % strain).
+pub fn margin_uncertainty_pct(state: &StrainState, curve: &LimitCurve, d0: f64, dd: f64) -> f64 {
+    let de = dd / d0;
+    let e2 = state.eng.minor.value();
+    let at = |e: f64| {
+        crate::strain::EngStrain(e)
+            .to_true()
+            .and_then(|t| curve.limit_major_eng(t))
+            .map(|l| l.value())
+    };
+    let here = at(e2);
+    let slope = |side: f64| match (here, at(e2 + side * de)) {
+        (Some(a), Some(b)) => ((b - a) / de).abs(),
+        _ => 0.0,
+    };
+    100.0 * de * (1.0 + slope(1.0).max(slope(-1.0)))
+}
+
+/// [`judge`], plus the borderline flag when `settings.reading_error` is set: a point is
+/// borderline when its margin is within the uncertainty of 0 (the curve) or of the band edge.
+pub fn judge_reading(
+    state: &StrainState,
+    d0: f64,
+    curve: &LimitCurve,
+    settings: &Settings,
+) -> Judgement {
+    let mut j = judge(state, curve, settings);
+    if let (Some(dd), Some(m)) = (settings.reading_error, j.margin_pct) {
+        let u = margin_uncertainty_pct(state, curve, d0, dd);
+        j.uncertainty_pct = Some(u);
+        j.borderline = m.abs() < u || (m - settings.margin_pct).abs() < u;
+    }
+    j
 }
 
 /// The zone from the vertical margin (`None` = uncovered) and the point's strains.
@@ -205,6 +261,25 @@ mod tests {
     fn margin_is_vertical_distance() {
         let j = judge(&at(12.0, 3.0), &curve(), &Settings::default());
         assert!((j.margin_pct.unwrap() - 18.0).abs() < 1e-9);
+    }
+
+    // δe ≈ δd/d0: 0.025 mm on a 2.5 mm circle is 1 % strain (common practice). On a flat curve
+    // (slope 0) the margin uncertainty is exactly that.
+    #[test]
+    fn reading_error_flags_points_near_a_boundary() {
+        let s = Settings {
+            reading_error: Some(0.025),
+            ..Settings::default()
+        };
+        let c = curve();
+        let near = StrainState::from_circle(2.5, 2.5 * 1.295, 2.5).unwrap(); // margin 0.5 pp
+        let j = judge_reading(&near, 2.5, &c, &s);
+        assert!((j.uncertainty_pct.unwrap() - 1.0).abs() < 1e-9);
+        assert!(j.borderline);
+        let clear = StrainState::from_circle(2.5, 2.5 * 1.15, 2.5).unwrap(); // margin 15 pp
+        assert!(!judge_reading(&clear, 2.5, &c, &s).borderline);
+        let band_edge = StrainState::from_circle(2.5, 2.5 * 1.196, 2.5).unwrap(); // margin 10.4
+        assert!(judge_reading(&band_edge, 2.5, &c, &s).borderline);
     }
 
     #[test]

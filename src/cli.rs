@@ -70,6 +70,11 @@ pub struct JudgeArgs {
     /// Maximum thinning, percent of t0; a point at or past it is failed [default: not checked].
     #[arg(long, value_name = "PCT")]
     pub max_thinning: Option<f64>,
+    /// Reading error of one axis, in --unit (e.g. 0.02 for a measuring microscope, 0.05 for a
+    /// flexible scale): locations whose zone could change within it are flagged borderline
+    /// [default: not flagged].
+    #[arg(long, value_name = "LENGTH")]
+    pub reading_error: Option<f64>,
     /// Exit with status 1 when any location is in this zone or a worse one
     /// (failed, marginal); uncovered locations always count.
     #[arg(long, value_name = "ZONE")]

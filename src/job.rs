@@ -17,6 +17,7 @@
 //! margin = 10         # safety band, percentage points of engineering major strain
 //! low_stretch = 2     # under-stretch threshold, percent engineering major strain
 //! max_thinning = 25   # percent; leave out to not check
+//! reading_error = 0.02 # one axis, in `unit`; flags borderline locations
 //! ```
 
 use crate::error::{Error, Location, Result};
@@ -59,6 +60,8 @@ pub struct Job {
     pub low_stretch: Option<f64>,
     /// Maximum thinning, percent.
     pub max_thinning: Option<f64>,
+    /// Reading error of one axis, in `unit`.
+    pub reading_error: Option<f64>,
 }
 
 impl Job {

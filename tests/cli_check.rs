@@ -537,3 +537,59 @@ fn measured_thickness_is_cross_checked() {
     let s = read_json(&dir.path().join("o/summary.json"));
     assert_eq!(s["thickness_check"]["id"], "P1");
 }
+
+#[test]
+fn reading_error_flags_borderline_locations() {
+    let [csv, job] = demo(2);
+    let (dir, r) = run(&[
+        "check",
+        &csv,
+        "--job",
+        &job,
+        "--out",
+        "o",
+        "--format",
+        "csv,json",
+        "--reading-error",
+        "0.02",
+    ]);
+    assert_eq!(r.code, 0, "{r}");
+    assert!(
+        r.stdout
+            .contains("Borderline (zone could change within a reading error of 0.02 mm)"),
+        "{r}"
+    );
+    let s = read_json(&dir.path().join("o/summary.json"));
+    let n = s["borderline"]["count"].as_u64().unwrap();
+    let points = std::fs::read_to_string(dir.path().join("o/points.csv")).unwrap();
+    let mut rdr = csv::Reader::from_reader(points.as_bytes());
+    let h = rdr.headers().unwrap().clone();
+    let (mi, bi, ui) = (
+        h.iter().position(|c| c == "margin_pct").unwrap(),
+        h.iter().position(|c| c == "borderline").unwrap(),
+        h.iter()
+            .position(|c| c == "margin_uncertainty_pct")
+            .unwrap(),
+    );
+    let mut yes = 0;
+    for rec in rdr.records() {
+        let rec = rec.unwrap();
+        let (m, u): (f64, f64) = (rec[mi].parse().unwrap(), rec[ui].parse().unwrap());
+        // Every uncertainty is at least δd/d0 = 0.02/2.5 = 0.8 pp (common practice: δe ≈ δd/d0).
+        assert!(u >= 0.8 - 1e-9, "{u}");
+        let near = m.abs() < u || (m - 10.0).abs() < u;
+        // The flag is consistent with the printed margin and uncertainty (to their rounding).
+        if (m.abs() - u).abs() > 0.01 && ((m - 10.0).abs() - u).abs() > 0.01 {
+            assert_eq!(&rec[bi] == "yes", near, "{rec:?}");
+        }
+        yes += usize::from(&rec[bi] == "yes");
+    }
+    assert_eq!(yes as u64, n);
+    assert!(n > 0);
+    // Without the flag, the columns are not written.
+    let (dir, _r) = run(&[
+        "check", &csv, "--job", &job, "--out", "o", "--format", "csv",
+    ]);
+    let points = std::fs::read_to_string(dir.path().join("o/points.csv")).unwrap();
+    assert!(!points.lines().next().unwrap().contains("borderline"));
+}

@@ -58,6 +58,7 @@ pub fn resolve_settings(args: &JudgeArgs, job: &Job) -> Result<Settings> {
             .or(job.low_stretch)
             .unwrap_or(d.low_stretch_pct),
         max_thinning_pct: args.max_thinning.or(job.max_thinning),
+        reading_error: args.reading_error.or(job.reading_error),
     };
     s.validate().map_err(Error::Usage)?;
     Ok(s)

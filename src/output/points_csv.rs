@@ -37,6 +37,10 @@ pub const CARRIED_COLUMNS: [&str; 7] = [
     "note",
 ];
 
+/// Columns added when a reading error is set: the margin's uncertainty (percentage points) and
+/// `yes` where the zone could change within it.
+pub const READING_COLUMNS: [&str; 2] = ["margin_uncertainty_pct", "borderline"];
+
 /// Writes one record field by field through a reused buffer (no allocation per field).
 struct Fields<'a, W: Write> {
     w: &'a mut csv::Writer<W>,
@@ -136,11 +140,14 @@ fn grid_fields<W: Write>(f: &mut Fields<'_, W>, p: &PointResult) -> csv::Result<
 pub fn write_points(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
     let mut w = csv::Writer::from_writer(out);
     let with_grid = a.points.iter().any(|p| p.grid.is_some());
+    let with_reading = a.settings.reading_error.is_some();
     let extra: &[&str] = if with_grid { &GRID_COLUMNS } else { &[] };
+    let reading: &[&str] = if with_reading { &READING_COLUMNS } else { &[] };
     let header = STRAIN_COLUMNS
         .iter()
         .chain(&JUDGEMENT_COLUMNS)
         .chain(&CARRIED_COLUMNS)
+        .chain(reading)
         .chain(extra);
     w.write_record(header)?;
     let mut f = Fields {
@@ -151,6 +158,10 @@ pub fn write_points(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
         strain_fields(&mut f, p)?;
         judgement_fields(&mut f, p)?;
         carried_fields(&mut f, p)?;
+        if with_reading {
+            f.num(p.judgement.uncertainty_pct, 2)?;
+            f.text(if p.judgement.borderline { "yes" } else { "" })?;
+        }
         if with_grid {
             grid_fields(&mut f, p)?;
         }

@@ -37,6 +37,11 @@ pub fn summary(a: &Analysis) -> Value {
                    "material": a.curve.material, "strain": a.curve.measure.name() },
         "settings": a.settings,
         "lengths": { "unit": a.lengths.unit.name(), "d0": a.lengths.d0, "t0": a.lengths.t0 },
+        "borderline": a.settings.reading_error.map(|dd| json!({
+            "reading_error": dd,
+            "count": a.borderline().len(),
+            "ids": a.borderline().iter().map(|p| p.input.id.as_str()).collect::<Vec<_>>(),
+        })),
         "thickness_check": a.thickness_check().map(|t| json!({
             "measured": t.measured,
             "largest_diff_pct": t.largest_diff_pct,
