@@ -84,7 +84,8 @@ pub enum Verdict {
     Fail,
     /// No failure, at least one marginal location.
     Marginal,
-    /// No failure or marginal location, but some locations could not be judged.
+    /// No failure or marginal location, but some locations could not be judged (outside the
+    /// curve's range, or rows rejected).
     Incomplete,
     /// Every location judged and none failed or marginal.
     Pass,
@@ -145,6 +146,10 @@ pub fn analyse(
     )
 }
 
+/// Plausible range of a measured axis over d0 (engineering strain −80 % to +400 %): outside it
+/// the reading, d0 or the unit is wrong, not the sheet.
+pub const STRETCH_RANGE: (f64, f64) = (0.2, 5.0);
+
 /// The strains of one measured circle, or why the row cannot give them.
 fn circle_state(
     m: Measurement,
@@ -159,6 +164,18 @@ fn circle_state(
     let d0 = m.d0.or(lengths.d0).ok_or_else(|| {
         reject("no initial circle diameter: give a d0 column, --d0 or d0 in the job file".into())
     })?;
+    for (value, column) in [(m.major, "major"), (m.minor, "minor")] {
+        let ratio = value / d0;
+        if !(STRETCH_RANGE.0..=STRETCH_RANGE.1).contains(&ratio) {
+            let mut r = reject(format!(
+                "{column} {value} is {ratio:.3} times d0 {d0}: outside the plausible {} to {} \
+                 (wrong d0, unit or column?)",
+                STRETCH_RANGE.0, STRETCH_RANGE.1
+            ));
+            r.location.column_name = Some(column.into());
+            return Err(r);
+        }
+    }
     let strain = StrainState::from_circle(d0, m.major, m.minor).ok_or_else(|| {
         reject(format!(
             "axes {} and {} with d0 {d0} give no strain",
@@ -295,7 +312,7 @@ impl Analysis {
             Verdict::Fail
         } else if self.count(Zone::Marginal) > 0 {
             Verdict::Marginal
-        } else if self.count(Zone::Uncovered) > 0 {
+        } else if self.count(Zone::Uncovered) > 0 || !self.rejected.is_empty() {
             Verdict::Incomplete
         } else {
             Verdict::Pass
@@ -303,10 +320,13 @@ impl Analysis {
     }
 
     /// Whether `--fail-on zone` should make the run exit 1: any point in `zone` or a worse one
-    /// (failed is worse than marginal). Uncovered points always count: they cannot be shown safe.
+    /// (failed is worse than marginal). Uncovered points and rejected rows always count: they
+    /// cannot be shown safe.
     pub fn trips(&self, zone: Zone) -> bool {
-        self.points
-            .iter()
-            .any(|p| p.zone() <= zone || p.zone() == Zone::Uncovered)
+        !self.rejected.is_empty()
+            || self
+                .points
+                .iter()
+                .any(|p| p.zone() <= zone || p.zone() == Zone::Uncovered)
     }
 }

@@ -328,7 +328,6 @@ pub fn read_measurements_from(mut input: impl BufRead, name: &Path) -> Result<Me
         .delimiter(dialect.delimiter())
         .flexible(true)
         .trim(csv::Trim::All)
-        .comment(Some(b'#'))
         .from_reader(chained);
     let header = reader.headers().map_err(|e| csv_error(&loc, e))?.clone();
     let (cols, ignored_columns) = Columns::from_header(&header, &loc)?;
@@ -376,22 +375,25 @@ pub fn read_measurements_from(mut input: impl BufRead, name: &Path) -> Result<Me
 }
 
 /// Read up to and including the first line that is neither blank nor a `#` comment.
-/// Returns everything read (to be fed to the CSV reader) and that header line.
+/// Returns what the CSV reader is to be fed in place of what was read (comment lines become
+/// empty lines, which it skips, so that line numbers stay right) and the header line.
+/// After the header `#` has no special meaning: a row is a row.
 pub(crate) fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<(String, String)> {
     let mut prefix = String::new();
+    let mut line = String::new();
     loop {
-        let start = prefix.len();
-        let n = input
-            .read_line(&mut prefix)
-            .map_err(|e| Error::io(name, e))?;
+        line.clear();
+        let n = input.read_line(&mut line).map_err(|e| Error::io(name, e))?;
         if n == 0 {
             return Ok((prefix, String::new()));
         }
-        let line = prefix[start..].trim().trim_start_matches('\u{feff}').trim();
-        if !line.is_empty() && !line.starts_with('#') {
-            let header = line.to_string();
+        let text = line.trim().trim_start_matches('\u{feff}').trim();
+        if !text.is_empty() && !text.starts_with('#') {
+            let header = text.to_string();
+            prefix.push_str(line.trim_start_matches('\u{feff}'));
             return Ok((prefix, header));
         }
+        prefix.push('\n');
     }
 }
 
@@ -475,6 +477,14 @@ mod tests {
         let s = read("# made by a, b, c\n\nid;major;minor\nA;3,1;2,6\n").unwrap();
         assert_eq!(s.dialect, Dialect::Semicolon);
         assert_eq!(s.points[0].line, 4);
+    }
+
+    #[test]
+    fn hash_after_the_header_is_a_row_not_a_comment() {
+        let s = read("# note\nid,major,minor\n#1,3,2\nA,3,2\n").unwrap();
+        assert_eq!(s.points.len(), 2);
+        assert_eq!(s.points[0].id, "#1");
+        assert_eq!(s.points[0].line, 3);
     }
 
     #[test]

@@ -593,3 +593,87 @@ fn reading_error_flags_borderline_locations() {
     let points = std::fs::read_to_string(dir.path().join("o/points.csv")).unwrap();
     assert!(!points.lines().next().unwrap().contains("borderline"));
 }
+
+#[test]
+fn job_lengths_are_converted_to_the_unit_in_use() {
+    let dir = tempfile::tempdir().unwrap();
+    // Axes in mm; the job gives d0 = 0.1 in = 2.54 mm (NIST SP 811: 1 in = 25.4 mm exactly).
+    std::fs::write(dir.path().join("mm.csv"), "id,major,minor\nP1,3.302,2.54\n").unwrap();
+    std::fs::write(dir.path().join("job.toml"), "unit = \"in\"\nd0 = 0.1\n").unwrap();
+    let r = run_in(
+        dir.path(),
+        &["strains", "mm.csv", "--job", "job.toml", "--unit", "mm"],
+        None,
+    );
+    assert_eq!(r.code, 0, "{r}");
+    let row: Vec<&str> = r.stdout.lines().nth(1).unwrap().split(',').collect();
+    assert_eq!(row[1], "30.000", "{r}"); // 3.302 / 2.54 = 1.30
+}
+
+#[test]
+fn rejected_rows_make_the_verdict_incomplete_and_trip_fail_on() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join("m.csv"),
+        "id,major,minor\nP1,2.60,2.55\nP2,3x,2.5\n",
+    )
+    .unwrap();
+    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let args = [
+        "check", "m.csv", "--limit", &lim, "--d0", "2.5", "--out", "o", "--format", "json",
+    ];
+    let r = run_in(dir.path(), &args, None);
+    assert_eq!(r.code, 0, "{r}");
+    assert!(r.stdout.contains("Verdict: INCOMPLETE"), "{r}");
+    assert_eq!(
+        read_json(&dir.path().join("o/summary.json"))["verdict"],
+        "incomplete"
+    );
+    let mut with_fail_on = args.to_vec();
+    with_fail_on.extend(["--fail-on", "failed"]);
+    let r = run_in(dir.path(), &with_fail_on, None);
+    assert_eq!(r.code, 1, "{r}");
+}
+
+#[test]
+fn implausible_axes_are_rejected_not_judged() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(
+        dir.path().join("m.csv"),
+        "id,major,minor\nP1,1e308,2.5\nP2,2.6,1e-300\nP3,2.6,2.5\n",
+    )
+    .unwrap();
+    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let r = run_in(
+        dir.path(),
+        &[
+            "check", "m.csv", "--limit", &lim, "--d0", "2.5", "--out", "o", "--format", "csv",
+        ],
+        None,
+    );
+    assert_eq!(r.code, 0, "{r}");
+    assert!(
+        r.stdout.contains("m.csv:2 (column `major`)") && r.stdout.contains("plausible"),
+        "{r}"
+    );
+    assert!(r.stdout.contains("m.csv:3 (column `minor`)"), "{r}");
+    let points = std::fs::read_to_string(dir.path().join("o/points.csv")).unwrap();
+    assert!(
+        !points.contains("inf") && !points.contains("NaN"),
+        "{points}"
+    );
+    assert_eq!(points.lines().count(), 2);
+}
+
+#[test]
+fn strains_with_no_usable_row_exits_2() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("m.csv"), "id,major,minor\nP1,2.4,2.5\n").unwrap();
+    let r = run_in(dir.path(), &["strains", "m.csv", "--d0", "2.5"], None);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(
+        r.stderr.contains("smaller than minor")
+            && r.stderr.contains("no location could be computed"),
+        "{r}"
+    );
+}

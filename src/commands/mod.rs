@@ -15,6 +15,7 @@ use crate::error::{Error, Result};
 use crate::job::Job;
 use crate::limit::LimitCurve;
 use crate::measure::read_measurements;
+use crate::units::Length;
 use std::path::{Path, PathBuf};
 
 /// What a command asks `main` to exit with.
@@ -33,7 +34,9 @@ pub fn load_job(args: &LengthArgs) -> Result<Job> {
         .map_or_else(|| Ok(Job::default()), Job::load)
 }
 
-/// The lengths from flags over the job file; each given length must be positive.
+/// The lengths from flags over the job file; each given length must be positive. The unit in
+/// use is `--unit`, else the job's, else mm; the job's d0 and t0 are converted from the job's
+/// unit into it, and flags are read in it.
 pub fn resolve_lengths(args: &LengthArgs, job: &Job) -> Result<Lengths> {
     let positive = |v: Option<f64>, what: &str| match v {
         Some(x) if !(x.is_finite() && x > 0.0) => Err(Error::Usage(format!(
@@ -41,10 +44,13 @@ pub fn resolve_lengths(args: &LengthArgs, job: &Job) -> Result<Lengths> {
         ))),
         _ => Ok(v),
     };
+    let job_unit = job.unit.unwrap_or_default();
+    let unit = args.unit.unwrap_or(job_unit);
+    let from_job = |v: Option<f64>| v.map(|x| Length::new(x, job_unit).in_unit(unit));
     Ok(Lengths {
-        unit: args.unit.or(job.unit).unwrap_or_default(),
-        d0: positive(args.d0.or(job.d0), "d0")?,
-        t0: positive(args.t0.or(job.t0), "t0")?,
+        unit,
+        d0: positive(args.d0.or(from_job(job.d0)), "d0")?,
+        t0: positive(args.t0.or(from_job(job.t0)), "t0")?,
     })
 }
 

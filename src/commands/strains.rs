@@ -46,6 +46,13 @@ pub fn run(args: &StrainsArgs) -> Result<Outcome> {
     for r in &a.rejected {
         eprintln!("rejected: {r}");
     }
+    if a.points.is_empty() {
+        return Err(Error::Usage(format!(
+            "{}: no location could be computed ({} rows rejected, listed above)",
+            args.measurements.display(),
+            a.rejected.len()
+        )));
+    }
     let stdout = std::io::stdout();
     let mut out = stdout.lock();
     match points_csv::write_strains(&a, &mut out) {

@@ -59,7 +59,6 @@ pub fn read_table_from(mut input: impl BufRead, name: &Path, what: &str) -> Resu
         .delimiter(dialect.delimiter())
         .flexible(true)
         .trim(csv::Trim::All)
-        .comment(Some(b'#'))
         .from_reader(Cursor::new(prefix.into_bytes()).chain(input));
     let header = reader
         .headers()
