@@ -76,7 +76,7 @@ pub struct JudgeArgs {
     #[arg(long, value_name = "LENGTH")]
     pub reading_error: Option<f64>,
     /// Exit with status 1 when any location is in this zone or a worse one
-    /// (failed, marginal); uncovered locations always count.
+    /// (failed, marginal); uncovered locations and rejected rows always count.
     #[arg(long, value_name = "ZONE")]
     pub fail_on: Option<Zone>,
 }
