@@ -76,6 +76,7 @@ pub fn read_results(path: &Path) -> Result<Vec<ResultRow>> {
         })?;
     }
     let mut rows = Vec::new();
+    let mut seen = std::collections::HashSet::new();
     for rec in rdr.records() {
         let rec = rec.map_err(|e| Error::input(loc.clone(), e.to_string()))?;
         let line = rec.position().map_or(0, |p| p.line());
@@ -91,8 +92,15 @@ pub fn read_results(path: &Path) -> Result<Vec<ResultRow>> {
             "" => None,
             _ => Some(num(3)?),
         };
+        let id = field(0).to_string();
+        if !seen.insert(id.clone()) {
+            return Err(Error::input(
+                at(0),
+                format!("duplicate id `{id}`: a location can be compared only once"),
+            ));
+        }
         rows.push(ResultRow {
-            id: field(0).to_string(),
+            id,
             major_pct: num(1)?,
             minor_pct: num(2)?,
             margin_pct,

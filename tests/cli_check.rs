@@ -434,6 +434,41 @@ fn compare_joins_two_tryouts_by_id() {
         .filter(|l| l.contains(",failed,marginal,"))
         .count();
     assert_eq!(failed_to_marginal, 4, "{c}");
+    // Both were judged with the same curve and band: no warning.
+    assert!(!r.stderr.contains("warning"), "{r}");
+    // A duplicate id is refused, naming the line.
+    let mut dup = std::fs::read_to_string(dir.path().join("t2/points.csv")).unwrap();
+    let second = dup.lines().nth(1).unwrap().to_string();
+    dup.push_str(&second);
+    dup.push('\n');
+    std::fs::write(dir.path().join("dup.csv"), dup).unwrap();
+    let r = run_in(dir.path(), &["compare", "t1/points.csv", "dup.csv"], None);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(
+        r.stderr
+            .contains("dup.csv:122:1 (column `id`): duplicate id `A01`"),
+        "{r}"
+    );
+    // A different safety band is pointed out.
+    let [csv1, job1] = demo(1);
+    let r = run_in(
+        dir.path(),
+        &[
+            "check", &csv1, "--job", &job1, "--out", "t1b", "--margin", "8",
+        ],
+        None,
+    );
+    assert_eq!(r.code, 0, "{r}");
+    let r = run_in(
+        dir.path(),
+        &["compare", "t1b/points.csv", "t2/points.csv"],
+        None,
+    );
+    assert!(
+        r.stderr
+            .contains("warning: the safety bands differ: 8.0 before, 10.0 after"),
+        "{r}"
+    );
     // A file that is not a result of `check` is refused with its name and what was expected.
     let good = repo("tests/data/good.csv").display().to_string();
     let r = run_in(dir.path(), &["compare", &good, "t2/points.csv"], None);
@@ -676,4 +711,25 @@ fn strains_with_no_usable_row_exits_2() {
             && r.stderr.contains("no location could be computed"),
         "{r}"
     );
+}
+
+#[test]
+fn outputs_left_from_an_earlier_run_are_pointed_out() {
+    let [csv, job] = demo(1);
+    let (dir, r) = run(&["check", &csv, "--job", &job, "--out", "o"]);
+    assert_eq!(r.code, 0, "{r}");
+    let r = run_in(
+        dir.path(),
+        &[
+            "check", &csv, "--job", &job, "--out", "o", "--format", "csv",
+        ],
+        None,
+    );
+    assert_eq!(r.code, 0, "{r}");
+    assert!(
+        r.stdout
+            .contains("note: o/report.html is from an earlier run"),
+        "{r}"
+    );
+    assert!(!r.stdout.contains("note: o/points.csv"), "{r}");
 }

@@ -32,12 +32,50 @@ pub struct CompareArgs {
 /// Run `compare`.
 pub fn run(args: &CompareArgs) -> Result<Outcome> {
     let c = compare(read_results(&args.before)?, read_results(&args.after)?);
+    for w in basis_differences(&args.before, &args.after) {
+        eprintln!("warning: {w}");
+    }
     if let Some(out) = &args.out {
         let inputs = [args.before.clone(), args.after.clone()];
         write_atomic(out, &inputs, |w| write_changes(&c, w))?;
     }
     print!("{}", summary_text(&c, args));
     Ok(Outcome::Done)
+}
+
+/// The curve and settings each result was judged with, from the `summary.json` that `check`
+/// wrote beside its `points.csv` (when there is one).
+fn basis(points: &std::path::Path) -> Option<serde_json::Value> {
+    let summary = points.with_file_name("summary.json");
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(summary).ok()?).ok()?;
+    Some(serde_json::json!({ "curve": v["limit"]["name"], "margin": v["settings"]["margin_pct"] }))
+}
+
+/// Differences between the curves or safety bands of two results: a change of margin would
+/// then mix a change of judgement with a change of the part.
+fn basis_differences(before: &std::path::Path, after: &std::path::Path) -> Vec<String> {
+    let (Some(b), Some(a)) = (basis(before), basis(after)) else {
+        return vec![
+            "no summary.json beside both files: cannot confirm that both were judged \
+                     with the same curve and safety band"
+                .into(),
+        ];
+    };
+    let mut out = Vec::new();
+    if b["curve"] != a["curve"] {
+        out.push(format!(
+            "the curves differ: {} before, {} after",
+            b["curve"], a["curve"]
+        ));
+    }
+    if b["margin"] != a["margin"] {
+        out.push(format!(
+            "the safety bands differ: {} before, {} after",
+            b["margin"], a["margin"]
+        ));
+    }
+    out
 }
 
 fn summary_text(c: &Comparison, args: &CompareArgs) -> String {

@@ -146,6 +146,16 @@ pub fn emit(
     if map::placed(a).is_empty() && (plan.svg.is_some() || plan.png.is_some()) {
         text.push_str("note: no location has x, y: the part map was not drawn\n");
     }
+    for stale in stale_outputs(&args.out, &written) {
+        text.push_str(&terminal::wrap(
+            &format!(
+                "note: {} is from an earlier run and was not written by this one",
+                stale.display()
+            ),
+            terminal::WIDTH,
+            "",
+        ));
+    }
     if !written.is_empty() {
         let names: Vec<String> = written.iter().map(|p| p.display().to_string()).collect();
         text.push_str(&terminal::wrap(
@@ -174,6 +184,19 @@ fn fld_options(args: &OutputArgs) -> FldOptions {
     }
 }
 
+/// Every file name `check` and `grid` may write into the output folder.
+pub const OUTPUT_NAMES: [&str; 7] = [
+    "points.csv",
+    "summary.json",
+    "fld.svg",
+    "map.svg",
+    "fld.png",
+    "map.png",
+    "report.html",
+];
+
+/// Render every planned output in memory first (so a failure leaves the folder as it was),
+/// then write each file atomically.
 fn write_outputs(
     a: &Analysis,
     args: &OutputArgs,
@@ -181,52 +204,60 @@ fn write_outputs(
     inputs: &[PathBuf],
 ) -> Result<Vec<PathBuf>> {
     plan.prepare(inputs)?;
-    let mut written = Vec::new();
-    let mut put = |path: &Path, bytes: &[u8]| -> Result<()> {
-        write_atomic(path, inputs, |w| w.write_all(bytes))?;
-        written.push(path.to_path_buf());
-        Ok(())
-    };
     let render = |p: &Path, e: std::io::Error| Error::io(p, e);
+    let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
+    let mut stdout_csv = None;
     if let Some(p) = &plan.points {
         let mut csv = Vec::new();
         points_csv::write_points(a, &mut csv).map_err(|e| render(p, e))?;
         if plan.points_to_stdout() {
-            write_stdout(&csv)?;
+            stdout_csv = Some(csv);
         } else {
-            put(p, &csv)?;
+            files.push((p.clone(), csv));
         }
     }
     if let Some(p) = &plan.summary {
         let mut json = Vec::new();
         summary_json::write_summary(a, &mut json).map_err(|e| render(p, e))?;
-        put(p, &json)?;
+        files.push((p.clone(), json));
     }
     let opts = fld_options(args);
     if let Some((f, m)) = &plan.svg {
-        put(
-            f,
-            fld::fld_svg(a, &opts).map_err(|e| render(f, e))?.as_bytes(),
-        )?;
+        let svg = fld::fld_svg(a, &opts).map_err(|e| render(f, e))?;
+        files.push((f.clone(), svg.into_bytes()));
         if let Some(svg) = map::map_svg(a).map_err(|e| render(m, e))? {
-            put(m, svg.as_bytes())?;
+            files.push((m.clone(), svg.into_bytes()));
         }
     }
     if let Some((f, m)) = &plan.png {
-        put(f, &fld::fld_png(a, &opts).map_err(|e| render(f, e))?)?;
+        files.push((f.clone(), fld::fld_png(a, &opts).map_err(|e| render(f, e))?));
         if let Some(png) = map::map_png(a).map_err(|e| render(m, e))? {
-            put(m, &png)?;
+            files.push((m.clone(), png));
         }
     }
     if let Some(p) = &plan.html {
-        put(
-            p,
-            report::report_html(a, &opts)
-                .map_err(|e| render(p, e))?
-                .as_bytes(),
-        )?;
+        let html = report::report_html(a, &opts).map_err(|e| render(p, e))?;
+        files.push((p.clone(), html.into_bytes()));
+    }
+    if let Some(csv) = stdout_csv {
+        write_stdout(&csv)?;
+    }
+    let mut written = Vec::with_capacity(files.len());
+    for (path, bytes) in files {
+        write_atomic(&path, inputs, |w| w.write_all(&bytes))?;
+        written.push(path);
     }
     Ok(written)
+}
+
+/// Output files in `dir` left by an earlier run and not written by this one: they may no longer
+/// agree with the files that were.
+fn stale_outputs(dir: &Path, written: &[PathBuf]) -> Vec<PathBuf> {
+    OUTPUT_NAMES
+        .iter()
+        .map(|n| dir.join(n))
+        .filter(|p| p.is_file() && !written.contains(p))
+        .collect()
 }
 
 /// Write to standard output; a closed pipe is not an error.

@@ -85,7 +85,10 @@ pub fn quad_gradient_2d(
     let f = check_2d(Matrix2::from_columns(&[a, b]) * inv)?;
     let (r, d) = (corner_areas(reference), corner_areas(deformed));
     let worst = (0..4).map(|i| d[i] / r[i]).fold(f64::INFINITY, f64::min);
-    if worst <= 0.0 {
+    if worst.abs() < DEGENERATE_TOL {
+        return Err(Degenerate::Collapsed { area_ratio: worst });
+    }
+    if worst < 0.0 {
         return Err(Degenerate::Inverted { area_ratio: worst });
     }
     Ok(f)
@@ -222,6 +225,18 @@ fn arr<T: Copy, const N: usize>(v: &[T]) -> [T; N] {
 mod tests {
     use super::*;
     use approx::assert_abs_diff_eq;
+
+    // A node moved onto its neighbour leaves a corner triangle of zero area: that cell has
+    // collapsed, it has not turned over.
+    #[test]
+    fn node_on_its_neighbour_is_collapsed_not_inverted() {
+        let mut moved = square();
+        moved[1] = moved[0];
+        match quad_gradient_2d(&square(), &moved) {
+            Err(Degenerate::Collapsed { .. }) => {}
+            other => panic!("expected Collapsed, got {other:?}"),
+        }
+    }
 
     fn square() -> [Vector2<f64>; 4] {
         [
