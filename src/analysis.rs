@@ -146,6 +146,20 @@ pub fn analyse(
     )
 }
 
+/// A warning when the curve was made for a sheet more than 10 % thicker or thinner than t0:
+/// forming limits rise with thickness (Keeler-Brazier: +14.13 t), so a curve for other sheet
+/// judges the part wrongly.
+fn thickness_mismatch(curve: &LimitCurve, lengths: &Lengths) -> Option<String> {
+    let curve_t = curve.thickness_mm?;
+    let t0 = crate::units::Length::new(lengths.t0?, lengths.unit).mm();
+    ((curve_t - t0).abs() > 0.1 * t0).then(|| {
+        format!(
+            "the limit curve is for {curve_t} mm sheet, but t0 is {t0:.3} mm: \
+             use a curve for this thickness"
+        )
+    })
+}
+
 /// Plausible range of a measured axis over d0 (engineering strain −80 % to +400 %): outside it
 /// the reading, d0 or the unit is wrong, not the sheet.
 pub const STRETCH_RANGE: (f64, f64) = (0.2, 5.0);
@@ -216,6 +230,7 @@ pub fn analyse_states(
         })
         .collect();
     let mut warnings = curve.warnings.clone();
+    warnings.extend(thickness_mismatch(&curve, &lengths));
     if !ignored_columns.is_empty() {
         warnings.push(format!("ignored columns: {}", ignored_columns.join(", ")));
     }

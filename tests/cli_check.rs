@@ -733,3 +733,23 @@ fn outputs_left_from_an_earlier_run_are_pointed_out() {
     );
     assert!(!r.stdout.contains("note: o/points.csv"), "{r}");
 }
+
+#[test]
+fn a_curve_for_other_sheet_is_warned_about() {
+    let [csv, job] = demo(1);
+    let (dir, r) = run(&[
+        "check", &csv, "--job", &job, "--out", "o", "--format", "json", "--t0", "1.5",
+    ]);
+    assert_eq!(r.code, 0, "{r}");
+    assert!(
+        r.stdout
+            .contains("warning: the limit curve is for 0.8 mm sheet, but t0 is 1.500 mm"),
+        "{r}"
+    );
+    let s = read_json(&dir.path().join("o/summary.json"));
+    assert!(s["warnings"][0].as_str().unwrap().contains("0.8 mm sheet"));
+    let (_d, r) = run(&[
+        "check", &csv, "--job", &job, "--out", "o", "--format", "json",
+    ]);
+    assert!(!r.stdout.contains("warning:"), "{r}");
+}
