@@ -86,6 +86,32 @@ pub fn push_fixed(buf: &mut String, v: f64, decimals: usize) {
     }
 }
 
+/// Findings beside the zone counts, as sentences for people (the terminal and the report show
+/// the same text): borderline locations when a reading error is set, the thickness cross-check.
+pub fn notes(a: &crate::analysis::Analysis) -> Vec<String> {
+    let mut out = Vec::new();
+    if let Some(dd) = a.settings.reading_error {
+        let b = a.borderline();
+        let ids: Vec<&str> = b.iter().take(12).map(|p| p.input.id.as_str()).collect();
+        let more = if b.len() > 12 { ", ..." } else { "" };
+        out.push(format!(
+            "Borderline (zone could change within a reading error of {dd} {}): {} locations{}{}{more}",
+            a.lengths.unit,
+            b.len(),
+            if ids.is_empty() { "" } else { ": " },
+            ids.join(", ")
+        ));
+    }
+    if let Some(tc) = a.thickness_check() {
+        out.push(format!(
+            "Thickness cross-check: {} locations measured; largest difference {:+.1} % \
+             (measured vs from strains) at {}",
+            tc.measured, tc.largest_diff_pct, tc.largest.input.id
+        ));
+    }
+    out
+}
+
 /// Format an optional number with `decimals`, empty when absent.
 pub fn fmt_opt(v: Option<f64>, decimals: usize) -> String {
     v.map_or_else(String::new, |v| format!("{v:.decimals$}"))

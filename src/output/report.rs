@@ -154,7 +154,8 @@ fn verdict_text(v: Verdict) -> &'static str {
         }
         Verdict::Marginal => "no failure, but at least one location is inside the safety band",
         Verdict::Incomplete => {
-            "no failure or marginal location, but some locations lie outside the curve's range"
+            "no failure or marginal location, but some locations lie outside the curve's range or \
+             some rows were rejected"
         }
         Verdict::Pass => "every location judged; none failed or marginal",
     }
@@ -211,6 +212,9 @@ fn verdict(a: &Analysis) -> String {
             );
         }
         s.push_str("</ul>\n");
+    }
+    for note in crate::output::notes(a) {
+        let _ = writeln!(s, "<p class=\"note\">{}</p>", escape(&note));
     }
     for w in &a.warnings {
         let _ = writeln!(s, "<p class=\"note\">Warning: {}</p>", escape(w));

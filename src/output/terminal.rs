@@ -204,33 +204,8 @@ pub fn summary_text(a: &Analysis) -> String {
             );
         }
     }
-    if let Some(dd) = a.settings.reading_error {
-        let b = a.borderline();
-        let ids: Vec<&str> = b.iter().take(12).map(|p| p.input.id.as_str()).collect();
-        let more = if b.len() > 12 { ", ..." } else { "" };
-        s.push_str(&wrap(
-            &format!(
-                "Borderline (zone could change within a reading error of {dd} {}): {} \
-                 locations{}{}{more}",
-                a.lengths.unit,
-                b.len(),
-                if ids.is_empty() { "" } else { ": " },
-                ids.join(", ")
-            ),
-            80,
-            "",
-        ));
-    }
-    if let Some(tc) = a.thickness_check() {
-        s.push_str(&wrap(
-            &format!(
-                "Thickness cross-check: {} locations measured; largest difference {:+.1} % \
-                 (measured vs from strains) at {}",
-                tc.measured, tc.largest_diff_pct, tc.largest.input.id
-            ),
-            80,
-            "",
-        ));
+    for note in crate::output::notes(a) {
+        s.push_str(&wrap(&note, 80, ""));
     }
     for w in &a.warnings {
         s.push_str(&wrap(&format!("warning: {w}"), 80, ""));
