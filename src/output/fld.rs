@@ -290,6 +290,15 @@ fn draw_points<DB: DrawingBackend>(
 
 /// Label text of a worst location: its id and vertical margin.
 pub fn worst_label(p: &PointResult) -> String {
+    let below_curve = p.judgement.margin_pct.is_some_and(|m| m > 0.0);
+    if p.zone() == crate::assess::Zone::Failed && below_curve {
+        // Failed by thinning while below the curve: say why, not a margin that reads as safe.
+        return format!(
+            "{} (thinning {:.1} %)",
+            p.input.id,
+            p.strain.thinning * 100.0
+        );
+    }
     match p.judgement.margin_pct {
         // On the curve to the shown precision: no sign.
         Some(mg) if mg.abs() < 0.05 => format!("{} (0.0)", p.input.id),
