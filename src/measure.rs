@@ -313,65 +313,121 @@ pub fn read_measurements(path: &Path) -> Result<MeasurementSet> {
 }
 
 /// Read measurements from any reader; `name` is used in messages.
-pub fn read_measurements_from(mut input: impl BufRead, name: &Path) -> Result<MeasurementSet> {
-    let loc = Location::file(name);
-    let (prefix, header) = read_header_line(&mut input, name)?;
-    if header.is_empty() {
-        return Err(Error::input(
-            loc,
-            "the file is empty: expected a header row naming id, major, minor",
-        ));
-    }
-    let dialect = Dialect::detect(&header);
-    let chained = Cursor::new(prefix.into_bytes()).chain(input);
-    let mut reader = csv::ReaderBuilder::new()
-        .delimiter(dialect.delimiter())
-        .flexible(true)
-        .trim(csv::Trim::All)
-        .from_reader(chained);
-    let header = reader.headers().map_err(|e| csv_error(&loc, e))?.clone();
-    let (cols, ignored_columns) = Columns::from_header(&header, &loc)?;
-    let mut set = MeasurementSet {
-        source: name.to_path_buf(),
-        dialect,
-        points: Vec::new(),
-        rejected: Vec::new(),
-        ignored_columns,
-    };
-    let mut ids = HashSet::new();
-    let mut record = csv::StringRecord::new();
-    loop {
-        match reader.read_record(&mut record) {
-            Ok(false) => break,
-            Ok(true) => {}
-            Err(e) => return Err(csv_error(&loc, e)),
-        }
-        let line = record.position().map_or(0, |p| p.line());
-        if record.iter().all(|f| f.trim().is_empty()) {
-            continue; // a blank spreadsheet row carries nothing to drop
-        }
-        let row = RowReader {
-            cols: &cols,
-            dialect,
-            loc: loc.clone().at_line(line),
-            record: &record,
-        };
-        match row.read() {
-            Ok(m) if !ids.insert(m.id.clone()) => set.rejected.push(row.reject(
-                cols.id,
-                format!("duplicate id `{}`: ids must be unique within a file", m.id),
-            )),
-            Ok(m) => set.points.push(m),
-            Err(r) => set.rejected.push(r),
+pub fn read_measurements_from(input: impl BufRead, name: &Path) -> Result<MeasurementSet> {
+    let mut rows = MeasurementReader::new(input, name)?;
+    let mut points = Vec::new();
+    let mut rejected = Vec::new();
+    for row in &mut rows {
+        match row? {
+            Ok(m) => points.push(m),
+            Err(r) => rejected.push(r),
         }
     }
-    if set.points.is_empty() && set.rejected.is_empty() {
+    if points.is_empty() && rejected.is_empty() {
         return Err(Error::input(
-            loc,
+            Location::file(name),
             "the file has a header but no measurement rows",
         ));
     }
-    Ok(set)
+    Ok(MeasurementSet {
+        source: name.to_path_buf(),
+        dialect: rows.dialect,
+        points,
+        rejected,
+        ignored_columns: rows.ignored_columns,
+    })
+}
+
+/// The rows of a measurement file, one at a time, each accepted or rejected: the streaming
+/// form of [`read_measurements_from`] for files too large to hold. Memory stays bounded by one
+/// row plus the set of ids seen (needed to find duplicates). A file-level problem met part way
+/// (a broken UTF-8 sequence, an I/O error) ends the iteration with `Some(Err(..))`.
+pub struct MeasurementReader<B: BufRead> {
+    reader: csv::Reader<std::io::Chain<Cursor<Vec<u8>>, B>>,
+    cols: Columns,
+    loc: Location,
+    ids: HashSet<String>,
+    record: csv::StringRecord,
+    failed: bool,
+    /// The detected dialect.
+    pub dialect: Dialect,
+    /// Header columns that were not recognised (ignored).
+    pub ignored_columns: Vec<String>,
+}
+
+/// One data row: the measurement, or why it was rejected.
+pub type Row = std::result::Result<Measurement, RejectedRow>;
+
+impl<B: BufRead> MeasurementReader<B> {
+    /// Read and check the header; `name` is used in messages.
+    pub fn new(mut input: B, name: &Path) -> Result<Self> {
+        let loc = Location::file(name);
+        let (prefix, header) = read_header_line(&mut input, name)?;
+        if header.is_empty() {
+            return Err(Error::input(
+                loc,
+                "the file is empty: expected a header row naming id, major, minor",
+            ));
+        }
+        let dialect = Dialect::detect(&header);
+        let mut reader = csv::ReaderBuilder::new()
+            .delimiter(dialect.delimiter())
+            .flexible(true)
+            .trim(csv::Trim::All)
+            .from_reader(Cursor::new(prefix.into_bytes()).chain(input));
+        let header = reader.headers().map_err(|e| csv_error(&loc, e))?.clone();
+        let (cols, ignored_columns) = Columns::from_header(&header, &loc)?;
+        Ok(MeasurementReader {
+            reader,
+            cols,
+            loc,
+            ids: HashSet::new(),
+            record: csv::StringRecord::new(),
+            failed: false,
+            dialect,
+            ignored_columns,
+        })
+    }
+
+    fn judge_row(&mut self) -> Row {
+        let line = self.record.position().map_or(0, |p| p.line());
+        let row = RowReader {
+            cols: &self.cols,
+            dialect: self.dialect,
+            loc: self.loc.clone().at_line(line),
+            record: &self.record,
+        };
+        let m = row.read()?;
+        if !self.ids.insert(m.id.clone()) {
+            return Err(row.reject(
+                self.cols.id,
+                format!("duplicate id `{}`: ids must be unique within a file", m.id),
+            ));
+        }
+        Ok(m)
+    }
+}
+
+impl<B: BufRead> Iterator for MeasurementReader<B> {
+    type Item = Result<Row>;
+
+    fn next(&mut self) -> Option<Result<Row>> {
+        if self.failed {
+            return None;
+        }
+        loop {
+            match self.reader.read_record(&mut self.record) {
+                Ok(false) => return None,
+                Err(e) => {
+                    self.failed = true;
+                    return Some(Err(csv_error(&self.loc, e)));
+                }
+                // A blank spreadsheet row carries nothing to drop.
+                Ok(true) if self.record.iter().all(|f| f.trim().is_empty()) => continue,
+                Ok(true) => return Some(Ok(self.judge_row())),
+            }
+        }
+    }
 }
 
 /// Read up to and including the first line that is neither blank nor a `#` comment.
@@ -485,6 +541,31 @@ mod tests {
         assert_eq!(s.points.len(), 2);
         assert_eq!(s.points[0].id, "#1");
         assert_eq!(s.points[0].line, 3);
+    }
+
+    // The streaming reader gives the same rows, one at a time, as the whole-file reader.
+    #[test]
+    fn streaming_reader_yields_rows_in_order() {
+        let text = "id,major,minor\nA,3,2\nB,x,2\nA,3,2\n";
+        let rows: Vec<Row> = MeasurementReader::new(text.as_bytes(), Path::new("t.csv"))
+            .unwrap()
+            .map(|r| r.unwrap())
+            .collect();
+        assert_eq!(rows.len(), 3);
+        assert!(rows[0].is_ok() && rows[1].is_err() && rows[2].is_err());
+        let set = read("id,major,minor\nA,3,2\nB,x,2\nA,3,2\n").unwrap();
+        assert_eq!(set.points.len(), 1);
+        assert_eq!(set.rejected.len(), 2);
+    }
+
+    #[test]
+    fn invalid_utf8_part_way_is_a_file_error_with_its_line() {
+        let mut bytes = b"id,major,minor\nA,3,2\nB,3,2\n".to_vec();
+        bytes.extend_from_slice(b"C\xff,3,2\n");
+        let e = read_measurements_from(&bytes[..], Path::new("t.csv"))
+            .unwrap_err()
+            .to_string();
+        assert!(e.starts_with("t.csv:4") && e.contains("UTF-8"), "{e}");
     }
 
     #[test]
