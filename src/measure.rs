@@ -456,7 +456,7 @@ pub(crate) fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<
 pub(crate) fn csv_error(loc: &Location, e: csv::Error) -> Error {
     let line = e.position().map(|p| p.line());
     let message = match e.kind() {
-        csv::ErrorKind::Utf8 { .. } => "the file is not valid UTF-8 text".to_string(),
+        csv::ErrorKind::Utf8 { .. } => "the file is not valid UTF-8 text: save it as UTF-8 CSV (spreadsheets call it \"CSV UTF-8\")".to_string(),
         _ => e.to_string(),
     };
     let loc = match line {
