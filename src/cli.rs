@@ -40,8 +40,8 @@ pub enum Command {
 /// Lengths and the job file, shared by the commands that read measurements.
 #[derive(Debug, Clone, Args)]
 pub struct LengthArgs {
-    /// Job file (TOML): part, tryout, material, d0, t0, unit, limit and settings.
-    /// Flags given here override it.
+    /// Job file (TOML): d0, t0 and unit, and for `check` also the limit curve, the settings and
+    /// the part, tryout and material shown on the outputs. Flags given here override it.
     #[arg(long, value_name = "JOB.toml")]
     pub job: Option<PathBuf>,
     /// Initial circle diameter, in --unit (a `d0` column in the file overrides it per row).
@@ -75,8 +75,16 @@ pub struct JudgeArgs {
     /// [default: not flagged].
     #[arg(long, value_name = "LENGTH")]
     pub reading_error: Option<f64>,
-    /// Exit with status 1 when any location is in this zone or a worse one
-    /// (failed, marginal); uncovered locations and rejected rows always count.
-    #[arg(long, value_name = "ZONE")]
+    /// Exit with status 1 when any location is failed (`failed`), or failed or marginal
+    /// (`marginal`); uncovered locations and rejected rows always count [default: never].
+    #[arg(long, value_name = "failed|marginal", value_parser = parse_fail_on)]
     pub fail_on: Option<Zone>,
+}
+
+/// `--fail-on` takes the two zones that stop a qualification: failed and marginal.
+fn parse_fail_on(s: &str) -> Result<Zone, String> {
+    match s.parse::<Zone>() {
+        Ok(z @ (Zone::Failed | Zone::Marginal)) => Ok(z),
+        _ => Err(format!("expected `failed` or `marginal`, found `{s}`")),
+    }
 }

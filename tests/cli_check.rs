@@ -282,7 +282,23 @@ fn usage_errors_exit_2() {
         "bad",
     ]);
     assert_eq!(r.code, 2, "{r}");
-    assert!(r.stderr.contains("unknown zone"), "{r}");
+    assert!(
+        r.stderr
+            .contains("expected `failed` or `marginal`, found `bad`"),
+        "{r}"
+    );
+    // Only the two zones that stop a qualification are accepted.
+    let (_d, r) = run(&[
+        "check",
+        &csv,
+        "--limit",
+        &lim,
+        "--d0",
+        "2.5",
+        "--fail-on",
+        "safe",
+    ]);
+    assert_eq!(r.code, 2, "{r}");
     let unsorted = repo("tests/data/unsorted.toml").display().to_string();
     let (_d, r) = run(&["check", &csv, "--limit", &unsorted, "--d0", "2.5"]);
     assert_eq!(r.code, 2, "{r}");
@@ -466,7 +482,7 @@ fn compare_joins_two_tryouts_by_id() {
     );
     assert!(
         r.stderr
-            .contains("warning: the safety bands differ: 8.0 before, 10.0 after"),
+            .contains("warning: the safety bands differ: 8.0 pp before, 10.0 pp after"),
         "{r}"
     );
     // A file that is not a result of `check` is refused with its name and what was expected.

@@ -24,7 +24,7 @@ pub struct CompareArgs {
     /// Write the change of every location to this CSV file (atomically).
     #[arg(long, value_name = "FILE.csv")]
     pub out: Option<PathBuf>,
-    /// How many of the largest margin losses to list.
+    /// How many locations to list under each heading (newly at risk, largest margin losses).
     #[arg(long, value_name = "N", default_value_t = 8)]
     pub show: usize,
 }
@@ -35,11 +35,20 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
     for w in basis_differences(&args.before, &args.after) {
         eprintln!("warning: {w}");
     }
+    if c.changes.is_empty() {
+        eprintln!(
+            "warning: the two files share no location id: nothing could be compared \
+             (different grids, or ids renamed?)"
+        );
+    }
     if let Some(out) = &args.out {
         let inputs = [args.before.clone(), args.after.clone()];
         write_atomic(out, &inputs, |w| write_changes(&c, w))?;
     }
     print!("{}", summary_text(&c, args));
+    if let Some(out) = &args.out {
+        println!("Wrote {}", out.display());
+    }
     Ok(Outcome::Done)
 }
 
@@ -71,7 +80,7 @@ fn basis_differences(before: &std::path::Path, after: &std::path::Path) -> Vec<S
     }
     if b["margin"] != a["margin"] {
         out.push(format!(
-            "the safety bands differ: {} before, {} after",
+            "the safety bands differ: {} pp before, {} pp after",
             b["margin"], a["margin"]
         ));
     }
@@ -111,6 +120,13 @@ fn summary_text(c: &Comparison, args: &CompareArgs) -> String {
             s,
             "  {:<14}{} -> {}",
             ch.after.id, ch.before.zone, ch.after.zone
+        );
+    }
+    if risk.len() > args.show {
+        let _ = writeln!(
+            s,
+            "  ... and {} more (all are in --out)",
+            risk.len() - args.show
         );
     }
     let losses = c.largest_losses(args.show);

@@ -221,7 +221,7 @@ pub fn keeler_brazier_curve(a: &KeelerBrazierArgs) -> Result<GeneratedCurve> {
             .out
             .name
             .clone()
-            .unwrap_or_else(|| format!("Keeler-Brazier n {} t {t_mm:.2} mm", a.n)),
+            .unwrap_or_else(|| format!("Keeler-Brazier n {n} t {t:.2} mm")),
         source,
         material: a.out.material.clone(),
         thickness_mm: Some(t_mm),
@@ -371,7 +371,7 @@ fn emit(curve: &GeneratedCurve, out: &CurveOutArgs) -> Result<Outcome> {
             let mut o = std::io::stdout().lock();
             o.write_all(text.as_bytes())
                 .map_err(|e| Error::io(Path::new("<stdout>"), e))?;
-            eprintln!("{CAUTION}");
+            eprint!("{}", crate::output::terminal::wrap(CAUTION, 80, ""));
         }
         Some(path) => {
             write_atomic(path, &[], |w| w.write_all(text.as_bytes()))?;
@@ -442,11 +442,12 @@ fn summary(c: &LimitCurve, path: &Path) -> String {
     format!(
         "Wrote {} ({} points, {} strain): {}\n\
          Plane-strain limit (FLC0): {plane} engineering major strain\n\
-         A curve from a model is a prediction, not a tested curve.\n{CAUTION}\n",
+         A curve from a model is a prediction, not a tested curve.\n{}",
         path.display(),
         c.points.len(),
         c.measure,
-        c.name
+        c.name,
+        crate::output::terminal::wrap(CAUTION, 80, "")
     )
 }
 
@@ -513,7 +514,6 @@ fn compare_table(
         ));
     }
     s.push('\n');
-    s.push_str(CAUTION);
-    s.push('\n');
+    s.push_str(&crate::output::terminal::wrap(CAUTION, 80, ""));
     s
 }

@@ -53,7 +53,7 @@ pub struct OutputArgs {
     /// then goes to standard error).
     #[arg(long, value_name = "FILE|-")]
     pub points: Option<PathBuf>,
-    /// Strain measure of the diagram's axes [default: engineering].
+    /// Strain measure of the diagram's axes.
     #[arg(long, value_name = "MEASURE", default_value = "engineering")]
     pub plot_strain: PlotStrain,
 }
@@ -112,7 +112,7 @@ impl Plan {
             if let Some(dir) = f.parent().filter(|d| !d.as_os_str().is_empty()) {
                 if dir.exists() && !dir.is_dir() {
                     return Err(Error::Usage(format!(
-                        "cannot write {}: {} is a file, not a folder; choose another --out",
+                        "cannot write {}: {} is a file, not a folder; choose another output path",
                         f.display(),
                         dir.display()
                     )));

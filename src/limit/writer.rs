@@ -61,7 +61,7 @@ impl GeneratedCurve {
             let _ = writeln!(t, "material = {}", toml_string(m));
         }
         if let Some(th) = self.thickness_mm {
-            let _ = writeln!(t, "thickness_mm = {th}");
+            let _ = writeln!(t, "thickness_mm = {}", (th * 1e4).round() / 1e4);
         }
         let _ = writeln!(t, "strain = {}", toml_string(self.measure.name()));
         let _ = writeln!(t, "points = [");

@@ -460,7 +460,7 @@ fn draw_legend<DB: DrawingBackend>(
     if worst.is_empty() {
         return Ok(());
     }
-    root.draw_text("Smallest margins (pp)", &plot::bold(16.0), (x, y))?;
+    root.draw_text("Worst locations (margin, pp)", &plot::bold(16.0), (x, y))?;
     y += 26;
     for p in worst {
         let id = plot::fit_px(root, &p.input.id, &plot::text(14.0), 120);

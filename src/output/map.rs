@@ -189,10 +189,13 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
     order.sort_by_key(|(p, _)| std::cmp::Reverse(p.zone()));
     for (p, xy) in &order {
         let c = px(*xy);
-        let fill = p
-            .judgement
-            .margin_pct
-            .map_or(RGBColor(190, 190, 190), |m| scale.colour(m));
+        // A location failed by thinning keeps a positive margin: colour it as failed all the
+        // same, so that no failed location looks safe on the map.
+        let fill = match p.judgement.margin_pct {
+            None => RGBColor(190, 190, 190),
+            Some(m) if p.zone() == crate::assess::Zone::Failed => scale.colour(m.min(-0.01)),
+            Some(m) => scale.colour(m),
+        };
         let shape = zone_shape(p.zone());
         marker(root, shape, c, 7, fill, BLACK)?;
         if shape == plot::Shape::Cross || shape == plot::Shape::Diamond {

@@ -25,7 +25,7 @@ pub fn guard_inputs(target: &Path, inputs: &[PathBuf]) -> Result<()> {
     for input in inputs {
         if fs::canonicalize(input).is_ok_and(|i| i == t) {
             return Err(Error::Usage(format!(
-                "refusing to write {}: it is an input file of this run; choose another --out",
+                "refusing to write {}: it is an input file of this run; choose another output path (--out, --points)",
                 target.display()
             )));
         }

@@ -94,7 +94,7 @@ fn judgement_fields<W: Write>(f: &mut Fields<'_, W>, p: &PointResult) -> csv::Re
 
 fn carried_fields<W: Write>(f: &mut Fields<'_, W>, p: &PointResult) -> csv::Result<()> {
     let m = &p.input;
-    f.text(&p.d0.to_string())?;
+    f.num(Some(p.d0), 4)?;
     f.num(m.x, 3)?;
     f.num(m.y, 3)?;
     f.text(m.stage.as_deref().unwrap_or(""))?;

@@ -231,7 +231,7 @@ fn worst_brief(a: &Analysis) -> String {
         return String::new();
     }
     let mut s = String::from(
-        "<h3>Smallest margins</h3>\n<table class=\"brief\"><thead><tr><th>id</th>\
+        "<h3>Worst locations</h3>\n<table class=\"brief\"><thead><tr><th>id</th>\
          <th class=\"n\">margin pp</th><th class=\"n\">major %</th><th class=\"n\">minor %</th>\
          <th class=\"n\">thinning %</th><th class=\"n\">x</th><th class=\"n\">y</th><th>zone</th>\
          </tr></thead><tbody>\n",

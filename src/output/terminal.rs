@@ -153,6 +153,28 @@ pub fn summary_text(a: &Analysis) -> String {
         st.max_thinning_pct
             .map_or("not checked".into(), |t| format!("{t:.1} %"))
     );
+    let len = |v: Option<f64>| {
+        v.map_or_else(
+            || "-".to_string(),
+            |x| {
+                let t = format!("{x:.4}");
+                t.trim_end_matches('0').trim_end_matches('.').to_string()
+            },
+        )
+    };
+    let l = &a.lengths;
+    let _ = writeln!(
+        s,
+        "Lengths in {}: d0 {}{}, t0 {}",
+        l.unit,
+        len(l.d0),
+        if a.points.iter().any(|p| Some(p.d0) != l.d0) {
+            " (or per row)"
+        } else {
+            ""
+        },
+        len(l.t0)
+    );
     let _ = writeln!(s);
     let _ = writeln!(
         s,
