@@ -94,5 +94,35 @@ impl Error {
     }
 }
 
+/// 1-based line and column of byte `offset` in `text`.
+pub fn line_col(text: &str, offset: usize) -> (u64, u64) {
+    let before = text.get(..offset.min(text.len())).unwrap_or(text);
+    let line = before.matches('\n').count() as u64 + 1;
+    let col = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) as u64 + 1;
+    (line, col)
+}
+
+/// A TOML parse error of `text` (read from `path`) as an input error at its line and column,
+/// in words for people rather than for programmers.
+pub fn toml_error(path: &Path, text: &str, e: &toml::de::Error) -> Error {
+    let mut loc = Location::file(path);
+    if let Some(span) = e.span() {
+        let (l, c) = line_col(text, span.start);
+        loc = loc.at_line(l);
+        loc.column = Some(c);
+    }
+    let mut m = e
+        .message()
+        .trim()
+        .replace("expected f64", "expected a number")
+        .replace("invalid type: string", "found text")
+        .replace("invalid type: integer", "found a whole number")
+        .replace("invalid type: floating point", "found a number");
+    if m.contains("invalid type: map, expected a string") {
+        m = "expected text in quotes (a date too: date = \"2026-11-24\")".into();
+    }
+    Error::input(loc, m)
+}
+
 /// Result with this crate's [`Error`].
 pub type Result<T, E = Error> = std::result::Result<T, E>;

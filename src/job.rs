@@ -20,8 +20,7 @@
 //! reading_error = 0.02 # one axis, in `unit`; flags borderline locations
 //! ```
 
-use crate::error::{Error, Location, Result};
-use crate::limit::line_col;
+use crate::error::{Error, Result};
 use crate::units::LengthUnit;
 use serde::{Deserialize, Serialize};
 use std::path::{Path, PathBuf};
@@ -68,15 +67,8 @@ impl Job {
     /// Load a job file; a relative `limit` path is resolved against the job file's folder.
     pub fn load(path: &Path) -> Result<Self> {
         let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
-        let mut job: Job = toml::from_str(&text).map_err(|e| {
-            let mut loc = Location::file(path);
-            if let Some(span) = e.span() {
-                let (l, c) = line_col(&text, span.start);
-                loc = loc.at_line(l);
-                loc.column = Some(c);
-            }
-            Error::input(loc, e.message().trim().to_string())
-        })?;
+        let mut job: Job =
+            toml::from_str(&text).map_err(|e| crate::error::toml_error(path, &text, &e))?;
         if let Some(limit) = job.limit.take() {
             let base = path.parent().unwrap_or(Path::new(""));
             job.limit = Some(if limit.is_absolute() {
@@ -100,6 +92,21 @@ mod tests {
         std::fs::write(&p, "part = \"x\"\nmargn = 5\n").unwrap();
         let e = Job::load(&p).unwrap_err().to_string();
         assert!(e.contains("job.toml:2:1") && e.contains("margn"), "{e}");
+    }
+
+    #[test]
+    fn type_errors_read_as_words() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("job.toml");
+        std::fs::write(&p, "d0 = \"2.5\"\n").unwrap();
+        let e = Job::load(&p).unwrap_err().to_string();
+        assert!(
+            e.contains("job.toml:1:6") && e.contains("expected a number"),
+            "{e}"
+        );
+        std::fs::write(&p, "date = 2026-11-24\n").unwrap();
+        let e = Job::load(&p).unwrap_err().to_string();
+        assert!(e.contains("expected text in quotes"), "{e}");
     }
 
     #[test]

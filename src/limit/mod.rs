@@ -78,13 +78,7 @@ impl TruePath {
 /// Largest strain magnitude accepted in a curve file, percent (a plausibility bound).
 const PLAUSIBLE_PCT: f64 = 300.0;
 
-/// 1-based line and column of byte `offset` in `text`.
-pub fn line_col(text: &str, offset: usize) -> (u64, u64) {
-    let before = &text[..offset.min(text.len())];
-    let line = before.matches('\n').count() as u64 + 1;
-    let col = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) as u64 + 1;
-    (line, col)
-}
+pub use crate::error::line_col;
 
 impl LimitCurve {
     /// Load and validate a curve file.
@@ -101,12 +95,8 @@ impl LimitCurve {
             loc.column = Some(c);
             loc
         };
-        let file: CurveFile = toml::from_str(text).map_err(|e| {
-            let loc = e
-                .span()
-                .map_or_else(|| Location::file(path), |s| at(s.start));
-            Error::input(loc, e.message().trim().to_string())
-        })?;
+        let file: CurveFile =
+            toml::from_str(text).map_err(|e| crate::error::toml_error(path, text, &e))?;
         let whole = |m: String| Error::input(Location::file(path), m);
         if file.source.trim().is_empty() {
             return Err(whole(
