@@ -23,12 +23,17 @@ pub enum Dialect {
     Comma,
     /// `;` between fields, `,` (or `.`) as decimal mark.
     Semicolon,
+    /// Tab between fields (pasted from a spreadsheet), `,` or `.` as decimal mark.
+    Tab,
 }
 
 impl Dialect {
-    /// Detect from the header line: a `;` in it means the semicolon dialect.
+    /// Detect from the header line: a tab in it means the tab dialect, else a `;` the
+    /// semicolon dialect, else commas.
     pub fn detect(header: &str) -> Self {
-        if header.contains(';') {
+        if header.contains('\t') {
+            Dialect::Tab
+        } else if header.contains(';') {
             Dialect::Semicolon
         } else {
             Dialect::Comma
@@ -38,6 +43,7 @@ impl Dialect {
         match self {
             Dialect::Comma => b',',
             Dialect::Semicolon => b';',
+            Dialect::Tab => b'\t',
         }
     }
 }
@@ -190,7 +196,7 @@ impl Columns {
 pub fn parse_number(text: &str, dialect: Dialect) -> std::result::Result<f64, String> {
     let t = text.trim();
     let owned;
-    let t = if dialect == Dialect::Semicolon && t.contains(',') {
+    let t = if dialect != Dialect::Comma && t.contains(',') {
         owned = t.replace(',', ".");
         owned.as_str()
     } else {
@@ -444,7 +450,9 @@ pub(crate) fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<
             return Ok((prefix, String::new()));
         }
         let text = line.trim().trim_start_matches('\u{feff}').trim();
-        if !text.is_empty() && !text.starts_with('#') {
+        // `sep=;` is the separator hint some spreadsheets write first: the header tells anyway.
+        let hint = text.to_ascii_lowercase().starts_with("sep=");
+        if !text.is_empty() && !text.starts_with('#') && !hint {
             let header = text.to_string();
             prefix.push_str(line.trim_start_matches('\u{feff}'));
             return Ok((prefix, header));
@@ -566,6 +574,16 @@ mod tests {
             .unwrap_err()
             .to_string();
         assert!(e.starts_with("t.csv:4") && e.contains("UTF-8"), "{e}");
+    }
+
+    #[test]
+    fn tab_separated_and_separator_hint_are_read() {
+        let s = read("id\tmajor\tminor\nA\t3,25\t2.40\n").unwrap();
+        assert_eq!(s.dialect, Dialect::Tab);
+        assert!((s.points[0].major - 3.25).abs() < 1e-12);
+        let s = read("sep=;\nid;major;minor\nA;3,25;2,40\n").unwrap();
+        assert_eq!(s.dialect, Dialect::Semicolon);
+        assert_eq!(s.points[0].line, 3);
     }
 
     #[test]
