@@ -443,11 +443,11 @@ pub fn grid_cells(set: &NodeSet) -> (Vec<Element>, Vec<RejectedRow>) {
         } else if known >= 3 {
             rejected.push(RejectedRow {
                 location: Location::file(&set.source).at_line(line),
-                id: Some(id),
                 reason: format!(
-                    "grid cell not evaluated: node {} missing",
+                    "grid cell {id} not evaluated: its corner node {} is missing",
                     missing.join(", ")
                 ),
+                id: Some(id),
             });
         }
         // Fewer than three known corners: the cell lies outside the grid's edge.
