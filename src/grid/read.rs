@@ -626,7 +626,7 @@ mod tests {
         assert!(
             rejected
                 .iter()
-                .all(|r| r.reason.contains("node r1c1 missing")),
+                .all(|r| r.reason.contains("corner node r1c1 is missing")),
             "{rejected:?}"
         );
     }
