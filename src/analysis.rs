@@ -39,7 +39,7 @@ pub struct PointResult {
     /// The judgement against the curve.
     pub judgement: Judgement,
     /// Element values when the location was computed from grid nodes (`None` for a circle).
-    pub grid: Option<crate::grid::GridExtras>,
+    pub grid: Option<Box<crate::grid::GridExtras>>,
 }
 
 impl PointResult {
@@ -114,7 +114,7 @@ pub struct StateInput {
     /// The strains.
     pub strain: StrainState,
     /// A grid element's extra values.
-    pub grid: Option<crate::grid::GridExtras>,
+    pub grid: Option<Box<crate::grid::GridExtras>>,
 }
 
 /// Judge every accepted row of `set`. A row with no d0 (none in the row, none given) is rejected.
@@ -125,25 +125,27 @@ pub fn analyse(
     curve: LimitCurve,
     settings: Settings,
 ) -> Analysis {
-    let mut rejected = set.rejected;
-    let mut states = Vec::with_capacity(set.points.len());
-    for m in set.points {
-        match circle_state(m, &set.source, &lengths) {
-            Ok(s) => states.push(s),
-            Err(r) => rejected.push(r),
-        }
-    }
-    rejected.sort_by_key(|r| r.location.line);
-    analyse_states(
+    // Strains are computed and judged row by row, so no list of intermediate states is held.
+    let mut unusable = Vec::new();
+    let (file, l) = (set.source.clone(), lengths);
+    let states = set.points.into_iter().filter_map(|m| {
+        circle_state(m, &file, &l)
+            .map_err(|r| unusable.push(r))
+            .ok()
+    });
+    let mut a = analyse_states(
         set.source,
         states,
-        rejected,
+        set.rejected,
         &set.ignored_columns,
         job,
         lengths,
         curve,
         settings,
-    )
+    );
+    a.rejected.extend(unusable);
+    a.rejected.sort_by_key(|r| r.location.line);
+    a
 }
 
 /// A warning when the curve was made for a sheet more than 10 % thicker or thinner than t0:
@@ -210,7 +212,7 @@ fn circle_state(
 #[allow(clippy::too_many_arguments)]
 pub fn analyse_states(
     source: PathBuf,
-    states: Vec<StateInput>,
+    states: impl IntoIterator<Item = StateInput>,
     rejected: Vec<RejectedRow>,
     ignored_columns: &[String],
     job: Job,
@@ -218,17 +220,16 @@ pub fn analyse_states(
     curve: LimitCurve,
     settings: Settings,
 ) -> Analysis {
-    let points = states
-        .into_iter()
-        .map(|s| PointResult {
-            judgement: judge_reading(&s.strain, s.d0, &curve, &settings),
-            thickness: lengths.t0.map(|t0| s.strain.thickness(t0)),
-            input: s.input,
-            d0: s.d0,
-            strain: s.strain,
-            grid: s.grid,
-        })
-        .collect();
+    let states = states.into_iter();
+    let mut points = Vec::with_capacity(states.size_hint().1.unwrap_or(0));
+    points.extend(states.map(|s| PointResult {
+        judgement: judge_reading(&s.strain, s.d0, &curve, &settings),
+        thickness: lengths.t0.map(|t0| s.strain.thickness(t0)),
+        input: s.input,
+        d0: s.d0,
+        strain: s.strain,
+        grid: s.grid,
+    }));
     let mut warnings = curve.warnings.clone();
     warnings.extend(thickness_mismatch(&curve, &lengths));
     if !ignored_columns.is_empty() {

@@ -156,7 +156,7 @@ fn elliptic_eigenvector(m: &Matrix3<f64>) -> Result<Vector3<f64>, FitError> {
         let k = svd.singular_values.imin();
         let v: Vector3<f64> = vt.row(k).transpose();
         let cond = 4.0 * v[0] * v[2] - v[1] * v[1];
-        if cond > 1e-12 && best.map_or(true, |(b, _)| mu.re.abs() < b) {
+        if cond > 1e-12 && best.is_none_or(|(b, _)| mu.re.abs() < b) {
             best = Some((mu.re.abs(), v / cond.sqrt()));
         }
     }

@@ -118,7 +118,7 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
     let three_d = a
         .points
         .iter()
-        .any(|p| p.grid.is_some_and(|g| g.normal.is_some()));
+        .any(|p| p.grid.as_ref().is_some_and(|g| g.normal.is_some()));
     let preface = format!(
         "Grid: {} elements evaluated from node positions ({}), quads at their centre\n",
         a.points.len(),

@@ -68,7 +68,7 @@ pub fn state_input(e: &Element, r: &ElementResult, three_d: bool) -> Option<Stat
         input,
         d0,
         strain,
-        grid: Some(grid),
+        grid: Some(Box::new(grid)),
     })
 }
 

@@ -71,18 +71,18 @@ pub fn push_fixed(buf: &mut String, v: f64, decimals: usize) {
         return;
     }
     let n = scaled as i64;
-    let unit = scale as i64;
+    let unit = scale as u64;
     if n < 0 {
         buf.push('-');
     }
-    let (int, frac) = (
-        n.unsigned_abs() / unit as u64,
-        n.unsigned_abs() % unit as u64,
-    );
-    if decimals == 0 {
-        let _ = write!(buf, "{int}");
-    } else {
-        let _ = write!(buf, "{int}.{frac:0decimals$}");
+    let (int, frac) = (n.unsigned_abs() / unit, n.unsigned_abs() % unit);
+    let mut digits = itoa::Buffer::new();
+    buf.push_str(digits.format(int));
+    if decimals > 0 {
+        buf.push('.');
+        let f = digits.format(frac);
+        buf.extend(std::iter::repeat_n('0', decimals - f.len()));
+        buf.push_str(f);
     }
 }
 

@@ -248,7 +248,7 @@ pub fn clip_polyline(line: &[(f64, f64)], x: (f64, f64), y: (f64, f64)) -> Vec<V
         }
         match clip_segment(w[0], w[1], x, y) {
             Some((a, b)) => {
-                if current.last().map_or(true, |l| dist(*l, a) > 1e-9) {
+                if current.last().is_none_or(|l| dist(*l, a) > 1e-9) {
                     if current.len() >= 2 {
                         runs.push(std::mem::take(&mut current));
                     }

@@ -11,7 +11,7 @@ pub const WIDTH: usize = 80;
 
 /// Whether to colour a stream: it is a terminal and `NO_COLOR` is unset or empty.
 pub fn use_colour(is_terminal: bool) -> bool {
-    is_terminal && std::env::var_os("NO_COLOR").map_or(true, |v| v.is_empty())
+    is_terminal && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
 }
 
 /// ANSI SGR code of a zone: red, yellow, magenta, blue, cyan, green.

@@ -252,7 +252,7 @@ pub fn path_limit(mat: &MkMaterial, s: &MkSettings, beta: f64) -> Result<PathLim
         let bound = best.map_or(s.max_strain, |b| b.major);
         runs += 1;
         if let Some((major, psi)) = run_one(&md, &bulk, s, psi0, bound)? {
-            if best.map_or(true, |b| major < b.major) {
+            if best.is_none_or(|b| major < b.major) {
                 *best = Some(PathLimit {
                     beta,
                     major,
