@@ -95,10 +95,10 @@ fn main() {
             .join("limits/steel-0.80mm-n0.20-keeler-brazier.toml"),
     )
     .unwrap();
-    let base = median_of(5, || {
+    let base = median_of(9, || {
         std::hint::black_box(baseline(&text));
     });
-    let full = median_of(5, || {
+    let full = median_of(9, || {
         std::hint::black_box(full_path(&text, &curve));
     });
     let rate = rows as f64 / full.as_secs_f64();
