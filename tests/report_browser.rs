@@ -64,15 +64,17 @@ fn run_chromium(chromium: &Path, page: &Path, action: &[String]) -> String {
 }
 
 /// URLs the page asked for: every file loaded other than the page itself, and every network
-/// request except Chromium's own housekeeping calls (update, clock and account services on
-/// google.com / googleapis.com hosts, which it makes with any page, even a blank one).
+/// request to a host that the page's own text names. Without scripts a page can only request
+/// what its text names; Chromium's own background calls (updates, clock, accounts), which it
+/// makes with any page, even a blank one, go to hosts the page never mentions.
 fn page_requests(log: &str, page: &Path) -> Vec<String> {
     let own = format!("file://{}", page.display());
+    let text = std::fs::read_to_string(page).unwrap_or_default();
     let url_after = |line: &str, key: &str| {
         line.split_once(key)
             .map(|(_, rest)| rest.split_whitespace().next().unwrap_or("").to_string())
     };
-    let housekeeping = |u: &str| {
+    let named_by_page = |u: &str| {
         let host = u
             .split("://")
             .nth(1)
@@ -80,13 +82,13 @@ fn page_requests(log: &str, page: &Path) -> Vec<String> {
             .split(['/', '?', ':'])
             .next()
             .unwrap_or("");
-        host.ends_with(".google.com") || host.ends_with(".googleapis.com")
+        !host.is_empty() && text.contains(host)
     };
     log.lines()
         .filter_map(|l| {
             url_after(l, "FileURLLoader::Start:")
                 .filter(|u| *u != own)
-                .or_else(|| url_after(l, "NotifyBeforeURLRequest:").filter(|u| !housekeeping(u)))
+                .or_else(|| url_after(l, "NotifyBeforeURLRequest:").filter(|u| named_by_page(u)))
         })
         .collect()
 }
