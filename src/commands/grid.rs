@@ -83,19 +83,12 @@ pub fn grid_analysis(args: &GridArgs) -> Result<Analysis> {
                 .into(),
         );
     }
-    if a.points.is_empty() {
-        let first = a
-            .rejected
-            .first()
-            .map(|r| format!("; first: {r}"))
-            .unwrap_or_default();
-        return Err(Error::Usage(format!(
-            "{}: no element could be evaluated ({} rows or elements rejected{first})",
-            args.nodes.display(),
-            a.rejected.len()
-        )));
-    }
-    Ok(a)
+    super::require_points(
+        a,
+        &args.nodes,
+        "no element could be evaluated",
+        "rows or elements",
+    )
 }
 
 /// Run `grid`.

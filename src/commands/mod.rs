@@ -98,6 +98,12 @@ pub fn run_analysis(
     };
     let set = read_measurements(measurements)?;
     let a = analyse(set, job, l, curve, settings);
+    require_points(a, measurements, "no location could be judged", "rows")
+}
+
+/// Refuse an analysis in which nothing could be judged: `what` says what failed, `of` names
+/// the rejected things; the first rejection is quoted.
+pub fn require_points(a: Analysis, input: &Path, what: &str, of: &str) -> Result<Analysis> {
     if a.points.is_empty() {
         let first = a
             .rejected
@@ -105,8 +111,8 @@ pub fn run_analysis(
             .map(|r| format!("; first: {r}"))
             .unwrap_or_default();
         return Err(Error::Usage(format!(
-            "{}: no location could be judged ({} rows rejected{first})",
-            measurements.display(),
+            "{}: {what} ({} {of} rejected{first})",
+            input.display(),
             a.rejected.len()
         )));
     }
