@@ -1,21 +1,22 @@
-//! Throughput of the main data path (read CSV -> strains -> judgement -> points.csv) against a
-//! baseline in the same run: the csv crate alone reading the same bytes into numbers.
+//! Throughput and memory of `neckline check` on a full-field-size file, against baselines in the
+//! same run: a bare CSV parse of the same bytes (the csv crate, one core) and a polars script
+//! doing the same job (benches/polars_check.py: parse, every strain column, curve look-up,
+//! margin, limit use, zone, CSV out).
 //!
-//! Run: `cargo bench --bench check` (optionally `-- 1000000` for the number of rows).
-//! Target: the whole path within 4x the bare CSV parse, and at least 500 000 rows/s on one core.
+//! Run: `cargo bench --bench check [-- ROWS [full]]` (default 1 000 000 rows; `full` also times
+//! the default outputs: diagram, map and report). Needs `pip install polars` for the polars
+//! baseline (skipped with a note otherwise).
+//! Targets: >= 1 000 000 rows/s end to end, >= 2x polars, < 100 MB peak.
 
-use neckline::analysis::{analyse, Lengths};
-use neckline::assess::Settings;
-use neckline::job::Job;
-use neckline::limit::LimitCurve;
-use neckline::measure::read_measurements_from;
-use neckline::output::points_csv::write_points;
-use std::path::Path;
+use std::path::{Path, PathBuf};
+use std::process::Command;
 use std::time::{Duration, Instant};
 
-fn synthetic(rows: usize) -> String {
-    let mut s = String::with_capacity(rows * 40);
-    s.push_str("id,major,minor,x,y\n");
+/// An invented full-field file: `rows` rows of axes on a 2.5 mm grid, spread over the diagram.
+fn synthetic(path: &Path, rows: usize) {
+    use std::io::Write;
+    let mut f = std::io::BufWriter::new(std::fs::File::create(path).unwrap());
+    writeln!(f, "id,major,minor,d0,x,y").unwrap();
     let mut state = 2207u64;
     let mut next = || {
         state = state
@@ -26,103 +27,168 @@ fn synthetic(rows: usize) -> String {
     for i in 0..rows {
         let major = 2.5 * (1.0 + 0.5 * next());
         let minor = (2.5 * (0.8 + 0.4 * next())).min(major);
-        s.push_str(&format!(
-            "P{i},{major:.3},{minor:.3},{:.1},{:.1}\n",
-            i % 1000,
-            i / 1000
-        ));
+        writeln!(
+            f,
+            "P{i},{major:.3},{minor:.3},2.5,{:.1},{:.1}",
+            (i % 1000) as f64 * 0.5,
+            (i / 1000) as f64 * 0.5
+        )
+        .unwrap();
     }
-    s
 }
 
-fn baseline(text: &str) -> f64 {
-    let mut r = csv::Reader::from_reader(text.as_bytes());
+/// Wall time and peak resident memory (MiB) of a child process.
+// The child is reaped by `wait4`, which also gives its peak memory.
+#[allow(clippy::zombie_processes)]
+fn run(cmd: &mut Command) -> (Duration, f64, bool) {
+    let t = Instant::now();
+    let child = cmd
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::inherit())
+        .spawn()
+        .expect("spawn");
+    let pid = child.id() as libc::pid_t;
+    let mut status = 0;
+    let mut usage: libc::rusage = unsafe { std::mem::zeroed() };
+    // SAFETY: waits for our own child; `status` and `usage` are valid for writes.
+    let r = unsafe { libc::wait4(pid, &mut status, 0, &mut usage) };
+    let ok = r == pid && libc::WIFEXITED(status) && libc::WEXITSTATUS(status) == 0;
+    (t.elapsed(), usage.ru_maxrss as f64 / 1024.0, ok)
+}
+
+fn bare_parse(path: &Path) -> (Duration, f64) {
+    let t = Instant::now();
+    let mut r = csv::Reader::from_path(path).unwrap();
     let mut sum = 0.0;
-    for rec in r.records() {
-        let rec = rec.unwrap();
+    let mut rec = csv::StringRecord::new();
+    while r.read_record(&mut rec).unwrap() {
         let a: f64 = rec[1].parse().unwrap();
         let b: f64 = rec[2].parse().unwrap();
         sum += a - b;
     }
-    sum
+    (t.elapsed(), sum)
 }
 
-fn full_path(text: &str, curve: &LimitCurve) -> usize {
-    let set = read_measurements_from(text.as_bytes(), Path::new("bench.csv")).unwrap();
-    let lengths = Lengths {
-        unit: Default::default(),
-        d0: Some(2.5),
-        t0: Some(0.8),
-    };
-    let a = analyse(
-        set,
-        Job::default(),
-        lengths,
-        curve.clone(),
-        Settings::default(),
-    );
-    write_points(&a, &mut std::io::sink()).unwrap();
-    a.points.len()
-}
-
-fn median_of(runs: usize, mut f: impl FnMut()) -> Duration {
-    let mut t: Vec<Duration> = (0..runs)
-        .map(|_| {
-            let s = Instant::now();
-            f();
-            s.elapsed()
-        })
-        .collect();
-    t.sort();
-    t[runs / 2]
-}
-
-fn peak_rss_mib() -> Option<f64> {
-    let status = std::fs::read_to_string("/proc/self/status").ok()?;
-    let line = status.lines().find(|l| l.starts_with("VmHWM:"))?;
-    let kib: f64 = line.split_whitespace().nth(1)?.parse().ok()?;
-    Some(kib / 1024.0)
+fn median(mut v: Vec<Duration>) -> Duration {
+    v.sort();
+    v[v.len() / 2]
 }
 
 fn main() {
-    let rows: usize = std::env::args()
+    let args: Vec<String> = std::env::args()
         .skip(1)
-        .find_map(|a| a.parse().ok())
-        .unwrap_or(200_000);
-    let text = synthetic(rows);
-    let curve = LimitCurve::load(
-        &Path::new(env!("CARGO_MANIFEST_DIR"))
-            .join("limits/steel-0.80mm-n0.20-keeler-brazier.toml"),
-    )
-    .unwrap();
-    let base = median_of(9, || {
-        std::hint::black_box(baseline(&text));
-    });
-    let full = median_of(9, || {
-        std::hint::black_box(full_path(&text, &curve));
-    });
-    let rate = rows as f64 / full.as_secs_f64();
+        .filter(|a| a != "--bench")
+        .collect();
+    let rows: usize = args
+        .first()
+        .and_then(|a| a.parse().ok())
+        .unwrap_or(1_000_000);
+    let full = args.iter().any(|a| a == "full");
+    let dir = tempfile::tempdir().unwrap();
+    let input = dir.path().join("field.csv");
+    synthetic(&input, rows);
+    let mb = std::fs::metadata(&input).unwrap().len() as f64 / 1e6;
+    let root = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
+    let limit = root.join("limits/steel-0.80mm-n0.20-keeler-brazier.toml");
+    let exe = env!("CARGO_BIN_EXE_neckline");
     println!(
-        "rows: {rows} ({:.1} MiB of CSV)",
-        text.len() as f64 / 1048576.0
+        "{rows} rows, {mb:.1} MB, {} threads",
+        std::thread::available_parallelism().map_or(1, |n| n.get())
+    );
+
+    let (parse, _) = bare_parse(&input);
+    let rate = |d: Duration| rows as f64 / d.as_secs_f64();
+    println!(
+        "bare csv parse (1 core):     {:>7.3} s  {:>9.0} rows/s",
+        parse.as_secs_f64(),
+        rate(parse)
+    );
+
+    let core = |out: &str, format: &str| {
+        let mut c = Command::new(exe);
+        c.args(["check"]).arg(&input).arg("--limit").arg(&limit);
+        c.args(["--out"])
+            .arg(dir.path().join(out))
+            .args(["--format", format]);
+        c
+    };
+    let mut times = Vec::new();
+    let mut peak: f64 = 0.0;
+    for _ in 0..5 {
+        let (t, m, ok) = run(&mut core("core", "csv,json"));
+        assert!(ok, "check failed");
+        times.push(t);
+        peak = peak.max(m);
+    }
+    let ours = median(times);
+    println!(
+        "neckline check csv,json:     {:>7.3} s  {:>9.0} rows/s  {peak:>6.1} MiB peak  (median of 5)",
+        ours.as_secs_f64(),
+        rate(ours)
     );
     println!(
-        "baseline (csv parse only): {:>8.1} ms",
-        base.as_secs_f64() * 1e3
+        "  ratio to the bare parse: {:.2}x the time",
+        ours.as_secs_f64() / parse.as_secs_f64()
     );
-    println!(
-        "check path (parse+judge+write): {:>8.1} ms  = {:.0} rows/s",
-        full.as_secs_f64() * 1e3,
-        rate
-    );
-    println!(
-        "ratio check/baseline: {:.2}x",
-        full.as_secs_f64() / base.as_secs_f64()
-    );
-    if let Some(m) = peak_rss_mib() {
+
+    // The polars baseline, given the same curve: its own (engineering) points and the
+    // true-strain polyline neckline searches for the limit use.
+    let curve = neckline::limit::LimitCurve::load(&limit).unwrap();
+    let own: String = curve
+        .points
+        .iter()
+        .map(|p| format!("{},{}\n", p[0], p[1]))
+        .collect();
+    let tru: String = curve
+        .true_polyline(16)
+        .iter()
+        .map(|p| format!("{},{}\n", p[0], p[1]))
+        .collect();
+    std::fs::write(dir.path().join("own.csv"), own).unwrap();
+    std::fs::write(dir.path().join("true.csv"), tru).unwrap();
+    let script = root.join("benches/polars_check.py");
+    let polars = || {
+        let mut c = Command::new("python3");
+        c.arg(&script).arg(&input).arg(dir.path().join("own.csv"));
+        c.arg(dir.path().join("true.csv"))
+            .arg(dir.path().join("polars.csv"));
+        run(&mut c)
+    };
+    let (_, _, ok) = polars();
+    if ok {
+        let mut times = Vec::new();
+        let mut ppeak: f64 = 0.0;
+        for _ in 0..3 {
+            let (t, m, _) = polars();
+            times.push(t);
+            ppeak = ppeak.max(m);
+        }
+        let p = median(times);
         println!(
-            "peak resident memory: {m:.0} MiB ({:.0} bytes/row incl. the input text)",
-            m * 1048576.0 / rows as f64
+            "polars script, same job:     {:>7.3} s  {:>9.0} rows/s  {ppeak:>6.1} MiB peak  (median of 3)",
+            p.as_secs_f64(),
+            rate(p)
         );
+        println!(
+            "  neckline is {:.2}x as fast as polars (target >= 2x)",
+            p.as_secs_f64() / ours.as_secs_f64()
+        );
+    } else {
+        println!("polars script: not run (python3 with polars and numpy needed: pip install polars numpy)");
+    }
+
+    if full {
+        let (t, m, ok) = run(&mut core("full", "csv,json,svg,png,html"));
+        assert!(ok, "check with default outputs failed");
+        println!(
+            "neckline check, all outputs: {:>7.3} s  {:>9.0} rows/s  {m:>6.1} MiB peak  ({:.2}x the core path; target <= 2x)",
+            t.as_secs_f64(),
+            rate(t),
+            t.as_secs_f64() / ours.as_secs_f64()
+        );
+        for f in ["fld.svg", "map.svg", "report.html", "fld.png", "map.png"] {
+            let size = std::fs::metadata(dir.path().join("full").join(f)).map_or(0, |m| m.len());
+            println!("  {f:<12} {:>8.2} MB", size as f64 / 1e6);
+        }
     }
 }

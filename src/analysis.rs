@@ -1,14 +1,18 @@
-//! One analysis: measurements turned into strains and judged. This is the one result that every
-//! output (CSV, JSON, terminal, plots, report) is written from, so they never disagree.
+//! One analysis: measurements turned into strains, judged, and summarised. The [`Analysis`] is
+//! the one result that every output (JSON, terminal, plots, report) is written from, so they
+//! never disagree; points.csv is written row by row from the same judged locations as they
+//! stream past (see [`crate::stream`]).
 
 use crate::assess::{judge_reading, Judgement, Settings, Zone};
 use crate::error::Location;
 use crate::job::Job;
 use crate::kinematics::StrainState;
 use crate::limit::LimitCurve;
-use crate::measure::{Measurement, MeasurementSet, RejectedRow};
+use crate::measure::{Measurement, Reading, RejectedRow, STRETCH_RANGE};
+use crate::strain::Stretch;
+use crate::summary::{Summary, ThicknessCheck, View};
 use crate::units::LengthUnit;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 /// The caution carried by every output.
 pub const CAUTION: &str = "Caution: neckline is an aid to judgement. The user's own forming-limit \
@@ -30,8 +34,8 @@ pub struct Lengths {
 pub struct PointResult {
     /// The measurement as read.
     pub input: Measurement,
-    /// The initial diameter used.
-    pub d0: f64,
+    /// The initial diameter used (`None` when strains were given).
+    pub d0: Option<f64>,
     /// The strains.
     pub strain: StrainState,
     /// Computed thickness, when t0 is known.
@@ -50,13 +54,127 @@ impl PointResult {
         Some(100.0 * (self.input.thickness? - computed) / computed)
     }
 
+    /// Measured minus computed thinning, percentage points: the same cross-check where the
+    /// measuring system reports the thickness reduction (computed `1 − exp(ε3)` by
+    /// incompressibility).
+    pub fn thinning_diff_pp(&self) -> Option<f64> {
+        Some(100.0 * (self.input.thinning? - self.strain.thinning))
+    }
+
     /// The zone.
     pub fn zone(&self) -> Zone {
         self.judgement.zone
     }
 }
 
-/// A whole analysed file.
+/// A location ready to be judged: its strains are known.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StateInput {
+    /// The location as read (for grid elements: id, line, axes `λ·d0` of the equivalent
+    /// circle, centre x, y).
+    pub input: Measurement,
+    /// The initial circle diameter (for grid elements: `d0 = √(4A/π)` of the blank area);
+    /// `None` when strains were given.
+    pub d0: Option<f64>,
+    /// The strains.
+    pub strain: StrainState,
+    /// A grid element's extra values.
+    pub grid: Option<Box<crate::grid::GridExtras>>,
+}
+
+/// What every location of one file is judged with.
+#[derive(Debug, Clone)]
+pub struct Context {
+    /// The curve.
+    pub curve: LimitCurve,
+    /// The settings.
+    pub settings: Settings,
+    /// The lengths.
+    pub lengths: Lengths,
+    /// Whether the file gives strains (the reading error is then in percentage points).
+    pub strain_input: bool,
+}
+
+impl Context {
+    /// The strain error of one reading as a fraction: `δd/d0` for axes (common practice:
+    /// 0.025 mm on a 2.5 mm circle is 1 % strain), the reading error itself (percentage
+    /// points) for strains given directly.
+    pub fn strain_error(&self, d0: Option<f64>) -> Option<f64> {
+        let r = self.settings.reading_error?;
+        match d0 {
+            Some(d0) => Some(r / d0),
+            None => Some(r / 100.0),
+        }
+    }
+
+    /// Judge one location.
+    pub fn judge(&self, s: StateInput) -> PointResult {
+        let de = self.strain_error(s.d0);
+        PointResult {
+            judgement: judge_reading(&s.strain, de, &self.curve, &self.settings),
+            thickness: self.lengths.t0.map(|t0| s.strain.thickness(t0)),
+            input: s.input,
+            d0: s.d0,
+            strain: s.strain,
+            grid: s.grid,
+        }
+    }
+}
+
+/// The strains of one measured location, or why the row cannot give them.
+pub fn state_of(m: Measurement, file: &Path, lengths: &Lengths) -> Result<StateInput, RejectedRow> {
+    let (major, minor, row_d0) = match m.reading {
+        Reading::Strains(t) => {
+            let strain = StrainState::from_stretches(t.major.stretch(), t.minor.stretch());
+            return Ok(StateInput {
+                input: m,
+                d0: None,
+                strain,
+                grid: None,
+            });
+        }
+        Reading::Axes { major, minor, d0 } => (major, minor, d0),
+    };
+    let reject = |reason: String| RejectedRow {
+        location: Location::file(file).at_line(m.line),
+        id: Some(m.id.clone()),
+        reason,
+    };
+    let d0 = row_d0.or(lengths.d0).ok_or_else(|| {
+        reject("no initial circle diameter: give a d0 column, --d0 or d0 in the job file".into())
+    })?;
+    for (value, column) in [(major, "major"), (minor, "minor")] {
+        let ratio = value / d0;
+        if !(STRETCH_RANGE.0..=STRETCH_RANGE.1).contains(&ratio) {
+            let mut r = reject(format!(
+                "{column} {value} is {ratio:.3} times d0 {d0}: outside the plausible {} to {} \
+                 (wrong d0, unit or column?)",
+                STRETCH_RANGE.0, STRETCH_RANGE.1
+            ));
+            r.location.column_name = Some(column.into());
+            return Err(r);
+        }
+    }
+    let strain = match (
+        Stretch::from_lengths(major, d0),
+        Stretch::from_lengths(minor, d0),
+    ) {
+        (Some(a), Some(b)) => StrainState::from_stretches(a, b),
+        _ => {
+            return Err(reject(format!(
+                "axes {major} and {minor} with d0 {d0} give no strain"
+            )))
+        }
+    };
+    Ok(StateInput {
+        input: m,
+        d0: Some(d0),
+        strain,
+        grid: None,
+    })
+}
+
+/// A whole analysed file: its settings and the summary of its judged locations.
 #[derive(Debug, Clone)]
 pub struct Analysis {
     /// The measurement file.
@@ -69,10 +187,10 @@ pub struct Analysis {
     pub curve: LimitCurve,
     /// The settings used.
     pub settings: Settings,
-    /// Judged locations, in file order.
-    pub points: Vec<PointResult>,
-    /// Rows that were not accepted, with reasons.
-    pub rejected: Vec<RejectedRow>,
+    /// Whether the file gave strains rather than axes.
+    pub strain_input: bool,
+    /// The judged locations, summarised.
+    pub summary: Summary,
     /// Things the user should know (clamps, ignored columns).
     pub warnings: Vec<String>,
 }
@@ -103,51 +221,6 @@ impl Verdict {
     }
 }
 
-/// A location computed from nodes, ready to be judged.
-#[derive(Debug, Clone, PartialEq)]
-pub struct StateInput {
-    /// The location as if measured (for grid elements: id, line, axes `λ·d0` of the equivalent
-    /// circle, centre x, y).
-    pub input: Measurement,
-    /// The initial circle diameter (for grid elements: `d0 = √(4A/π)` of the blank area).
-    pub d0: f64,
-    /// The strains.
-    pub strain: StrainState,
-    /// A grid element's extra values.
-    pub grid: Option<Box<crate::grid::GridExtras>>,
-}
-
-/// Judge every accepted row of `set`. A row with no d0 (none in the row, none given) is rejected.
-pub fn analyse(
-    set: MeasurementSet,
-    job: Job,
-    lengths: Lengths,
-    curve: LimitCurve,
-    settings: Settings,
-) -> Analysis {
-    // Strains are computed and judged row by row, so no list of intermediate states is held.
-    let mut unusable = Vec::new();
-    let (file, l) = (set.source.clone(), lengths);
-    let states = set.points.into_iter().filter_map(|m| {
-        circle_state(m, &file, &l)
-            .map_err(|r| unusable.push(r))
-            .ok()
-    });
-    let mut a = analyse_states(
-        set.source,
-        states,
-        set.rejected,
-        &set.ignored_columns,
-        job,
-        lengths,
-        curve,
-        settings,
-    );
-    a.rejected.extend(unusable);
-    a.rejected.sort_by_key(|r| r.location.line);
-    a
-}
-
 /// A warning when the curve was made for a sheet more than 10 % thicker or thinner than t0:
 /// forming limits rise with thickness (Keeler-Brazier: +14.13 t), so a curve for other sheet
 /// judges the part wrongly.
@@ -162,164 +235,115 @@ fn thickness_mismatch(curve: &LimitCurve, lengths: &Lengths) -> Option<String> {
     })
 }
 
-/// Plausible range of a measured axis over d0 (engineering strain −80 % to +400 %): outside it
-/// the reading, d0 or the unit is wrong, not the sheet.
-pub const STRETCH_RANGE: (f64, f64) = (0.2, 5.0);
-
-/// The strains of one measured circle, or why the row cannot give them.
-fn circle_state(
-    m: Measurement,
-    file: &std::path::Path,
-    lengths: &Lengths,
-) -> Result<StateInput, RejectedRow> {
-    let reject = |reason: String| RejectedRow {
-        location: Location::file(file).at_line(m.line),
-        id: Some(m.id.clone()),
-        reason,
-    };
-    let d0 = m.d0.or(lengths.d0).ok_or_else(|| {
-        reject("no initial circle diameter: give a d0 column, --d0 or d0 in the job file".into())
-    })?;
-    for (value, column) in [(m.major, "major"), (m.minor, "minor")] {
-        let ratio = value / d0;
-        if !(STRETCH_RANGE.0..=STRETCH_RANGE.1).contains(&ratio) {
-            let mut r = reject(format!(
-                "{column} {value} is {ratio:.3} times d0 {d0}: outside the plausible {} to {} \
-                 (wrong d0, unit or column?)",
-                STRETCH_RANGE.0, STRETCH_RANGE.1
-            ));
-            r.location.column_name = Some(column.into());
-            return Err(r);
+impl Analysis {
+    /// An analysis with nothing judged yet: fold locations into `summary`.
+    pub fn new(input: PathBuf, job: Job, ctx: Context, view: View, notes: &[String]) -> Self {
+        let mut warnings = ctx.curve.warnings.clone();
+        warnings.extend(thickness_mismatch(&ctx.curve, &ctx.lengths));
+        warnings.extend(notes.iter().cloned());
+        Analysis {
+            input,
+            job,
+            lengths: ctx.lengths,
+            curve: ctx.curve,
+            settings: ctx.settings,
+            strain_input: ctx.strain_input,
+            summary: Summary::new(view),
+            warnings,
         }
     }
-    let strain = StrainState::from_circle(d0, m.major, m.minor).ok_or_else(|| {
-        reject(format!(
-            "axes {} and {} with d0 {d0} give no strain",
-            m.major, m.minor
-        ))
-    })?;
-    Ok(StateInput {
-        input: m,
-        d0,
-        strain,
-        grid: None,
-    })
-}
 
-/// Judge locations whose strains are already known (computed from grid nodes): the sibling of
-/// [`analyse`] for inputs that are not measured circles. `rejected` lists what could not be
-/// computed; `ignored_columns` are reported as a warning.
-#[allow(clippy::too_many_arguments)]
-pub fn analyse_states(
-    source: PathBuf,
-    states: impl IntoIterator<Item = StateInput>,
-    rejected: Vec<RejectedRow>,
-    ignored_columns: &[String],
-    job: Job,
-    lengths: Lengths,
-    curve: LimitCurve,
-    settings: Settings,
-) -> Analysis {
-    let states = states.into_iter();
-    let mut points = Vec::with_capacity(states.size_hint().1.unwrap_or(0));
-    points.extend(states.map(|s| PointResult {
-        judgement: judge_reading(&s.strain, s.d0, &curve, &settings),
-        thickness: lengths.t0.map(|t0| s.strain.thickness(t0)),
-        input: s.input,
-        d0: s.d0,
-        strain: s.strain,
-        grid: s.grid,
-    }));
-    let mut warnings = curve.warnings.clone();
-    warnings.extend(thickness_mismatch(&curve, &lengths));
-    if !ignored_columns.is_empty() {
-        warnings.push(format!("ignored columns: {}", ignored_columns.join(", ")));
+    /// Judge `states` (with `rejected` rows) into a new analysis, in memory: for inputs that
+    /// are not streamed (grid nodes, tests).
+    pub fn of_states(
+        input: PathBuf,
+        job: Job,
+        ctx: Context,
+        view: View,
+        states: impl IntoIterator<Item = StateInput>,
+        rejected: Vec<RejectedRow>,
+        notes: &[String],
+    ) -> (Self, Vec<PointResult>) {
+        let mut a = Analysis::new(input, job, ctx.clone(), view, notes);
+        let mut all = Vec::new();
+        for s in states {
+            let p = ctx.judge(s);
+            all.push(p.clone());
+            a.summary.fold(p);
+        }
+        for r in rejected {
+            a.summary.rejected.push(r);
+        }
+        a.finish();
+        (a, all)
     }
-    Analysis {
-        input: source,
-        job,
-        lengths,
-        curve,
-        settings,
-        points,
-        rejected,
-        warnings,
+
+    /// Add the warnings that need the whole file (strain columns that disagree).
+    pub fn finish(&mut self) {
+        let d = &self.summary.disagree;
+        if d.total > 0 {
+            self.warnings.push(format!(
+                "engineering and true strain disagree beyond rounding (0.01 pp) in {} row{}, \
+                 first at {}: true strain was used",
+                d.total,
+                if d.total == 1 { "" } else { "s" },
+                d.items.first().map_or("", String::as_str)
+            ));
+        }
     }
-}
 
-/// The thickness cross-check over a whole file.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct ThicknessCheck<'a> {
-    /// Locations with a measured thickness (and a computed one).
-    pub measured: usize,
-    /// The location whose measured thickness differs most from the computed one.
-    pub largest: &'a PointResult,
-    /// That difference, percent of the computed thickness.
-    pub largest_diff_pct: f64,
-}
+    /// Locations judged.
+    pub fn total(&self) -> usize {
+        self.summary.total
+    }
 
-impl Analysis {
-    /// Compare measured with computed thickness; `None` when no location has both.
-    pub fn thickness_check(&self) -> Option<ThicknessCheck<'_>> {
-        let with: Vec<(&PointResult, f64)> = self
-            .points
-            .iter()
-            .filter_map(|p| p.thickness_diff_pct().map(|d| (p, d)))
-            .collect();
-        let (largest, d) = with
-            .iter()
-            .copied()
-            .max_by(|a, b| a.1.abs().total_cmp(&b.1.abs()))?;
-        Some(ThicknessCheck {
-            measured: with.len(),
-            largest,
-            largest_diff_pct: d,
-        })
+    /// Locations kept for drawing: all of them when the file is small (see
+    /// [`Summary::complete`]).
+    pub fn points(&self) -> &[PointResult] {
+        &self.summary.kept
+    }
+
+    /// Rejected rows (the first ones; [`Analysis::rejected_total`] counts them all).
+    pub fn rejected(&self) -> &[RejectedRow] {
+        &self.summary.rejected.items
+    }
+
+    /// How many rows were rejected.
+    pub fn rejected_total(&self) -> usize {
+        self.summary.rejected.total
+    }
+
+    /// Measured against computed thickness; `None` when no location has both.
+    pub fn thickness_check(&self) -> Option<&ThicknessCheck> {
+        self.summary.thickness.as_ref()
     }
 
     /// Number of points in each zone, worst zone first.
     pub fn counts(&self) -> Vec<(Zone, usize)> {
         Zone::ALL
             .into_iter()
-            .map(|z| (z, self.points.iter().filter(|p| p.zone() == z).count()))
+            .map(|z| (z, self.summary.count(z)))
             .collect()
     }
 
     /// Number of points in `zone`.
     pub fn count(&self, zone: Zone) -> usize {
-        self.points.iter().filter(|p| p.zone() == zone).count()
+        self.summary.count(zone)
     }
 
-    /// Points whose zone could change within the reading error, in file order.
-    pub fn borderline(&self) -> Vec<&PointResult> {
-        self.points
-            .iter()
-            .filter(|p| p.judgement.borderline)
-            .collect()
+    /// Ids of the locations whose zone could change within the reading error, in file order
+    /// (the first ones), and how many there are.
+    pub fn borderline(&self) -> (&[String], usize) {
+        (
+            &self.summary.borderline.items,
+            self.summary.borderline.total,
+        )
     }
 
-    /// The `n` worst judged points: failed before marginal before the rest (a point failed by
-    /// thinning can keep a vertical margin), then smallest vertical margin first.
+    /// The `n` worst judged points (at most [`crate::summary::WORST_KEPT`]): failed before
+    /// marginal before the rest, then smallest vertical margin first.
     pub fn worst(&self, n: usize) -> Vec<&PointResult> {
-        let mut judged: Vec<&PointResult> = self
-            .points
-            .iter()
-            .filter(|p| p.judgement.margin_pct.is_some())
-            .collect();
-        let rank = |p: &PointResult| match p.zone() {
-            Zone::Failed => 0,
-            Zone::Marginal => 1,
-            _ => 2,
-        };
-        judged.sort_by(|a, b| {
-            let (ma, mb) = (a.judgement.margin_pct, b.judgement.margin_pct);
-            rank(a).cmp(&rank(b)).then(
-                ma.unwrap_or(f64::INFINITY)
-                    .total_cmp(&mb.unwrap_or(f64::INFINITY)),
-            )
-        });
-        judged.truncate(n);
-        judged
+        self.summary.worst.iter().take(n).collect()
     }
 
     /// The overall verdict.
@@ -328,7 +352,7 @@ impl Analysis {
             Verdict::Fail
         } else if self.count(Zone::Marginal) > 0 {
             Verdict::Marginal
-        } else if self.count(Zone::Uncovered) > 0 || !self.rejected.is_empty() {
+        } else if self.count(Zone::Uncovered) > 0 || self.rejected_total() > 0 {
             Verdict::Incomplete
         } else {
             Verdict::Pass
@@ -339,10 +363,11 @@ impl Analysis {
     /// (failed is worse than marginal). Uncovered points and rejected rows always count: they
     /// cannot be shown safe.
     pub fn trips(&self, zone: Zone) -> bool {
-        !self.rejected.is_empty()
-            || self
-                .points
-                .iter()
-                .any(|p| p.zone() <= zone || p.zone() == Zone::Uncovered)
+        self.rejected_total() > 0
+            || self.count(Zone::Uncovered) > 0
+            || Zone::ALL
+                .into_iter()
+                .filter(|z| *z <= zone)
+                .any(|z| self.count(z) > 0)
     }
 }

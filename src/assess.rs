@@ -83,8 +83,8 @@ pub struct Settings {
     pub low_stretch_pct: f64,
     /// Maximum thinning, percent of the initial thickness; `None` = not checked.
     pub max_thinning_pct: Option<f64>,
-    /// Reading error of one axis, in the measurement's length unit (e.g. 0.02 mm); `None` = no
-    /// borderline flag.
+    /// Reading error of one axis, in the measurement's length unit (e.g. 0.02 mm), or in
+    /// percentage points of strain for a file that gives strains; `None` = no borderline flag.
     #[serde(default)]
     pub reading_error: Option<f64>,
 }
@@ -163,13 +163,13 @@ pub fn judge(state: &StrainState, curve: &LimitCurve, settings: &Settings) -> Ju
     }
 }
 
-/// Uncertainty of the vertical margin, percentage points, from a reading error `dd` on each axis
-/// of a circle of diameter `d0`: `δe = δd / d0` on the major strain (from `e = d/d0 − 1`), plus
-/// the same error on the minor strain times the curve's local slope, since the limit is read at
-/// the minor strain: `u = 100 (δd/d0) (1 + |de1_lim/de2|)` (first-order error propagation; the
-/// rule δe ≈ δd/d0 is common practice, 0.025 mm on a 2.5 mm circle being 1 % strain).
-pub fn margin_uncertainty_pct(state: &StrainState, curve: &LimitCurve, d0: f64, dd: f64) -> f64 {
-    let de = dd / d0;
+/// Uncertainty of the vertical margin, percentage points, from a strain error `de` (a fraction)
+/// on each principal strain: on the major strain directly, plus the same error on the minor
+/// strain times the curve's local slope, since the limit is read at the minor strain:
+/// `u = 100 de (1 + |de1_lim/de2|)` (first-order error propagation). For measured axes
+/// `de = δd/d0` (from `e = d/d0 − 1`; 0.025 mm on a 2.5 mm circle is 1 % strain, common
+/// practice); for strains given directly it is their own reading error.
+pub fn margin_uncertainty_pct(state: &StrainState, curve: &LimitCurve, de: f64) -> f64 {
     let e2 = state.eng.minor.value();
     let at = |e: f64| {
         crate::strain::EngStrain(e)
@@ -185,17 +185,18 @@ pub fn margin_uncertainty_pct(state: &StrainState, curve: &LimitCurve, d0: f64, 
     100.0 * de * (1.0 + slope(1.0).max(slope(-1.0)))
 }
 
-/// [`judge`], plus the borderline flag when `settings.reading_error` is set: a point is
-/// borderline when its margin is within the uncertainty of 0 (the curve) or of the band edge.
+/// [`judge`], plus the borderline flag when a strain error `de` (a fraction) is given: a point
+/// is borderline when its margin is within the uncertainty of 0 (the curve) or of the band
+/// edge.
 pub fn judge_reading(
     state: &StrainState,
-    d0: f64,
+    de: Option<f64>,
     curve: &LimitCurve,
     settings: &Settings,
 ) -> Judgement {
     let mut j = judge(state, curve, settings);
-    if let (Some(dd), Some(m)) = (settings.reading_error, j.margin_pct) {
-        let u = margin_uncertainty_pct(state, curve, d0, dd);
+    if let (Some(de), Some(m)) = (de, j.margin_pct) {
+        let u = margin_uncertainty_pct(state, curve, de);
         j.uncertainty_pct = Some(u);
         j.borderline = m.abs() < u || (m - settings.margin_pct).abs() < u;
     }
@@ -273,13 +274,13 @@ mod tests {
         };
         let c = curve();
         let near = StrainState::from_circle(2.5, 2.5 * 1.295, 2.5).unwrap(); // margin 0.5 pp
-        let j = judge_reading(&near, 2.5, &c, &s);
+        let j = judge_reading(&near, Some(0.01), &c, &s);
         assert!((j.uncertainty_pct.unwrap() - 1.0).abs() < 1e-9);
         assert!(j.borderline);
         let clear = StrainState::from_circle(2.5, 2.5 * 1.15, 2.5).unwrap(); // margin 15 pp
-        assert!(!judge_reading(&clear, 2.5, &c, &s).borderline);
+        assert!(!judge_reading(&clear, Some(0.01), &c, &s).borderline);
         let band_edge = StrainState::from_circle(2.5, 2.5 * 1.196, 2.5).unwrap(); // margin 10.4
-        assert!(judge_reading(&band_edge, 2.5, &c, &s).borderline);
+        assert!(judge_reading(&band_edge, Some(0.01), &c, &s).borderline);
     }
 
     #[test]

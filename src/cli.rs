@@ -53,6 +53,12 @@ pub struct LengthArgs {
     /// Length unit of the file, --d0 and --t0 [default: mm, or the job file's].
     #[arg(long, value_name = "mm|in")]
     pub unit: Option<LengthUnit>,
+    /// Read the file's column HEADER as neckline's column NAME (repeatable; over the job
+    /// file's [columns]), e.g. --column "major_true_pct=Major strain (%)". Names: id, major,
+    /// minor, d0, x, y, z, stage, thickness, thinning_pct, note, major_eng_pct, minor_eng_pct,
+    /// major_true_pct, minor_true_pct.
+    #[arg(long = "column", value_name = "NAME=HEADER", value_parser = crate::measure::ColumnMap::parse_arg)]
+    pub columns: Vec<(String, String)>,
 }
 
 /// The limit curve and the judgement settings.
@@ -71,8 +77,9 @@ pub struct JudgeArgs {
     #[arg(long, value_name = "PCT")]
     pub max_thinning: Option<f64>,
     /// Reading error of one axis, in --unit (e.g. 0.02 for a measuring microscope, 0.05 for a
-    /// flexible scale): locations whose zone could change within it are flagged borderline
-    /// [default: not flagged].
+    /// flexible scale); for a file that gives strains, in percentage points of strain (e.g.
+    /// 0.5 for an optical system): locations whose zone could change within it are flagged
+    /// borderline [default: not flagged].
     #[arg(long, value_name = "LENGTH")]
     pub reading_error: Option<f64>,
     /// Exit with status 1 when any location is failed (`failed`), or failed or marginal

@@ -85,12 +85,34 @@ impl Error {
             message: message.into(),
         }
     }
+    /// The same error with its line moved down by `lines` (for a reader that started after
+    /// the header).
+    pub fn shift_line(self, lines: u64) -> Self {
+        match self {
+            Error::Input {
+                mut location,
+                message,
+            } => {
+                location.line = location.line.map(|l| l + lines);
+                Error::Input { location, message }
+            }
+            e => e,
+        }
+    }
     /// An I/O error on `path`.
     pub fn io(path: &Path, source: std::io::Error) -> Self {
         Error::Io {
             path: path.to_path_buf(),
             reason: source,
         }
+    }
+}
+
+/// `text` cut to at most `max` characters, with `...` when cut: for quoting input in messages.
+pub fn clip(text: &str, max: usize) -> String {
+    match text.char_indices().nth(max) {
+        Some((i, _)) => format!("{}...", &text[..i]),
+        None => text.to_string(),
     }
 }
 

@@ -17,7 +17,9 @@
 //! margin = 10         # safety band, percentage points of engineering major strain
 //! low_stretch = 2     # under-stretch threshold, percent engineering major strain
 //! max_thinning = 25   # percent; leave out to not check
-//! reading_error = 0.02 # one axis, in `unit`; flags borderline locations
+//! reading_error = 0.02 # one axis, in `unit` (pp of strain for strain files); flags borderline
+//! [columns]           # the file's own headers, mapped onto neckline's names
+//! major_true_pct = "Major strain (%)"
 //! ```
 
 use crate::error::{Error, Result};
@@ -59,8 +61,13 @@ pub struct Job {
     pub low_stretch: Option<f64>,
     /// Maximum thinning, percent.
     pub max_thinning: Option<f64>,
-    /// Reading error of one axis, in `unit`.
+    /// Reading error of one axis, in `unit` (percentage points of strain for a file that
+    /// gives strains).
     pub reading_error: Option<f64>,
+    /// The file's own headers mapped onto neckline's column names (`[columns]` table:
+    /// `major_true_pct = "Major strain (%)"`).
+    #[serde(default, skip_serializing_if = "std::collections::BTreeMap::is_empty")]
+    pub columns: std::collections::BTreeMap<String, String>,
 }
 
 impl Job {
@@ -69,6 +76,14 @@ impl Job {
         let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
         let mut job: Job =
             toml::from_str(&text).map_err(|e| crate::error::toml_error(path, &text, &e))?;
+        for name in job.columns.keys() {
+            crate::measure::check_name(name).map_err(|e| {
+                Error::input(
+                    crate::error::Location::file(path),
+                    format!("[columns]: {e}"),
+                )
+            })?;
+        }
         if let Some(limit) = job.limit.take() {
             let base = path.parent().unwrap_or(Path::new(""));
             job.limit = Some(if limit.is_absolute() {

@@ -26,6 +26,8 @@ pub mod limit;
 pub mod measure;
 pub mod output;
 pub mod strain;
+pub mod stream;
+pub mod summary;
 pub mod units;
 
 pub use analysis::{Analysis, CAUTION};

@@ -1,19 +1,36 @@
-//! Reading circle-grid measurements from CSV.
+//! Reading measurements from CSV: measured ellipse axes, or strains given directly.
 //!
-//! Columns (header row, names case-insensitive, any order): `id`, `major`, `minor` (the measured
-//! ellipse axes; `d1`, `d2` are accepted as aliases), and optionally `d0`, `x`, `y`, `stage`,
-//! `thickness`, `note`. Two dialects are recognised from the header line: comma-separated with a
-//! decimal point, and semicolon-separated with a decimal comma (common in European shops).
+//! Columns (header row, names case-insensitive, any order):
+//! - `id` (location label), then **either** the measured ellipse axes `major`, `minor` (aliases
+//!   `d1`, `d2`) with an optional per-row `d0`, **or** strains in percent: `major_eng_pct`,
+//!   `minor_eng_pct` (engineering, as a strain-reading tape gives them) and/or `major_true_pct`,
+//!   `minor_true_pct` (true, as optical systems export them; these win when both pairs are
+//!   there). A file with strains may leave out `id`: each location is then named by its line.
+//! - optional `x`, `y`, `z` (position on the part), `stage`, `thickness` (measured thickness),
+//!   `thinning_pct` (measured thickness reduction, percent), `note`.
+//!
+//! A points.csv written by `check` is itself a strain file: its own computed columns
+//! (`thickness`, `thinning_pct`, margins, zones) are recognised and left aside, and its
+//! `thickness_measured` is read as the measured thickness.
+//!
+//! Other headers are mapped onto these names by a [`ColumnMap`] (`[columns]` in the job file,
+//! `--column NAME=HEADER`).
+//!
+//! Three dialects are recognised from the header line: comma-separated with a decimal point,
+//! semicolon-separated and tab-separated (decimal comma or point).
 //!
 //! What rejects the **whole file**: it cannot be read, it is empty or has no data row, the header
-//! lacks a required column or names one twice. What rejects **one row** (listed, never dropped in
-//! silence): a wrong number of fields, an empty or duplicate id, a value that is not a finite
-//! number, an axis or d0 that is zero or negative, `major < minor`, no d0 at all for that row.
+//! lacks a required column, names one twice, or mixes axes with strains. What rejects **one row**
+//! (listed, never dropped in silence): a wrong number of fields, an empty or duplicate id, a value
+//! that is not a finite number, an axis or d0 that is zero or negative, `major < minor`, an
+//! implausible strain.
 
 use crate::error::{Error, Location, Result};
+use crate::kinematics::Principal;
+use crate::strain::{EngStrain, TrueStrain};
 use std::collections::HashSet;
 use std::fs::File;
-use std::io::{self, BufRead, BufReader, Cursor, Read};
+use std::io::{self, BufRead, BufReader, Read};
 use std::path::{Path, PathBuf};
 
 /// Field separator and decimal mark of a measurement file.
@@ -48,6 +65,22 @@ impl Dialect {
     }
 }
 
+/// What was read at one location: ellipse axes, or strains.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Reading {
+    /// Measured ellipse axes `major ≥ minor` (file unit), with the row's own d0 if it has one.
+    Axes {
+        /// Major axis d1.
+        major: f64,
+        /// Minor axis d2.
+        minor: f64,
+        /// Initial circle diameter of this row (overrides the job's and the flag's).
+        d0: Option<f64>,
+    },
+    /// Principal strains given directly (converted to true strain on reading), `major ≥ minor`.
+    Strains(Principal<TrueStrain>),
+}
+
 /// One measured location, as read (lengths in the file's unit).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Measurement {
@@ -55,22 +88,40 @@ pub struct Measurement {
     pub id: String,
     /// 1-based line in the file, for messages.
     pub line: u64,
-    /// Measured major axis d1.
-    pub major: f64,
-    /// Measured minor axis d2.
-    pub minor: f64,
-    /// Initial circle diameter of this row (overrides the job's and the flag's).
-    pub d0: Option<f64>,
+    /// The axes or strains read.
+    pub reading: Reading,
     /// Position on the part.
     pub x: Option<f64>,
     /// Position on the part.
     pub y: Option<f64>,
+    /// Position on the part (height).
+    pub z: Option<f64>,
     /// Forming stage or operation label.
     pub stage: Option<String>,
     /// Measured sheet thickness, for a cross-check with the computed one.
     pub thickness: Option<f64>,
+    /// Measured thinning (thickness reduction), a fraction, for the same cross-check.
+    pub thinning: Option<f64>,
     /// Free text.
     pub note: Option<String>,
+}
+
+impl Measurement {
+    /// A location read as axes, with nothing else.
+    pub fn axes(id: &str, line: u64, major: f64, minor: f64, d0: Option<f64>) -> Self {
+        Measurement {
+            id: id.to_string(),
+            line,
+            reading: Reading::Axes { major, minor, d0 },
+            x: None,
+            y: None,
+            z: None,
+            stage: None,
+            thickness: None,
+            thinning: None,
+            note: None,
+        }
+    }
 }
 
 /// A data row that was not accepted, with the reason.
@@ -101,43 +152,158 @@ pub struct MeasurementSet {
     pub points: Vec<Measurement>,
     /// Rejected rows, in file order.
     pub rejected: Vec<RejectedRow>,
-    /// Header columns that were not recognised (ignored).
-    pub ignored_columns: Vec<String>,
+    /// Notes on the header (ignored columns, how the columns were read).
+    pub notes: Vec<String>,
 }
 
-/// Indices of the recognised columns in the header.
-#[derive(Debug, Default)]
-struct Columns {
-    names: Vec<String>,
-    id: usize,
-    major: usize,
-    minor: usize,
-    d0: Option<usize>,
-    x: Option<usize>,
-    y: Option<usize>,
-    stage: Option<usize>,
-    thickness: Option<usize>,
-    note: Option<usize>,
-}
-
-const REQUIRED: [&str; 3] = ["id", "major", "minor"];
-const KNOWN: [&str; 10] = [
+/// neckline's names for the columns it reads.
+pub const NAMES: [&str; 15] = [
     "id",
     "major",
     "minor",
     "d0",
     "x",
     "y",
+    "z",
     "stage",
     "thickness",
+    "thinning_pct",
     "note",
+    "major_eng_pct",
+    "minor_eng_pct",
+    "major_true_pct",
+    "minor_true_pct",
+];
+
+/// Columns of a points.csv written by `check` that are results, not readings: left aside
+/// without a warning when such a file is judged again.
+const OWN_RESULT_COLUMNS: [&str; 20] = [
+    "thickness_true_pct",
+    "thickness",
+    "thinning_pct",
+    "major_green_pct",
+    "minor_green_pct",
+    "major_almansi_pct",
+    "minor_almansi_pct",
+    "beta",
+    "effective_true_pct",
+    "limit_major_eng_pct",
+    "margin_pct",
+    "limit_use_pct",
+    "zone",
+    "d0",
+    "thickness_diff_pct",
+    "thinning_diff_pp",
+    "margin_uncertainty_pct",
+    "borderline",
+    "thinning_measured_pct",
     "",
 ];
+
+/// A map from a file's own headers onto neckline's column names: `[columns]` in the job file
+/// (`major_true_pct = "Major strain (%)"`) and `--column NAME=HEADER` on the command line (which
+/// wins). Headers are matched ignoring case and surrounding spaces.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct ColumnMap {
+    /// (neckline name, the file's header), in the order given.
+    pub entries: Vec<(String, String)>,
+    /// Where the map came from, for messages (`--column`, `job.toml [columns]`).
+    pub origin: String,
+}
+
+impl ColumnMap {
+    /// Parse one `NAME=HEADER` argument.
+    pub fn parse_arg(s: &str) -> std::result::Result<(String, String), String> {
+        let (name, header) = s
+            .split_once('=')
+            .ok_or_else(|| format!("expected NAME=HEADER, found `{s}`"))?;
+        let name = name.trim().to_ascii_lowercase();
+        check_name(&name)?;
+        Ok((name, header.trim().to_string()))
+    }
+
+    /// Add `entries` over the present ones (a later entry for the same name wins).
+    pub fn extend(&mut self, entries: impl IntoIterator<Item = (String, String)>, origin: &str) {
+        let mut any = false;
+        for (n, h) in entries {
+            self.entries.retain(|(m, _)| *m != n);
+            self.entries.push((n, h));
+            any = true;
+        }
+        if any {
+            if !self.origin.is_empty() {
+                self.origin.push_str(" and ");
+            }
+            self.origin.push_str(origin);
+        }
+    }
+
+    fn name_of(&self, header: &str) -> Option<&str> {
+        let h = header.trim();
+        self.entries
+            .iter()
+            .rev()
+            .find(|(_, fh)| fh.trim().eq_ignore_ascii_case(h))
+            .map(|(n, _)| n.as_str())
+    }
+}
+
+/// Check that `name` is one of neckline's column names.
+pub fn check_name(name: &str) -> std::result::Result<(), String> {
+    if NAMES.contains(&name) {
+        Ok(())
+    } else {
+        Err(format!(
+            "`{name}` is not a column neckline reads: expected one of {}",
+            NAMES.join(", ")
+        ))
+    }
+}
+
+/// How a row gives its strains.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Kind {
+    Axes {
+        major: usize,
+        minor: usize,
+    },
+    Eng {
+        major: usize,
+        minor: usize,
+    },
+    True {
+        major: usize,
+        minor: usize,
+    },
+    /// Both pairs: true strain is used, engineering is checked against it.
+    Both {
+        eng: (usize, usize),
+        tru: (usize, usize),
+    },
+}
+
+/// The recognised columns of a header.
+#[derive(Debug, Clone)]
+pub struct Columns {
+    /// The header as written, for messages.
+    names: Vec<String>,
+    id: Option<usize>,
+    kind: Kind,
+    d0: Option<usize>,
+    x: Option<usize>,
+    y: Option<usize>,
+    z: Option<usize>,
+    stage: Option<usize>,
+    thickness: Option<usize>,
+    thinning: Option<usize>,
+    note: Option<usize>,
+}
 
 fn canonical(name: &str) -> String {
     let n = name
         .trim()
         .trim_start_matches('\u{feff}')
+        .trim()
         .to_ascii_lowercase();
     match n.as_str() {
         "d1" => "major".into(),
@@ -147,48 +313,195 @@ fn canonical(name: &str) -> String {
 }
 
 impl Columns {
-    fn from_header(header: &csv::StringRecord, loc: &Location) -> Result<(Self, Vec<String>)> {
-        let names: Vec<String> = header.iter().map(canonical).collect();
-        let mut seen = HashSet::new();
-        for (i, n) in names.iter().enumerate() {
-            if !n.is_empty() && !seen.insert(n.clone()) {
-                return Err(Error::input(
-                    loc.clone().at_line(1).at_column(i as u64 + 1, n),
-                    format!("column `{n}` appears twice in the header"),
-                ));
-            }
-        }
-        let find = |n: &str| names.iter().position(|c| c == n);
-        for req in REQUIRED {
-            if find(req).is_none() {
+    /// Recognise the columns of `header`, through `map`. Returns the columns and notes for the
+    /// user (ignored columns, strain columns in use).
+    pub fn from_header(
+        header: &csv::StringRecord,
+        map: &ColumnMap,
+        loc: &Location,
+    ) -> Result<(Self, Vec<String>)> {
+        let at = |i: usize, n: &str| loc.clone().at_line(1).at_column(i as u64 + 1, n);
+        for (name, h) in &map.entries {
+            if !header
+                .iter()
+                .any(|f| f.trim().eq_ignore_ascii_case(h.trim()))
+            {
                 return Err(Error::input(
                     loc.clone().at_line(1),
                     format!(
-                        "missing column `{req}`: the header must name id, major and minor \
-                         (found: {})",
+                        "column map ({}): `{name} = \"{h}\"`, but the header has no column \
+                         `{h}` (found: {})",
+                        map.origin,
                         header.iter().collect::<Vec<_>>().join(", ")
                     ),
                 ));
             }
         }
-        let ignored = names
+        let names: Vec<String> = header
             .iter()
-            .filter(|n| !KNOWN.contains(&n.as_str()))
+            .map(|h| map.name_of(h).map_or_else(|| canonical(h), str::to_string))
+            .collect();
+        let own =
+            names.iter().any(|n| n == "thickness_true_pct") && names.iter().any(|n| n == "zone");
+        let mut seen = HashSet::new();
+        for (i, n) in names.iter().enumerate() {
+            if !n.is_empty() && !seen.insert(n.clone()) {
+                return Err(Error::input(
+                    at(i, n),
+                    format!("column `{n}` appears twice in the header"),
+                ));
+            }
+        }
+        let find = |n: &str| names.iter().position(|c| c == n);
+        let pair = |a: &str, b: &str| -> Result<Option<(usize, usize)>> {
+            match (find(a), find(b)) {
+                (Some(i), Some(j)) => Ok(Some((i, j))),
+                (None, None) => Ok(None),
+                (Some(i), None) | (None, Some(i)) => {
+                    let missing = if names[i] == a { b } else { a };
+                    Err(Error::input(
+                        loc.clone().at_line(1),
+                        format!(
+                            "missing column `{missing}`: `{a}` and `{b}` come as a pair, the \
+                             header has only `{}` (found: {})",
+                            names[i],
+                            header.iter().collect::<Vec<_>>().join(", ")
+                        ),
+                    ))
+                }
+            }
+        };
+        let axes = pair("major", "minor")?;
+        let eng = pair("major_eng_pct", "minor_eng_pct")?;
+        let tru = pair("major_true_pct", "minor_true_pct")?;
+        let mut notes = Vec::new();
+        let kind = match (axes, eng, tru) {
+            (Some(_), None, None) => {
+                let (major, minor) = axes.unwrap_or_default();
+                Kind::Axes { major, minor }
+            }
+            (Some((a, _)), e, t) => {
+                let s = e.or(t).map_or(0, |p| p.0);
+                return Err(Error::input(
+                    loc.clone().at_line(1),
+                    format!(
+                        "the header has both ellipse axes (`{}`) and strains (`{}`): give one \
+                         or the other (remove or rename the columns you do not mean)",
+                        header.get(a).unwrap_or(""),
+                        header.get(s).unwrap_or("")
+                    ),
+                ));
+            }
+            (None, Some((major, minor)), None) => Kind::Eng { major, minor },
+            (None, None, Some((major, minor))) => Kind::True { major, minor },
+            (None, Some(e), Some(t)) => {
+                if !own {
+                    notes.push(
+                        "both engineering and true strain columns: true strain is used, \
+                         engineering is checked against it"
+                            .to_string(),
+                    );
+                }
+                Kind::Both { eng: e, tru: t }
+            }
+            (None, None, None) => {
+                let mut msg = format!(
+                    "missing columns: the header must name id, major and minor (ellipse axes), \
+                     or major_eng_pct/minor_eng_pct or major_true_pct/minor_true_pct (strains, \
+                     percent) (found: {})",
+                    header.iter().collect::<Vec<_>>().join(", ")
+                );
+                if !map.entries.is_empty() {
+                    msg.push_str(&format!(
+                        "; the column map ({}) maps {}",
+                        map.origin,
+                        map.entries
+                            .iter()
+                            .map(|(n, h)| format!("`{h}` to {n}"))
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    ));
+                } else {
+                    msg.push_str("; map other headers with --column NAME=HEADER or [columns] in the job file");
+                }
+                return Err(Error::input(loc.clone().at_line(1), msg));
+            }
+        };
+        let id = find("id");
+        if id.is_none() {
+            if matches!(kind, Kind::Axes { .. }) {
+                return Err(Error::input(
+                    loc.clone().at_line(1),
+                    format!(
+                        "missing column `id`: the header must name id, major and minor (found: {}){}",
+                        header.iter().collect::<Vec<_>>().join(", "),
+                        if map.entries.is_empty() { String::new() } else { format!("; column map ({})", map.origin) }
+                    ),
+                ));
+            }
+            notes.push("no id column: each location is named by its line in the file".into());
+        }
+        let strains = !matches!(kind, Kind::Axes { .. });
+        if strains && find("d0").is_some() && !own {
+            notes.push("the d0 column is not used: the file gives strains, not axes".into());
+        }
+        // In a points.csv written by `check`, `thickness` and `thinning_pct` are computed: the
+        // measured thickness is `thickness_measured`.
+        let (thickness, thinning) = if own {
+            (find("thickness_measured"), find("thinning_measured_pct"))
+        } else {
+            (find("thickness"), find("thinning_pct"))
+        };
+        let used: Vec<&str> = if own {
+            let mut v = NAMES.to_vec();
+            v.extend(OWN_RESULT_COLUMNS);
+            v.extend(["thickness_measured", "thinning_measured_pct"]);
+            v.extend(crate::output::points_csv::GRID_COLUMNS);
+            v
+        } else {
+            let mut v = NAMES.to_vec();
+            v.push("");
+            v
+        };
+        let ignored: Vec<String> = names
+            .iter()
+            .filter(|n| !used.contains(&n.as_str()))
             .cloned()
             .collect();
+        if !ignored.is_empty() {
+            notes.push(format!("ignored columns: {}", ignored.join(", ")));
+        }
         let cols = Columns {
-            id: find("id").unwrap_or_default(),
-            major: find("major").unwrap_or_default(),
-            minor: find("minor").unwrap_or_default(),
-            d0: find("d0"),
+            id,
+            kind,
+            d0: if strains { None } else { find("d0") },
             x: find("x"),
             y: find("y"),
+            z: find("z"),
             stage: find("stage"),
-            thickness: find("thickness"),
+            thickness,
+            thinning,
             note: find("note"),
             names,
         };
-        Ok((cols, ignored))
+        Ok((cols, notes))
+    }
+
+    /// Whether rows give strains rather than axes.
+    pub fn gives_strains(&self) -> bool {
+        !matches!(self.kind, Kind::Axes { .. })
+    }
+
+    /// Whether the file has the column `name` (neckline's name).
+    pub fn has(&self, name: &str) -> bool {
+        match name {
+            "z" => self.z.is_some(),
+            "thinning_pct" => self.thinning.is_some(),
+            "stage" => self.stage.is_some(),
+            "x" => self.x.is_some(),
+            "y" => self.y.is_some(),
+            _ => self.names.iter().any(|n| n == name),
+        }
     }
 }
 
@@ -204,27 +517,41 @@ pub fn parse_number(text: &str, dialect: Dialect) -> std::result::Result<f64, St
     };
     match t.parse::<f64>() {
         Ok(v) if v.is_finite() => Ok(v),
-        _ => Err(format!("expected a finite number, found `{}`", text.trim())),
+        _ => Err(format!(
+            "expected a finite number, found `{}`",
+            crate::error::clip(text.trim(), 40)
+        )),
     }
 }
+
+/// Plausible engineering strain of a reading, as a fraction: −80 % to +400 % (stretch 0.2 to
+/// 5). Outside it the reading, d0, the unit or the column is wrong, not the sheet.
+pub const STRETCH_RANGE: (f64, f64) = (0.2, 5.0);
 
 /// Reads one row into a [`Measurement`], or says why it is rejected.
 struct RowReader<'a> {
     cols: &'a Columns,
     dialect: Dialect,
-    loc: Location,
+    file: &'a Path,
+    line: u64,
     record: &'a csv::StringRecord,
 }
 
 impl RowReader<'_> {
     fn reject(&self, col: usize, reason: String) -> RejectedRow {
         RejectedRow {
-            location: self
-                .loc
-                .clone()
+            location: Location::file(self.file)
+                .at_line(self.line)
                 .at_column(col as u64 + 1, &self.cols.names[col]),
-            id: self.text(self.cols.id),
+            id: self.id(),
             reason,
+        }
+    }
+
+    fn id(&self) -> Option<String> {
+        match self.cols.id {
+            Some(c) => self.text(c),
+            None => Some(self.line.to_string()),
         }
     }
 
@@ -243,7 +570,9 @@ impl RowReader<'_> {
 
     fn optional(&self, col: Option<usize>) -> std::result::Result<Option<f64>, RejectedRow> {
         match col {
-            Some(c) if self.text(c).is_some() => self.number(c).map(Some),
+            Some(c) if !self.record.get(c).unwrap_or("").trim().is_empty() => {
+                self.number(c).map(Some)
+            }
             _ => Ok(None),
         }
     }
@@ -256,11 +585,112 @@ impl RowReader<'_> {
         Ok(v)
     }
 
-    fn read(&self) -> std::result::Result<Measurement, RejectedRow> {
+    /// A strain in percent as a true strain; `eng` says which measure the column holds.
+    fn strain(&self, col: usize, eng: bool) -> std::result::Result<TrueStrain, RejectedRow> {
+        let v = self.number(col)?;
+        let t = if eng {
+            EngStrain::from_percent(v).to_true()
+        } else {
+            Some(TrueStrain::from_percent(v))
+        };
+        let plausible = t.filter(|t| {
+            let l = t.value().exp();
+            (STRETCH_RANGE.0..=STRETCH_RANGE.1).contains(&l)
+        });
+        plausible.ok_or_else(|| {
+            self.reject(
+                col,
+                format!(
+                    "{v} % is not a plausible strain: expected {} % to {} % engineering \
+                     (percent, not a fraction or an axis length?)",
+                    -80, 400
+                ),
+            )
+        })
+    }
+
+    fn pair(
+        &self,
+        (major, minor): (usize, usize),
+        eng: bool,
+    ) -> std::result::Result<Principal<TrueStrain>, RejectedRow> {
+        let (a, b) = (self.strain(major, eng)?, self.strain(minor, eng)?);
+        if a.value() < b.value() {
+            return Err(self.reject(
+                minor,
+                format!(
+                    "major strain {} is smaller than minor strain {}: columns swapped?",
+                    self.record.get(major).unwrap_or("").trim(),
+                    self.record.get(minor).unwrap_or("").trim()
+                ),
+            ));
+        }
+        Ok(Principal { major: a, minor: b })
+    }
+
+    fn reading(&self) -> std::result::Result<(Reading, bool), RejectedRow> {
         let c = self.cols;
-        if self.record.len() != c.names.len() {
+        Ok(match c.kind {
+            Kind::Axes { major, minor } => {
+                let d1 = self.positive(major, "the major axis")?;
+                let d2 = self.positive(minor, "the minor axis")?;
+                if d1 < d2 {
+                    return Err(self.reject(
+                        minor,
+                        format!(
+                            "major axis {d1} is smaller than minor axis {d2}: columns swapped?"
+                        ),
+                    ));
+                }
+                let d0 = match c.d0 {
+                    Some(col) if self.text(col).is_some() => Some(self.positive(col, "d0")?),
+                    _ => None,
+                };
+                (
+                    Reading::Axes {
+                        major: d1,
+                        minor: d2,
+                        d0,
+                    },
+                    false,
+                )
+            }
+            Kind::Eng { major, minor } => {
+                (Reading::Strains(self.pair((major, minor), true)?), false)
+            }
+            Kind::True { major, minor } => {
+                (Reading::Strains(self.pair((major, minor), false)?), false)
+            }
+            Kind::Both { eng, tru } => {
+                let t = self.pair(tru, false)?;
+                let e = self.pair(eng, true)?;
+                // Rounding to 0.01 pp in each column keeps the two within 0.01 pp.
+                let off =
+                    |a: TrueStrain, b: TrueStrain| (a.percent() - b.percent()).abs() > 0.01 + 1e-9;
+                (
+                    Reading::Strains(t),
+                    off(t.major, e.major) || off(t.minor, e.minor),
+                )
+            }
+        })
+    }
+
+    /// The measurement, and whether its engineering and true strains disagree.
+    fn read(&self) -> std::result::Result<(Measurement, bool), RejectedRow> {
+        let c = self.cols;
+        // Spreadsheets often end rows with empty fields: they are not fields of the header.
+        let mut len = self.record.len();
+        while len > c.names.len()
+            && self
+                .record
+                .get(len - 1)
+                .is_some_and(|f| f.trim().is_empty())
+        {
+            len -= 1;
+        }
+        if len != c.names.len() {
             return Err(RejectedRow {
-                location: self.loc.clone(),
+                location: Location::file(self.file).at_line(self.line),
                 id: None,
                 reason: format!(
                     "expected {} fields as in the header, found {}",
@@ -269,58 +699,67 @@ impl RowReader<'_> {
                 ),
             });
         }
-        let id = self
-            .text(c.id)
-            .ok_or_else(|| self.reject(c.id, "empty id".into()))?;
-        let major = self.positive(c.major, "the major axis")?;
-        let minor = self.positive(c.minor, "the minor axis")?;
-        if major < minor {
-            return Err(self.reject(
-                c.minor,
-                format!("major axis {major} is smaller than minor axis {minor}: columns swapped?"),
-            ));
-        }
-        let d0 = match c.d0 {
-            Some(col) if self.text(col).is_some() => Some(self.positive(col, "d0")?),
-            _ => None,
+        let id = match c.id {
+            Some(col) => self
+                .text(col)
+                .ok_or_else(|| self.reject(col, "empty id".into()))?,
+            None => self.line.to_string(),
         };
+        let (reading, disagree) = self.reading()?;
         let thickness = match c.thickness {
             Some(col) if self.text(col).is_some() => Some(self.positive(col, "thickness")?),
             _ => None,
         };
-        Ok(Measurement {
-            id,
-            line: self.loc.line.unwrap_or(0),
-            major,
-            minor,
-            d0,
-            x: self.optional(c.x)?,
-            y: self.optional(c.y)?,
-            stage: c.stage.and_then(|s| self.text(s)),
-            thickness,
-            note: c.note.and_then(|s| self.text(s)),
-        })
+        let thinning = match self.optional(c.thinning)? {
+            Some(t) if t >= 100.0 => {
+                return Err(self.reject(
+                    c.thinning.unwrap_or(0),
+                    format!("thinning {t} % is not below 100 %"),
+                ))
+            }
+            t => t.map(|t| t / 100.0),
+        };
+        Ok((
+            Measurement {
+                id,
+                line: self.line,
+                reading,
+                x: self.optional(c.x)?,
+                y: self.optional(c.y)?,
+                z: self.optional(c.z)?,
+                stage: c.stage.and_then(|s| self.text(s)),
+                thickness,
+                thinning,
+                note: c.note.and_then(|s| self.text(s)),
+            },
+            disagree,
+        ))
     }
 }
 
 /// Open `path` for reading; `-` is standard input.
-pub fn open_input(path: &Path) -> Result<Box<dyn BufRead>> {
+pub fn open_input(path: &Path) -> Result<Box<dyn BufRead + Send>> {
     if path.as_os_str() == "-" {
         return Ok(Box::new(BufReader::new(io::stdin())));
     }
     let f = File::open(path).map_err(|e| Error::io(path, e))?;
-    Ok(Box::new(BufReader::new(f)))
+    Ok(Box::new(BufReader::with_capacity(1 << 16, f)))
 }
 
-/// Read a measurement file from `path` (`-` for standard input).
+/// Read a measurement file from `path` (`-` for standard input) into memory: for small files
+/// (outlines, parts evidence); `check` streams through [`crate::stream`].
 pub fn read_measurements(path: &Path) -> Result<MeasurementSet> {
     let input = open_input(path)?;
-    read_measurements_from(input, path)
+    read_measurements_from(input, path, &ColumnMap::default())
 }
 
 /// Read measurements from any reader; `name` is used in messages.
-pub fn read_measurements_from(input: impl BufRead, name: &Path) -> Result<MeasurementSet> {
-    let mut rows = MeasurementReader::new(input, name)?;
+pub fn read_measurements_from(
+    input: impl BufRead,
+    name: &Path,
+    map: &ColumnMap,
+) -> Result<MeasurementSet> {
+    let mut rows = MeasurementReader::new(input, name, map)?;
     let mut points = Vec::new();
     let mut rejected = Vec::new();
     for row in &mut rows {
@@ -330,35 +769,109 @@ pub fn read_measurements_from(input: impl BufRead, name: &Path) -> Result<Measur
         }
     }
     if points.is_empty() && rejected.is_empty() {
-        return Err(Error::input(
-            Location::file(name),
-            "the file has a header but no measurement rows",
-        ));
+        return Err(no_rows(name));
     }
     Ok(MeasurementSet {
         source: name.to_path_buf(),
-        dialect: rows.dialect,
+        dialect: rows.header.dialect,
         points,
         rejected,
-        ignored_columns: rows.ignored_columns,
+        notes: rows.header.notes.clone(),
     })
 }
 
-/// The rows of a measurement file, one at a time, each accepted or rejected: the streaming
-/// form of [`read_measurements_from`] for files too large to hold. Memory stays bounded by one
-/// row plus the set of ids seen (needed to find duplicates). A file-level problem met part way
-/// (a broken UTF-8 sequence, an I/O error) ends the iteration with `Some(Err(..))`.
-pub struct MeasurementReader<B: BufRead> {
-    reader: csv::Reader<std::io::Chain<Cursor<Vec<u8>>, B>>,
-    cols: Columns,
-    loc: Location,
-    ids: HashSet<String>,
-    record: csv::StringRecord,
-    failed: bool,
+/// The error for a file with a header and no data row.
+pub fn no_rows(name: &Path) -> Error {
+    Error::input(
+        Location::file(name),
+        "the file has a header but no measurement rows",
+    )
+}
+
+/// The parsed header of a measurement file: everything needed to read its rows, in any order
+/// and on any thread.
+#[derive(Debug, Clone)]
+pub struct Header {
+    /// The file as named by the user.
+    pub file: PathBuf,
     /// The detected dialect.
     pub dialect: Dialect,
-    /// Header columns that were not recognised (ignored).
-    pub ignored_columns: Vec<String>,
+    /// The recognised columns.
+    pub columns: Columns,
+    /// Notes for the user about the header.
+    pub notes: Vec<String>,
+    /// Lines taken by comments and the header: the first data line is `lines + 1`.
+    pub lines: u64,
+}
+
+impl Header {
+    /// Read comment lines and the header line from `input`, which is left at the first data
+    /// line.
+    pub fn read(input: &mut impl BufRead, name: &Path, map: &ColumnMap) -> Result<Self> {
+        let loc = Location::file(name);
+        let (prefix, header) = read_header_line(input, name)?;
+        if header.is_empty() {
+            return Err(Error::input(
+                loc,
+                "the file is empty: expected a header row naming id, major, minor (or strain columns)",
+            ));
+        }
+        let dialect = Dialect::detect(&header);
+        let lines = prefix.bytes().filter(|&b| b == b'\n').count().max(1) as u64;
+        let mut reader = csv_reader(dialect, header.as_bytes());
+        let mut record = csv::StringRecord::new();
+        reader
+            .read_record(&mut record)
+            .map_err(|e| csv_error(&loc, e))?;
+        let (columns, notes) = Columns::from_header(&record, map, &loc)?;
+        Ok(Header {
+            file: name.to_path_buf(),
+            dialect,
+            columns,
+            notes,
+            lines,
+        })
+    }
+
+    /// Read one record at `line` into a measurement or a rejection, and whether its
+    /// engineering and true strains disagree.
+    pub fn row(
+        &self,
+        record: &csv::StringRecord,
+        line: u64,
+    ) -> std::result::Result<(Measurement, bool), RejectedRow> {
+        RowReader {
+            cols: &self.columns,
+            dialect: self.dialect,
+            file: &self.file,
+            line,
+            record,
+        }
+        .read()
+    }
+}
+
+/// A CSV reader over `input` for `dialect`, without a header row.
+pub fn csv_reader<R: Read>(dialect: Dialect, input: R) -> csv::Reader<R> {
+    csv::ReaderBuilder::new()
+        .delimiter(dialect.delimiter())
+        .has_headers(false)
+        .flexible(true)
+        .trim(csv::Trim::All)
+        .from_reader(input)
+}
+
+/// The rows of a measurement file, one at a time, each accepted or rejected. Memory stays
+/// bounded by one row plus the set of ids seen (needed to find duplicates). A file-level
+/// problem met part way (a broken UTF-8 sequence, an I/O error) ends the iteration with
+/// `Some(Err(..))`.
+pub struct MeasurementReader<B: BufRead> {
+    reader: csv::Reader<B>,
+    /// The header.
+    pub header: Header,
+    ids: HashSet<(String, Option<String>)>,
+    record: csv::StringRecord,
+    failed: bool,
 }
 
 /// One data row: the measurement, or why it was rejected.
@@ -366,51 +879,15 @@ pub type Row = std::result::Result<Measurement, RejectedRow>;
 
 impl<B: BufRead> MeasurementReader<B> {
     /// Read and check the header; `name` is used in messages.
-    pub fn new(mut input: B, name: &Path) -> Result<Self> {
-        let loc = Location::file(name);
-        let (prefix, header) = read_header_line(&mut input, name)?;
-        if header.is_empty() {
-            return Err(Error::input(
-                loc,
-                "the file is empty: expected a header row naming id, major, minor",
-            ));
-        }
-        let dialect = Dialect::detect(&header);
-        let mut reader = csv::ReaderBuilder::new()
-            .delimiter(dialect.delimiter())
-            .flexible(true)
-            .trim(csv::Trim::All)
-            .from_reader(Cursor::new(prefix.into_bytes()).chain(input));
-        let header = reader.headers().map_err(|e| csv_error(&loc, e))?.clone();
-        let (cols, ignored_columns) = Columns::from_header(&header, &loc)?;
+    pub fn new(mut input: B, name: &Path, map: &ColumnMap) -> Result<Self> {
+        let header = Header::read(&mut input, name, map)?;
         Ok(MeasurementReader {
-            reader,
-            cols,
-            loc,
+            reader: csv_reader(header.dialect, input),
+            header,
             ids: HashSet::new(),
             record: csv::StringRecord::new(),
             failed: false,
-            dialect,
-            ignored_columns,
         })
-    }
-
-    fn judge_row(&mut self) -> Row {
-        let line = self.record.position().map_or(0, |p| p.line());
-        let row = RowReader {
-            cols: &self.cols,
-            dialect: self.dialect,
-            loc: self.loc.clone().at_line(line),
-            record: &self.record,
-        };
-        let m = row.read()?;
-        if !self.ids.insert(m.id.clone()) {
-            return Err(row.reject(
-                self.cols.id,
-                format!("duplicate id `{}`: ids must be unique within a file", m.id),
-            ));
-        }
-        Ok(m)
     }
 }
 
@@ -426,26 +903,56 @@ impl<B: BufRead> Iterator for MeasurementReader<B> {
                 Ok(false) => return None,
                 Err(e) => {
                     self.failed = true;
-                    return Some(Err(csv_error(&self.loc, e)));
+                    return Some(Err(csv_error(&Location::file(&self.header.file), e)
+                        .shift_line(self.header.lines)));
                 }
-                // A blank spreadsheet row carries nothing to drop.
                 Ok(true) if self.record.iter().all(|f| f.trim().is_empty()) => continue,
-                Ok(true) => return Some(Ok(self.judge_row())),
+                Ok(true) => {
+                    let line = self.header.lines + self.record.position().map_or(0, |p| p.line());
+                    let row = self.header.row(&self.record, line).map(|(m, _)| m);
+                    return Some(Ok(row.and_then(|m| {
+                        if self.ids.insert((m.id.clone(), m.stage.clone())) {
+                            Ok(m)
+                        } else {
+                            Err(duplicate(&self.header, &m))
+                        }
+                    })));
+                }
             }
         }
     }
 }
 
+/// The rejection of a row whose id (and stage) came before.
+pub fn duplicate(header: &Header, m: &Measurement) -> RejectedRow {
+    let mut location = Location::file(&header.file).at_line(m.line);
+    if let Some(c) = header.columns.id {
+        location = location.at_column(c as u64 + 1, &header.columns.names[c]);
+    }
+    let reason = match &m.stage {
+        Some(s) => format!(
+            "duplicate id `{}` in stage `{s}`: each location is measured once per stage",
+            m.id
+        ),
+        None => format!("duplicate id `{}`: ids must be unique within a file", m.id),
+    };
+    RejectedRow {
+        location,
+        id: Some(m.id.clone()),
+        reason,
+    }
+}
+
 /// Read up to and including the first line that is neither blank nor a `#` comment.
-/// Returns what the CSV reader is to be fed in place of what was read (comment lines become
-/// empty lines, which it skips, so that line numbers stay right) and the header line.
+/// Returns what was read before the header (comment lines as empty lines, so that line
+/// numbers stay right) followed by the header line, and the header line.
 /// After the header `#` has no special meaning: a row is a row.
 pub(crate) fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<(String, String)> {
     let mut prefix = String::new();
     let mut line = String::new();
     loop {
         line.clear();
-        let n = input.read_line(&mut line).map_err(|e| Error::io(name, e))?;
+        let n = read_line_capped(input, &mut line, name)?;
         if n == 0 {
             return Ok((prefix, String::new()));
         }
@@ -461,6 +968,30 @@ pub(crate) fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<
     }
 }
 
+/// The longest header or comment line read (1 MiB): a longer one is not a measurement file.
+const MAX_HEADER_LINE: u64 = 1 << 20;
+
+fn read_line_capped(input: &mut impl BufRead, line: &mut String, name: &Path) -> Result<usize> {
+    let mut bytes = Vec::new();
+    let n = input
+        .take(MAX_HEADER_LINE)
+        .read_until(b'\n', &mut bytes)
+        .map_err(|e| Error::io(name, e))?;
+    if n as u64 >= MAX_HEADER_LINE && !bytes.ends_with(b"\n") {
+        return Err(Error::input(
+            Location::file(name),
+            "the first line is longer than 1 MiB: not a measurement CSV with a header row",
+        ));
+    }
+    *line = String::from_utf8(bytes).map_err(|_| {
+        Error::input(
+            Location::file(name).at_line(1),
+            "the header is not valid UTF-8 text: save the file as UTF-8 CSV (spreadsheets call it \"CSV UTF-8\")",
+        )
+    })?;
+    Ok(n)
+}
+
 pub(crate) fn csv_error(loc: &Location, e: csv::Error) -> Error {
     let line = e.position().map(|p| p.line());
     let message = match e.kind() {
@@ -472,140 +1003,4 @@ pub(crate) fn csv_error(loc: &Location, e: csv::Error) -> Error {
         None => loc.clone(),
     };
     Error::input(loc, message)
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    fn read(text: &str) -> Result<MeasurementSet> {
-        read_measurements_from(text.as_bytes(), Path::new("t.csv"))
-    }
-
-    #[test]
-    fn reads_comma_file() {
-        let s = read("id,major,minor,x,y\nA1,3.25,2.40,10,20\nA2,2.6,2.5,,\n").unwrap();
-        assert_eq!(s.dialect, Dialect::Comma);
-        assert_eq!(s.points.len(), 2);
-        assert_eq!(s.points[0].x, Some(10.0));
-        assert_eq!(s.points[1].x, None);
-        assert_eq!(s.points[1].line, 3);
-    }
-
-    #[test]
-    fn reads_semicolon_decimal_comma() {
-        let s = read("ID;Major;Minor;d0\nA1;3,25;2,40;2,5\n").unwrap();
-        assert_eq!(s.dialect, Dialect::Semicolon);
-        assert!((s.points[0].major - 3.25).abs() < 1e-12);
-        assert_eq!(s.points[0].d0, Some(2.5));
-    }
-
-    #[test]
-    fn missing_column_rejects_file() {
-        let e = read("id,major\nA,1\n").unwrap_err().to_string();
-        assert!(
-            e.contains("t.csv:1") && e.contains("missing column `minor`"),
-            "{e}"
-        );
-    }
-
-    #[test]
-    fn bad_rows_are_listed_with_line_and_column() {
-        let s = read("id,major,minor\nA,abc,2\nB,2,3\nC,0,0\nD,3,2\nD,3,2\nE,3\n").unwrap();
-        assert_eq!(s.points.len(), 1);
-        let r: Vec<String> = s.rejected.iter().map(|r| r.to_string()).collect();
-        assert!(
-            r[0].starts_with("t.csv:2:2 (column `major`)") && r[0].contains("`abc`"),
-            "{r:?}"
-        );
-        assert!(
-            r[1].contains(":3:3") && r[1].contains("smaller than minor"),
-            "{r:?}"
-        );
-        assert!(
-            r[2].contains(":4:2") && r[2].contains("greater than zero"),
-            "{r:?}"
-        );
-        assert!(
-            r[3].contains(":6:1") && r[3].contains("duplicate id `D`"),
-            "{r:?}"
-        );
-        assert!(
-            r[4].contains(":7") && r[4].contains("expected 3 fields"),
-            "{r:?}"
-        );
-    }
-
-    #[test]
-    fn leading_comments_do_not_decide_the_dialect() {
-        let s = read("# made by a, b, c\n\nid;major;minor\nA;3,1;2,6\n").unwrap();
-        assert_eq!(s.dialect, Dialect::Semicolon);
-        assert_eq!(s.points[0].line, 4);
-    }
-
-    #[test]
-    fn hash_after_the_header_is_a_row_not_a_comment() {
-        let s = read("# note\nid,major,minor\n#1,3,2\nA,3,2\n").unwrap();
-        assert_eq!(s.points.len(), 2);
-        assert_eq!(s.points[0].id, "#1");
-        assert_eq!(s.points[0].line, 3);
-    }
-
-    // The streaming reader gives the same rows, one at a time, as the whole-file reader.
-    #[test]
-    fn streaming_reader_yields_rows_in_order() {
-        let text = "id,major,minor\nA,3,2\nB,x,2\nA,3,2\n";
-        let rows: Vec<Row> = MeasurementReader::new(text.as_bytes(), Path::new("t.csv"))
-            .unwrap()
-            .map(|r| r.unwrap())
-            .collect();
-        assert_eq!(rows.len(), 3);
-        assert!(rows[0].is_ok() && rows[1].is_err() && rows[2].is_err());
-        let set = read("id,major,minor\nA,3,2\nB,x,2\nA,3,2\n").unwrap();
-        assert_eq!(set.points.len(), 1);
-        assert_eq!(set.rejected.len(), 2);
-    }
-
-    #[test]
-    fn invalid_utf8_part_way_is_a_file_error_with_its_line() {
-        let mut bytes = b"id,major,minor\nA,3,2\nB,3,2\n".to_vec();
-        bytes.extend_from_slice(b"C\xff,3,2\n");
-        let e = read_measurements_from(&bytes[..], Path::new("t.csv"))
-            .unwrap_err()
-            .to_string();
-        assert!(e.starts_with("t.csv:4") && e.contains("UTF-8"), "{e}");
-    }
-
-    #[test]
-    fn tab_separated_and_separator_hint_are_read() {
-        let s = read("id\tmajor\tminor\nA\t3,25\t2.40\n").unwrap();
-        assert_eq!(s.dialect, Dialect::Tab);
-        assert!((s.points[0].major - 3.25).abs() < 1e-12);
-        let s = read("sep=;\nid;major;minor\nA;3,25;2,40\n").unwrap();
-        assert_eq!(s.dialect, Dialect::Semicolon);
-        assert_eq!(s.points[0].line, 3);
-    }
-
-    #[test]
-    fn nan_and_infinity_are_not_numbers() {
-        let s = read("id,major,minor\nA,NaN,2\nB,inf,2\n").unwrap();
-        assert_eq!(s.rejected.len(), 2);
-    }
-
-    #[test]
-    fn empty_file_and_header_only_are_errors() {
-        assert!(read("").unwrap_err().to_string().contains("empty"));
-        assert!(read("id,major,minor\n")
-            .unwrap_err()
-            .to_string()
-            .contains("no measurement rows"));
-    }
-
-    #[test]
-    fn duplicate_header_is_an_error() {
-        let e = read("id,major,minor,major\nA,3,2,3\n")
-            .unwrap_err()
-            .to_string();
-        assert!(e.contains("appears twice"), "{e}");
-    }
 }

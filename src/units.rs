@@ -28,6 +28,13 @@ impl LengthUnit {
             LengthUnit::In => MM_PER_INCH,
         }
     }
+    /// The unit in words, plural: "millimetres", "inches".
+    pub fn plural(self) -> &'static str {
+        match self {
+            LengthUnit::Mm => "millimetres",
+            LengthUnit::In => "inches",
+        }
+    }
     /// Short name as written in files and flags.
     pub fn name(self) -> &'static str {
         match self {

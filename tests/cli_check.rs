@@ -204,7 +204,7 @@ fn bad_rows_are_listed_not_dropped() {
     let (dir, r) = run(&["check", &csv, "--limit", &lim, "--d0", "2.5", "--out", "o"]);
     assert_eq!(r.code, 0, "{r}");
     assert!(
-        r.stdout.contains("1 locations judged, 5 rows rejected"),
+        r.stdout.contains("1 location judged, 5 rows rejected"),
         "{r}"
     );
     for needle in [
@@ -575,7 +575,7 @@ fn measured_thickness_is_cross_checked() {
     // (0.78 − 0.80128) / 0.80128 = −2.66 %
     assert!(
         r.stdout
-            .contains("Thickness cross-check: 1 locations measured; largest difference -2.7 %"),
+            .contains("Thickness cross-check: 1 location measured; largest difference -2.7 %"),
         "{r}"
     );
     let points = std::fs::read_to_string(dir.path().join("o/points.csv")).unwrap();

@@ -1,19 +1,30 @@
-//! `neckline check`: the main job. Measured circles -> strains -> judgement -> files + summary.
+//! `neckline check`: the main job. Measured circles (or strains) -> judgement -> files + summary.
+//! One file streams through [`crate::stream`]; several files are judged side by side, each into
+//! its own folder, with an index.
 
 use super::outputs::{emit, OutputArgs, Plan};
-use super::{run_analysis, Outcome};
-use crate::analysis::Analysis;
+use super::progress::Progress;
+use super::{require_points, Outcome, Prepared};
+use crate::analysis::{Analysis, Context};
 use crate::cli::{JudgeArgs, LengthArgs};
 use crate::error::{Error, Result};
+use crate::measure::{open_input, Header};
+use crate::output::points_csv::Layout;
+use crate::output::{push_fixed, write_atomic, AtomicFile};
+use crate::stream::Pass;
 use clap::Args;
-use std::path::PathBuf;
+use rayon::prelude::*;
+use std::io::Write;
+use std::path::{Path, PathBuf};
 
 /// Arguments of `check`.
 #[derive(Debug, Clone, Args)]
 pub struct CheckArgs {
-    /// Measurement file (CSV: id, major, minor[, d0, x, y, stage, thickness, note]); `-` = stdin.
-    #[arg(value_name = "MEASUREMENTS.csv")]
-    pub measurements: PathBuf,
+    /// Measurement files (CSV: id, major, minor[, d0, x, y, z, stage, thickness, note], or
+    /// strain columns in percent instead of axes); `-` = stdin. Several files are judged each
+    /// into DIR/<file name>/, with DIR/index.csv.
+    #[arg(value_name = "MEASUREMENTS.csv", required = true, num_args = 1..)]
+    pub measurements: Vec<PathBuf>,
     /// Refuse the whole file (exit 2, nothing written) if any row is rejected.
     #[arg(long)]
     pub strict: bool,
@@ -30,36 +41,256 @@ pub struct CheckArgs {
 
 /// Run `check`.
 pub fn run(args: &CheckArgs) -> Result<Outcome> {
-    let plan = Plan::of(&args.output);
-    plan.prepare(&direct_inputs(args))?;
-    let a = run_analysis(&args.measurements, &args.lengths, &args.judge, None)?;
-    if args.strict && !a.rejected.is_empty() {
-        return Err(Error::Usage(format!(
-            "--strict: {} rows rejected, first: {}",
-            a.rejected.len(),
-            a.rejected[0]
-        )));
+    if let [one] = args.measurements.as_slice() {
+        let plan = Plan::of(&args.output);
+        plan.prepare(&direct_inputs(args, one))?;
+        let prep = Prepared::resolve(&args.lengths, &args.judge)?;
+        let a = check_one(one, args, &args.output, &plan, &prep, true, "")?;
+        return Ok(outcome(args, &a));
     }
-    emit(&a, &args.output, &plan, &inputs(args, &a), "")?;
-    let tripped = args.judge.fail_on.is_some_and(|z| a.trips(z));
-    Ok(if tripped {
+    run_many(args)
+}
+
+fn outcome(args: &CheckArgs, a: &Analysis) -> Outcome {
+    if args.judge.fail_on.is_some_and(|z| a.trips(z)) {
         Outcome::Tripped
     } else {
         Outcome::Done
-    })
+    }
 }
 
-/// The files named on the command line, known before anything is read.
-fn direct_inputs(args: &CheckArgs) -> Vec<PathBuf> {
-    let mut v = vec![args.measurements.clone()];
+/// The files named on the command line for one measurement file.
+fn direct_inputs(args: &CheckArgs, measurements: &Path) -> Vec<PathBuf> {
+    let mut v = vec![measurements.to_path_buf()];
     v.extend(args.lengths.job.clone());
     v.extend(args.judge.limit.clone());
     v
 }
 
-/// Every input, including the curve named by the job file.
-fn inputs(args: &CheckArgs, a: &Analysis) -> Vec<PathBuf> {
-    let mut v = direct_inputs(args);
-    v.extend(a.job.limit.clone());
-    v
+/// Judge one file and write its outputs; `single` = the only file of the run (progress bar,
+/// summary printed in full).
+fn check_one(
+    path: &Path,
+    args: &CheckArgs,
+    output: &OutputArgs,
+    plan: &Plan,
+    prep: &Prepared,
+    single: bool,
+    preface: &str,
+) -> Result<Analysis> {
+    let mut inputs = direct_inputs(args, path);
+    inputs.extend(prep.job.limit.clone());
+    let (a, points) = judge_file(path, prep, output, plan, &inputs, single)?;
+    if args.strict && a.rejected_total() > 0 {
+        return Err(Error::Usage(format!(
+            "--strict: {} rows rejected, first: {}",
+            a.rejected_total(),
+            a.rejected()[0]
+        )));
+    }
+    emit(&a, output, plan, &inputs, preface, points, single)?;
+    Ok(a)
+}
+
+/// Read, judge and summarise one measurement file in one streaming pass, writing points.csv
+/// (to a temporary file, returned for the caller to commit with the other outputs) as it goes.
+pub fn judge_file(
+    path: &Path,
+    prep: &Prepared,
+    output: &OutputArgs,
+    plan: &Plan,
+    inputs: &[PathBuf],
+    progress: bool,
+) -> Result<(Analysis, Option<AtomicFile>)> {
+    let mut input = open_input(path)?;
+    let header = Header::read(&mut input, path, &prep.map)?;
+    let strain_input = header.columns.gives_strains();
+    let mut notes = header.notes.clone();
+    if strain_input && prep.lengths.d0.is_some() {
+        notes.push("d0 is not used: the file gives strains, not axes".into());
+    }
+    let ctx = Context {
+        curve: prep.curve.clone(),
+        settings: prep.settings,
+        lengths: prep.lengths,
+        strain_input,
+    };
+    let layout = Layout {
+        strains_only: false,
+        z: header.columns.has("z"),
+        thinning: header.columns.has("thinning_pct"),
+        reading: prep.settings.reading_error.is_some(),
+        grid: false,
+        unit: prep.lengths.unit,
+    };
+    let mut file = match &plan.points {
+        Some(p) if !plan.points_to_stdout() => Some(AtomicFile::create(p, inputs)?),
+        _ => None,
+    };
+    let stdout = std::io::stdout();
+    let mut out = std::io::BufWriter::with_capacity(1 << 20, stdout.lock());
+    let mut sink: Option<&mut dyn Write> = match (&mut file, plan.points_to_stdout()) {
+        (Some(f), _) => Some(f),
+        (None, true) => Some(&mut out),
+        (None, false) => None,
+    };
+    let io_err = |e| Error::io(plan.points.as_deref().unwrap_or(Path::new("-")), e);
+    if let Some(w) = sink.as_mut() {
+        w.write_all(layout.header_line().as_bytes())
+            .map_err(io_err)?;
+    }
+    let size = std::fs::metadata(path).ok().map(|m| m.len());
+    let mut bar = Progress::new(&path.display().to_string(), size, progress);
+    let pass = Pass {
+        header: &header,
+        ctx: &ctx,
+        layout: &layout,
+        view: output.view(),
+        write: sink.is_some(),
+    };
+    let summary = pass.run(input, sink, &mut |b| bar.set(b));
+    bar.finish();
+    let summary = summary?;
+    match out.flush() {
+        Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => return Err(io_err(e)),
+        _ => {}
+    }
+    let mut a = Analysis::new(
+        path.to_path_buf(),
+        prep.job.clone(),
+        ctx,
+        output.view(),
+        &notes,
+    );
+    a.summary = summary;
+    a.finish();
+    let a = require_points(a, path, "no location could be judged", "rows")?;
+    Ok((a, file))
+}
+
+/// Several files: each judged into `DIR/<file stem>/`, one thread each, then `DIR/index.csv`
+/// and one line per file. The exit status is the worst of them.
+fn run_many(args: &CheckArgs) -> Result<Outcome> {
+    let dirs = folders(&args.measurements, &args.output.out)?;
+    if args.output.points.is_some() {
+        return Err(Error::Usage(
+            "--points names one file: with several measurement files each gets DIR/<name>/points.csv"
+                .into(),
+        ));
+    }
+    let prep = Prepared::resolve(&args.lengths, &args.judge)?;
+    let results: Vec<Result<Analysis>> = args
+        .measurements
+        .par_iter()
+        .zip(&dirs)
+        .map(|(path, dir)| {
+            let mut output = args.output.clone();
+            output.out = dir.clone();
+            let plan = Plan::of(&output);
+            plan.prepare(&direct_inputs(args, path))?;
+            check_one(path, args, &output, &plan, &prep, false, "")
+        })
+        .collect();
+    let mut text = String::new();
+    let mut worst = Outcome::Done;
+    let mut failed = 0;
+    for ((path, dir), r) in args.measurements.iter().zip(&dirs).zip(&results) {
+        match r {
+            Ok(a) => {
+                if outcome(args, a) == Outcome::Tripped {
+                    worst = Outcome::Tripped;
+                }
+                text.push_str(&format!(
+                    "{:<10} {} ({} judged, {} failed, {} marginal) -> {}\n",
+                    a.verdict().name().to_uppercase(),
+                    path.display(),
+                    a.total(),
+                    a.count(crate::assess::Zone::Failed),
+                    a.count(crate::assess::Zone::Marginal),
+                    dir.display()
+                ));
+            }
+            Err(e) => {
+                failed += 1;
+                text.push_str(&format!("{:<10} {}: {e}\n", "ERROR", path.display()));
+            }
+        }
+    }
+    let index = args.output.out.join("index.csv");
+    let inputs: Vec<PathBuf> = args.measurements.clone();
+    write_atomic(&index, &inputs, |w| {
+        w.write_all(index_csv(&args.measurements, &results).as_bytes())
+    })?;
+    print!("{text}");
+    println!("Wrote {}", index.display());
+    println!("{}", crate::analysis::CAUTION);
+    if failed > 0 {
+        return Err(Error::Usage(format!(
+            "{failed} of {} files could not be judged (see above)",
+            args.measurements.len()
+        )));
+    }
+    Ok(worst)
+}
+
+/// One output folder per file, named by its stem; two files with one stem are refused.
+fn folders(files: &[PathBuf], out: &Path) -> Result<Vec<PathBuf>> {
+    let mut seen = std::collections::HashMap::new();
+    let mut dirs = Vec::new();
+    for f in files {
+        if f.as_os_str() == "-" {
+            return Err(Error::Usage(
+                "standard input (-) can only be judged alone".into(),
+            ));
+        }
+        let stem = f
+            .file_stem()
+            .map_or_else(|| "input".into(), |s| s.to_string_lossy().into_owned());
+        if let Some(other) = seen.insert(stem.clone(), f.clone()) {
+            return Err(Error::Usage(format!(
+                "{} and {} would both write into {}: rename one, or judge them separately",
+                other.display(),
+                f.display(),
+                out.join(&stem).display()
+            )));
+        }
+        dirs.push(out.join(stem));
+    }
+    Ok(dirs)
+}
+
+/// `index.csv`: one row per file.
+fn index_csv(files: &[PathBuf], results: &[Result<Analysis>]) -> String {
+    let mut s = String::from("file,points,rejected");
+    for z in crate::assess::Zone::ALL {
+        s.push(',');
+        s.push_str(z.name());
+    }
+    s.push_str(",worst_id,worst_margin_pct,verdict\n");
+    for (f, r) in files.iter().zip(results) {
+        let name = f.display().to_string().replace('"', "\"\"");
+        s.push_str(&format!("\"{name}\","));
+        match r {
+            Ok(a) => {
+                s.push_str(&format!("{},{}", a.total(), a.rejected_total()));
+                for (_, n) in a.counts() {
+                    s.push_str(&format!(",{n}"));
+                }
+                let w = a.worst(1);
+                let (id, m) = w.first().map_or((String::new(), None), |p| {
+                    (p.input.id.clone(), p.judgement.margin_pct)
+                });
+                s.push_str(&format!(",\"{}\",", id.replace('"', "\"\"")));
+                if let Some(m) = m {
+                    push_fixed(&mut s, m, 3);
+                }
+                s.push_str(&format!(",{}\n", a.verdict().name()));
+            }
+            Err(_) => {
+                s.push_str(&",".repeat(10));
+                s.push_str("error\n");
+            }
+        }
+    }
+    s
 }

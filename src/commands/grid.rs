@@ -2,13 +2,16 @@
 
 use super::outputs::{emit, OutputArgs, Plan};
 use super::{limit_path, load_job, resolve_lengths, resolve_settings, Outcome};
-use crate::analysis::{analyse_states, Analysis};
+use crate::analysis::{Analysis, Context, PointResult};
 use crate::cli::{JudgeArgs, LengthArgs};
 use crate::error::{Error, Result};
 use crate::grid::{evaluate, read::read_mesh};
 use crate::limit::LimitCurve;
+use crate::output::points_csv::{self, Layout};
+use crate::output::AtomicFile;
 use crate::units::LengthUnit;
 use clap::Args;
+use std::io::Write;
 use std::path::PathBuf;
 
 /// Arguments of `grid`.
@@ -49,11 +52,12 @@ fn length_args(args: &GridArgs) -> LengthArgs {
         d0: None,
         t0: args.t0,
         unit: args.unit,
+        columns: Vec::new(),
     }
 }
 
 /// Read the mesh, compute every element's strains and judge them.
-pub fn grid_analysis(args: &GridArgs) -> Result<Analysis> {
+pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>)> {
     let job = load_job(&length_args(args))?;
     let mut lengths = resolve_lengths(&length_args(args), &job)?;
     lengths.d0 = None;
@@ -67,15 +71,25 @@ pub fn grid_analysis(args: &GridArgs) -> Result<Analysis> {
         (&a.location.file, a.location.line).cmp(&(&b.location.file, b.location.line))
     });
     let job_d0 = job.d0.is_some();
-    let mut a = analyse_states(
-        args.nodes.clone(),
-        states,
-        rejected,
-        &ignored,
-        job,
-        lengths,
+    let ctx = Context {
         curve,
         settings,
+        lengths,
+        strain_input: false,
+    };
+    let notes: Vec<String> = if ignored.is_empty() {
+        Vec::new()
+    } else {
+        vec![format!("ignored columns: {}", ignored.join(", "))]
+    };
+    let (mut a, all) = Analysis::of_states(
+        args.nodes.clone(),
+        job,
+        ctx,
+        args.output.view(),
+        states,
+        rejected,
+        &notes,
     );
     if job_d0 {
         a.warnings.push(
@@ -83,12 +97,13 @@ pub fn grid_analysis(args: &GridArgs) -> Result<Analysis> {
                 .into(),
         );
     }
-    super::require_points(
+    let a = super::require_points(
         a,
         &args.nodes,
         "no element could be evaluated",
         "rows or elements",
-    )
+    )?;
+    Ok((a, all))
 }
 
 /// Run `grid`.
@@ -99,25 +114,42 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
     inputs.extend(args.judge.limit.clone());
     let plan = Plan::of(&args.output);
     plan.prepare(&inputs)?;
-    let a = grid_analysis(args)?;
-    if args.strict && !a.rejected.is_empty() {
+    let (a, all) = grid_analysis(args)?;
+    if args.strict && a.rejected_total() > 0 {
         return Err(Error::Usage(format!(
             "--strict: {} node rows or elements rejected, first: {}",
-            a.rejected.len(),
-            a.rejected[0]
+            a.rejected_total(),
+            a.rejected()[0]
         )));
     }
     inputs.extend(a.job.limit.clone());
-    let three_d = a
-        .points
-        .iter()
-        .any(|p| p.grid.as_ref().is_some_and(|g| g.normal.is_some()));
+    let three_d = a.summary.grid.1;
     let preface = format!(
         "Grid: {} elements evaluated from node positions ({}), quads at their centre\n",
-        a.points.len(),
+        a.total(),
         if three_d { "3-D formed part" } else { "2-D" }
     );
-    emit(&a, &args.output, &plan, &inputs, &preface)?;
+    let layout = Layout {
+        grid: true,
+        reading: a.settings.reading_error.is_some(),
+        unit: a.lengths.unit,
+        ..Layout::default()
+    };
+    let text = points_csv::table(&layout, &all);
+    drop(all);
+    let points = match &plan.points {
+        Some(_) if plan.points_to_stdout() => {
+            super::outputs::write_stdout(text.as_bytes())?;
+            None
+        }
+        Some(p) => {
+            let mut f = AtomicFile::create(p, &inputs)?;
+            f.write_all(text.as_bytes()).map_err(|e| Error::io(p, e))?;
+            Some(f)
+        }
+        None => None,
+    };
+    emit(&a, &args.output, &plan, &inputs, &preface, points, true)?;
     let tripped = args.judge.fail_on.is_some_and(|z| a.trips(z));
     Ok(if tripped {
         Outcome::Tripped

@@ -401,24 +401,29 @@ fn plot_kind(path: &Path) -> Result<bool> {
 /// Draw the curve alone on a forming-limit diagram (no locations), through the same drawing
 /// code as `check`, so the two pictures read the same.
 fn plot_curve(curve: &LimitCurve, path: &Path, svg: bool) -> Result<()> {
-    let a = Analysis {
-        input: PathBuf::from("(generated curve)"),
-        job: Job {
-            part: Some(format!("generated curve: {}", curve.name)),
-            material: curve.material.clone(),
-            ..Job::default()
-        },
+    let job = Job {
+        part: Some(format!("generated curve: {}", curve.name)),
+        material: curve.material.clone(),
+        ..Job::default()
+    };
+    let ctx = crate::analysis::Context {
+        curve: curve.clone(),
+        settings: Settings::default(),
         lengths: Lengths {
             unit: Default::default(),
             d0: None,
             t0: None,
         },
-        curve: curve.clone(),
-        settings: Settings::default(),
-        points: Vec::new(),
-        rejected: Vec::new(),
-        warnings: Vec::new(),
+        strain_input: false,
     };
+    let mut a = Analysis::new(
+        PathBuf::from("(generated curve)"),
+        job,
+        ctx,
+        Default::default(),
+        &[],
+    );
+    a.warnings.clear();
     let opts = FldOptions {
         measure: curve.measure,
         ..FldOptions::default()

@@ -6,15 +6,16 @@ pub mod fit;
 pub mod grid;
 pub mod limit;
 pub mod outputs;
+pub mod progress;
 pub mod strains;
 
-use crate::analysis::{analyse, Analysis, Lengths};
+use crate::analysis::{Analysis, Lengths};
 use crate::assess::Settings;
 use crate::cli::{JudgeArgs, LengthArgs};
 use crate::error::{Error, Result};
 use crate::job::Job;
 use crate::limit::LimitCurve;
-use crate::measure::read_measurements;
+use crate::measure::ColumnMap;
 use crate::units::Length;
 use std::path::{Path, PathBuf};
 
@@ -82,38 +83,64 @@ pub fn limit_path(args: &JudgeArgs, job: &Job) -> Result<PathBuf> {
         })
 }
 
-/// Read, compute and judge a measurement file: the data path shared by `check` and `strains`.
-pub fn run_analysis(
-    measurements: &Path,
-    lengths: &LengthArgs,
-    judge: &JudgeArgs,
-    curve: Option<LimitCurve>,
-) -> Result<Analysis> {
-    let job = load_job(lengths)?;
-    let l = resolve_lengths(lengths, &job)?;
-    let settings = resolve_settings(judge, &job)?;
-    let curve = match curve {
-        Some(c) => c,
-        None => LimitCurve::load(&limit_path(judge, &job)?)?,
-    };
-    let set = read_measurements(measurements)?;
-    let a = analyse(set, job, l, curve, settings);
-    require_points(a, measurements, "no location could be judged", "rows")
+/// The column map: the job file's `[columns]` under `--column`.
+pub fn column_map(args: &LengthArgs, job: &Job) -> ColumnMap {
+    let mut map = ColumnMap::default();
+    let origin = args.job.as_deref().map_or_else(
+        || "the job file's [columns]".to_string(),
+        |p| format!("{} [columns]", p.display()),
+    );
+    map.extend(job.columns.clone(), &origin);
+    map.extend(args.columns.clone(), "--column");
+    map
+}
+
+/// Everything a measurement file is judged with, resolved from flags over the job file.
+#[derive(Debug, Clone)]
+pub struct Prepared {
+    /// The job.
+    pub job: Job,
+    /// The lengths.
+    pub lengths: Lengths,
+    /// The settings.
+    pub settings: Settings,
+    /// The curve.
+    pub curve: LimitCurve,
+    /// The column map.
+    pub map: ColumnMap,
+}
+
+impl Prepared {
+    /// Resolve the job, lengths, settings, curve and column map.
+    pub fn resolve(lengths: &LengthArgs, judge: &JudgeArgs) -> Result<Self> {
+        let job = load_job(lengths)?;
+        let l = resolve_lengths(lengths, &job)?;
+        let settings = resolve_settings(judge, &job)?;
+        let curve = LimitCurve::load(&limit_path(judge, &job)?)?;
+        let map = column_map(lengths, &job);
+        Ok(Prepared {
+            job,
+            lengths: l,
+            settings,
+            curve,
+            map,
+        })
+    }
 }
 
 /// Refuse an analysis in which nothing could be judged: `what` says what failed, `of` names
 /// the rejected things; the first rejection is quoted.
 pub fn require_points(a: Analysis, input: &Path, what: &str, of: &str) -> Result<Analysis> {
-    if a.points.is_empty() {
+    if a.total() == 0 {
         let first = a
-            .rejected
+            .rejected()
             .first()
             .map(|r| format!("; first: {r}"))
             .unwrap_or_default();
         return Err(Error::Usage(format!(
             "{}: {what} ({} {of} rejected{first})",
             input.display(),
-            a.rejected.len()
+            a.rejected_total()
         )));
     }
     Ok(a)

@@ -4,8 +4,11 @@
 use crate::analysis::Analysis;
 use crate::error::{Error, Result};
 use crate::output::fld::{self, FldOptions};
-use crate::output::{guard_inputs, map, points_csv, report, summary_json, terminal, write_atomic};
+use crate::output::map::MapValue;
+use crate::output::AtomicFile;
+use crate::output::{guard_inputs, map, report, summary_json, terminal, write_atomic};
 use crate::strain::StrainMeasure;
+use crate::summary::{MapPlane, View};
 use clap::{Args, ValueEnum};
 use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
@@ -56,6 +59,27 @@ pub struct OutputArgs {
     /// Strain measure of the diagram's axes.
     #[arg(long, value_name = "MEASURE", default_value = "engineering")]
     pub plot_strain: PlotStrain,
+    /// What the part map shows: the margin to the curve (pp), the thinning (%) or the major
+    /// strain (engineering %).
+    #[arg(long, value_name = "VALUE", default_value = "margin")]
+    pub map_value: MapValue,
+    /// The plane the part map is drawn in (for parts whose main face is not in x-y; z comes
+    /// from a `z` column or the grid).
+    #[arg(long, value_name = "PLANE", default_value = "xy")]
+    pub map_plane: MapPlane,
+}
+
+impl OutputArgs {
+    /// How the pictures will show the locations.
+    pub fn view(&self) -> View {
+        View {
+            measure: match self.plot_strain {
+                PlotStrain::Engineering => StrainMeasure::Engineering,
+                PlotStrain::True => StrainMeasure::True,
+            },
+            plane: self.map_plane,
+        }
+    }
 }
 
 /// The files one run will write, decided and checked before any work is done.
@@ -140,11 +164,19 @@ pub fn emit(
     plan: &Plan,
     inputs: &[PathBuf],
     preface: &str,
+    points: Option<AtomicFile>,
+    print: bool,
 ) -> Result<()> {
-    let written = write_outputs(a, args, plan, inputs)?;
+    let written = write_outputs(a, args, plan, inputs, points)?;
+    if !print {
+        return Ok(());
+    }
     let mut text = String::new();
-    if map::placed(a).is_empty() && (plan.svg.is_some() || plan.png.is_some()) {
-        text.push_str("note: no location has x, y: the part map was not drawn\n");
+    if a.summary.placed == 0 && (plan.svg.is_some() || plan.png.is_some()) {
+        let (u, v) = args.map_plane.axes();
+        text.push_str(&format!(
+            "note: no location has {u}, {v}: the part map was not drawn\n"
+        ));
     }
     for stale in stale_outputs(&args.out, &written) {
         text.push_str(&terminal::wrap(
@@ -176,10 +208,7 @@ pub fn emit(
 
 fn fld_options(args: &OutputArgs) -> FldOptions {
     FldOptions {
-        measure: match args.plot_strain {
-            PlotStrain::Engineering => StrainMeasure::Engineering,
-            PlotStrain::True => StrainMeasure::True,
-        },
+        measure: args.view().measure,
         ..FldOptions::default()
     }
 }
@@ -202,20 +231,11 @@ fn write_outputs(
     args: &OutputArgs,
     plan: &Plan,
     inputs: &[PathBuf],
+    points: Option<AtomicFile>,
 ) -> Result<Vec<PathBuf>> {
     plan.prepare(inputs)?;
     let render = |p: &Path, e: std::io::Error| Error::io(p, e);
     let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
-    let mut stdout_csv = None;
-    if let Some(p) = &plan.points {
-        let mut csv = Vec::new();
-        points_csv::write_points(a, &mut csv).map_err(|e| render(p, e))?;
-        if plan.points_to_stdout() {
-            stdout_csv = Some(csv);
-        } else {
-            files.push((p.clone(), csv));
-        }
-    }
     if let Some(p) = &plan.summary {
         let mut json = Vec::new();
         summary_json::write_summary(a, &mut json).map_err(|e| render(p, e))?;
@@ -225,24 +245,26 @@ fn write_outputs(
     if let Some((f, m)) = &plan.svg {
         let svg = fld::fld_svg(a, &opts).map_err(|e| render(f, e))?;
         files.push((f.clone(), svg.into_bytes()));
-        if let Some(svg) = map::map_svg(a).map_err(|e| render(m, e))? {
+        if let Some(svg) = map::map_svg(a, args.map_value).map_err(|e| render(m, e))? {
             files.push((m.clone(), svg.into_bytes()));
         }
     }
     if let Some((f, m)) = &plan.png {
         files.push((f.clone(), fld::fld_png(a, &opts).map_err(|e| render(f, e))?));
-        if let Some(png) = map::map_png(a).map_err(|e| render(m, e))? {
+        if let Some(png) = map::map_png(a, args.map_value).map_err(|e| render(m, e))? {
             files.push((m.clone(), png));
         }
     }
     if let Some(p) = &plan.html {
-        let html = report::report_html(a, &opts).map_err(|e| render(p, e))?;
+        let html = report::report_html(a, &opts, args.map_value).map_err(|e| render(p, e))?;
         files.push((p.clone(), html.into_bytes()));
     }
-    if let Some(csv) = stdout_csv {
-        write_stdout(&csv)?;
+    let mut written = Vec::with_capacity(files.len() + 1);
+    if let Some(f) = points {
+        let p = f.path().to_path_buf();
+        f.commit()?;
+        written.push(p);
     }
-    let mut written = Vec::with_capacity(files.len());
     for (path, bytes) in files {
         write_atomic(&path, inputs, |w| w.write_all(&bytes))?;
         written.push(path);
@@ -261,7 +283,7 @@ fn stale_outputs(dir: &Path, written: &[PathBuf]) -> Vec<PathBuf> {
 }
 
 /// Write to standard output; a closed pipe is not an error.
-fn write_stdout(bytes: &[u8]) -> Result<()> {
+pub fn write_stdout(bytes: &[u8]) -> Result<()> {
     let stdout = std::io::stdout();
     let mut out = stdout.lock();
     match out.write_all(bytes).and_then(|()| out.flush()) {

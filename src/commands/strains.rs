@@ -1,20 +1,22 @@
-//! `neckline strains`: the strain columns alone, as CSV on stdout.
+//! `neckline strains`: the strain columns alone, as CSV on stdout, streamed.
 
 use super::Outcome;
-use crate::analysis::{analyse, Lengths};
+use crate::analysis::{Analysis, Context, Lengths};
 use crate::assess::Settings;
 use crate::cli::LengthArgs;
 use crate::error::{Error, Result};
 use crate::limit::LimitCurve;
-use crate::measure::read_measurements;
-use crate::output::points_csv;
+use crate::measure::{open_input, Header};
+use crate::output::points_csv::Layout;
+use crate::stream::Pass;
 use clap::Args;
+use std::io::Write;
 use std::path::PathBuf;
 
 /// Arguments of `strains`.
 #[derive(Debug, Clone, Args)]
 pub struct StrainsArgs {
-    /// Measurement file (CSV: id, major, minor[, d0, ...]); `-` = stdin.
+    /// Measurement file (CSV: id, major, minor[, d0, ...], or strain columns); `-` = stdin.
     #[arg(value_name = "MEASUREMENTS.csv")]
     pub measurements: PathBuf,
     /// Lengths and job file.
@@ -41,23 +43,61 @@ fn unbounded_curve() -> LimitCurve {
 pub fn run(args: &StrainsArgs) -> Result<Outcome> {
     let job = super::load_job(&args.lengths)?;
     let lengths: Lengths = super::resolve_lengths(&args.lengths, &job)?;
-    let set = read_measurements(&args.measurements)?;
-    let a = analyse(set, job, lengths, unbounded_curve(), Settings::default());
-    for r in &a.rejected {
+    let map = super::column_map(&args.lengths, &job);
+    let path = &args.measurements;
+    let mut input = open_input(path)?;
+    let header = Header::read(&mut input, path, &map)?;
+    let ctx = Context {
+        curve: unbounded_curve(),
+        settings: Settings::default(),
+        lengths,
+        strain_input: header.columns.gives_strains(),
+    };
+    let layout = Layout {
+        strains_only: true,
+        unit: lengths.unit,
+        ..Layout::default()
+    };
+    let stdout = std::io::stdout();
+    let mut out = std::io::BufWriter::with_capacity(1 << 20, stdout.lock());
+    let pass = Pass {
+        header: &header,
+        ctx: &ctx,
+        layout: &layout,
+        view: Default::default(),
+        write: true,
+    };
+    let broken = |e: &std::io::Error| e.kind() == std::io::ErrorKind::BrokenPipe;
+    let stdout_err = |e| Error::io(std::path::Path::new("<stdout>"), e);
+    match out.write_all(layout.header_line().as_bytes()) {
+        Err(e) if broken(&e) => return Ok(Outcome::Done),
+        r => r.map_err(stdout_err)?,
+    }
+    let summary = match pass.run(input, Some(&mut out), &mut |_| {}) {
+        Err(Error::Io { reason, .. }) if broken(&reason) => return Ok(Outcome::Done),
+        r => r?,
+    };
+    match out.flush() {
+        Err(e) if broken(&e) => return Ok(Outcome::Done),
+        r => r.map_err(stdout_err)?,
+    }
+    for r in &summary.rejected.items {
         eprintln!("rejected: {r}");
     }
-    if a.points.is_empty() {
+    if summary.rejected.total > summary.rejected.items.len() {
+        eprintln!(
+            "rejected: ... and {} more",
+            summary.rejected.total - summary.rejected.items.len()
+        );
+    }
+    let mut a = Analysis::new(path.clone(), job, ctx, Default::default(), &header.notes);
+    a.summary = summary;
+    if a.total() == 0 {
         return Err(Error::Usage(format!(
             "{}: no location could be computed ({} rows rejected, listed above)",
-            args.measurements.display(),
-            a.rejected.len()
+            path.display(),
+            a.rejected_total()
         )));
     }
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
-    match points_csv::write_strains(&a, &mut out) {
-        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(Outcome::Done),
-        Err(e) => Err(Error::io(std::path::Path::new("<stdout>"), e)),
-        Ok(()) => Ok(Outcome::Done),
-    }
+    Ok(Outcome::Done)
 }

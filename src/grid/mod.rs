@@ -44,18 +44,9 @@ pub fn state_input(e: &Element, r: &ElementResult, three_d: bool) -> Option<Stat
     let [l1, l2] = k.stretches.values;
     let strain = StrainState::from_stretches(Stretch::new(l1)?, Stretch::new(l2)?);
     let d0 = r.equivalent_d0();
-    let input = Measurement {
-        id: e.id.clone(),
-        line: e.line,
-        major: l1 * d0,
-        minor: l2 * d0,
-        d0: Some(d0),
-        x: Some(r.centre.x),
-        y: Some(r.centre.y),
-        stage: None,
-        thickness: None,
-        note: None,
-    };
+    let mut input = Measurement::axes(&e.id, e.line, l1 * d0, l2 * d0, Some(d0));
+    input.x = Some(r.centre.x);
+    input.y = Some(r.centre.y);
     let grid = GridExtras {
         nodes: e.nodes.len(),
         major_angle_deg: k.major_angle_deg(),
@@ -66,7 +57,7 @@ pub fn state_input(e: &Element, r: &ElementResult, three_d: bool) -> Option<Stat
     };
     Some(StateInput {
         input,
-        d0,
+        d0: Some(d0),
         strain,
         grid: Some(Box::new(grid)),
     })

@@ -2,11 +2,11 @@
 //! test, and 24 locations chosen to land in every zone. Deterministic: no dates from the clock,
 //! no absolute paths.
 
-use crate::analysis::{analyse, Analysis, Lengths};
+use crate::analysis::{state_of, Analysis, Context, Lengths};
 use crate::assess::Settings;
 use crate::job::Job;
 use crate::limit::LimitCurve;
-use crate::measure::read_measurements_from;
+use crate::measure::{read_measurements_from, ColumnMap};
 use crate::units::LengthUnit;
 use std::path::Path;
 
@@ -82,7 +82,8 @@ pub fn job() -> Job {
 pub fn analysis(with_xy: bool) -> Analysis {
     let curve = LimitCurve::parse(CURVE_TOML, Path::new("test-curve.toml")).unwrap();
     let text = csv(with_xy);
-    let set = read_measurements_from(text.as_bytes(), Path::new("tryout-fixture.csv")).unwrap();
+    let file = Path::new("tryout-fixture.csv");
+    let set = read_measurements_from(text.as_bytes(), file, &ColumnMap::default()).unwrap();
     let lengths = Lengths {
         unit: LengthUnit::Mm,
         d0: Some(2.5),
@@ -92,5 +93,24 @@ pub fn analysis(with_xy: bool) -> Analysis {
         max_thinning_pct: Some(25.0),
         ..Settings::default()
     };
-    analyse(set, job(), lengths, curve, settings)
+    let ctx = Context {
+        curve,
+        settings,
+        lengths,
+        strain_input: false,
+    };
+    let states = set
+        .points
+        .into_iter()
+        .map(|m| state_of(m, file, &lengths).unwrap());
+    let (a, _) = Analysis::of_states(
+        file.to_path_buf(),
+        job(),
+        ctx,
+        Default::default(),
+        states,
+        set.rejected,
+        &set.notes,
+    );
+    a
 }

@@ -136,10 +136,12 @@ fn round_out(lo: f64, hi: f64, step: f64) -> (f64, f64) {
 
 /// Axis ranges that hold every location and the whole curve, with some air.
 pub fn ranges(a: &Analysis, measure: StrainMeasure) -> ((f64, f64), (f64, f64)) {
-    let pts: Vec<(f64, f64)> = a
-        .points
-        .iter()
-        .map(|p| point_xy(p, measure))
+    let extent: Vec<(f64, f64)> = match a.summary.extent {
+        Some(e) if a.summary.view.measure == measure => vec![(e[0], e[1]), (e[2], e[3])],
+        _ => a.points().iter().map(|p| point_xy(p, measure)).collect(),
+    };
+    let pts: Vec<(f64, f64)> = extent
+        .into_iter()
         .chain(curve_line(a, measure))
         .filter(|p| p.0.is_finite() && p.1.is_finite())
         .collect();
@@ -242,6 +244,9 @@ fn draw<DB: DrawingBackend>(
         plot_box.2 - 2,
         plot_box.3 - 2,
     ));
+    if draws_density(a, m) {
+        draw_density(root, a, &px, (xr.1 - xr.0).max(yr.1 - yr.0))?;
+    }
     draw_points(root, a, m, &px, &mut placer)?;
     draw_worst_labels(root, a, opts, &px, &mut placer)?;
     if let Some(end) = curve.first().and_then(|r| r.iter().min_by_key(|p| p.1)) {
@@ -270,6 +275,77 @@ fn plot_rect<DB: DrawingBackend>(
     (xs.start, ys.start, xs.end, ys.end)
 }
 
+/// Cells across the diagram's longer axis when locations are drawn as a density.
+pub const DENSITY_CELLS: usize = 110;
+
+/// Whether the diagram draws a density (too many locations for a marker each).
+pub fn draws_density(a: &Analysis, m: StrainMeasure) -> bool {
+    !a.summary.complete && a.summary.view.measure == m
+}
+
+/// The density of the locations not drawn as markers: each cell in the colour of the zone
+/// most of its locations are in, more opaque the more there are (logarithmic). Failed and
+/// marginal locations beyond the markers' cap get cells of their own colour on top.
+fn draw_density<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    px: &dyn Fn((f64, f64)) -> (i32, i32),
+    span: f64,
+) -> DrawResult<DB> {
+    let mut bins = a.summary.density.clone();
+    bins.coarsen_to(span, DENSITY_CELLS);
+    let m = a.summary.view.measure;
+    let mut kept: std::collections::HashMap<(i64, i64), u32> = Default::default();
+    for p in a.points() {
+        let (x, y) = point_xy(p, m);
+        *kept.entry(bins.key(x, y)).or_default() += 1;
+    }
+    let quiet = [
+        Zone::Uncovered,
+        Zone::Thickening,
+        Zone::LowStretch,
+        Zone::Safe,
+    ];
+    let risk = [Zone::Failed, Zone::Marginal];
+    // Per cell: key, quiet population and its main zone, at-risk overflow and its zone.
+    type Shade = ((i64, i64), u32, Zone, u32, Zone);
+    let cells: Vec<Shade> = bins
+        .cells
+        .iter()
+        .map(|(k, c)| {
+            let n = |z: Zone| c.0[z as usize];
+            let pop: u32 = quiet.iter().map(|z| n(*z)).sum();
+            let top = *quiet.iter().max_by_key(|z| n(**z)).unwrap_or(&Zone::Safe);
+            let over = risk.iter().map(|z| n(*z)).sum::<u32>() - kept.get(k).copied().unwrap_or(0);
+            let rz = if n(Zone::Failed) > 0 {
+                Zone::Failed
+            } else {
+                Zone::Marginal
+            };
+            (*k, pop, top, over, rz)
+        })
+        .collect();
+    let most = cells.iter().map(|c| c.1.max(c.3)).max().unwrap_or(1).max(1) as f64;
+    let size = bins.size();
+    for risky in [false, true] {
+        for (k, pop, top, over, rz) in &cells {
+            let (n, z) = if risky { (*over, *rz) } else { (*pop, *top) };
+            if n == 0 {
+                continue;
+            }
+            let (x0, y0) = bins.corner(*k);
+            let (a0, b0) = px((x0, y0 + size));
+            let (a1, b1) = px((x0 + size, y0));
+            let alpha = 0.25 + 0.7 * (1.0 + n as f64).ln() / (1.0 + most).ln();
+            root.draw(&Rectangle::new(
+                [(a0, b0), (a1.max(a0 + 1), b1.max(b0 + 1))],
+                zone_colour(z).mix(alpha).filled(),
+            ))?;
+        }
+    }
+    Ok(())
+}
+
 fn draw_points<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     a: &Analysis,
@@ -279,7 +355,7 @@ fn draw_points<DB: DrawingBackend>(
 ) -> DrawResult<DB> {
     // Best zones first, so that the worst are drawn on top.
     for zone in Zone::ALL.iter().rev() {
-        for p in a.points.iter().filter(|p| p.zone() == *zone) {
+        for p in a.points().iter().filter(|p| p.zone() == *zone) {
             let c = px(point_xy(p, m));
             marker(root, zone_shape(*zone), c, 5, zone_colour(*zone), BLACK)?;
             placer.obstacles.push((c.0 - 6, c.1 - 6, c.0 + 6, c.1 + 6));
@@ -381,7 +457,7 @@ pub fn title_lines(a: &Analysis) -> (String, String, String) {
     if let Some(d) = &j.die {
         second.push(format!("die {d}"));
     }
-    second.push(format!("{} locations", a.points.len()));
+    second.push(super::terminal::count_of(a.total(), "location"));
     let third = format!("Limit curve: {}, source: {}", a.curve.name, a.curve.source);
     (part.to_string(), second.join("  ·  "), third)
 }
@@ -412,6 +488,18 @@ fn draw_legend<DB: DrawingBackend>(
     let mut y = TITLE_H + 16;
     root.draw_text("Zones (locations)", &plot::bold(16.0), (x, y))?;
     y += 28;
+    if draws_density(a, opts.measure) {
+        let note = format!(
+            "shaded cells: density of {} locations; markers: {} failed or marginal",
+            a.total(),
+            a.points().len()
+        );
+        for line in plot::wrap_px(root, &note, &plot::text(12.0), 300) {
+            root.draw_text(&line, &plot::text(12.0), (x, y))?;
+            y += 15;
+        }
+        y += 6;
+    }
     for (zone, n) in a.counts() {
         marker(
             root,
@@ -608,7 +696,7 @@ mod tests {
         let svg = fld_svg(&a, &opts).unwrap();
         assert!(svg.contains("major strain ε1, true %"));
         // A point at engineering (38 %, −5 %) sits at true (32.2 %, −5.13 %): ln 1.38, ln 0.95.
-        let p = a.points.iter().find(|p| p.input.id == "F1").unwrap();
+        let p = a.points().iter().find(|p| p.input.id == "F1").unwrap();
         let (x, y) = point_xy(p, StrainMeasure::True);
         assert!((y - 100.0 * 1.38f64.ln()).abs() < 1e-9 && (x - 100.0 * 0.95f64.ln()).abs() < 1e-9);
     }

@@ -1,7 +1,9 @@
-//! The part map (`map.svg`, `map.png`): every location with `x, y` at its place on the part,
-//! coloured by its vertical margin on a continuous scale whose zone boundaries (0 = on the
-//! curve, the margin setting = edge of the safety band) are marked, shaped by zone, the worst
-//! labelled, axes in the job's length unit at equal scale.
+//! The part map (`map.svg`, `map.png`): every location with `x, y` (or the coordinates of the
+//! chosen plane) at its place on the part, coloured by its vertical margin on a continuous
+//! scale whose zone boundaries (0 = on the curve, the margin setting = edge of the safety band)
+//! are marked (or by its thinning or major strain), shaped by zone, the worst labelled, axes in
+//! the job's length unit at equal scale. A large file is drawn as a raster of cells, each
+//! coloured by the worst value in it, with the worst locations marked.
 
 use super::fld::{draw_footer, title_lines, worst_label};
 use super::plot::{self, marker, zone_shape, DrawResult, Placer, SIZE};
@@ -14,28 +16,143 @@ use std::io;
 /// How many of the worst locations carry their id.
 pub const LABELLED: usize = 6;
 
-/// Locations that carry both `x` and `y`, with their position.
+/// What the map colours each location (or cell) by.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, clap::ValueEnum)]
+pub enum MapValue {
+    /// The vertical margin to the limit curve, pp (the worst = the smallest).
+    #[default]
+    Margin,
+    /// The thinning, percent of t0 (the worst = the largest).
+    Thinning,
+    /// The engineering major strain, percent (the worst = the largest).
+    Major,
+}
+
+/// Cells across the map's longer side when a large file is drawn as a raster.
+pub const RASTER_CELLS: usize = 120;
+
+/// Kept locations that have coordinates in the map's plane, with their position.
 pub fn placed(a: &Analysis) -> Vec<(&PointResult, (f64, f64))> {
-    a.points
+    let plane = a.summary.view.plane;
+    a.points()
         .iter()
-        .filter_map(|p| Some((p, (p.input.x?, p.input.y?))))
+        .filter_map(|p| Some((p, plane.coords(p)?)))
         .collect()
 }
 
-/// The map as SVG, or `None` when no location has `x, y`.
-pub fn map_svg(a: &Analysis) -> io::Result<Option<String>> {
-    if placed(a).is_empty() {
+/// The map as SVG, or `None` when no location has coordinates in the map's plane.
+pub fn map_svg(a: &Analysis, value: MapValue) -> io::Result<Option<String>> {
+    if a.summary.placed == 0 {
         return Ok(None);
     }
-    plot::render_svg(SIZE, |root| draw(root, a)).map(Some)
+    plot::render_svg(SIZE, |root| draw(root, a, value)).map(Some)
 }
 
-/// The map as PNG, or `None` when no location has `x, y`.
-pub fn map_png(a: &Analysis) -> io::Result<Option<Vec<u8>>> {
-    if placed(a).is_empty() {
+/// The map as PNG, or `None` when no location has coordinates in the map's plane.
+pub fn map_png(a: &Analysis, value: MapValue) -> io::Result<Option<Vec<u8>>> {
+    if a.summary.placed == 0 {
         return Ok(None);
     }
-    plot::render_png(SIZE, |root| draw(root, a)).map(Some)
+    plot::render_png(SIZE, |root| draw(root, a, value)).map(Some)
+}
+
+/// A one-hue scale for thinning or major strain: light (low) to dark (high).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Ramp {
+    /// Low end.
+    pub lo: f64,
+    /// High end.
+    pub hi: f64,
+}
+
+const RAMP: (Rgb, Rgb) = ((0xfe, 0xed, 0xde), (0x8c, 0x2d, 0x04));
+
+impl Ramp {
+    /// The colour of `v`.
+    pub fn colour(&self, v: f64) -> RGBColor {
+        let t = if self.hi > self.lo {
+            ((v - self.lo) / (self.hi - self.lo)).clamp(0.0, 1.0)
+        } else {
+            1.0
+        };
+        let (a, b) = RAMP;
+        let mix = |x: u8, y: u8| (x as f64 + t * (y as f64 - x as f64)).round() as u8;
+        RGBColor(mix(a.0, b.0), mix(a.1, b.1), mix(a.2, b.2))
+    }
+}
+
+/// The colour of one value on the map's scale.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Scale {
+    /// Margin, pp.
+    Margin(MarginScale),
+    /// Thinning or major strain, percent.
+    Ramp(Ramp),
+}
+
+impl Scale {
+    fn of(a: &Analysis, value: MapValue) -> Self {
+        let hi = |v: f64| ((v.max(5.0)) / 5.0).ceil() * 5.0;
+        match value {
+            MapValue::Margin => Scale::Margin(MarginScale::of(a)),
+            MapValue::Thinning => {
+                let top = a
+                    .summary
+                    .map
+                    .cells
+                    .values()
+                    .map(|c| c.thinning)
+                    .fold(0f32, f32::max);
+                let top = a
+                    .settings
+                    .max_thinning_pct
+                    .map_or(top as f64, |m| m.max(top as f64));
+                Scale::Ramp(Ramp {
+                    lo: 0.0,
+                    hi: hi(top),
+                })
+            }
+            MapValue::Major => {
+                let top = a
+                    .summary
+                    .map
+                    .cells
+                    .values()
+                    .map(|c| c.major)
+                    .fold(0f32, f32::max);
+                Scale::Ramp(Ramp {
+                    lo: 0.0,
+                    hi: hi(top as f64),
+                })
+            }
+        }
+    }
+
+    fn colour(&self, v: Option<f64>) -> RGBColor {
+        match (self, v) {
+            (_, None) => RGBColor(190, 190, 190),
+            (Scale::Margin(s), Some(v)) => s.colour(v),
+            (Scale::Ramp(r), Some(v)) => r.colour(v),
+        }
+    }
+}
+
+/// The value a location is coloured by.
+fn value_of(p: &PointResult, value: MapValue) -> Option<f64> {
+    match value {
+        MapValue::Margin => crate::summary::map_margin(p),
+        MapValue::Thinning => Some(p.strain.thinning * 100.0),
+        MapValue::Major => Some(p.strain.eng.major.percent()),
+    }
+}
+
+/// The value a cell is coloured by.
+fn cell_value(c: &crate::summary::MapCell, value: MapValue) -> Option<f64> {
+    match value {
+        MapValue::Margin => c.margin.map(f64::from),
+        MapValue::Thinning => Some(f64::from(c.thinning)),
+        MapValue::Major => Some(f64::from(c.major)),
+    }
 }
 
 /// The colour scale: margins from `lo` to `hi` percentage points. Continuous inside each zone,
@@ -62,8 +179,12 @@ impl MarginScale {
     /// A scale that holds every margin of `a`, at least `−band/2 ..= 3·band`.
     pub fn of(a: &Analysis) -> Self {
         let band = a.settings.margin_pct.max(1.0);
-        let margins = a.points.iter().filter_map(|p| p.judgement.margin_pct);
-        let (lo, hi) = margins.fold((-band / 2.0, 3.0 * band), |(l, h), m| (l.min(m), h.max(m)));
+        let (lo, hi) = a
+            .summary
+            .margins
+            .map_or((-band / 2.0, 3.0 * band), |(l, h)| {
+                (l.min(-band / 2.0), h.max(3.0 * band))
+            });
         MarginScale {
             lo: (lo / 5.0).floor() * 5.0,
             band,
@@ -144,10 +265,17 @@ const MARGIN: i32 = 12;
 const X_LABEL: i32 = 50;
 const Y_LABEL: i32 = 70;
 
-fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> DrawResult<DB> {
+fn draw<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    value: MapValue,
+) -> DrawResult<DB> {
     root.fill(&WHITE)?;
     let at = placed(a);
-    let pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
+    let mut pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
+    if let Some(e) = a.summary.map_extent {
+        pts.extend([(e[0], e[1]), (e[2], e[3])]);
+    }
     let plot_w = (PLOT_RIGHT - 2 * MARGIN - Y_LABEL) as f64;
     let plot_h = (FOOTER_TOP - TITLE_H - 2 * MARGIN - X_LABEL) as f64;
     let (xr, yr) = equal_ranges(&pts, plot_w, plot_h);
@@ -161,10 +289,11 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
         .y_label_area_size(Y_LABEL)
         .build_cartesian_2d(xr.0..xr.1, yr.0..yr.1)?;
     let unit = a.lengths.unit.name();
+    let (u, v) = a.summary.view.plane.axes();
     chart
         .configure_mesh()
-        .x_desc(format!("x, {unit}"))
-        .y_desc(format!("y, {unit}"))
+        .x_desc(format!("{u}, {unit}"))
+        .y_desc(format!("{v}, {unit}"))
         .axis_desc_style(plot::text(17.0))
         .label_style(plot::text(14.0))
         .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
@@ -173,43 +302,143 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
         .bold_line_style(RGBColor(220, 220, 220))
         .draw()?;
     let px = |p: (f64, f64)| chart.backend_coord(&p);
-    let outline: Vec<(i32, i32)> = hull(&pts).into_iter().map(px).collect();
-    if outline.len() >= 3 {
-        for d in plot::dashes(&outline, 6.0, 5.0) {
-            root.draw(&PathElement::new(
-                d,
-                RGBColor(150, 150, 150).stroke_width(1),
-            ))?;
-        }
-    }
-    let scale = MarginScale::of(a);
+    let scale = Scale::of(a, value);
     let (xs, ys) = chart.plotting_area().get_pixel_range();
     let mut placer = Placer::new((xs.start + 2, ys.start + 2, xs.end - 2, ys.end - 2));
-    let mut order = at.clone();
-    order.sort_by_key(|(p, _)| std::cmp::Reverse(p.zone()));
-    for (p, xy) in &order {
-        let c = px(*xy);
-        // A location failed by thinning keeps a positive margin: colour it as failed all the
-        // same, so that no failed location looks safe on the map.
-        let fill = match p.judgement.margin_pct {
-            None => RGBColor(190, 190, 190),
-            Some(m) if p.zone() == crate::assess::Zone::Failed => scale.colour(m.min(-0.01)),
-            Some(m) => scale.colour(m),
-        };
-        let shape = zone_shape(p.zone());
-        marker(root, shape, c, 7, fill, BLACK)?;
-        if shape == plot::Shape::Cross || shape == plot::Shape::Diamond {
-            // Open shapes: a thin black halo keeps pale colours visible on white.
-            marker(root, shape, c, 9, BLACK, BLACK)?;
-            marker(root, shape, c, 7, fill, BLACK)?;
+    if a.summary.complete {
+        let hull_pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
+        let outline: Vec<(i32, i32)> = hull(&hull_pts).into_iter().map(px).collect();
+        if outline.len() >= 3 {
+            for d in plot::dashes(&outline, 6.0, 5.0) {
+                root.draw(&PathElement::new(
+                    d,
+                    RGBColor(150, 150, 150).stroke_width(1),
+                ))?;
+            }
         }
-        placer.obstacles.push((c.0 - 8, c.1 - 8, c.0 + 8, c.1 + 8));
+        let mut order = at.clone();
+        order.sort_by_key(|(p, _)| std::cmp::Reverse(p.zone()));
+        for (p, xy) in &order {
+            draw_marker(root, p, px(*xy), &scale, value, &mut placer)?;
+        }
+    } else {
+        draw_raster(root, a, value, &scale, &px, (xr.1 - xr.0).max(yr.1 - yr.0))?;
+        let plane = a.summary.view.plane;
+        for p in a.worst(MARKED_IN_RASTER).into_iter().rev() {
+            if let Some(xy) = plane.coords(p) {
+                draw_marker(root, p, px(xy), &scale, value, &mut placer)?;
+            }
+        }
     }
     draw_worst(root, a, &px, &mut placer)?;
-    draw_title(root, a, at.len())?;
-    draw_scale(root, &scale)?;
+    draw_title(root, a, value)?;
+    match scale {
+        Scale::Margin(s) => draw_scale(root, &s)?,
+        Scale::Ramp(r) => draw_ramp(root, &r, value, a.settings.max_thinning_pct)?,
+    }
     draw_shapes(root, a)?;
     draw_footer(root, a)
+}
+
+/// The worst locations marked on top of a raster map.
+pub const MARKED_IN_RASTER: usize = 30;
+
+fn draw_marker<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    p: &PointResult,
+    c: (i32, i32),
+    scale: &Scale,
+    value: MapValue,
+    placer: &mut Placer,
+) -> DrawResult<DB> {
+    // A location failed by thinning keeps a positive margin: it is coloured as failed all the
+    // same (see `map_margin`), so that no failed location looks safe on the map.
+    let fill = scale.colour(value_of(p, value));
+    let shape = zone_shape(p.zone());
+    marker(root, shape, c, 7, fill, BLACK)?;
+    if shape == plot::Shape::Cross || shape == plot::Shape::Diamond {
+        // Open shapes: a thin black halo keeps pale colours visible on white.
+        marker(root, shape, c, 9, BLACK, BLACK)?;
+        marker(root, shape, c, 7, fill, BLACK)?;
+    }
+    placer.obstacles.push((c.0 - 8, c.1 - 8, c.0 + 8, c.1 + 8));
+    Ok(())
+}
+
+/// Cells of the part, each coloured by the worst value of its locations.
+fn draw_raster<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    value: MapValue,
+    scale: &Scale,
+    px: &dyn Fn((f64, f64)) -> (i32, i32),
+    span: f64,
+) -> DrawResult<DB> {
+    let mut bins = a.summary.map.clone();
+    bins.coarsen_to(span, RASTER_CELLS);
+    let size = bins.size();
+    for (k, c) in &bins.cells {
+        let (x0, y0) = bins.corner(*k);
+        let (a0, b0) = px((x0, y0 + size));
+        let (a1, b1) = px((x0 + size, y0));
+        root.draw(&Rectangle::new(
+            [(a0, b0), (a1.max(a0 + 1), b1.max(b0 + 1))],
+            scale.colour(cell_value(c, value)).filled(),
+        ))?;
+    }
+    Ok(())
+}
+
+/// The colour bar of a thinning or major-strain map.
+fn draw_ramp<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    r: &Ramp,
+    value: MapValue,
+    max_thinning: Option<f64>,
+) -> DrawResult<DB> {
+    let (x, top, bottom, w) = (PANEL_LEFT, TITLE_H + 44, TITLE_H + 364, 26);
+    let title = match value {
+        MapValue::Thinning => "Thinning, %",
+        _ => "Major strain, eng. %",
+    };
+    root.draw_text(title, &plot::bold(16.0), (x, TITLE_H + 16))?;
+    let y_of =
+        |v: f64| bottom - ((v - r.lo) / (r.hi - r.lo) * (bottom - top) as f64).round() as i32;
+    for y in top..=bottom {
+        let v = r.lo + (bottom - y) as f64 / (bottom - top) as f64 * (r.hi - r.lo);
+        root.draw(&PathElement::new(
+            vec![(x, y), (x + w, y)],
+            r.colour(v).stroke_width(1),
+        ))?;
+    }
+    root.draw(&Rectangle::new(
+        [(x, top), (x + w, bottom)],
+        BLACK.stroke_width(1),
+    ))?;
+    let step = if r.hi - r.lo > 60.0 { 10.0 } else { 5.0 };
+    let mut v = r.lo;
+    while v <= r.hi + 1e-9 {
+        let y = y_of(v);
+        root.draw(&PathElement::new(
+            vec![(x + w, y), (x + w + 5, y)],
+            BLACK.stroke_width(1),
+        ))?;
+        root.draw_text(&format!("{v:.0}"), &plot::text(13.0), (x + w + 8, y - 7))?;
+        v += step;
+    }
+    if let (MapValue::Thinning, Some(m)) = (value, max_thinning) {
+        let y = y_of(m);
+        root.draw(&PathElement::new(
+            vec![(x - 6, y), (x + w + 40, y)],
+            BLACK.stroke_width(3),
+        ))?;
+        root.draw_text(
+            &format!("{m:.0}: max thinning"),
+            &plot::bold(13.0),
+            (x + w + 46, y - 8),
+        )?;
+    }
+    Ok(())
 }
 
 fn draw_worst<DB: DrawingBackend>(
@@ -219,10 +448,11 @@ fn draw_worst<DB: DrawingBackend>(
     placer: &mut Placer,
 ) -> DrawResult<DB> {
     let style = plot::bold(15.0);
-    let worst = a.worst(a.points.len());
-    let shown = worst
+    let plane = a.summary.view.plane;
+    let shown = a
+        .worst(crate::summary::WORST_KEPT)
         .into_iter()
-        .filter_map(|p| Some((p, (p.input.x?, p.input.y?))))
+        .filter_map(|p| Some((p, plane.coords(p)?)))
         .take(LABELLED);
     for (p, xy) in shown {
         let c = px(xy);
@@ -248,7 +478,7 @@ fn draw_worst<DB: DrawingBackend>(
 fn draw_title<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     a: &Analysis,
-    shown: usize,
+    value: MapValue,
 ) -> DrawResult<DB> {
     let (part, second, _) = title_lines(a);
     let width = SIZE.0 - 30;
@@ -256,13 +486,28 @@ fn draw_title<DB: DrawingBackend>(
     root.draw_text(&head, &plot::bold(23.0), (15, 10))?;
     let t2 = plot::fit_px(root, &second, &plot::text(16.0), width);
     root.draw_text(&t2, &plot::text(16.0), (15, 40))?;
-    let missing = a.points.len() - shown;
-    let mut t3 = format!(
-        "Colour: margin to the limit curve \"{}\" (pp of engineering major strain); equal scale on both axes",
-        a.curve.name
-    );
+    let missing = a.total() - a.summary.placed;
+    let mut t3 = match value {
+        MapValue::Margin => format!(
+            "Colour: margin to the limit curve \"{}\" (pp of engineering major strain)",
+            a.curve.name
+        ),
+        MapValue::Thinning => "Colour: thinning, percent of t0".to_string(),
+        MapValue::Major => "Colour: major strain, engineering percent".to_string(),
+    };
+    if !a.summary.complete {
+        t3.push_str(&format!(
+            "; cells show the worst of their {} locations",
+            a.summary.placed
+        ));
+    }
+    t3.push_str("; equal scale on both axes");
     if missing > 0 {
-        t3.push_str(&format!("; {missing} locations without x, y not shown"));
+        let (u, v) = a.summary.view.plane.axes();
+        t3.push_str(&format!(
+            "; {} without {u}, {v} not shown",
+            super::terminal::count_of(missing, "location")
+        ));
     }
     let t3 = plot::fit_px(root, &t3, &plot::text(14.0), width);
     root.draw_text(&t3, &plot::text(14.0), (15, 64))
@@ -355,7 +600,11 @@ fn draw_shapes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) 
     )?;
     y += 18;
     root.draw_text(
-        "dashed: hull of the measured locations",
+        if a.summary.complete {
+            "dashed: hull of the measured locations"
+        } else {
+            "cells: the worst value of their locations"
+        },
         &plot::text(13.0),
         (x, y),
     )?;
@@ -403,14 +652,14 @@ mod render_tests {
     #[test]
     fn no_positions_no_map() {
         let a = fixture::analysis(false);
-        assert!(map_svg(&a).unwrap().is_none());
-        assert!(map_png(&a).unwrap().is_none());
+        assert!(map_svg(&a, MapValue::Margin).unwrap().is_none());
+        assert!(map_png(&a, MapValue::Margin).unwrap().is_none());
     }
 
     #[test]
     fn svg_holds_every_location_and_the_scale() {
         let a = fixture::analysis(true);
-        let svg = map_svg(&a).unwrap().unwrap();
+        let svg = map_svg(&a, MapValue::Margin).unwrap().unwrap();
         let count = |needle: &str| svg.matches(needle).count();
         let n = |z: Zone| a.count(z);
         // Marker primitives at the map's size (r = 7) against the zone counts; the legend's
@@ -450,7 +699,7 @@ mod render_tests {
     #[test]
     fn png_has_expected_size_and_text_in_title() {
         let a = fixture::analysis(true);
-        let img = image::load_from_memory(&map_png(&a).unwrap().unwrap())
+        let img = image::load_from_memory(&map_png(&a, MapValue::Margin).unwrap().unwrap())
             .unwrap()
             .to_rgb8();
         assert_eq!((img.width(), img.height()), SIZE);

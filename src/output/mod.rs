@@ -33,6 +33,73 @@ pub fn guard_inputs(target: &Path, inputs: &[PathBuf]) -> Result<()> {
     Ok(())
 }
 
+/// A file being written: a temporary file beside its target, renamed over the target by
+/// [`AtomicFile::commit`]. Dropped without a commit (an error, a panic), it is removed, so a
+/// reader of the target sees the previous complete file or the new one, never a torn one.
+pub struct AtomicFile {
+    path: PathBuf,
+    tmp: PathBuf,
+    writer: Option<BufWriter<File>>,
+}
+
+impl AtomicFile {
+    /// Start writing `path` (refused when it is one of `inputs`).
+    pub fn create(path: &Path, inputs: &[PathBuf]) -> Result<Self> {
+        guard_inputs(path, inputs)?;
+        let name = path
+            .file_name()
+            .map_or_else(|| "out".into(), |n| n.to_string_lossy().into_owned());
+        let tmp = path.with_file_name(format!(".{name}.{}.tmp", std::process::id()));
+        let f = File::create(&tmp).map_err(|e| Error::io(path, e))?;
+        Ok(AtomicFile {
+            path: path.to_path_buf(),
+            tmp,
+            writer: Some(BufWriter::with_capacity(1 << 20, f)),
+        })
+    }
+
+    /// The target path.
+    pub fn path(&self) -> &Path {
+        &self.path
+    }
+
+    /// Flush, sync and rename over the target.
+    pub fn commit(mut self) -> Result<()> {
+        let w = self
+            .writer
+            .take()
+            .expect("an uncommitted file has its writer");
+        let result = (|| {
+            w.into_inner().map_err(|e| e.into_error())?.sync_all()?;
+            fs::rename(&self.tmp, &self.path)
+        })();
+        result.map_err(|e| Error::io(&self.path, e))
+    }
+}
+
+impl Write for AtomicFile {
+    fn write(&mut self, buf: &[u8]) -> std::io::Result<usize> {
+        self.writer.as_mut().map_or(Ok(0), |w| w.write(buf))
+    }
+    fn write_all(&mut self, buf: &[u8]) -> std::io::Result<()> {
+        match self.writer.as_mut() {
+            Some(w) => w.write_all(buf),
+            None => Ok(()),
+        }
+    }
+    fn flush(&mut self) -> std::io::Result<()> {
+        self.writer.as_mut().map_or(Ok(()), |w| w.flush())
+    }
+}
+
+impl Drop for AtomicFile {
+    fn drop(&mut self) {
+        if self.writer.take().is_some() {
+            let _ = fs::remove_file(&self.tmp);
+        }
+    }
+}
+
 /// Write `path` atomically: `fill` writes into a temporary file beside it, which is renamed over
 /// `path` only when `fill` succeeded. On failure the temporary file is removed.
 pub fn write_atomic(
@@ -40,22 +107,9 @@ pub fn write_atomic(
     inputs: &[PathBuf],
     fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>,
 ) -> Result<()> {
-    guard_inputs(path, inputs)?;
-    let name = path
-        .file_name()
-        .map_or_else(|| "out".into(), |n| n.to_string_lossy().into_owned());
-    let tmp = path.with_file_name(format!(".{name}.{}.tmp", std::process::id()));
-    let result = (|| {
-        let mut w = BufWriter::new(File::create(&tmp)?);
-        fill(&mut w)?;
-        w.into_inner().map_err(|e| e.into_error())?.sync_all()?;
-        fs::rename(&tmp, path)
-    })();
-    if let Err(e) = result {
-        let _ = fs::remove_file(&tmp);
-        return Err(Error::io(path, e));
-    }
-    Ok(())
+    let mut f = AtomicFile::create(path, inputs)?;
+    fill(&mut f).map_err(|e| Error::io(path, e))?;
+    f.commit()
 }
 
 /// Append `v` with `decimals` fixed decimals (at most 9) to `buf`: the same text as
@@ -91,22 +145,37 @@ pub fn push_fixed(buf: &mut String, v: f64, decimals: usize) {
 pub fn notes(a: &crate::analysis::Analysis) -> Vec<String> {
     let mut out = Vec::new();
     if let Some(dd) = a.settings.reading_error {
-        let b = a.borderline();
-        let ids: Vec<&str> = b.iter().take(12).map(|p| p.input.id.as_str()).collect();
-        let more = if b.len() > 12 { ", ..." } else { "" };
+        let (ids, total) = a.borderline();
+        let shown: Vec<&str> = ids.iter().take(12).map(String::as_str).collect();
+        let more = if total > shown.len() { ", ..." } else { "" };
+        let unit = if a.strain_input {
+            "pp of strain".to_string()
+        } else {
+            a.lengths.unit.to_string()
+        };
         out.push(format!(
-            "Borderline (zone could change within a reading error of {dd} {}): {} locations{}{}{more}",
-            a.lengths.unit,
-            b.len(),
-            if ids.is_empty() { "" } else { ": " },
-            ids.join(", ")
+            "Borderline (zone could change within a reading error of {dd} {unit}): {}{}{}{more}",
+            crate::output::terminal::count_of(total, "location"),
+            if shown.is_empty() { "" } else { ": " },
+            shown.join(", ")
         ));
     }
     if let Some(tc) = a.thickness_check() {
         out.push(format!(
-            "Thickness cross-check: {} locations measured; largest difference {:+.1} % \
+            "Thickness cross-check: {} measured; largest difference {:+.1} % \
              (measured vs from strains) at {}",
-            tc.measured, tc.largest_diff_pct, tc.largest.input.id
+            crate::output::terminal::count_of(tc.measured, "location"),
+            tc.largest_diff,
+            tc.id
+        ));
+    }
+    if let Some(tc) = &a.summary.thinning {
+        out.push(format!(
+            "Thinning cross-check: {} measured; largest difference {:+.1} pp \
+             (measured vs from strains) at {}",
+            crate::output::terminal::count_of(tc.measured, "location"),
+            tc.largest_diff,
+            tc.id
         ));
     }
     out

@@ -186,9 +186,9 @@ fn verdict(a: &Analysis) -> String {
     );
     let _ = writeln!(
         s,
-        "<p>{} locations judged, {} rows rejected.</p>",
-        a.points.len(),
-        a.rejected.len()
+        "<p>{} judged, {} rejected.</p>",
+        super::terminal::count_of(a.total(), "location"),
+        super::terminal::count_of(a.rejected_total(), "row")
     );
     s.push_str("<table class=\"zones\"><thead><tr><th>zone</th><th class=\"n\">locations</th><th>meaning</th></tr></thead><tbody>\n");
     for (z, n) in a.counts() {
@@ -201,14 +201,21 @@ fn verdict(a: &Analysis) -> String {
     }
     s.push_str("</tbody></table>\n");
     s.push_str(&worst_brief(a));
-    if !a.rejected.is_empty() {
+    if a.rejected_total() > 0 {
         s.push_str("<h3>Rejected rows (not judged)</h3>\n<ul>\n");
-        for r in &a.rejected {
+        for r in a.rejected().iter().take(REJECTED_ROWS) {
             let _ = writeln!(
                 s,
                 "<li>line {}: {}</li>",
                 fmt_line(r.location.line),
                 escape(&r.reason)
+            );
+        }
+        if a.rejected_total() > REJECTED_ROWS {
+            let _ = writeln!(
+                s,
+                "<li>... and {} more: see summary.json</li>",
+                a.rejected_total() - REJECTED_ROWS
             );
         }
         s.push_str("</ul>\n");
@@ -368,10 +375,10 @@ A strain-based limit curve holds for straight (proportional) strain paths only.<
 "#;
 
 /// The whole report as a string.
-pub fn report_html(a: &Analysis, opts: &FldOptions) -> io::Result<String> {
+pub fn report_html(a: &Analysis, opts: &FldOptions, value: map::MapValue) -> io::Result<String> {
     let title = a.job.part.as_deref().unwrap_or("(part not named)");
     let fld_svg = fld::fld_svg(a, opts)?;
-    let map_svg = map::map_svg(a)?;
+    let map_svg = map::map_svg(a, value)?;
     let mut s = String::new();
     let _ = write!(
         s,
@@ -406,12 +413,7 @@ pub fn report_html(a: &Analysis, opts: &FldOptions) -> io::Result<String> {
         points_table(&worst, "worst")
     );
     section(&mut s, "worst", &[&worst_html]);
-    let all: Vec<&PointResult> = a.points.iter().collect();
-    let all_html = format!(
-        "<h2>All locations</h2>\n<p>{} locations in file order. Strains in percent; margin in percentage points of engineering major strain.</p>\n{}",
-        all.len(),
-        points_table(&all, "points")
-    );
+    let all_html = all_locations(a);
     section(&mut s, "points", &[&all_html]);
     section(&mut s, "curve", &[&curve_section(a), &settings_section(a)]);
     section(
@@ -421,6 +423,34 @@ pub fn report_html(a: &Analysis, opts: &FldOptions) -> io::Result<String> {
     );
     s.push_str("</body>\n</html>\n");
     Ok(s)
+}
+
+/// Rows of the all-locations table at most: a longer table is for points.csv, not for paper.
+pub const TABLE_ROWS: usize = 500;
+/// Rejected rows listed at most.
+pub const REJECTED_ROWS: usize = 50;
+
+fn all_locations(a: &Analysis) -> String {
+    let kept: Vec<&PointResult> = a.points().iter().take(TABLE_ROWS).collect();
+    let what = if a.summary.complete {
+        "locations in file order"
+    } else {
+        "failed or marginal locations in file order"
+    };
+    let mut s = format!(
+        "<h2>All locations</h2>\n<p>{} {what}. Strains in percent; margin in percentage points of engineering major strain.",
+        kept.len()
+    );
+    if kept.len() < a.total() {
+        let _ = write!(
+            s,
+            " The table stops here: all {} locations are in points.csv.",
+            a.total()
+        );
+    }
+    s.push_str("</p>\n");
+    s.push_str(&points_table(&kept, "points"));
+    s
 }
 
 fn caution() -> String {
@@ -445,7 +475,7 @@ fn section(s: &mut String, id: &str, parts: &[&str]) {
 
 /// Write the report with the diagram's default axes.
 pub fn write_report(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
-    out.write_all(report_html(a, &FldOptions::default())?.as_bytes())
+    out.write_all(report_html(a, &FldOptions::default(), map::MapValue::Margin)?.as_bytes())
 }
 
 /// The readable text of a report (tags, style and pictures removed, entities decoded, blank
@@ -514,7 +544,7 @@ mod render_tests {
 
     fn report() -> (Analysis, String) {
         let a = fixture::analysis(true);
-        let html = report_html(&a, &FldOptions::default()).unwrap();
+        let html = report_html(&a, &FldOptions::default(), map::MapValue::Margin).unwrap();
         (a, html)
     }
 
@@ -547,9 +577,9 @@ mod render_tests {
     #[test]
     fn tables_agree_with_points_csv() {
         let (a, html) = report();
-        let mut csv = Vec::new();
-        points_csv::write_points(&a, &mut csv).unwrap();
-        let mut r = csv::Reader::from_reader(csv.as_slice());
+        let layout = points_csv::Layout::default();
+        let csv = points_csv::table(&layout, a.points());
+        let mut r = csv::Reader::from_reader(csv.as_bytes());
         let head = r.headers().unwrap().clone();
         let col = |name: &str| head.iter().position(|h| h == name).unwrap();
         let (id, margin, zone) = (col("id"), col("margin_pct"), col("zone"));
@@ -579,7 +609,7 @@ mod render_tests {
     #[test]
     fn no_map_note_without_positions() {
         let a = fixture::analysis(false);
-        let html = report_html(&a, &FldOptions::default()).unwrap();
+        let html = report_html(&a, &FldOptions::default(), map::MapValue::Margin).unwrap();
         assert!(html.contains("No map: no location carries x, y coordinates."));
         assert_eq!(html.matches("<svg width=\"1200\"").count(), 1);
     }

@@ -72,6 +72,15 @@ pub fn summary(a: &Analysis, colour: bool) -> String {
         .collect()
 }
 
+/// `n` and the noun, singular for one: "1 location", "3 locations".
+pub fn count_of(n: usize, noun: &str) -> String {
+    if n == 1 {
+        format!("1 {noun}")
+    } else {
+        format!("{n} {noun}s")
+    }
+}
+
 /// How many worst locations the summary lists.
 pub const WORST_SHOWN: usize = 8;
 
@@ -166,22 +175,24 @@ pub fn summary_text(a: &Analysis) -> String {
     let _ = writeln!(
         s,
         "Lengths in {}: d0 {}{}, t0 {}",
-        l.unit,
+        l.unit.plural(),
         len(l.d0),
-        if a.points.iter().any(|p| Some(p.d0) != l.d0) {
-            " (or per row)"
-        } else {
-            ""
+        match a.summary.d0_range {
+            Some((lo, hi)) if Some(lo) != l.d0 || Some(hi) != l.d0 => " (or per row)",
+            _ => "",
         },
         len(l.t0)
     );
     let _ = writeln!(s);
     let _ = writeln!(
         s,
-        "{} locations judged, {} rows rejected",
-        a.points.len(),
-        a.rejected.len()
+        "{} judged, {} rejected",
+        count_of(a.total(), "location"),
+        count_of(a.rejected_total(), "row")
     );
+    if a.strain_input {
+        let _ = writeln!(s, "Strains read from the file (no circle axes, no d0)");
+    }
     for (zone, n) in a.counts() {
         let _ = writeln!(s, "  {:<12}{n:>6}", zone.name());
     }
@@ -211,18 +222,18 @@ pub fn summary_text(a: &Analysis) -> String {
             );
         }
     }
-    if !a.rejected.is_empty() {
+    if a.rejected_total() > 0 {
         let _ = writeln!(s);
         let _ = writeln!(s, "Rejected rows (not judged):");
-        for r in a.rejected.iter().take(20) {
+        for r in a.rejected().iter().take(20) {
             // One line each, unwrapped, so that `file:line:col` can be grepped and clicked.
             let _ = writeln!(s, "  {r}");
         }
-        if a.rejected.len() > 20 {
+        if a.rejected_total() > 20 {
             let _ = writeln!(
                 s,
                 "  ... and {} more (see summary.json)",
-                a.rejected.len() - 20
+                a.rejected_total() - 20
             );
         }
     }

@@ -1,0 +1,62 @@
+//! A progress bar on standard error for long runs: only when standard error is a terminal, not
+//! under CI, and only once a run has taken more than a second (a short run shows nothing).
+
+use indicatif::{ProgressBar, ProgressStyle};
+use std::io::IsTerminal;
+use std::time::{Duration, Instant};
+
+/// Progress of reading one file, in bytes.
+pub struct Progress {
+    start: Instant,
+    total: Option<u64>,
+    label: String,
+    enabled: bool,
+    bar: Option<ProgressBar>,
+}
+
+impl Progress {
+    /// Progress over `total` bytes (when known), labelled `label`; `allowed` = false shows
+    /// nothing (several files at once).
+    pub fn new(label: &str, total: Option<u64>, allowed: bool) -> Self {
+        let enabled =
+            allowed && std::io::stderr().is_terminal() && std::env::var_os("CI").is_none();
+        Progress {
+            start: Instant::now(),
+            total,
+            label: label.to_string(),
+            enabled,
+            bar: None,
+        }
+    }
+
+    /// `done` bytes have been read.
+    pub fn set(&mut self, done: u64) {
+        if !self.enabled {
+            return;
+        }
+        if self.bar.is_none() && self.start.elapsed() > Duration::from_secs(1) {
+            let bar = match self.total {
+                Some(t) => ProgressBar::new(t),
+                None => ProgressBar::new_spinner(),
+            };
+            let style = ProgressStyle::with_template(
+                "{msg} [{bar:30}] {bytes}/{total_bytes} {bytes_per_sec} eta {eta}",
+            )
+            .unwrap_or_else(|_| ProgressStyle::default_bar())
+            .progress_chars("=> ");
+            bar.set_style(style);
+            bar.set_message(self.label.clone());
+            self.bar = Some(bar);
+        }
+        if let Some(b) = &self.bar {
+            b.set_position(done);
+        }
+    }
+
+    /// Remove the bar.
+    pub fn finish(self) {
+        if let Some(b) = self.bar {
+            b.finish_and_clear();
+        }
+    }
+}
