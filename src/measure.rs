@@ -857,7 +857,6 @@ pub fn csv_reader<R: Read>(dialect: Dialect, input: R) -> csv::Reader<R> {
         .delimiter(dialect.delimiter())
         .has_headers(false)
         .flexible(true)
-        .trim(csv::Trim::All)
         .from_reader(input)
 }
 

@@ -20,7 +20,7 @@ use std::io::{self, Read, Write};
 
 /// Target size of one chunk: large enough that a chunk's overhead is nothing, small enough
 /// that a batch of them in flight stays a few MB.
-pub const CHUNK_BYTES: usize = 1 << 20;
+pub const CHUNK_BYTES: usize = 1 << 19;
 
 /// The longest record read (64 MiB): a longer one is an error, not a reason to hold the file.
 pub const MAX_RECORD_BYTES: usize = 64 << 20;
@@ -73,22 +73,8 @@ impl<R: Read> Chunker<R> {
 
     fn fill(&mut self, want: usize) -> io::Result<()> {
         while !self.eof && self.buf.len() < want {
-            let old = self.buf.len();
-            self.buf.resize(want.max(old + 4096), 0);
-            let n = loop {
-                match self.input.read(&mut self.buf[old..]) {
-                    Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
-                    r => break r,
-                }
-            };
-            let n = match n {
-                Ok(n) => n,
-                Err(e) => {
-                    self.buf.truncate(old);
-                    return Err(e);
-                }
-            };
-            self.buf.truncate(old + n);
+            let need = (want - self.buf.len()) as u64;
+            let n = (&mut self.input).take(need).read_to_end(&mut self.buf)?;
             self.bytes_read += n as u64;
             self.eof = n == 0;
         }
@@ -96,8 +82,11 @@ impl<R: Read> Chunker<R> {
     }
 
     /// The end of the last whole record in `bytes` (just after its line break), scanning from
-    /// a record start.
+    /// a record start. Without a quote in `bytes` that is simply after the last line break.
     fn last_record_end(&self, bytes: &[u8]) -> Option<usize> {
+        if memchr::memchr(b'"', bytes).is_none() {
+            return memchr::memrchr(b'\n', bytes).map(|i| i + 1);
+        }
         let mut state = Scan::FieldStart;
         let mut end = None;
         for (i, &b) in bytes.iter().enumerate() {
@@ -136,7 +125,7 @@ impl<R: Read> Chunker<R> {
                     let rest = self.buf.split_off(c);
                     let bytes = std::mem::replace(&mut self.buf, rest);
                     let first_line = self.line;
-                    self.line += bytes.iter().filter(|&&b| b == b'\n').count() as u64;
+                    self.line += memchr::memchr_iter(b'\n', &bytes).count() as u64;
                     return Ok(Some(Chunk { bytes, first_line }));
                 }
                 None if want >= MAX_RECORD_BYTES => {
@@ -155,9 +144,16 @@ impl<R: Read> Chunker<R> {
     }
 }
 
-/// One parsed row: the measurement and whether its two strain measures disagree, or why it
-/// was rejected.
-type Parsed = std::result::Result<(Measurement, bool), RejectedRow>;
+/// One parsed row: the measurement, whether its two strain measures disagree and the hash of
+/// its (id, stage), or why it was rejected.
+type Parsed = std::result::Result<(Measurement, bool, u64), RejectedRow>;
+
+/// The hash of a location's (id, stage) key.
+fn key_hash(m: &Measurement) -> u64 {
+    let mut h = std::hash::DefaultHasher::new();
+    (&m.id, &m.stage).hash(&mut h);
+    h.finish()
+}
 
 /// Parse the records of one chunk.
 fn parse_chunk(chunk: &Chunk, header: &Header) -> Result<Vec<Parsed>> {
@@ -176,7 +172,10 @@ fn parse_chunk(chunk: &Chunk, header: &Header) -> Result<Vec<Parsed>> {
             Ok(true) if record.iter().all(|f| f.trim().is_empty()) => continue,
             Ok(true) => {
                 let line = at(record.position().map_or(1, |p| p.line()));
-                rows.push(header.row(&record, line));
+                rows.push(header.row(&record, line).map(|(m, d)| {
+                    let h = key_hash(&m);
+                    (m, d, h)
+                }));
             }
         }
     }
@@ -206,25 +205,27 @@ impl Hasher for Passthrough {
 pub struct SeenIds(HashSet<u64, BuildHasherDefault<Passthrough>>);
 
 impl SeenIds {
-    /// Record the key of `m`; `false` when it was seen before.
-    pub fn insert(&mut self, m: &Measurement) -> bool {
-        let mut h = std::hash::DefaultHasher::new();
-        (&m.id, &m.stage).hash(&mut h);
-        self.0.insert(h.finish())
+    /// Record a key's hash; `false` when it was seen before.
+    pub fn insert(&mut self, hash: u64) -> bool {
+        self.0.insert(hash)
+    }
+    /// Make room for `n` more keys.
+    pub fn reserve(&mut self, n: usize) {
+        self.0.reserve(n);
     }
 }
 
 /// What one chunk gives: its points.csv text and its partial summary.
 struct Judged {
-    text: String,
+    text: Vec<u8>,
     summary: Summary,
 }
 
-fn judge_chunk(rows: Vec<Parsed>, pass: &Pass<'_>) -> Judged {
-    let mut text = String::with_capacity(if pass.write { rows.len() * 160 } else { 0 });
-    let mut summary = Summary::new(pass.view);
+fn judge_chunk(rows: Vec<Parsed>, pass: &Pass<'_>, like: &Summary) -> Judged {
+    let mut text = Vec::with_capacity(if pass.write { rows.len() * 180 } else { 0 });
+    let mut summary = like.next_part();
     for row in rows {
-        let (m, disagree) = match row {
+        let (m, disagree, _) = match row {
             Ok(r) => r,
             Err(r) => {
                 summary.rejected.push(r);
@@ -241,7 +242,7 @@ fn judge_chunk(rows: Vec<Parsed>, pass: &Pass<'_>) -> Judged {
                 if pass.write {
                     pass.layout.push_row(&mut text, &p);
                 }
-                summary.fold(p);
+                summary.fold_owned(p);
             }
         }
     }
@@ -260,15 +261,40 @@ pub struct Pass<'a> {
     pub view: View,
     /// Whether rows are formatted for a points table.
     pub write: bool,
+    /// The file's size, when known (to size the set of ids once).
+    pub size_hint: Option<u64>,
+}
+
+/// A batch of chunks read, or the error that stopped reading.
+fn read_batch<R: Read>(
+    chunks: &mut Chunker<R>,
+    n: usize,
+    file: &std::path::Path,
+) -> Result<Vec<Chunk>> {
+    let mut todo = Vec::with_capacity(n);
+    while todo.len() < n {
+        match chunks.next_chunk(CHUNK_BYTES) {
+            Ok(Some(c)) => todo.push(c),
+            Ok(None) => break,
+            Err(e) if e.kind() == io::ErrorKind::InvalidData => {
+                return Err(Error::input(Location::file(file), e.to_string()))
+            }
+            Err(e) => return Err(Error::io(file, e)),
+        }
+    }
+    Ok(todo)
 }
 
 impl Pass<'_> {
     /// Read, judge and summarise every row of `body` (the input after the header), writing
     /// the points table's rows to `sink` in file order. `progress` is told the bytes read.
+    ///
+    /// Three things overlap: the next batch of chunks is read while the present one is
+    /// parsed and judged on every core, and the judged text is written by a thread of its own.
     pub fn run(
         &self,
-        body: impl Read,
-        mut sink: Option<&mut dyn Write>,
+        body: impl Read + Send,
+        sink: Option<&mut (dyn Write + Send)>,
         progress: &mut dyn FnMut(u64),
     ) -> Result<Summary> {
         let h = self.header;
@@ -276,46 +302,70 @@ impl Pass<'_> {
         let mut seen = SeenIds::default();
         let mut summary = Summary::new(self.view);
         let batch = 2 * rayon::current_num_threads().max(1);
-        loop {
-            let mut todo = Vec::with_capacity(batch);
-            while todo.len() < batch {
-                match chunks.next_chunk(CHUNK_BYTES) {
-                    Ok(Some(c)) => todo.push(c),
-                    Ok(None) => break,
-                    Err(e) if e.kind() == io::ErrorKind::InvalidData => {
-                        return Err(Error::input(Location::file(&h.file), e.to_string()))
+        let out_err = |e| Error::io(std::path::Path::new("points.csv"), e);
+        std::thread::scope(|scope| {
+            let (tx, rx) = std::sync::mpsc::sync_channel::<Vec<u8>>(batch);
+            let writer = sink.map(|w| {
+                scope.spawn(move || -> io::Result<()> {
+                    for text in rx {
+                        w.write_all(&text)?;
                     }
-                    Err(e) => return Err(Error::io(&h.file, e)),
-                }
-            }
-            if todo.is_empty() {
-                return Ok(summary);
-            }
-            let parsed: Vec<Result<Vec<Parsed>>> =
-                todo.par_iter().map(|c| parse_chunk(c, h)).collect();
-            let mut parsed = parsed.into_iter().collect::<Result<Vec<_>>>()?;
-            for rows in &mut parsed {
-                for row in rows.iter_mut() {
-                    if let Ok((m, _)) = row {
-                        if !seen.insert(m) {
-                            *row = Err(duplicate(h, m));
-                        }
+                    Ok(())
+                })
+            });
+            let mut todo = read_batch(&mut chunks, batch, &h.file)?;
+            let mut stopped = false;
+            while !todo.is_empty() && !stopped {
+                let (next, judged) = rayon::join(
+                    || read_batch(&mut chunks, batch, &h.file),
+                    || self.batch(todo, &mut seen, &summary),
+                );
+                for j in judged? {
+                    if writer.is_some() && tx.send(j.text).is_err() {
+                        stopped = true; // the writer failed: its error is reported below
                     }
+                    summary.merge(j.summary);
                 }
+                progress(chunks.bytes_read);
+                todo = next?;
             }
-            let judged: Vec<Judged> = parsed
-                .into_par_iter()
-                .map(|rows| judge_chunk(rows, self))
-                .collect();
-            for j in judged {
-                if let Some(w) = sink.as_mut() {
-                    w.write_all(j.text.as_bytes())
-                        .map_err(|e| Error::io(std::path::Path::new("points.csv"), e))?;
-                }
-                summary.merge(j.summary);
+            drop(tx);
+            if let Some(w) = writer {
+                w.join()
+                    .unwrap_or_else(|_| Err(io::Error::other("the writer thread failed")))
+                    .map_err(out_err)?;
             }
-            progress(chunks.bytes_read);
+            Ok(summary)
+        })
+    }
+
+    /// Parse a batch of chunks in parallel, mark the duplicate keys in file order, then judge
+    /// and format the chunks in parallel.
+    fn batch(&self, todo: Vec<Chunk>, seen: &mut SeenIds, like: &Summary) -> Result<Vec<Judged>> {
+        let h = self.header;
+        let parsed: Vec<Result<Vec<Parsed>>> = todo.par_iter().map(|c| parse_chunk(c, h)).collect();
+        let mut parsed = parsed.into_iter().collect::<Result<Vec<_>>>()?;
+        if like.total == 0 && like.rejected.total == 0 {
+            // Room for the whole file at this batch's bytes per row, so the set of ids is not
+            // rehashed again and again.
+            let rows: usize = parsed.iter().map(Vec::len).sum();
+            let bytes: usize = todo.iter().map(|c| c.bytes.len()).sum::<usize>().max(1);
+            let size = self.size_hint.unwrap_or(0) as f64;
+            seen.reserve((rows as f64 * (size / bytes as f64).max(1.0)) as usize);
         }
+        for rows in &mut parsed {
+            for row in rows.iter_mut() {
+                if let Ok((m, _, hash)) = row {
+                    if !seen.insert(*hash) {
+                        *row = Err(duplicate(h, m));
+                    }
+                }
+            }
+        }
+        Ok(parsed
+            .into_par_iter()
+            .map(|rows| judge_chunk(rows, self, like))
+            .collect())
     }
 }
 

@@ -11,7 +11,7 @@ use crate::analysis::PointResult;
 use crate::assess::Zone;
 use crate::measure::RejectedRow;
 use crate::strain::StrainMeasure;
-use std::collections::HashMap;
+use rustc_hash::FxHashMap;
 
 /// Up to this many locations, every one is kept and drawn as a marker.
 pub const KEEP_ALL: usize = 5_000;
@@ -81,7 +81,7 @@ pub struct Bins<C> {
     level: u32,
     cap: usize,
     /// Cells by integer key at the current size.
-    pub cells: HashMap<(i64, i64), C>,
+    pub cells: FxHashMap<(i64, i64), C>,
 }
 
 impl<C: Cell> Bins<C> {
@@ -91,7 +91,7 @@ impl<C: Cell> Bins<C> {
             base,
             level: 0,
             cap,
-            cells: HashMap::new(),
+            cells: FxHashMap::default(),
         }
     }
 
@@ -120,6 +120,13 @@ impl<C: Cell> Bins<C> {
         if self.cells.len() > self.cap {
             self.coarsen();
         }
+    }
+
+    /// Start at cells as large as `other`'s (so that parts of one file need not each find
+    /// their size again).
+    pub fn like(mut self, other: &Bins<C>) -> Self {
+        self.level = other.level;
+        self
     }
 
     /// Double the cell size, merging each 2×2 block of cells.
@@ -299,9 +306,13 @@ impl<T> Default for Capped<T> {
 impl<T> Capped<T> {
     /// Add one.
     pub fn push(&mut self, t: T) {
+        self.push_with(|| t);
+    }
+    /// Add one, made only when there is room for it.
+    pub fn push_with(&mut self, t: impl FnOnce() -> T) {
         self.total += 1;
         if self.items.len() < LIST_CAP {
-            self.items.push(t);
+            self.items.push(t());
         }
     }
     /// Append `other` (which follows in file order).
@@ -416,14 +427,34 @@ impl Summary {
         }
     }
 
+    /// An empty summary for the locations that follow `self`'s, binned at its cell sizes.
+    pub fn next_part(&self) -> Self {
+        let mut s = Summary::new(self.view);
+        s.density = s.density.like(&self.density);
+        s.map = s.map.like(&self.map);
+        // Past the size where every location is kept, the parts keep only what a merge keeps.
+        s.complete = self.complete;
+        s
+    }
+
     /// Fold one judged location in (locations come in file order).
     pub fn fold(&mut self, p: PointResult) {
+        self.fold_owned(p);
+    }
+
+    /// [`Summary::fold`], the location copied only where it is kept.
+    pub fn fold_owned(&mut self, p: PointResult) {
+        self.fold_ref(&p);
+        self.keep(p);
+    }
+
+    fn fold_ref(&mut self, p: &PointResult) {
         let z = p.zone() as usize;
         self.total += 1;
         self.counts[z] += 1;
-        self.zone_ids[z].push(p.input.id.clone());
+        self.zone_ids[z].push_with(|| p.input.id.clone());
         if p.judgement.borderline {
-            self.borderline.push(p.input.id.clone());
+            self.borderline.push_with(|| p.input.id.clone());
         }
         ThicknessCheck::fold(&mut self.thickness, &p.input.id, p.thickness_diff_pct());
         ThicknessCheck::fold(&mut self.thinning, &p.input.id, p.thinning_diff_pp());
@@ -435,13 +466,13 @@ impl Summary {
             let r = self.margins.get_or_insert((m, m));
             *r = (r.0.min(m), r.1.max(m));
         }
-        let (x, y) = crate::output::fld::point_xy(&p, self.view.measure);
+        let (x, y) = crate::output::fld::point_xy(p, self.view.measure);
         widen(&mut self.extent, x, y);
         self.density.add(x, y, |c| c.0[z] += 1);
-        if let Some((u, v)) = self.view.plane.coords(&p) {
+        if let Some((u, v)) = self.view.plane.coords(p) {
             self.placed += 1;
             widen(&mut self.map_extent, u, v);
-            let cell = MapCell::of(&p);
+            let cell = MapCell::of(p);
             self.map.add(u, v, |c| c.absorb(&cell));
         }
         if let Some(g) = &p.grid {
@@ -449,13 +480,18 @@ impl Summary {
             self.grid.1 |= g.normal.is_some();
         }
         if p.judgement.margin_pct.is_some() {
-            self.offer_worst(&p);
+            self.offer_worst(p);
         }
-        self.keep(p);
     }
 
     fn offer_worst(&mut self, p: &PointResult) {
         let k = worst_key(p);
+        if self.worst.len() == WORST_KEPT {
+            let last = worst_key(&self.worst[WORST_KEPT - 1]);
+            if k.0 > last.0 || (k.0 == last.0 && k.1.total_cmp(&last.1).is_ge()) {
+                return;
+            }
+        }
         let before = |q: &PointResult| {
             let kq = worst_key(q);
             kq.0 < k.0 || (kq.0 == k.0 && kq.1.total_cmp(&k.1).is_le())

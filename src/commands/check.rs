@@ -127,9 +127,8 @@ pub fn judge_file(
         Some(p) if !plan.points_to_stdout() => Some(AtomicFile::create(p, inputs)?),
         _ => None,
     };
-    let stdout = std::io::stdout();
-    let mut out = std::io::BufWriter::with_capacity(1 << 20, stdout.lock());
-    let mut sink: Option<&mut dyn Write> = match (&mut file, plan.points_to_stdout()) {
+    let mut out = std::io::BufWriter::with_capacity(1 << 20, std::io::stdout());
+    let mut sink: Option<&mut (dyn Write + Send)> = match (&mut file, plan.points_to_stdout()) {
         (Some(f), _) => Some(f),
         (None, true) => Some(&mut out),
         (None, false) => None,
@@ -147,6 +146,7 @@ pub fn judge_file(
         layout: &layout,
         view: output.view(),
         write: sink.is_some(),
+        size_hint: size,
     };
     let summary = pass.run(input, sink, &mut |b| bar.set(b));
     bar.finish();

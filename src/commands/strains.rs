@@ -58,14 +58,14 @@ pub fn run(args: &StrainsArgs) -> Result<Outcome> {
         unit: lengths.unit,
         ..Layout::default()
     };
-    let stdout = std::io::stdout();
-    let mut out = std::io::BufWriter::with_capacity(1 << 20, stdout.lock());
+    let mut out = std::io::BufWriter::with_capacity(1 << 20, std::io::stdout());
     let pass = Pass {
         header: &header,
         ctx: &ctx,
         layout: &layout,
         view: Default::default(),
         write: true,
+        size_hint: std::fs::metadata(path).ok().map(|m| m.len()),
     };
     let broken = |e: &std::io::Error| e.kind() == std::io::ErrorKind::BrokenPipe;
     let stdout_err = |e| Error::io(std::path::Path::new("<stdout>"), e);

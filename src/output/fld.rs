@@ -124,10 +124,11 @@ pub fn thinning_line(pct: f64, measure: StrainMeasure) -> Line {
 
 /// A location's position on the diagram.
 pub fn point_xy(p: &PointResult, measure: StrainMeasure) -> (f64, f64) {
-    (
-        plot::axis_value(measure, p.strain.true_strain.minor.value()),
-        plot::axis_value(measure, p.strain.true_strain.major.value()),
-    )
+    let s = &p.strain;
+    match measure {
+        StrainMeasure::Engineering => (s.eng.minor.percent(), s.eng.major.percent()),
+        StrainMeasure::True => (s.true_strain.minor.percent(), s.true_strain.major.percent()),
+    }
 }
 
 fn round_out(lo: f64, hi: f64, step: f64) -> (f64, f64) {

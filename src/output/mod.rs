@@ -117,27 +117,49 @@ pub fn write_atomic(
 /// faster, through integer formatting.
 /// Falls back to `format!` for values too large for that.
 pub fn push_fixed(buf: &mut String, v: f64, decimals: usize) {
-    use std::fmt::Write as _;
-    let scale = 10f64.powi(decimals.min(9) as i32);
-    let scaled = (v * scale).round_ties_even();
-    if scaled.is_nan() || scaled.abs() >= 9.0e15 || decimals > 9 {
-        let _ = write!(buf, "{v:.decimals$}");
-        return;
+    let mut b = [0u8; 32];
+    match fixed(&mut b, v, decimals) {
+        Some(text) => buf.push_str(std::str::from_utf8(text).unwrap_or("")),
+        None => {
+            use std::fmt::Write as _;
+            let _ = write!(buf, "{v:.decimals$}");
+        }
+    }
+}
+
+/// [`push_fixed`] onto bytes (the points table is built as bytes).
+pub fn push_fixed_bytes(buf: &mut Vec<u8>, v: f64, decimals: usize) {
+    let mut b = [0u8; 32];
+    match fixed(&mut b, v, decimals) {
+        Some(text) => buf.extend_from_slice(text),
+        None => buf.extend_from_slice(format!("{v:.decimals$}").as_bytes()),
+    }
+}
+
+/// `v` with `decimals` fixed decimals as ASCII in `out`; `None` when it does not fit in an
+/// `i64` at that scale (or `decimals > 9`): one integer formatting of all the digits, the
+/// decimal point put in after.
+fn fixed(out: &mut [u8; 32], v: f64, decimals: usize) -> Option<&[u8]> {
+    const SCALE: [f64; 10] = [1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9];
+    let scaled = (v * *SCALE.get(decimals)?).round_ties_even();
+    if scaled.is_nan() || scaled.abs() >= 9.0e15 {
+        return None;
     }
     let n = scaled as i64;
-    let unit = scale as u64;
-    if n < 0 {
-        buf.push('-');
-    }
-    let (int, frac) = (n.unsigned_abs() / unit, n.unsigned_abs() % unit);
     let mut digits = itoa::Buffer::new();
-    buf.push_str(digits.format(int));
-    if decimals > 0 {
-        buf.push('.');
-        let f = digits.format(frac);
-        buf.extend(std::iter::repeat_n('0', decimals - f.len()));
-        buf.push_str(f);
+    let d = digits.format(n.unsigned_abs()).as_bytes();
+    let width = d.len().max(decimals + 1);
+    let sign = usize::from(n < 0);
+    out[0] = b'-';
+    out[sign..sign + width - d.len()].fill(b'0');
+    out[sign + width - d.len()..sign + width].copy_from_slice(d);
+    if decimals == 0 {
+        return Some(&out[..sign + width]);
     }
+    let point = sign + width - decimals;
+    out.copy_within(point..sign + width, point + 1);
+    out[point] = b'.';
+    Some(&out[..sign + width + 1])
 }
 
 /// Findings beside the zone counts, as sentences for people (the terminal and the report show

@@ -7,7 +7,7 @@
 //! 4 decimals in mm and 5 in inches (0.1 µm, 0.01 thou), positions 3 decimals, d0 4 decimals.
 
 use crate::analysis::PointResult;
-use crate::output::push_fixed;
+use crate::output::push_fixed_bytes;
 use crate::units::LengthUnit;
 
 /// The strain columns, in order (shared by `check` and `strains`).
@@ -123,7 +123,7 @@ impl Layout {
     }
 
     /// Append the row of `p` to `out`.
-    pub fn push_row(&self, out: &mut String, p: &PointResult) {
+    pub fn push_row(&self, out: &mut Vec<u8>, p: &PointResult) {
         let mut f = Fields { out, first: true };
         let s = &p.strain;
         f.text(&p.input.id);
@@ -151,7 +151,7 @@ impl Layout {
         if !self.strains_only {
             self.judged(&mut f, p);
         }
-        f.out.push('\n');
+        f.out.push(b'\n');
     }
 
     fn judged(&self, f: &mut Fields<'_>, p: &PointResult) {
@@ -187,32 +187,33 @@ impl Layout {
 
 /// Fields of one row, written straight into the output text.
 struct Fields<'a> {
-    out: &'a mut String,
+    out: &'a mut Vec<u8>,
     first: bool,
 }
 
 impl Fields<'_> {
     fn sep(&mut self) {
         if !self.first {
-            self.out.push(',');
+            self.out.push(b',');
         }
         self.first = false;
     }
     fn num(&mut self, v: Option<f64>, decimals: usize) {
         self.sep();
         if let Some(v) = v {
-            push_fixed(self.out, v, decimals);
+            push_fixed_bytes(self.out, v, decimals);
         }
     }
     /// Text, quoted (RFC 4180) when it holds a comma, a quote or a line break.
     fn text(&mut self, s: &str) {
         self.sep();
         if s.contains([',', '"', '\n', '\r']) {
-            self.out.push('"');
-            self.out.push_str(&s.replace('"', "\"\""));
-            self.out.push('"');
+            self.out.push(b'"');
+            self.out
+                .extend_from_slice(s.replace('"', "\"\"").as_bytes());
+            self.out.push(b'"');
         } else {
-            self.out.push_str(s);
+            self.out.extend_from_slice(s.as_bytes());
         }
     }
 }
@@ -237,9 +238,9 @@ fn grid_fields(f: &mut Fields<'_>, p: &PointResult) {
 
 /// The whole table of `points` as text (for in-memory inputs and tests).
 pub fn table(layout: &Layout, points: &[PointResult]) -> String {
-    let mut s = layout.header_line();
+    let mut s = layout.header_line().into_bytes();
     for p in points {
         layout.push_row(&mut s, p);
     }
-    s
+    String::from_utf8(s).expect("the table is built from text")
 }
