@@ -26,7 +26,8 @@ pub enum Command {
     Check(crate::commands::check::CheckArgs),
     /// Compute the strains of measured circles and write them to stdout as CSV.
     Strains(crate::commands::strains::StrainsArgs),
-    /// Compare two tryouts location by location (two points.csv files written by `check`).
+    /// Compare tryouts location by location (points.csv files written by `check`); with --out,
+    /// write the review pack (compare.csv, .json, diagram, map, compare.html).
     Compare(crate::commands::compare::CompareArgs),
     /// Strains from grid node positions (flat blank and formed part), judged like `check`.
     Grid(crate::commands::grid::GridArgs),

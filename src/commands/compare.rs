@@ -1,185 +1,251 @@
-//! `neckline compare`: one tryout against the next, location by location.
+//! `neckline compare`: one tryout against the next, location by location, and the review pack.
 
 use super::Outcome;
-use crate::analysis::CAUTION;
-use crate::assess::Zone;
-use crate::compare::{compare, read_results, Comparison};
-use crate::error::Result;
-use crate::output::terminal::wrap;
-use crate::output::{fmt_opt, write_atomic};
-use clap::Args;
-use std::fmt::Write as _;
-use std::io::{self, Write};
-use std::path::PathBuf;
+use crate::compare::{
+    self, csv_out, fld, json_out, map, page, read_tryout, terminal, Comparison, Matching,
+};
+use crate::error::{Error, Result};
+use crate::output::terminal::{wrap, WIDTH};
+use crate::output::{guard_inputs, write_atomic};
+use clap::{Args, ValueEnum};
+use std::path::{Path, PathBuf};
+
+/// How locations are paired between tryouts.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum MatchBy {
+    /// By location id.
+    Id,
+    /// By nearest x, y within --within (ids may differ).
+    Xy,
+}
+
+/// What makes `compare` exit with status 1.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Gate {
+    /// A location failed in the last tryout that was not failed in the one before.
+    NewFailed,
+    /// A location failed or marginal in the last tryout that was in a better zone before.
+    NewMarginal,
+}
 
 /// Arguments of `compare`.
 #[derive(Debug, Clone, Args)]
+#[command(
+    after_help = "Exit status: 0 done; 1 a --fail-on gate tripped; 2 usage or input \
+error, or two neighbouring tryouts share no location.\nA location measured only in the last \
+tryout counts for --fail-on when it is failed (or marginal) there."
+)]
 pub struct CompareArgs {
-    /// points.csv of the earlier tryout (written by `check`).
-    #[arg(value_name = "BEFORE.csv")]
-    pub before: PathBuf,
-    /// points.csv of the later tryout (written by `check`).
-    #[arg(value_name = "AFTER.csv")]
-    pub after: PathBuf,
-    /// Write the change of every location to this CSV file (atomically).
-    #[arg(long, value_name = "FILE.csv")]
+    /// points.csv files written by `check`, earliest tryout first (two or more). The lists
+    /// compare the last two; compare.csv and the pictures follow every tryout.
+    #[arg(value_name = "POINTS.csv", num_args = 2.., required = true)]
+    pub inputs: Vec<PathBuf>,
+    /// Folder for the review pack (created if missing): compare.csv, compare.json,
+    /// compare-fld.svg/.png, compare-map.svg/.png (when x, y exist), compare.html
+    /// [default: terminal only].
+    #[arg(long, value_name = "DIR")]
     pub out: Option<PathBuf>,
-    /// How many locations to list under each heading (newly at risk, largest margin losses).
+    /// Smallest change of margin that counts as improved or worsened, percentage points (of
+    /// major strain where a margin is missing).
+    #[arg(long, value_name = "PCT", default_value_t = 1.0)]
+    pub tolerance: f64,
+    /// Pair locations by id, or by nearest x, y (needs --within).
+    #[arg(long = "match", value_name = "id|xy", default_value = "id")]
+    pub match_by: MatchBy,
+    /// Largest distance of a pair with --match xy, in the files' length unit.
+    #[arg(long, value_name = "LENGTH")]
+    pub within: Option<f64>,
+    /// Exit with status 1 when a location is newly failed (new-failed), or newly failed or
+    /// marginal (new-marginal), in the last tryout [default: never].
+    #[arg(long, value_name = "new-failed|new-marginal")]
+    pub fail_on: Option<Gate>,
+    /// How many locations to list under each heading in the terminal.
     #[arg(long, value_name = "N", default_value_t = 8)]
     pub show: usize,
 }
 
+/// The files of the review pack, in the order they are written.
+pub const PACK_NAMES: [&str; 7] = [
+    "compare.csv",
+    "compare.json",
+    "compare-fld.svg",
+    "compare-fld.png",
+    "compare-map.svg",
+    "compare-map.png",
+    "compare.html",
+];
+
+fn matching(args: &CompareArgs) -> Result<Matching> {
+    match (args.match_by, args.within) {
+        (MatchBy::Xy, Some(w)) if w.is_finite() && w > 0.0 => Ok(Matching::Xy { within: w }),
+        (MatchBy::Xy, Some(w)) => Err(Error::Usage(format!(
+            "--within must be a positive length, found {w}"
+        ))),
+        (MatchBy::Xy, None) => Err(Error::Usage(
+            "--match xy needs --within LENGTH: the largest distance of a pair, in the files' \
+             length unit (e.g. --within 5 for 5 mm)"
+                .into(),
+        )),
+        (MatchBy::Id, Some(_)) => Err(Error::Usage(
+            "--within applies to --match xy only (pairing by id needs no distance)".into(),
+        )),
+        (MatchBy::Id, None) => Ok(Matching::Id),
+    }
+}
+
+/// Refuse an output folder that cannot be one, before any work is done.
+fn check_out(out: &Path) -> Result<()> {
+    if out.is_file() {
+        return Err(Error::Usage(format!(
+            "--out {} is a file: --out takes a folder, into which compare.csv and the rest \
+             of the review pack are written",
+            out.display()
+        )));
+    }
+    let ext = out.extension().map(|e| e.to_string_lossy().to_lowercase());
+    if !out.exists()
+        && matches!(
+            ext.as_deref(),
+            Some("csv" | "json" | "html" | "svg" | "png")
+        )
+    {
+        return Err(Error::Usage(format!(
+            "--out {} looks like a file name: --out takes a folder (compare.csv is written \
+             inside it), e.g. --out {}",
+            out.display(),
+            out.with_extension("").display()
+        )));
+    }
+    Ok(())
+}
+
 /// Run `compare`.
 pub fn run(args: &CompareArgs) -> Result<Outcome> {
-    let c = compare(read_results(&args.before)?, read_results(&args.after)?);
-    for w in basis_differences(&args.before, &args.after) {
-        eprintln!("warning: {w}");
+    if !(args.tolerance.is_finite() && args.tolerance >= 0.0) {
+        return Err(Error::Usage(format!(
+            "--tolerance must be zero or a positive number of percentage points, found {}",
+            args.tolerance
+        )));
     }
-    if c.changes.is_empty() {
-        eprintln!(
-            "warning: the two files share no location id: nothing could be compared \
-             (different grids, or ids renamed?)"
-        );
-    }
+    let how = matching(args)?;
     if let Some(out) = &args.out {
-        let inputs = [args.before.clone(), args.after.clone()];
-        write_atomic(out, &inputs, |w| write_changes(&c, w))?;
+        check_out(out)?;
     }
-    print!("{}", summary_text(&c, args));
-    if let Some(out) = &args.out {
-        println!("Wrote {}", out.display());
+    let tryouts = args
+        .inputs
+        .iter()
+        .enumerate()
+        .map(|(k, p)| read_tryout(p, k + 1))
+        .collect::<Result<Vec<_>>>()?;
+    let c = compare::compare(tryouts, how, args.tolerance)?;
+    for w in &c.warnings {
+        eprint!("{}", wrap(&format!("warning: {w}"), WIDTH, ""));
     }
-    Ok(Outcome::Done)
-}
-
-/// The curve and settings each result was judged with, from the `summary.json` that `check`
-/// wrote beside its `points.csv` (when there is one).
-fn basis(points: &std::path::Path) -> Option<serde_json::Value> {
-    let summary = points.with_file_name("summary.json");
-    let v: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(summary).ok()?).ok()?;
-    Some(serde_json::json!({ "curve": v["limit"]["name"], "margin": v["settings"]["margin_pct"] }))
-}
-
-/// Differences between the curves or safety bands of two results: a change of margin would
-/// then mix a change of judgement with a change of the part.
-fn basis_differences(before: &std::path::Path, after: &std::path::Path) -> Vec<String> {
-    let (Some(b), Some(a)) = (basis(before), basis(after)) else {
-        return vec![
-            "no summary.json beside both files: cannot confirm that both were judged \
-                     with the same curve and safety band"
-                .into(),
-        ];
+    let written = match &args.out {
+        Some(out) => write_pack(&c, out, &args.inputs)?,
+        None => Vec::new(),
     };
-    let mut out = Vec::new();
-    if b["curve"] != a["curve"] {
-        out.push(format!(
-            "the curves differ: {} before, {} after",
-            b["curve"], a["curve"]
-        ));
+    print!("{}", terminal::summary(&c, args.show));
+    if let Some(out) = &args.out {
+        for name in PACK_NAMES {
+            let p = out.join(name);
+            if p.is_file() && !written.contains(&p) {
+                print!(
+                    "{}",
+                    wrap(
+                        &format!(
+                            "note: {} is from an earlier run and was not written by this one",
+                            p.display()
+                        ),
+                        WIDTH,
+                        ""
+                    )
+                );
+            }
+        }
+        if map::placed(&c).is_empty() {
+            println!("note: no location has x, y: the map of margin change was not drawn");
+        }
+        let names: Vec<String> = written.iter().map(|p| p.display().to_string()).collect();
+        print!(
+            "{}",
+            wrap(&format!("Wrote {}", names.join(", ")), WIDTH, "")
+        );
     }
-    if b["margin"] != a["margin"] {
-        out.push(format!(
-            "the safety bands differ: {} pp before, {} pp after",
-            b["margin"], a["margin"]
-        ));
-    }
-    out
+    Ok(gate(&c, args.fail_on))
 }
 
-fn summary_text(c: &Comparison, args: &CompareArgs) -> String {
-    let mut s = String::new();
-    let _ = writeln!(s, "Before: {}", args.before.display());
-    let _ = writeln!(s, "After:  {}", args.after.display());
-    let _ = writeln!(
-        s,
-        "{} locations in both; {} only before, {} only after",
-        c.changes.len(),
-        c.only_before.len(),
-        c.only_after.len()
+/// Render every file of the pack in memory (so that a failure leaves the folder as it was),
+/// then write each atomically.
+fn write_pack(c: &Comparison, out: &Path, inputs: &[PathBuf]) -> Result<Vec<PathBuf>> {
+    let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
+    let target = |name: &str| out.join(name);
+    let render = |name: &str, e: std::io::Error| Error::io(&target(name), e);
+    let mut csv = Vec::new();
+    csv_out::write_csv(c, &mut csv).map_err(|e| render("compare.csv", e))?;
+    files.push((target("compare.csv"), csv));
+    let mut json = Vec::new();
+    json_out::write_json(c, &mut json).map_err(|e| render("compare.json", e))?;
+    files.push((target("compare.json"), json));
+    let svg = fld::fld_svg(c).map_err(|e| render("compare-fld.svg", e))?;
+    files.push((target("compare-fld.svg"), svg.into_bytes()));
+    let png = fld::fld_png(c).map_err(|e| render("compare-fld.png", e))?;
+    files.push((target("compare-fld.png"), png));
+    if let Some(svg) = map::map_svg(c).map_err(|e| render("compare-map.svg", e))? {
+        files.push((target("compare-map.svg"), svg.into_bytes()));
+    }
+    if let Some(png) = map::map_png(c).map_err(|e| render("compare-map.png", e))? {
+        files.push((target("compare-map.png"), png));
+    }
+    let html = page::page_html(c).map_err(|e| render("compare.html", e))?;
+    files.push((target("compare.html"), html.into_bytes()));
+    std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
+    for (p, _) in &files {
+        guard_inputs(p, inputs)?;
+    }
+    let mut written = Vec::new();
+    for (p, bytes) in files {
+        write_atomic(&p, inputs, |w| w.write_all(&bytes))?;
+        written.push(p);
+    }
+    Ok(written)
+}
+
+/// The `--fail-on` gate: newly failed (or marginal) locations in the last tryout, and those
+/// measured only there and failed (or marginal) there.
+fn gate(c: &Comparison, fail_on: Option<Gate>) -> Outcome {
+    let Some(g) = fail_on else {
+        return Outcome::Done;
+    };
+    let marginal = g == Gate::NewMarginal;
+    let mut hits = if marginal {
+        c.newly_at_risk()
+    } else {
+        c.newly_failed()
+    };
+    hits.extend(c.at_risk_only_after(marginal));
+    let name = if marginal {
+        "new-marginal"
+    } else {
+        "new-failed"
+    };
+    if hits.is_empty() {
+        println!("--fail-on {name}: passed (no location newly at risk)");
+        return Outcome::Done;
+    }
+    let ids: Vec<String> = hits.iter().take(12).map(|t| t.name()).collect();
+    let more = if hits.len() > 12 { ", ..." } else { "" };
+    print!(
+        "{}",
+        wrap(
+            &format!(
+                "--fail-on {name}: tripped by {} ({}{more}): exit status 1",
+                compare::count(hits.len(), "location"),
+                ids.join(", ")
+            ),
+            WIDTH,
+            ""
+        )
     );
-    let _ = writeln!(s, "\nZones (rows: before, columns: after):");
-    let _ = write!(s, "  {:<12}", "");
-    for short in [
-        "failed", "marginal", "uncov.", "thicken.", "low-str.", "safe",
-    ] {
-        let _ = write!(s, "{short:>10}");
-    }
-    let _ = writeln!(s);
-    for from in Zone::ALL {
-        let _ = write!(s, "  {:<12}", from.name());
-        for to in Zone::ALL {
-            let _ = write!(s, "{:>10}", c.transitions(from, to));
-        }
-        let _ = writeln!(s);
-    }
-    let risk = c.newly_at_risk();
-    let _ = writeln!(s, "\n{} locations newly failed or marginal", risk.len());
-    for ch in risk.iter().take(args.show) {
-        let _ = writeln!(
-            s,
-            "  {:<14}{} -> {}",
-            ch.after.id, ch.before.zone, ch.after.zone
-        );
-    }
-    if risk.len() > args.show {
-        let _ = writeln!(
-            s,
-            "  ... and {} more (all are in --out)",
-            risk.len() - args.show
-        );
-    }
-    let losses = c.largest_losses(args.show);
-    if !losses.is_empty() {
-        let _ = writeln!(s, "Largest margin losses (percentage points):");
-        let _ = writeln!(
-            s,
-            "  {:<14}{:>10}{:>10}{:>9}  zone",
-            "id", "before", "after", "change"
-        );
-        for ch in losses {
-            let _ = writeln!(
-                s,
-                "  {:<14}{:>10}{:>10}{:>9}  {} -> {}",
-                ch.after.id,
-                fmt_opt(ch.before.margin_pct, 1),
-                fmt_opt(ch.after.margin_pct, 1),
-                fmt_opt(ch.margin_change(), 1),
-                ch.before.zone,
-                ch.after.zone
-            );
-        }
-    }
-    let _ = writeln!(s);
-    s.push_str(&wrap(CAUTION, 80, ""));
-    s
-}
-
-fn write_changes(c: &Comparison, out: &mut dyn Write) -> io::Result<()> {
-    let mut w = csv::Writer::from_writer(out);
-    w.write_record([
-        "id",
-        "zone_before",
-        "zone_after",
-        "major_eng_pct_before",
-        "major_eng_pct_after",
-        "major_change_pct",
-        "margin_pct_before",
-        "margin_pct_after",
-        "margin_change_pct",
-    ])?;
-    for ch in &c.changes {
-        w.write_record([
-            ch.after.id.clone(),
-            ch.before.zone.to_string(),
-            ch.after.zone.to_string(),
-            format!("{:.3}", ch.before.major_pct),
-            format!("{:.3}", ch.after.major_pct),
-            format!("{:.3}", ch.major_change()),
-            fmt_opt(ch.before.margin_pct, 3),
-            fmt_opt(ch.after.margin_pct, 3),
-            fmt_opt(ch.margin_change(), 3),
-        ])?;
-    }
-    w.flush()
+    Outcome::Tripped
 }

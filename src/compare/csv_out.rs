@@ -1,0 +1,90 @@
+//! `compare.csv`: one row for every location of any input. With two inputs the per-tryout
+//! columns end in `_before` and `_after`; with more, in `_t1`, `_t2`, ... in input order.
+
+use super::{Comparison, Matching, ResultRow, Track};
+use crate::output::fmt_opt;
+use std::io::{self, Write};
+
+/// Column suffix of each tryout.
+pub fn suffixes(n: usize) -> Vec<String> {
+    if n == 2 {
+        vec!["before".into(), "after".into()]
+    } else {
+        (1..=n).map(|k| format!("t{k}")).collect()
+    }
+}
+
+/// The header row.
+pub fn header(c: &Comparison) -> Vec<String> {
+    let sfx = suffixes(c.tryouts.len());
+    let mut h = vec!["id".to_string(), "status".to_string()];
+    if matches!(c.matching, Matching::Xy { .. }) {
+        h.extend(sfx.iter().map(|s| format!("id_{s}")));
+        if sfx.len() == 2 {
+            h.push("distance".into());
+        } else {
+            h.extend(sfx[1..].iter().map(|s| format!("distance_{s}")));
+        }
+    }
+    for q in ["zone", "major_eng_pct", "margin_pct"] {
+        h.extend(sfx.iter().map(|s| format!("{q}_{s}")));
+    }
+    h.extend(
+        ["margin_change_pct", "major_change_pct", "change", "x", "y"]
+            .iter()
+            .map(|s| s.to_string()),
+    );
+    h
+}
+
+/// The latest measurement of a location.
+pub fn latest(t: &Track) -> &ResultRow {
+    t.at.iter()
+        .rev()
+        .flatten()
+        .next()
+        .expect("a track holds at least one location")
+}
+
+fn record(c: &Comparison, t: &Track) -> Vec<String> {
+    let last = latest(t);
+    let mut r = vec![last.id.clone(), t.status().name().to_string()];
+    if matches!(c.matching, Matching::Xy { .. }) {
+        r.extend(
+            t.at.iter()
+                .map(|a| a.as_ref().map_or_else(String::new, |a| a.id.clone())),
+        );
+        r.extend(t.step[1..].iter().map(|d| fmt_opt(*d, 3)));
+    }
+    r.extend(
+        t.at.iter()
+            .map(|a| a.as_ref().map_or_else(String::new, |a| a.zone.to_string())),
+    );
+    r.extend(
+        t.at.iter()
+            .map(|a| fmt_opt(a.as_ref().map(|a| a.major_pct), 3)),
+    );
+    r.extend(
+        t.at.iter()
+            .map(|a| fmt_opt(a.as_ref().and_then(|a| a.margin_pct), 3)),
+    );
+    r.push(fmt_opt(t.margin_change(), 3));
+    r.push(fmt_opt(t.major_change(), 3));
+    r.push(
+        t.change(c.tolerance)
+            .map_or_else(String::new, |ch| ch.name().to_string()),
+    );
+    r.push(fmt_opt(last.x, 3));
+    r.push(fmt_opt(last.y, 3));
+    r
+}
+
+/// Write compare.csv.
+pub fn write_csv(c: &Comparison, out: &mut dyn Write) -> io::Result<()> {
+    let mut w = csv::Writer::from_writer(out);
+    w.write_record(header(c))?;
+    for t in &c.tracks {
+        w.write_record(record(c, t))?;
+    }
+    w.flush()
+}

@@ -1,0 +1,105 @@
+//! `compare.json`: the counts and lists of a comparison, for scripts.
+
+use super::{Change, Comparison, Matching, Status, Track};
+use crate::analysis::CAUTION;
+use crate::assess::Zone;
+use serde_json::{json, Map, Value};
+use std::io::{self, Write};
+
+fn entry(c: &Comparison, t: &Track) -> Value {
+    let (b, a) = (t.before(), t.after());
+    json!({
+        "id": t.name(),
+        "zone_before": b.map(|r| r.zone.name()),
+        "zone_after": a.map(|r| r.zone.name()),
+        "margin_pct_before": b.and_then(|r| r.margin_pct),
+        "margin_pct_after": a.and_then(|r| r.margin_pct),
+        "margin_change_pct": t.margin_change(),
+        "major_change_pct": t.major_change(),
+        "change": t.change(c.tolerance).map(Change::name),
+    })
+}
+
+fn list(c: &Comparison, v: Vec<&Track>) -> Value {
+    Value::Array(v.into_iter().map(|t| entry(c, t)).collect())
+}
+
+fn ids(v: Vec<&Track>) -> Value {
+    json!(v.iter().map(|t| t.name()).collect::<Vec<_>>())
+}
+
+fn zones(counts: Vec<(Zone, usize)>) -> Value {
+    let m: Map<String, Value> = counts
+        .into_iter()
+        .map(|(z, n)| (z.name().to_string(), json!(n)))
+        .collect();
+    Value::Object(m)
+}
+
+/// The comparison as a JSON value.
+pub fn summary(c: &Comparison) -> Value {
+    let tryouts: Vec<Value> = c
+        .tryouts
+        .iter()
+        .enumerate()
+        .map(|(k, t)| {
+            let s = t.summary.clone().unwrap_or_default();
+            json!({
+                "label": t.label, "file": t.path.display().to_string(),
+                "part": s.part, "die": s.die, "date": s.date, "curve": s.curve,
+                "safety_band_pct": s.band, "verdict": c.verdict(k),
+                "locations": t.rows.len(), "zones": zones(c.zone_counts(k)),
+            })
+        })
+        .collect();
+    let mut transitions = Map::new();
+    for from in Zone::ALL {
+        let row: Map<String, Value> = Zone::ALL
+            .iter()
+            .map(|to| (to.name().to_string(), json!(c.transitions(from, *to))))
+            .collect();
+        transitions.insert(from.name().to_string(), Value::Object(row));
+    }
+    let (before, after) = c.labels();
+    let matching = match c.matching {
+        Matching::Id => json!({ "by": "id" }),
+        Matching::Xy { within } => json!({ "by": "xy", "within": within }),
+    };
+    json!({
+        "tool": { "name": "neckline", "version": env!("CARGO_PKG_VERSION") },
+        "tryouts": tryouts,
+        "compared": { "before": before, "after": after },
+        "matching": matching,
+        "tolerance_pct": c.tolerance,
+        "counts": {
+            "both": c.with_status(Status::Both).len(),
+            "only_before": c.with_status(Status::OnlyBefore).len(),
+            "only_after": c.with_status(Status::OnlyAfter).len(),
+            "only_earlier": c.with_status(Status::OnlyEarlier).len(),
+            "improved": c.change_count(Change::Improved),
+            "worsened": c.change_count(Change::Worsened),
+            "unchanged": c.change_count(Change::Unchanged),
+            "newly_failed": c.newly_failed().len(),
+            "newly_at_risk": c.newly_at_risk().len(),
+            "fixed": c.fixed().len(),
+        },
+        "transitions": transitions,
+        "newly_failed": list(c, c.newly_failed()),
+        "newly_at_risk": list(c, c.newly_at_risk()),
+        "fixed": list(c, c.fixed()),
+        "losses": list(c, c.losses()),
+        "gains": list(c, c.gains()),
+        "only_before": ids(c.with_status(Status::OnlyBefore)),
+        "only_after": ids(c.with_status(Status::OnlyAfter)),
+        "only_earlier": ids(c.with_status(Status::OnlyEarlier)),
+        "at_risk_only_after": list(c, c.at_risk_only_after(true)),
+        "warnings": c.warnings,
+        "caution": CAUTION,
+    })
+}
+
+/// Write compare.json, pretty-printed.
+pub fn write_json(c: &Comparison, out: &mut dyn Write) -> io::Result<()> {
+    serde_json::to_writer_pretty(&mut *out, &summary(c))?;
+    writeln!(out)
+}

@@ -1,0 +1,217 @@
+//! The review page in a real browser: `compare` writes compare.html from the demo's two
+//! tryouts, headless Chromium prints it to PDF and takes a screenshot. Asserts: no request from
+//! the page other than the page itself, one printed page per section, a screenshot that is not
+//! blank, and the newly at-risk locations named in their section.
+//!
+//! Skipped with a message when `chromium` is not installed and `CI` is unset; in CI its absence
+//! fails (`.ci/run` installs Debian's `chromium`).
+
+use assert_cmd::Command;
+use std::path::{Path, PathBuf};
+
+fn repo(p: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join(p)
+}
+
+/// `chromium` on PATH, or `None` (after the skip message) outside CI.
+fn chromium() -> Option<PathBuf> {
+    let found = std::env::var_os("PATH").and_then(|paths| {
+        std::env::split_paths(&paths)
+            .map(|d| d.join("chromium"))
+            .find(|p| p.is_file())
+    });
+    match found {
+        Some(p) => Some(p),
+        None if std::env::var_os("CI").is_some() => {
+            panic!("CI is set but `chromium` is not on PATH: install it (apt-get install chromium)")
+        }
+        None => {
+            eprintln!(
+                "SKIPPED compare_browser: `chromium` is not installed (apt-get install chromium); \
+                 in CI this test fails instead"
+            );
+            None
+        }
+    }
+}
+
+/// Run headless Chromium on `page` with `action` flags and verbose logging; returns its log.
+fn run_chromium(chromium: &Path, page: &Path, action: &[String]) -> String {
+    let profile = tempfile::tempdir().unwrap();
+    let out = std::process::Command::new(chromium)
+        .args([
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--no-first-run",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+            "--enable-logging=stderr",
+            "--v=1",
+        ])
+        .arg(format!("--user-data-dir={}", profile.path().display()))
+        .args(action)
+        .arg(format!("file://{}", page.display()))
+        .output()
+        .unwrap();
+    let log = String::from_utf8_lossy(&out.stderr).into_owned();
+    assert!(
+        out.status.success(),
+        "chromium failed: {}\n{log}",
+        out.status
+    );
+    log
+}
+
+/// URLs the page asked for: every file loaded other than the page itself, and every network
+/// request to a host that the page's own text names. Without scripts a page can only request
+/// what its text names; Chromium's own background calls (updates, clock, accounts), which it
+/// makes with any page, even a blank one, go to hosts the page never mentions.
+fn page_requests(log: &str, page: &Path) -> Vec<String> {
+    let own = format!("file://{}", page.display());
+    let text = std::fs::read_to_string(page).unwrap_or_default();
+    let url_after = |line: &str, key: &str| {
+        line.split_once(key)
+            .map(|(_, rest)| rest.split_whitespace().next().unwrap_or("").to_string())
+    };
+    let named_by_page = |u: &str| {
+        let host = u
+            .split("://")
+            .nth(1)
+            .unwrap_or("")
+            .split(['/', '?', ':'])
+            .next()
+            .unwrap_or("");
+        !host.is_empty() && text.contains(host)
+    };
+    log.lines()
+        .filter_map(|l| {
+            url_after(l, "FileURLLoader::Start:")
+                .filter(|u| *u != own)
+                .or_else(|| url_after(l, "NotifyBeforeURLRequest:").filter(|u| named_by_page(u)))
+        })
+        .collect()
+}
+
+/// Number of page objects in a PDF: `/Type /Page` not followed by `s` (which is `/Pages`).
+fn pdf_pages(pdf: &[u8]) -> usize {
+    let key = b"/Type /Page";
+    pdf.windows(key.len() + 1)
+        .filter(|w| &w[..key.len()] == key && w[key.len()] != b's')
+        .count()
+}
+
+/// The demo's review pack, as the README makes it: returns compare.html.
+fn demo_pack(dir: &Path) -> PathBuf {
+    for t in [1, 2] {
+        let st = Command::cargo_bin("neckline")
+            .unwrap()
+            .current_dir(dir)
+            .arg("check")
+            .arg(repo(&format!("demo-parts/rear-floor-pan/tryout-{t}.csv")))
+            .arg("--job")
+            .arg(repo(&format!("demo-parts/rear-floor-pan/job-t{t}.toml")))
+            .args(["--out", &format!("out/t{t}"), "--format", "csv,json"])
+            .output()
+            .unwrap();
+        assert!(
+            st.status.success(),
+            "{}",
+            String::from_utf8_lossy(&st.stderr)
+        );
+    }
+    let st = Command::cargo_bin("neckline")
+        .unwrap()
+        .current_dir(dir)
+        .args([
+            "compare",
+            "out/t1/points.csv",
+            "out/t2/points.csv",
+            "--out",
+            "out/review",
+        ])
+        .env("NO_COLOR", "1")
+        .output()
+        .unwrap();
+    assert!(
+        st.status.success(),
+        "{}",
+        String::from_utf8_lossy(&st.stderr)
+    );
+    dir.join("out/review/compare.html")
+}
+
+#[test]
+fn review_page_is_self_contained_printable_and_names_the_newly_at_risk() {
+    let Some(chromium) = chromium() else { return };
+    let dir = tempfile::tempdir().unwrap();
+    let page = demo_pack(dir.path());
+    let html = std::fs::read_to_string(&page).unwrap();
+    for bad in [
+        "http://", "https://", "src=", "href=", "@import", "url(", "<script", "<link",
+    ] {
+        assert!(!html.contains(bad), "compare.html contains `{bad}`");
+    }
+    // The newly failed or marginal locations of the demo (J02 and K04 went from safe to
+    // marginal, by compare.json) are in the page's at-risk section.
+    let json: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(dir.path().join("out/review/compare.json")).unwrap(),
+    )
+    .unwrap();
+    let newly: Vec<&str> = json["newly_at_risk"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|e| e["id"].as_str().unwrap())
+        .collect();
+    assert_eq!(newly, ["J02", "K04"]);
+    let at_risk = html
+        .split("<section class=\"page\" id=\"at-risk\">")
+        .nth(1)
+        .and_then(|s| s.split("</section>").next())
+        .expect("at-risk section");
+    let newly_part = at_risk.split("<h3>Fixed").next().unwrap();
+    for id in newly {
+        assert!(
+            newly_part.contains(&format!("<td>{id}</td>")),
+            "{id} not listed"
+        );
+    }
+    let sections = html.matches("<section class=\"page\"").count();
+
+    let pdf_path = dir.path().join("page.pdf");
+    let log = run_chromium(
+        &chromium,
+        &page,
+        &[
+            "--no-pdf-header-footer".into(),
+            format!("--print-to-pdf={}", pdf_path.display()),
+        ],
+    );
+    assert_eq!(page_requests(&log, &page), Vec::<String>::new());
+    let pdf = std::fs::read(&pdf_path).unwrap();
+    assert_eq!(pdf_pages(&pdf), sections, "one printed page per section");
+
+    let shot = dir.path().join("shot.png");
+    let log = run_chromium(
+        &chromium,
+        &page,
+        &[
+            format!("--screenshot={}", shot.display()),
+            "--window-size=1200,1600".into(),
+        ],
+    );
+    assert_eq!(page_requests(&log, &page), Vec::<String>::new());
+    let img = image::open(&shot).unwrap().to_rgb8();
+    let mut colours: Vec<[u8; 3]> = img.pixels().map(|p| p.0).collect();
+    colours.sort_unstable();
+    colours.dedup();
+    assert!(
+        colours.len() > 100,
+        "only {} colours: blank page?",
+        colours.len()
+    );
+    let dark = img.pixels().filter(|p| p.0.iter().all(|&c| c < 80)).count();
+    assert!(dark > 5_000, "only {dark} dark (text) pixels");
+}
