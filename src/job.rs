@@ -20,10 +20,11 @@
 //! reading_error = 0.02 # one axis, in `unit`; flags borderline locations
 //! ```
 
-use crate::error::{Error, Result};
+use crate::error::{line_col, Error, Location, Result};
 use crate::units::LengthUnit;
 use serde::{Deserialize, Serialize};
 use std::path::{Path, PathBuf};
+use toml::Spanned;
 
 /// Contents of a job file.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
@@ -69,6 +70,7 @@ impl Job {
         let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
         let mut job: Job =
             toml::from_str(&text).map_err(|e| crate::error::toml_error(path, &text, &e))?;
+        check_ranges(path, &text)?;
         if let Some(limit) = job.limit.take() {
             let base = path.parent().unwrap_or(Path::new(""));
             job.limit = Some(if limit.is_absolute() {
@@ -79,6 +81,65 @@ impl Job {
         }
         Ok(job)
     }
+}
+
+/// The numeric keys of a job file with their places in the text, for range messages.
+#[derive(Debug, Default, Deserialize)]
+struct NumberSpans {
+    d0: Option<Spanned<f64>>,
+    t0: Option<Spanned<f64>>,
+    margin: Option<Spanned<f64>>,
+    low_stretch: Option<Spanned<f64>>,
+    max_thinning: Option<Spanned<f64>>,
+    reading_error: Option<Spanned<f64>>,
+}
+
+/// A key, its value and place, its test and the range in words.
+type RangeCheck<'a> = (&'a str, &'a Option<Spanned<f64>>, fn(f64) -> bool, &'a str);
+
+/// Each numeric key against its allowed range (the same ranges as the flags); an error names
+/// the job file, the key's line and column, the value and the range.
+fn check_ranges(path: &Path, text: &str) -> Result<()> {
+    let spans: NumberSpans =
+        toml::from_str(text).map_err(|e| crate::error::toml_error(path, text, &e))?;
+    let positive: fn(f64) -> bool = |v| v.is_finite() && v > 0.0;
+    let percent: fn(f64) -> bool = |v| v.is_finite() && (0.0..=50.0).contains(&v);
+    let thinning: fn(f64) -> bool = |v| v.is_finite() && v > 0.0 && v < 100.0;
+    let length = "a positive length in the job's `unit`";
+    let checks: [RangeCheck; 6] = [
+        ("d0", &spans.d0, positive, length),
+        ("t0", &spans.t0, positive, length),
+        ("reading_error", &spans.reading_error, positive, length),
+        (
+            "margin",
+            &spans.margin,
+            percent,
+            "0 to 50 percentage points",
+        ),
+        ("low_stretch", &spans.low_stretch, percent, "0 to 50 %"),
+        (
+            "max_thinning",
+            &spans.max_thinning,
+            thinning,
+            "above 0 and below 100 %",
+        ),
+    ];
+    for (key, value, ok, expected) in checks {
+        let Some(v) = value else { continue };
+        if !ok(*v.get_ref()) {
+            let (line, col) = line_col(text, v.span().start);
+            let mut loc = Location::file(path).at_line(line);
+            loc.column = Some(col);
+            return Err(Error::input(
+                loc,
+                format!(
+                    "`{key}` = {} is out of range: expected {expected}",
+                    v.get_ref()
+                ),
+            ));
+        }
+    }
+    Ok(())
 }
 
 #[cfg(test)]
@@ -107,6 +168,33 @@ mod tests {
         std::fs::write(&p, "date = 2026-11-24\n").unwrap();
         let e = Job::load(&p).unwrap_err().to_string();
         assert!(e.contains("expected text in quotes"), "{e}");
+    }
+
+    // A value out of range names the job file, the key and its place (a flag would name the
+    // flag; in a job file the user needs the file and line to find it).
+    #[test]
+    fn out_of_range_value_names_file_and_key() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("job.toml");
+        std::fs::write(&p, "part = \"x\"\nd0 = -2.5\n").unwrap();
+        let e = Job::load(&p).unwrap_err().to_string();
+        assert!(
+            e.contains("job.toml:2:6") && e.contains("`d0` = -2.5") && e.contains("positive"),
+            "{e}"
+        );
+        for (text, key) in [
+            ("margin = 80\n", "`margin`"),
+            ("low_stretch = -1\n", "`low_stretch`"),
+            ("max_thinning = 100\n", "`max_thinning`"),
+            ("reading_error = 0\n", "`reading_error`"),
+            ("t0 = nan\n", "`t0`"),
+        ] {
+            std::fs::write(&p, text).unwrap();
+            let e = Job::load(&p).unwrap_err().to_string();
+            assert!(e.contains("job.toml:1:") && e.contains(key), "{text}: {e}");
+        }
+        std::fs::write(&p, "d0 = 2.5\nt0 = 0.8\nmargin = 10\nmax_thinning = 25\n").unwrap();
+        assert!(Job::load(&p).is_ok());
     }
 
     #[test]

@@ -72,12 +72,28 @@ pub fn state_input(e: &Element, r: &ElementResult, three_d: bool) -> Option<Stat
     })
 }
 
+/// How an element is named in messages: a regular grid's cell by its place (`grid cell
+/// r0c0`), an elements file's element by its id (`element `T3``).
+pub fn element_name(e: &Element, regular_grid: bool) -> String {
+    if regular_grid {
+        format!("grid cell {}", e.id)
+    } else {
+        format!("element `{}`", e.id)
+    }
+}
+
 /// Evaluate every element of `mesh`: a judged-ready location, or a rejected row naming the
-/// element and why (collapsed, inverted, not convex...). `source` is the file that defined the
-/// elements (the elements file, or the nodes file for a regular grid).
-pub fn evaluate(mesh: &Mesh, source: &Path) -> (Vec<StateInput>, Vec<RejectedRow>) {
+/// element (its id in the message itself, not only in the id field) and why (collapsed,
+/// inverted, not convex...). `source` is the file that defined the elements (the elements file,
+/// or the nodes file for a regular grid, `regular_grid`).
+pub fn evaluate(
+    mesh: &Mesh,
+    source: &Path,
+    regular_grid: bool,
+) -> (Vec<StateInput>, Vec<RejectedRow>) {
     let (mut ok, mut rejected) = (Vec::new(), Vec::new());
     for e in &mesh.elements {
+        let name = element_name(e, regular_grid);
         let reject = |reason: String| RejectedRow {
             location: Location::file(source).at_line(e.line),
             id: Some(e.id.clone()),
@@ -86,9 +102,11 @@ pub fn evaluate(mesh: &Mesh, source: &Path) -> (Vec<StateInput>, Vec<RejectedRow
         match mesh.evaluate(e) {
             Ok(r) => match state_input(e, &r, mesh.three_d) {
                 Some(s) => ok.push(s),
-                None => rejected.push(reject("the element's stretches are not positive".into())),
+                None => rejected.push(reject(format!(
+                    "{name} not evaluated: its stretches are not positive"
+                ))),
             },
-            Err(d) => rejected.push(reject(format!("element not evaluated: {d}"))),
+            Err(d) => rejected.push(reject(format!("{name} not evaluated: {d}"))),
         }
     }
     (ok, rejected)

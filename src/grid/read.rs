@@ -548,13 +548,24 @@ fn read_element(
     })
 }
 
+/// A mesh as read, with what was rejected on the way, node rows and elements apart (so that
+/// messages can count each in its own words).
+#[derive(Debug, Clone)]
+pub struct MeshRead {
+    /// The accepted nodes and elements.
+    pub mesh: Mesh,
+    /// Rejected rows of the nodes file.
+    pub node_rows: Vec<RejectedRow>,
+    /// Rejected elements: rows of the elements file, or grid cells missing a corner.
+    pub elements: Vec<RejectedRow>,
+    /// Header columns of the nodes file that were not recognised (ignored).
+    pub ignored: Vec<String>,
+}
+
 /// Read the nodes and, if given, the elements, into a mesh plus every rejected row.
-pub fn read_mesh(
-    nodes: &Path,
-    elements: Option<&Path>,
-) -> Result<(Mesh, Vec<RejectedRow>, Vec<String>)> {
+pub fn read_mesh(nodes: &Path, elements: Option<&Path>) -> Result<MeshRead> {
     let set = read_nodes(nodes)?;
-    let (elems, mut rejected) = match elements {
+    let (elems, rejected) = match elements {
         Some(p) => read_elements(p, &set)?,
         None if set.has_grid => grid_cells(&set),
         None => {
@@ -564,14 +575,16 @@ pub fn read_mesh(
             ))
         }
     };
-    let mut all = set.rejected;
-    all.append(&mut rejected);
-    let mesh = Mesh {
-        nodes: set.nodes,
-        elements: elems,
-        three_d: set.three_d,
-    };
-    Ok((mesh, all, set.ignored_columns))
+    Ok(MeshRead {
+        mesh: Mesh {
+            nodes: set.nodes,
+            elements: elems,
+            three_d: set.three_d,
+        },
+        node_rows: set.rejected,
+        elements: rejected,
+        ignored: set.ignored_columns,
+    })
 }
 
 #[cfg(test)]
