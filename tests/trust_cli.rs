@@ -215,3 +215,37 @@ fn grid_messages_name_the_element_and_count_elements() {
     );
     assert!(!r.stderr.contains("rows"), "{r}");
 }
+
+// `grid --reading-error`: a 2.5 mm cell stretched 20 % along x on a flat curve. Every corner
+// feeds the centre gradient, so δ = 0.01 mm on each node coordinate moves the major strain by
+// up to 2δ/h = 0.8 % (the derivation in src/grid/reading.rs), not δ/d0 = 0.35 % of a circle of
+// the cell's area.
+#[test]
+fn grid_reading_error_counts_every_corner() {
+    let nodes = "row,col,X,Y,x,y\n0,0,0,0,0,0\n0,1,2.5,0,3,0\n1,1,2.5,2.5,3,2.5\n1,0,0,2.5,0,2.5\n";
+    let r = run(
+        &[("nodes.csv", nodes), ("flat.toml", FLAT)],
+        &[
+            "grid",
+            "nodes.csv",
+            "--limit",
+            "flat.toml",
+            "--out",
+            "o",
+            "--format",
+            "csv",
+            "--reading-error",
+            "0.01",
+        ],
+    );
+    assert_eq!(r.code, 0, "{r}");
+    let rows = csv_rows(&r.dir.path().join("o/points.csv"));
+    assert!(
+        (num(&rows[0], "major_eng_pct") - 20.0).abs() < 1e-6,
+        "{rows:?}"
+    );
+    assert!(
+        (num(&rows[0], "margin_uncertainty_pct") - 0.80).abs() < 0.005,
+        "{rows:?}"
+    );
+}

@@ -81,6 +81,7 @@ pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, String)> {
         curve,
         settings,
     );
+    crate::grid::node_reading_uncertainty(&mut a);
     if job_d0 {
         a.warnings.push(
             "d0 in the job file is not used by grid: each element's blank area gives its own"

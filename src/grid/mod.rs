@@ -9,6 +9,7 @@
 pub mod deformation;
 pub mod mesh;
 pub mod read;
+pub mod reading;
 
 use crate::error::Location;
 use crate::kinematics::StrainState;
@@ -33,6 +34,9 @@ pub struct GridExtras {
     pub z: Option<f64>,
     /// Centre in the blank.
     pub reference_centre: [f64; 2],
+    /// How the stretches move with each deformed node, for the margin's uncertainty under a
+    /// reading error ([`reading`]).
+    pub sensitivity: Option<reading::StretchSensitivity>,
 }
 
 pub use crate::analysis::StateInput;
@@ -63,6 +67,7 @@ pub fn state_input(e: &Element, r: &ElementResult, three_d: bool) -> Option<Stat
         normal: k.normal.map(|n| [n.x, n.y, n.z]),
         z: three_d.then_some(r.centre.z),
         reference_centre: [r.reference_centre.x, r.reference_centre.y],
+        sensitivity: None,
     };
     Some(StateInput {
         input,
@@ -79,6 +84,26 @@ pub fn element_name(e: &Element, regular_grid: bool) -> String {
         format!("grid cell {}", e.id)
     } else {
         format!("element `{}`", e.id)
+    }
+}
+
+/// Replace the circle rule's margin uncertainty of each grid element by the node-error one
+/// ([`reading::margin_uncertainty_pct`]), with `settings.reading_error` on every deformed node
+/// coordinate, and set the borderline flag from it.
+pub fn node_reading_uncertainty(a: &mut crate::analysis::Analysis) {
+    let Some(dd) = a.settings.reading_error else {
+        return;
+    };
+    for p in &mut a.points {
+        let (Some(sens), Some(m)) = (
+            p.grid.as_ref().and_then(|g| g.sensitivity),
+            p.judgement.margin_pct,
+        ) else {
+            continue;
+        };
+        let u = reading::margin_uncertainty_pct(&sens, &a.curve, p.strain.eng.minor.value(), dd);
+        p.judgement.uncertainty_pct = Some(u);
+        p.judgement.borderline = crate::assess::is_borderline(m, u, &a.settings);
     }
 }
 
@@ -101,7 +126,12 @@ pub fn evaluate(
         };
         match mesh.evaluate(e) {
             Ok(r) => match state_input(e, &r, mesh.three_d) {
-                Some(s) => ok.push(s),
+                Some(mut s) => {
+                    if let Some(g) = s.grid.as_mut() {
+                        g.sensitivity = reading::sensitivity(mesh, e);
+                    }
+                    ok.push(s)
+                }
                 None => rejected.push(reject(format!(
                     "{name} not evaluated: its stretches are not positive"
                 ))),
