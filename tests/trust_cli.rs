@@ -249,3 +249,53 @@ fn grid_reading_error_counts_every_corner() {
         "{rows:?}"
     );
 }
+
+/// Outline rows `id, x, y` of an ellipse with full axes `major`, `minor` centred at `(cx, cy)`,
+/// `n` points evenly spaced in parametric angle.
+fn outline(id: &str, major: f64, minor: f64, cx: f64, cy: f64, n: usize) -> String {
+    (0..n)
+        .map(|i| {
+            let t = i as f64 * std::f64::consts::TAU / n as f64;
+            format!(
+                "{id},{},{}\n",
+                cx + major / 2.0 * t.cos(),
+                cy + minor / 2.0 * t.sin()
+            )
+        })
+        .collect()
+}
+
+// `fit` with a stray point, two outlines under one id and a 90° arc: the stray point is set
+// aside (2.8 mm comes back, quality good), the other two are written with `suspect: ...` in the
+// quality column, and each is named on standard error.
+#[test]
+fn fit_sets_aside_outliers_and_flags_suspect_fits() {
+    let mut csv = String::from("id,x,y\n");
+    csv += &outline("STRAY", 2.8, 2.8, 0.0, 0.0, 16);
+    csv += "STRAY,2.3,0\n";
+    csv += &outline("TWO", 2.5, 2.5, 10.0, 0.0, 12);
+    csv += &outline("TWO", 2.9, 2.7, 14.0, 0.5, 12);
+    for i in 0..12 {
+        let t = f64::from(i) / 11.0 * std::f64::consts::FRAC_PI_2;
+        let noise = 0.01 * (5.1 * f64::from(i)).sin();
+        csv += &format!("ARC,{},{}\n", 20.0 + (1.4 + noise) * t.cos(), 1.3 * t.sin());
+    }
+    let r = run(&[("o.csv", &csv)], &["fit", "o.csv", "--out", "f.csv"]);
+    assert_eq!(r.code, 0, "{r}");
+    let rows = csv_rows(&r.dir.path().join("f.csv"));
+    assert_eq!(rows.len(), 3, "{rows:?}");
+    assert!((num(&rows[0], "major") - 2.8).abs() < 1e-5, "{rows:?}");
+    assert_eq!(rows[0]["discarded"], "1");
+    assert_eq!(rows[0]["quality"], "good");
+    assert!(
+        rows[1]["quality"].starts_with("suspect: 12 of 24 points"),
+        "{rows:?}"
+    );
+    assert!(rows[2]["quality"].contains("cover only"), "{rows:?}");
+    assert!(
+        r.stderr
+            .contains("outline `STRAY`: 1 of 17 points set aside"),
+        "{r}"
+    );
+    assert!(r.stderr.contains("outline `ARC`: suspect:"), "{r}");
+}
