@@ -82,6 +82,11 @@ impl TruePath {
 /// output shows is 0.001 % (1e-5): a point this close to the end prints at the end.
 pub const RANGE_TOLERANCE: f64 = 1e-9;
 
+/// Most points a curve file may have: tabulated and generated curves have tens to a few hundred
+/// (a generated one at most 301 paths), so more is not a curve but a mistake, refused before
+/// any work.
+pub const MAX_POINTS: usize = 10_000;
+
 /// Largest strain magnitude accepted in a curve file, percent (a plausibility bound).
 const PLAUSIBLE_PCT: f64 = 300.0;
 
@@ -90,7 +95,7 @@ pub use crate::error::line_col;
 impl LimitCurve {
     /// Load and validate a curve file.
     pub fn load(path: &Path) -> Result<Self> {
-        let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+        let text = crate::error::read_text(path)?;
         Self::parse(&text, path)
     }
 
@@ -258,6 +263,16 @@ fn ray_hit(path: &TruePath, d: [f64; 2]) -> Option<f64> {
         .min_by(|a, b| a.total_cmp(b))
 }
 
+/// A number for a message: as written when ordinary, in exponent form when huge (1e308 has 309
+/// digits in full).
+fn short(v: f64) -> String {
+    if v.abs() >= 1e9 {
+        format!("{v:e}")
+    } else {
+        v.to_string()
+    }
+}
+
 fn validate_points(
     points: &[Spanned<Vec<f64>>],
     at: &dyn Fn(usize) -> Location,
@@ -268,6 +283,16 @@ fn validate_points(
         return Err(Error::input(
             loc,
             "a curve needs at least two points [minor, major]",
+        ));
+    }
+    if let Some(p) = points.get(MAX_POINTS) {
+        return Err(Error::input(
+            at(p.span().start),
+            format!(
+                "{} points: a curve has at most {MAX_POINTS} (a tabulated or generated curve \
+                 needs a few hundred at most)",
+                points.len()
+            ),
         ));
     }
     let mut out: Vec<[f64; 2]> = Vec::with_capacity(points.len());
@@ -284,7 +309,11 @@ fn validate_points(
         if !v.iter().all(|x| x.is_finite() && x.abs() <= PLAUSIBLE_PCT) {
             return Err(Error::input(
                 loc,
-                format!("[{minor}, {major}]: strains must be finite percent values within ±{PLAUSIBLE_PCT}"),
+                format!(
+                    "[{}, {}]: strains must be finite percent values within ±{PLAUSIBLE_PCT}",
+                    short(minor),
+                    short(major)
+                ),
             ));
         }
         if measure == StrainMeasure::Engineering && minor <= -100.0 {
