@@ -110,14 +110,19 @@ impl Context {
     /// Judge one location.
     pub fn judge(&self, s: StateInput) -> PointResult {
         let de = self.strain_error(s.d0);
-        PointResult {
+        let mut p = PointResult {
             judgement: judge_reading(&s.strain, de, &self.curve, &self.settings),
             thickness: self.lengths.t0.map(|t0| s.strain.thickness(t0)),
             input: s.input,
             d0: s.d0,
             strain: s.strain,
             grid: s.grid,
+        };
+        if p.grid.is_some() {
+            // Grid elements: the reading error is on the node coordinates, not on axes.
+            crate::grid::node_reading_uncertainty(&mut p, &self.curve, &self.settings);
         }
+        p
     }
 }
 

@@ -198,9 +198,14 @@ pub fn judge_reading(
     if let (Some(de), Some(m)) = (de, j.margin_pct) {
         let u = margin_uncertainty_pct(state, curve, de);
         j.uncertainty_pct = Some(u);
-        j.borderline = m.abs() < u || (m - settings.margin_pct).abs() < u;
+        j.borderline = is_borderline(m, u, settings);
     }
     j
+}
+
+/// Whether a margin `m` lies within its uncertainty `u` of 0 (the curve) or of the band edge.
+pub fn is_borderline(m: f64, u: f64, settings: &Settings) -> bool {
+    m.abs() < u || (m - settings.margin_pct).abs() < u
 }
 
 /// The zone from the vertical margin (`None` = uncovered) and the point's strains.

@@ -108,14 +108,6 @@ impl Error {
     }
 }
 
-/// `text` cut to at most `max` characters, with `...` when cut: for quoting input in messages.
-pub fn clip(text: &str, max: usize) -> String {
-    match text.char_indices().nth(max) {
-        Some((i, _)) => format!("{}...", &text[..i]),
-        None => text.to_string(),
-    }
-}
-
 /// 1-based line and column of byte `offset` in `text`.
 pub fn line_col(text: &str, offset: usize) -> (u64, u64) {
     let before = text.get(..offset.min(text.len())).unwrap_or(text);
@@ -144,6 +136,71 @@ pub fn toml_error(path: &Path, text: &str, e: &toml::de::Error) -> Error {
         m = "expected text in quotes (a date too: date = \"2026-11-24\")".into();
     }
     Error::input(loc, m)
+}
+
+/// Refuse bytes that are not UTF-8 text, saying what they look like and what to do: a UTF-16
+/// "Unicode text" export, a gzip or ZIP file, binary data (a NUL byte), or text in another code
+/// page (the line and column of the first byte that is not UTF-8). `head` is the start of the
+/// file (or all of it when `whole`; otherwise a character cut at its end is not an error).
+pub fn check_text(name: &Path, head: &[u8], whole: bool) -> Result<()> {
+    let at = |offset: usize| {
+        let text = String::from_utf8_lossy(&head[..offset]);
+        let (l, c) = line_col(&text, text.len());
+        let mut loc = Location::file(name).at_line(l);
+        loc.column = Some(c);
+        loc
+    };
+    let whole_file = |m: &str| Err(Error::input(Location::file(name), m));
+    if head.starts_with(&[0xFF, 0xFE]) || head.starts_with(&[0xFE, 0xFF]) {
+        return whole_file(
+            "the file is UTF-16 text (a spreadsheet's \"Unicode text\" export): save it as \
+             \"CSV UTF-8\" or plain comma-separated text and try again",
+        );
+    }
+    if head.starts_with(&[0x1F, 0x8B]) {
+        return whole_file("the file is gzip-compressed: unpack it first (gunzip)");
+    }
+    if head.starts_with(b"PK\x03\x04") {
+        return whole_file(
+            "the file is a ZIP archive (a spreadsheet workbook?): export the sheet as CSV",
+        );
+    }
+    if let Some(i) = head.iter().position(|&b| b == 0) {
+        return Err(Error::input(
+            at(i),
+            "a NUL byte: binary data, not a text file",
+        ));
+    }
+    if let Err(e) = std::str::from_utf8(head) {
+        if whole || e.error_len().is_some() {
+            let i = e.valid_up_to();
+            return Err(Error::input(
+                at(i),
+                format!(
+                    "byte 0x{:02X} is not UTF-8 (Latin-1 or another code page?): save the file \
+                     as UTF-8",
+                    head[i]
+                ),
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// A value quoted in a message, cut to 40 characters with its full length noted when longer.
+pub fn clip(raw: &str) -> String {
+    if raw.chars().count() <= 40 {
+        return raw.to_string();
+    }
+    let head: String = raw.chars().take(40).collect();
+    format!("{head}... ({} bytes)", raw.len())
+}
+
+/// Read a whole text file, refused with [`check_text`]'s advice when it is not UTF-8 text.
+pub fn read_text(path: &Path) -> Result<String> {
+    let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
+    check_text(path, &bytes, true)?;
+    String::from_utf8(bytes).map_err(|_| Error::input(Location::file(path), "not UTF-8 text"))
 }
 
 /// Result with this crate's [`Error`].

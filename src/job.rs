@@ -22,10 +22,11 @@
 //! major_true_pct = "Major strain (%)"
 //! ```
 
-use crate::error::{Error, Result};
+use crate::error::{line_col, Error, Location, Result};
 use crate::units::LengthUnit;
 use serde::{Deserialize, Serialize};
 use std::path::{Path, PathBuf};
+use toml::Spanned;
 
 /// Contents of a job file.
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
@@ -73,7 +74,14 @@ pub struct Job {
 impl Job {
     /// Load a job file; a relative `limit` path is resolved against the job file's folder.
     pub fn load(path: &Path) -> Result<Self> {
-        let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+        let text = crate::error::read_text(path)?;
+        Self::parse(&text, path)
+    }
+
+    /// Parse and check job TOML read from `path` (used in messages, and as the base of a
+    /// relative `limit`).
+    pub fn parse(text: &str, path: &Path) -> Result<Self> {
+        let text = text.to_string();
         let mut job: Job =
             toml::from_str(&text).map_err(|e| crate::error::toml_error(path, &text, &e))?;
         for name in job.columns.keys() {
@@ -84,16 +92,112 @@ impl Job {
                 )
             })?;
         }
+        check_ranges(path, &text)?;
         if let Some(limit) = job.limit.take() {
             let base = path.parent().unwrap_or(Path::new(""));
-            job.limit = Some(if limit.is_absolute() {
+            let limit = if limit.is_absolute() {
                 limit
             } else {
                 base.join(limit)
-            });
+            };
+            check_limit_path(path, &text, &limit)?;
+            job.limit = Some(limit);
         }
         Ok(job)
     }
+}
+
+/// Refuse a `limit` that is the job file itself or a folder, at the key's line.
+fn check_limit_path(path: &Path, text: &str, limit: &Path) -> Result<()> {
+    let same = match (std::fs::canonicalize(path), std::fs::canonicalize(limit)) {
+        (Ok(a), Ok(b)) => a == b,
+        _ => false,
+    };
+    let why = if same {
+        "names this job file itself: it must name a limit curve file (TOML with name, source, \
+         points)"
+    } else if limit.is_dir() {
+        "names a folder: it must name a limit curve file"
+    } else {
+        return Ok(());
+    };
+    #[derive(Deserialize)]
+    struct LimitSpan {
+        limit: Spanned<String>,
+    }
+    let mut loc = Location::file(path);
+    if let Ok(s) = toml::from_str::<LimitSpan>(text) {
+        let (l, c) = line_col(text, s.limit.span().start);
+        loc = loc.at_line(l);
+        loc.column = Some(c);
+    }
+    Err(Error::input(
+        loc,
+        format!("`limit` = \"{}\" {why}", limit.display()),
+    ))
+}
+
+/// The numeric keys of a job file with their places in the text, for range messages.
+#[derive(Debug, Default, Deserialize)]
+struct NumberSpans {
+    d0: Option<Spanned<f64>>,
+    t0: Option<Spanned<f64>>,
+    margin: Option<Spanned<f64>>,
+    low_stretch: Option<Spanned<f64>>,
+    max_thinning: Option<Spanned<f64>>,
+    reading_error: Option<Spanned<f64>>,
+}
+
+/// Largest d0, t0 or reading error a job file may give, in its unit: no grid circle, sheet or
+/// reading error is a metre (or 1000 inches); a larger value is a typo or a wrong unit.
+const MAX_LENGTH: f64 = 1000.0;
+
+/// A key, its value and place, its test and the range in words.
+type RangeCheck<'a> = (&'a str, &'a Option<Spanned<f64>>, fn(f64) -> bool, &'a str);
+
+/// Each numeric key against its allowed range (the same ranges as the flags); an error names
+/// the job file, the key's line and column, the value and the range.
+fn check_ranges(path: &Path, text: &str) -> Result<()> {
+    let spans: NumberSpans =
+        toml::from_str(text).map_err(|e| crate::error::toml_error(path, text, &e))?;
+    let positive: fn(f64) -> bool = |v| v.is_finite() && v > 0.0 && v <= MAX_LENGTH;
+    let percent: fn(f64) -> bool = |v| v.is_finite() && (0.0..=50.0).contains(&v);
+    let thinning: fn(f64) -> bool = |v| v.is_finite() && v > 0.0 && v < 100.0;
+    let length = "a positive length in the job's `unit`, at most 1000";
+    let checks: [RangeCheck; 6] = [
+        ("d0", &spans.d0, positive, length),
+        ("t0", &spans.t0, positive, length),
+        ("reading_error", &spans.reading_error, positive, length),
+        (
+            "margin",
+            &spans.margin,
+            percent,
+            "0 to 50 percentage points",
+        ),
+        ("low_stretch", &spans.low_stretch, percent, "0 to 50 %"),
+        (
+            "max_thinning",
+            &spans.max_thinning,
+            thinning,
+            "above 0 and below 100 %",
+        ),
+    ];
+    for (key, value, ok, expected) in checks {
+        let Some(v) = value else { continue };
+        if !ok(*v.get_ref()) {
+            let (line, col) = line_col(text, v.span().start);
+            let mut loc = Location::file(path).at_line(line);
+            loc.column = Some(col);
+            return Err(Error::input(
+                loc,
+                format!(
+                    "`{key}` = {} is out of range: expected {expected}",
+                    v.get_ref()
+                ),
+            ));
+        }
+    }
+    Ok(())
 }
 
 #[cfg(test)]
@@ -122,6 +226,46 @@ mod tests {
         std::fs::write(&p, "date = 2026-11-24\n").unwrap();
         let e = Job::load(&p).unwrap_err().to_string();
         assert!(e.contains("expected text in quotes"), "{e}");
+    }
+
+    // A value out of range names the job file, the key and its place (a flag would name the
+    // flag; in a job file the user needs the file and line to find it).
+    #[test]
+    fn out_of_range_value_names_file_and_key() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("job.toml");
+        std::fs::write(&p, "part = \"x\"\nd0 = -2.5\n").unwrap();
+        let e = Job::load(&p).unwrap_err().to_string();
+        assert!(
+            e.contains("job.toml:2:6") && e.contains("`d0` = -2.5") && e.contains("positive"),
+            "{e}"
+        );
+        for (text, key) in [
+            ("margin = 80\n", "`margin`"),
+            ("low_stretch = -1\n", "`low_stretch`"),
+            ("max_thinning = 100\n", "`max_thinning`"),
+            ("reading_error = 0\n", "`reading_error`"),
+            ("t0 = nan\n", "`t0`"),
+        ] {
+            std::fs::write(&p, text).unwrap();
+            let e = Job::load(&p).unwrap_err().to_string();
+            assert!(e.contains("job.toml:1:") && e.contains(key), "{text}: {e}");
+        }
+        std::fs::write(&p, "d0 = 2.5\nt0 = 0.8\nmargin = 10\nmax_thinning = 25\n").unwrap();
+        assert!(Job::load(&p).is_ok());
+    }
+
+    // A job that names itself as its curve (or a folder) is refused at the `limit` line.
+    #[test]
+    fn limit_naming_the_job_itself_is_refused() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("job.toml");
+        std::fs::write(&p, "part = \"x\"\nlimit = \"job.toml\"\n").unwrap();
+        let e = Job::load(&p).unwrap_err().to_string();
+        assert!(e.contains("job.toml:2:9") && e.contains("itself"), "{e}");
+        std::fs::write(&p, "limit = \".\"\n").unwrap();
+        let e = Job::load(&p).unwrap_err().to_string();
+        assert!(e.contains("job.toml:1:9") && e.contains("folder"), "{e}");
     }
 
     #[test]

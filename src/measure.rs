@@ -519,7 +519,7 @@ pub fn parse_number(text: &str, dialect: Dialect) -> std::result::Result<f64, St
         Ok(v) if v.is_finite() => Ok(v),
         _ => Err(format!(
             "expected a finite number, found `{}`",
-            crate::error::clip(text.trim(), 40)
+            crate::error::clip(text.trim())
         )),
     }
 }

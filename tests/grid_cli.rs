@@ -185,7 +185,7 @@ fn grid_elements_with_bad_rows_and_degenerate_elements() {
         "{stdout}"
     );
     assert!(
-        stdout.contains("elements.csv:5: element not evaluated"),
+        stdout.contains("elements.csv:5: element `T3` not evaluated"),
         "{stdout}"
     );
     assert!(stdout.contains("turned"), "{stdout}");
@@ -214,7 +214,11 @@ fn grid_elements_with_bad_rows_and_degenerate_elements() {
     strict[7] = "o2";
     strict.push("--strict");
     let out = r.run(&strict, None, 2);
-    assert!(String::from_utf8_lossy(&out.stderr).contains("--strict"));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("--strict: 1 node row and 4 elements rejected"),
+        "{err}"
+    );
     assert!(!r.path("o2/points.csv").exists() && !r.path("o2/summary.json").exists());
 }
 

@@ -2,7 +2,7 @@
 
 use super::Outcome;
 use crate::error::{Error, Location, Result};
-use crate::fit::{fit_ellipse, EllipseFit};
+use crate::fit::{fit_robust, RobustFit};
 use crate::grid::read::{read_table, Table};
 use crate::output::write_atomic;
 use clap::Args;
@@ -22,8 +22,11 @@ pub struct FitArgs {
 }
 
 /// The columns written: the fitted axes as `major, minor` (what `check` reads), the fit's
-/// details, and `x, y` repeating the centre so that `check` places each location on the part.
-pub const FIT_COLUMNS: [&str; 10] = [
+/// details, `x, y` repeating the centre so that `check` places each location on the part, then
+/// `discarded` (points set aside as off the ellipse), `coverage_deg` (how much of the outline
+/// the kept points cover) and `quality`: `good`, or `suspect: <reasons>` (thresholds and why
+/// in [`crate::fit`]).
+pub const FIT_COLUMNS: [&str; 13] = [
     "id",
     "major",
     "minor",
@@ -34,6 +37,9 @@ pub const FIT_COLUMNS: [&str; 10] = [
     "points",
     "x",
     "y",
+    "discarded",
+    "coverage_deg",
+    "quality",
 ];
 
 /// The points of one outline as read, or the first reason it cannot be fitted.
@@ -101,18 +107,19 @@ pub fn outlines(t: &Table) -> Result<(Vec<Outline>, Vec<String>)> {
     Ok((list, orphans))
 }
 
-fn fit_one(o: &Outline, file: &Path) -> std::result::Result<EllipseFit, String> {
+fn fit_one(o: &Outline, file: &Path) -> std::result::Result<RobustFit, String> {
     let at = Location::file(file).at_line(o.line);
     if let Some(bad) = &o.bad_row {
         return Err(format!("{bad} (outline `{}` not fitted)", o.id));
     }
-    fit_ellipse(&o.points).map_err(|e| format!("{at}: outline `{}`: {e}", o.id))
+    fit_robust(&o.points).map_err(|e| format!("{at}: outline `{}`: {e}", o.id))
 }
 
-fn write_fits(fits: &[(String, EllipseFit)], out: &mut dyn Write) -> std::io::Result<()> {
+fn write_fits(fits: &[(String, RobustFit)], out: &mut dyn Write) -> std::io::Result<()> {
     let mut w = csv::Writer::from_writer(out);
     w.write_record(FIT_COLUMNS)?;
-    for (id, f) in fits {
+    for (id, r) in fits {
+        let f = &r.fit;
         let l = |v: f64| format!("{v:.6}");
         w.write_record([
             id.clone(),
@@ -125,6 +132,9 @@ fn write_fits(fits: &[(String, EllipseFit)], out: &mut dyn Write) -> std::io::Re
             f.points.to_string(),
             l(f.centre.x),
             l(f.centre.y),
+            r.discarded.len().to_string(),
+            format!("{:.0}", r.coverage_deg),
+            r.quality.to_string(),
         ])?;
     }
     w.flush()
@@ -143,6 +153,18 @@ pub fn run(args: &FitArgs) -> Result<Outcome> {
     }
     for f in &failures {
         eprintln!("not fitted: {f}");
+    }
+    for (id, r) in &fits {
+        if !r.discarded.is_empty() {
+            eprintln!(
+                "outline `{id}`: {} of {} points set aside as off the ellipse",
+                r.discarded.len(),
+                r.discarded.len() + r.fit.points
+            );
+        }
+        if r.quality != crate::fit::Quality::Good {
+            eprintln!("outline `{id}`: {}", r.quality);
+        }
     }
     if fits.is_empty() {
         return Err(Error::Usage(format!(

@@ -56,17 +56,21 @@ fn length_args(args: &GridArgs) -> LengthArgs {
     }
 }
 
-/// Read the mesh, compute every element's strains and judge them.
-pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>)> {
+/// Read the mesh, compute every element's strains and judge them; also every judged element
+/// (for points.csv) and the count of what was rejected, in words ([`rejected_counts`]).
+pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>, String)> {
     let job = load_job(&length_args(args))?;
     let mut lengths = resolve_lengths(&length_args(args), &job)?;
     lengths.d0 = None;
-    let settings = resolve_settings(&args.judge, &job)?;
+    let settings = resolve_settings(&args.judge, &job, lengths.unit)?;
     let curve = LimitCurve::load(&limit_path(&args.judge, &job)?)?;
-    let (mesh, mut rejected, ignored) = read_mesh(&args.nodes, args.elements.as_deref())?;
+    let read = read_mesh(&args.nodes, args.elements.as_deref())?;
     let source = args.elements.clone().unwrap_or_else(|| args.nodes.clone());
-    let (states, mut bad) = evaluate(&mesh, &source);
-    rejected.append(&mut bad);
+    let (states, bad) = evaluate(&read.mesh, &source, args.elements.is_none());
+    let counts = rejected_counts(read.node_rows.len(), read.elements.len() + bad.len());
+    let mut rejected = read.node_rows;
+    rejected.extend(read.elements);
+    rejected.extend(bad);
     rejected.sort_by(|a, b| {
         (&a.location.file, a.location.line).cmp(&(&b.location.file, b.location.line))
     });
@@ -77,10 +81,10 @@ pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>)> {
         lengths,
         strain_input: false,
     };
-    let notes: Vec<String> = if ignored.is_empty() {
+    let notes: Vec<String> = if read.ignored.is_empty() {
         Vec::new()
     } else {
-        vec![format!("ignored columns: {}", ignored.join(", "))]
+        vec![format!("ignored columns: {}", read.ignored.join(", "))]
     };
     let (mut a, all) = Analysis::of_states(
         args.nodes.clone(),
@@ -97,13 +101,34 @@ pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>)> {
                 .into(),
         );
     }
-    let a = super::require_points(
-        a,
-        &args.nodes,
-        "no element could be evaluated",
-        "rows or elements",
-    )?;
-    Ok((a, all))
+    if a.total() == 0 {
+        let first = a
+            .rejected()
+            .first()
+            .map(|r| format!("; first: {r}"))
+            .unwrap_or_default();
+        return Err(Error::Usage(format!(
+            "{}: no element could be evaluated ({counts}{first})",
+            args.nodes.display()
+        )));
+    }
+    Ok((a, all, counts))
+}
+
+/// "2 node rows and 3 elements rejected", each count in its own words (a grid cell is an
+/// element, not a row).
+pub fn rejected_counts(node_rows: usize, elements: usize) -> String {
+    let plural =
+        |n: usize, one: &str, many: &str| format!("{n} {}", if n == 1 { one } else { many });
+    match (node_rows, elements) {
+        (0, e) => format!("{} rejected", plural(e, "element", "elements")),
+        (n, 0) => format!("{} rejected", plural(n, "node row", "node rows")),
+        (n, e) => format!(
+            "{} and {} rejected",
+            plural(n, "node row", "node rows"),
+            plural(e, "element", "elements")
+        ),
+    }
 }
 
 /// Run `grid`.
@@ -114,11 +139,10 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
     inputs.extend(args.judge.limit.clone());
     let plan = Plan::of(&args.output);
     plan.prepare(&inputs)?;
-    let (a, all) = grid_analysis(args)?;
+    let (a, all, counts) = grid_analysis(args)?;
     if args.strict && a.rejected_total() > 0 {
         return Err(Error::Usage(format!(
-            "--strict: {} node rows or elements rejected, first: {}",
-            a.rejected_total(),
+            "--strict: {counts}, first: {}",
             a.rejected()[0]
         )));
     }

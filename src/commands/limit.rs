@@ -90,7 +90,7 @@ pub struct NeckingArgs {
     /// Model of the right side (β > 0).
     #[arg(long, value_name = "swift|storen-rice", default_value = "swift")]
     pub right: RightSide,
-    /// Number of strain ratios from -0.5 to 1.
+    /// Number of strain ratios from -0.5 to 1 (3-301; -0.5, 0 and 1 always among them).
     #[arg(long, value_name = "P", default_value_t = 31)]
     pub paths: usize,
     /// Output file and name.
@@ -122,7 +122,7 @@ pub struct MkArgs {
     /// Strength coefficient K, MPa (recorded; it does not change a rate-independent limit).
     #[arg(long, value_name = "MPA", default_value_t = 500.0)]
     pub k: f64,
-    /// Number of strain ratios from -0.5 to 1.
+    /// Number of strain ratios from -0.5 to 1 (3-301; -0.5, 0 and 1 always among them).
     #[arg(long, value_name = "P", default_value_t = 31)]
     pub paths: usize,
     /// Groove effective-strain increment per step.
@@ -263,11 +263,13 @@ pub fn necking_curve(a: &NeckingArgs) -> Result<GeneratedCurve> {
 }
 
 fn check_paths(paths: usize) -> Result<()> {
-    if (2..=301).contains(&paths) {
+    if (necking::MIN_PATHS..=301).contains(&paths) {
         Ok(())
     } else {
         Err(Error::Usage(format!(
-            "--paths {paths} is outside the allowed range 2 ..= 301"
+            "--paths {paths} is outside the allowed range {} ..= 301 (both ends and plane \
+             strain are always among them)",
+            necking::MIN_PATHS
         )))
     }
 }

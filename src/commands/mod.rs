@@ -16,7 +16,7 @@ use crate::error::{Error, Result};
 use crate::job::Job;
 use crate::limit::LimitCurve;
 use crate::measure::ColumnMap;
-use crate::units::Length;
+use crate::units::{Length, LengthUnit};
 use std::path::{Path, PathBuf};
 
 /// What a command asks `main` to exit with.
@@ -55,9 +55,15 @@ pub fn resolve_lengths(args: &LengthArgs, job: &Job) -> Result<Lengths> {
     })
 }
 
-/// The settings from flags over the job file over the defaults.
-pub fn resolve_settings(args: &JudgeArgs, job: &Job) -> Result<Settings> {
+/// The settings from flags over the job file over the defaults. `unit` is the unit in use
+/// (see [`resolve_lengths`]): the job's `reading_error` is converted into it from the job's
+/// unit, like its d0 and t0; `--reading-error` is read in it.
+pub fn resolve_settings(args: &JudgeArgs, job: &Job, unit: LengthUnit) -> Result<Settings> {
     let d = Settings::default();
+    let job_unit = job.unit.unwrap_or_default();
+    let job_reading = job
+        .reading_error
+        .map(|x| Length::new(x, job_unit).in_unit(unit));
     let s = Settings {
         margin_pct: args.margin.or(job.margin).unwrap_or(d.margin_pct),
         low_stretch_pct: args
@@ -65,7 +71,7 @@ pub fn resolve_settings(args: &JudgeArgs, job: &Job) -> Result<Settings> {
             .or(job.low_stretch)
             .unwrap_or(d.low_stretch_pct),
         max_thinning_pct: args.max_thinning.or(job.max_thinning),
-        reading_error: args.reading_error.or(job.reading_error),
+        reading_error: args.reading_error.or(job_reading),
     };
     s.validate().map_err(Error::Usage)?;
     Ok(s)
@@ -115,7 +121,7 @@ impl Prepared {
     pub fn resolve(lengths: &LengthArgs, judge: &JudgeArgs) -> Result<Self> {
         let job = load_job(lengths)?;
         let l = resolve_lengths(lengths, &job)?;
-        let settings = resolve_settings(judge, &job)?;
+        let settings = resolve_settings(judge, &job, l.unit)?;
         let curve = LimitCurve::load(&limit_path(judge, &job)?)?;
         let map = column_map(lengths, &job);
         Ok(Prepared {

@@ -9,6 +9,7 @@
 pub mod deformation;
 pub mod mesh;
 pub mod read;
+pub mod reading;
 
 use crate::error::Location;
 use crate::kinematics::StrainState;
@@ -33,6 +34,9 @@ pub struct GridExtras {
     pub z: Option<f64>,
     /// Centre in the blank.
     pub reference_centre: [f64; 2],
+    /// How the stretches move with each deformed node, for the margin's uncertainty under a
+    /// reading error ([`reading`]).
+    pub sensitivity: Option<reading::StretchSensitivity>,
 }
 
 pub use crate::analysis::StateInput;
@@ -54,6 +58,7 @@ pub fn state_input(e: &Element, r: &ElementResult, three_d: bool) -> Option<Stat
         normal: k.normal.map(|n| [n.x, n.y, n.z]),
         z: three_d.then_some(r.centre.z),
         reference_centre: [r.reference_centre.x, r.reference_centre.y],
+        sensitivity: None,
     };
     Some(StateInput {
         input,
@@ -63,12 +68,50 @@ pub fn state_input(e: &Element, r: &ElementResult, three_d: bool) -> Option<Stat
     })
 }
 
+/// How an element is named in messages: a regular grid's cell by its place (`grid cell
+/// r0c0`), an elements file's element by its id (`element `T3``).
+pub fn element_name(e: &Element, regular_grid: bool) -> String {
+    if regular_grid {
+        format!("grid cell {}", e.id)
+    } else {
+        format!("element `{}`", e.id)
+    }
+}
+
+/// Replace the circle rule's margin uncertainty of a grid element by the node-error one
+/// ([`reading::margin_uncertainty_pct`]), with `settings.reading_error` on every deformed node
+/// coordinate, and set the borderline flag from it.
+pub fn node_reading_uncertainty(
+    p: &mut crate::analysis::PointResult,
+    curve: &crate::limit::LimitCurve,
+    settings: &crate::assess::Settings,
+) {
+    let Some(dd) = settings.reading_error else {
+        return;
+    };
+    let (Some(sens), Some(m)) = (
+        p.grid.as_ref().and_then(|g| g.sensitivity),
+        p.judgement.margin_pct,
+    ) else {
+        return;
+    };
+    let u = reading::margin_uncertainty_pct(&sens, curve, p.strain.eng.minor.value(), dd);
+    p.judgement.uncertainty_pct = Some(u);
+    p.judgement.borderline = crate::assess::is_borderline(m, u, settings);
+}
+
 /// Evaluate every element of `mesh`: a judged-ready location, or a rejected row naming the
-/// element and why (collapsed, inverted, not convex...). `source` is the file that defined the
-/// elements (the elements file, or the nodes file for a regular grid).
-pub fn evaluate(mesh: &Mesh, source: &Path) -> (Vec<StateInput>, Vec<RejectedRow>) {
+/// element (its id in the message itself, not only in the id field) and why (collapsed,
+/// inverted, not convex...). `source` is the file that defined the elements (the elements file,
+/// or the nodes file for a regular grid, `regular_grid`).
+pub fn evaluate(
+    mesh: &Mesh,
+    source: &Path,
+    regular_grid: bool,
+) -> (Vec<StateInput>, Vec<RejectedRow>) {
     let (mut ok, mut rejected) = (Vec::new(), Vec::new());
     for e in &mesh.elements {
+        let name = element_name(e, regular_grid);
         let reject = |reason: String| RejectedRow {
             location: Location::file(source).at_line(e.line),
             id: Some(e.id.clone()),
@@ -76,10 +119,17 @@ pub fn evaluate(mesh: &Mesh, source: &Path) -> (Vec<StateInput>, Vec<RejectedRow
         };
         match mesh.evaluate(e) {
             Ok(r) => match state_input(e, &r, mesh.three_d) {
-                Some(s) => ok.push(s),
-                None => rejected.push(reject("the element's stretches are not positive".into())),
+                Some(mut s) => {
+                    if let Some(g) = s.grid.as_mut() {
+                        g.sensitivity = reading::sensitivity(mesh, e);
+                    }
+                    ok.push(s)
+                }
+                None => rejected.push(reject(format!(
+                    "{name} not evaluated: its stretches are not positive"
+                ))),
             },
-            Err(d) => rejected.push(reject(format!("element not evaluated: {d}"))),
+            Err(d) => rejected.push(reject(format!("{name} not evaluated: {d}"))),
         }
     }
     (ok, rejected)

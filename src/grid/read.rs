@@ -46,6 +46,8 @@ pub fn read_table(path: &Path, what: &str) -> Result<Table> {
 /// Read a CSV table from any reader; `name` is used in messages.
 pub fn read_table_from(mut input: impl BufRead, name: &Path, what: &str) -> Result<Table> {
     let loc = Location::file(name);
+    let head = input.fill_buf().map_err(|e| Error::io(name, e))?;
+    crate::error::check_text(name, head, false)?;
     let (prefix, header_line) = read_header_line(&mut input, name)?;
     if header_line.is_empty() {
         return Err(Error::input(
@@ -60,15 +62,16 @@ pub fn read_table_from(mut input: impl BufRead, name: &Path, what: &str) -> Resu
         .flexible(true)
         .trim(csv::Trim::All)
         .from_reader(Cursor::new(prefix.into_bytes()).chain(input));
-    let header = reader
-        .headers()
-        .map_err(|e| csv_error(&loc, e))?
+    let header_record = reader.headers().map_err(|e| csv_error(&loc, e))?;
+    check_record_size(header_record, &loc)?;
+    let header = header_record
         .iter()
         .map(|h| h.trim().trim_start_matches('\u{feff}').to_string())
         .collect();
     let mut rows = Vec::new();
     for record in reader.records() {
         let record = record.map_err(|e| csv_error(&loc, e))?;
+        check_record_size(&record, &loc)?;
         if record.iter().all(|f| f.trim().is_empty()) {
             continue;
         }
@@ -84,6 +87,45 @@ pub fn read_table_from(mut input: impl BufRead, name: &Path, what: &str) -> Resu
         header_line: header_line_no,
         rows,
     })
+}
+
+/// Most fields a row may have: node, element and outline rows have up to 7, so a thousand is
+/// not one of them but a mangled file.
+pub const MAX_FIELDS: usize = 1000;
+/// Longest field, bytes: a number or an id is far shorter; longer is not a value but a mangled
+/// file (an unclosed quote, a pasted document).
+pub const MAX_FIELD_BYTES: usize = 4096;
+
+/// Refuse the file at a row with more than [`MAX_FIELDS`] fields or a field longer than
+/// [`MAX_FIELD_BYTES`].
+fn check_record_size(r: &csv::StringRecord, loc: &Location) -> Result<()> {
+    let line = r.position().map_or(0, |p| p.line());
+    if r.len() > MAX_FIELDS {
+        return Err(Error::input(
+            loc.clone().at_line(line),
+            format!(
+                "{} fields on one row, more than {MAX_FIELDS}: not a table of this kind",
+                r.len()
+            ),
+        ));
+    }
+    if let Some((i, f)) = r
+        .iter()
+        .enumerate()
+        .find(|(_, f)| f.len() > MAX_FIELD_BYTES)
+    {
+        let mut at = loc.clone().at_line(line);
+        at.column = Some(i as u64 + 1);
+        return Err(Error::input(
+            at,
+            format!(
+                "a field of {} bytes, more than {MAX_FIELD_BYTES}: an unclosed quote or pasted \
+                 text?",
+                f.len()
+            ),
+        ));
+    }
+    Ok(())
 }
 
 impl Table {
@@ -231,6 +273,10 @@ pub struct NodeSet {
     pub ignored_columns: Vec<String>,
 }
 
+/// Largest grid row or column number (a grid of a billion rows is not a circle grid; the bound
+/// also keeps `row + 1` from overflowing).
+pub const MAX_GRID_INDEX: i64 = 1_000_000_000;
+
 fn integer(
     t: &Table,
     line: u64,
@@ -238,14 +284,24 @@ fn integer(
     col: usize,
 ) -> std::result::Result<i64, RejectedRow> {
     let raw = r.get(col).unwrap_or("").trim();
-    raw.parse::<i64>().map_err(|_| {
-        t.reject(
+    match raw.parse::<i64>() {
+        Ok(v) if v.abs() <= MAX_GRID_INDEX => Ok(v),
+        Ok(v) => Err(t.reject(
             line,
             Some(col),
             None,
-            format!("expected a whole number (grid row or column), found `{raw}`"),
-        )
-    })
+            format!("grid row or column {v} is beyond ±{MAX_GRID_INDEX}"),
+        )),
+        Err(_) => Err(t.reject(
+            line,
+            Some(col),
+            None,
+            format!(
+                "expected a whole number (grid row or column), found `{}`",
+                crate::error::clip(raw)
+            ),
+        )),
+    }
 }
 
 /// Read a nodes file (see the module notes).
@@ -548,13 +604,24 @@ fn read_element(
     })
 }
 
+/// A mesh as read, with what was rejected on the way, node rows and elements apart (so that
+/// messages can count each in its own words).
+#[derive(Debug, Clone)]
+pub struct MeshRead {
+    /// The accepted nodes and elements.
+    pub mesh: Mesh,
+    /// Rejected rows of the nodes file.
+    pub node_rows: Vec<RejectedRow>,
+    /// Rejected elements: rows of the elements file, or grid cells missing a corner.
+    pub elements: Vec<RejectedRow>,
+    /// Header columns of the nodes file that were not recognised (ignored).
+    pub ignored: Vec<String>,
+}
+
 /// Read the nodes and, if given, the elements, into a mesh plus every rejected row.
-pub fn read_mesh(
-    nodes: &Path,
-    elements: Option<&Path>,
-) -> Result<(Mesh, Vec<RejectedRow>, Vec<String>)> {
+pub fn read_mesh(nodes: &Path, elements: Option<&Path>) -> Result<MeshRead> {
     let set = read_nodes(nodes)?;
-    let (elems, mut rejected) = match elements {
+    let (elems, rejected) = match elements {
         Some(p) => read_elements(p, &set)?,
         None if set.has_grid => grid_cells(&set),
         None => {
@@ -564,14 +631,16 @@ pub fn read_mesh(
             ))
         }
     };
-    let mut all = set.rejected;
-    all.append(&mut rejected);
-    let mesh = Mesh {
-        nodes: set.nodes,
-        elements: elems,
-        three_d: set.three_d,
-    };
-    Ok((mesh, all, set.ignored_columns))
+    Ok(MeshRead {
+        mesh: Mesh {
+            nodes: set.nodes,
+            elements: elems,
+            three_d: set.three_d,
+        },
+        node_rows: set.rejected,
+        elements: rejected,
+        ignored: set.ignored_columns,
+    })
 }
 
 #[cfg(test)]

@@ -75,6 +75,18 @@ impl TruePath {
     }
 }
 
+/// How far (strain, as a fraction) a minor strain may lie outside a curve's range and still be
+/// read at its end: 1e-9, i.e. 1e-7 percentage points. Round-off of a double near 1 is about
+/// 1e-16 per operation, and a strain passes through a handful of them (a division, a logarithm
+/// and an exponential), so 1e-9 covers it with a wide margin, while the smallest difference any
+/// output shows is 0.001 % (1e-5): a point this close to the end prints at the end.
+pub const RANGE_TOLERANCE: f64 = 1e-9;
+
+/// Most points a curve file may have: tabulated and generated curves have tens to a few hundred
+/// (a generated one at most 301 paths), so more is not a curve but a mistake, refused before
+/// any work.
+pub const MAX_POINTS: usize = 10_000;
+
 /// Largest strain magnitude accepted in a curve file, percent (a plausibility bound).
 const PLAUSIBLE_PCT: f64 = 300.0;
 
@@ -83,7 +95,7 @@ pub use crate::error::line_col;
 impl LimitCurve {
     /// Load and validate a curve file.
     pub fn load(path: &Path) -> Result<Self> {
-        let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+        let text = crate::error::read_text(path)?;
         Self::parse(&text, path)
     }
 
@@ -154,11 +166,15 @@ impl LimitCurve {
     }
 
     /// Major limit strain at a minor strain, both in the curve's own measure; `None` outside range.
+    /// A minor strain within [`RANGE_TOLERANCE`] of an end counts as at that end: a reading such
+    /// as 3.25/2.5 − 1 = 0.30000000000000004, or a strain converted from true to engineering
+    /// and back, must not fall off the curve by round-off.
     pub fn major_at(&self, minor: f64) -> Option<f64> {
         let (lo, hi) = self.minor_range();
-        if !(minor >= lo && minor <= hi) {
+        if !(minor >= lo - RANGE_TOLERANCE && minor <= hi + RANGE_TOLERANCE) {
             return None;
         }
+        let minor = minor.clamp(lo, hi);
         let i = self.points.partition_point(|p| p[0] < minor).max(1);
         let ([x0, y0], [x1, y1]) = (self.points[i - 1], self.points[i]);
         Some(y0 + (y1 - y0) * (minor - x0) / (x1 - x0))
@@ -247,6 +263,16 @@ fn ray_hit(path: &TruePath, d: [f64; 2]) -> Option<f64> {
         .min_by(|a, b| a.total_cmp(b))
 }
 
+/// A number for a message: as written when ordinary, in exponent form when huge (1e308 has 309
+/// digits in full).
+fn short(v: f64) -> String {
+    if v.abs() >= 1e9 {
+        format!("{v:e}")
+    } else {
+        v.to_string()
+    }
+}
+
 fn validate_points(
     points: &[Spanned<Vec<f64>>],
     at: &dyn Fn(usize) -> Location,
@@ -257,6 +283,16 @@ fn validate_points(
         return Err(Error::input(
             loc,
             "a curve needs at least two points [minor, major]",
+        ));
+    }
+    if let Some(p) = points.get(MAX_POINTS) {
+        return Err(Error::input(
+            at(p.span().start),
+            format!(
+                "{} points: a curve has at most {MAX_POINTS} (a tabulated or generated curve \
+                 needs a few hundred at most)",
+                points.len()
+            ),
         ));
     }
     let mut out: Vec<[f64; 2]> = Vec::with_capacity(points.len());
@@ -273,7 +309,11 @@ fn validate_points(
         if !v.iter().all(|x| x.is_finite() && x.abs() <= PLAUSIBLE_PCT) {
             return Err(Error::input(
                 loc,
-                format!("[{minor}, {major}]: strains must be finite percent values within ±{PLAUSIBLE_PCT}"),
+                format!(
+                    "[{}, {}]: strains must be finite percent values within ±{PLAUSIBLE_PCT}",
+                    short(minor),
+                    short(major)
+                ),
             ));
         }
         if measure == StrainMeasure::Engineering && minor <= -100.0 {
@@ -337,6 +377,26 @@ mod tests {
             .unwrap_err()
             .to_string();
         assert!(e.contains("source"), "{e}");
+    }
+
+    // The ends of the range are in it, also when the minor strain of a reading overshoots them
+    // by round-off: 1.75/2.5 − 1 and 2.75/2.5 − 1 are −0.30000000000000004 and
+    // 0.10000000000000009 in binary floating point (IEEE 754 double), one unit in the last place
+    // beyond −30 % and 10 %; 1e-6 beyond is outside.
+    #[test]
+    fn range_ends_hold_against_round_off() {
+        let c = curve("name = \"t\"\nsource = \"s\"\npoints = [[-30, 60], [0, 30], [10, 36]]\n")
+            .unwrap();
+        let (lo, hi) = (1.75 / 2.5 - 1.0, 2.75 / 2.5 - 1.0);
+        assert!(lo < -0.3 && hi > 0.1, "the round-off this test is about");
+        assert_abs_diff_eq!(c.major_at(lo).unwrap(), 0.60, epsilon = 1e-12);
+        assert_abs_diff_eq!(c.major_at(hi).unwrap(), 0.36, epsilon = 1e-12);
+        for e in [lo, hi] {
+            let t = EngStrain(e).to_true().unwrap();
+            assert!(c.limit_major_eng(t).is_some(), "{e}");
+        }
+        assert!(c.major_at(-0.300001).is_none());
+        assert!(c.major_at(0.100001).is_none());
     }
 
     // A point on the curve along its own ray has limit use 100 %; half way, 50 %.

@@ -98,12 +98,25 @@ impl FromStr for RightSide {
     }
 }
 
-/// `count` strain ratios evenly spaced from −1/2 (uniaxial tension) to 1 (equibiaxial).
+/// The fewest strain ratios a curve is built from: both ends and plane strain.
+pub const MIN_PATHS: usize = 3;
+
+/// `count` strain ratios from −1/2 (uniaxial tension) to 1 (equibiaxial) that always include
+/// both ends and plane strain (β = 0), where a curve usually has its lowest point: left of 0
+/// they are evenly spaced over [−1/2, 0], right of it over [0, 1], with the intervals shared in
+/// proportion to the two lengths (1/3 and 2/3 of them, rounded; at least one each). When
+/// `count − 1` is a multiple of 3 this is the plain even spacing. Leaving out β = 0 reads the
+/// plane-strain limit off a chord across the minimum, on the non-conservative side.
+/// `count` below [`MIN_PATHS`] is taken as [`MIN_PATHS`].
 pub fn strain_ratios(count: usize) -> Vec<f64> {
-    let count = count.max(2);
-    (0..count)
-        .map(|i| -0.5 + 1.5 * i as f64 / (count - 1) as f64)
-        .collect()
+    let intervals = count.max(MIN_PATHS) - 1;
+    let left = ((intervals as f64 / 3.0).round() as usize).clamp(1, intervals - 1);
+    let right = intervals - left;
+    let mut out: Vec<f64> = (0..left)
+        .map(|i| -0.5 + 0.5 * i as f64 / left as f64)
+        .collect();
+    out.extend((0..=right).map(|i| i as f64 / right as f64));
+    out
 }
 
 /// Check `n` for the analytic curves; `Err` gives the allowed range.
@@ -148,6 +161,24 @@ mod tests {
             {
                 assert_abs_diff_eq!(p[0] + p[1], n, epsilon = 1e-12);
             }
+        }
+    }
+
+    // Plane strain and both ends are always among the strain ratios, whatever the count
+    // (β = 0 is where Hill 1952 gives ε1 = n; skipping it overstates FLC0).
+    #[test]
+    fn strain_ratios_hold_plane_strain_and_both_ends() {
+        for count in MIN_PATHS..=301 {
+            let b = strain_ratios(count);
+            assert_eq!(b.len(), count);
+            assert_abs_diff_eq!(b[0], -0.5, epsilon = 0.0);
+            assert_abs_diff_eq!(b[count - 1], 1.0, epsilon = 0.0);
+            assert!(b.iter().any(|x| x.abs() < 1e-15), "{count}: {b:?}");
+            assert!(b.windows(2).all(|w| w[1] > w[0]), "{count}: {b:?}");
+        }
+        // 31 keeps the even spacing of 0.05.
+        for (i, b) in strain_ratios(31).iter().enumerate() {
+            assert_abs_diff_eq!(*b, -0.5 + 0.05 * i as f64, epsilon = 1e-12);
         }
     }
 

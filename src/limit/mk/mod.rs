@@ -112,7 +112,12 @@ impl MkSettings {
     pub fn validate(&self) -> Result<(), MkError> {
         in_range("step", self.step, 1e-5, 0.05)?;
         in_range("ratio", self.ratio, 2.0, 1000.0)?;
-        in_range("paths", self.paths as f64, 2.0, 301.0)?;
+        in_range(
+            "paths",
+            self.paths as f64,
+            crate::limit::necking::MIN_PATHS as f64,
+            301.0,
+        )?;
         in_range("psi coarse step (deg)", self.psi_coarse_deg, 1.0, 15.0)?;
         in_range("psi fine step (deg)", self.psi_fine_deg, 0.01, 1.0)?;
         in_range("max strain", self.max_strain, 0.1, 5.0)?;
