@@ -11,6 +11,7 @@
 //! number, an axis or d0 that is zero or negative, `major < minor`, no d0 at all for that row.
 
 use crate::error::{Error, Location, Result};
+use crate::observed::Condition;
 use std::collections::HashSet;
 use std::fs::File;
 use std::io::{self, BufRead, BufReader, Cursor, Read};
@@ -71,6 +72,8 @@ pub struct Measurement {
     pub thickness: Option<f64>,
     /// Free text.
     pub note: Option<String>,
+    /// Condition observed on the part at this circle (`safe`, `necked`, `split`), if marked.
+    pub condition: Option<Condition>,
 }
 
 /// A data row that was not accepted, with the reason.
@@ -118,10 +121,11 @@ struct Columns {
     stage: Option<usize>,
     thickness: Option<usize>,
     note: Option<usize>,
+    condition: Option<usize>,
 }
 
 const REQUIRED: [&str; 3] = ["id", "major", "minor"];
-const KNOWN: [&str; 10] = [
+const KNOWN: [&str; 11] = [
     "id",
     "major",
     "minor",
@@ -131,6 +135,7 @@ const KNOWN: [&str; 10] = [
     "stage",
     "thickness",
     "note",
+    "condition",
     "",
 ];
 
@@ -186,6 +191,7 @@ impl Columns {
             stage: find("stage"),
             thickness: find("thickness"),
             note: find("note"),
+            condition: find("condition"),
             names,
         };
         Ok((cols, ignored))
@@ -299,6 +305,10 @@ impl RowReader<'_> {
             stage: c.stage.and_then(|s| self.text(s)),
             thickness,
             note: c.note.and_then(|s| self.text(s)),
+            condition: c.condition.map_or(Ok(None), |col| {
+                Condition::parse_optional(self.record.get(col).unwrap_or(""))
+                    .map_err(|e| self.reject(col, e))
+            })?,
         })
     }
 }

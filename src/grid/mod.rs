@@ -55,6 +55,7 @@ pub fn state_input(e: &Element, r: &ElementResult, three_d: bool) -> Option<Stat
         stage: None,
         thickness: None,
         note: None,
+        condition: None,
     };
     let grid = GridExtras {
         nodes: e.nodes.len(),
