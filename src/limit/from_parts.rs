@@ -181,14 +181,16 @@ pub fn check_evidence(circles: &[PartCircle], h: f64) -> Result<Vec<(f64, f64)>,
     let mut missing = Vec::new();
     if c.safe < MIN_EACH {
         missing.push(format!(
-            "{} safe circles (at least {MIN_EACH} needed)",
-            c.safe
+            "{} safe circle{} (at least {MIN_EACH} needed)",
+            c.safe,
+            plural(c.safe)
         ));
     }
     if c.failed() < MIN_EACH {
         missing.push(format!(
-            "{} necked-or-split circles (at least {MIN_EACH} needed)",
-            c.failed()
+            "{} necked-or-split circle{} (at least {MIN_EACH} needed)",
+            c.failed(),
+            plural(c.failed())
         ));
     }
     if ranges.len() < MIN_RANGES {
@@ -201,7 +203,7 @@ pub fn check_evidence(circles: &[PartCircle], h: f64) -> Result<Vec<(f64, f64)>,
              least {MIN_RANGES} ranges {:.1} % wide in true minor strain needed: read circles \
              across and beside necks at more strain paths)",
             ranges.len(),
-            if ranges.len() == 1 { "" } else { "s" },
+            plural(ranges.len()),
             if listed.is_empty() {
                 String::new()
             } else {
@@ -217,6 +219,14 @@ pub fn check_evidence(circles: &[PartCircle], h: f64) -> Result<Vec<(f64, f64)>,
             "too little evidence for a press-shop curve: {}",
             missing.join("; ")
         ))
+    }
+}
+
+fn plural(n: usize) -> &'static str {
+    if n == 1 {
+        ""
+    } else {
+        "s"
     }
 }
 
