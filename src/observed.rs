@@ -14,11 +14,13 @@
 //! fits a streaming data path as well as a whole file.
 
 use crate::assess::Zone;
+use serde::{Deserialize, Serialize};
 use std::fmt;
 use std::str::FromStr;
 
 /// The condition observed on the part at a circle.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum Condition {
     /// No neck.
     Safe,
