@@ -24,6 +24,7 @@ pub mod job;
 pub mod kinematics;
 pub mod limit;
 pub mod measure;
+pub mod observed;
 pub mod output;
 pub mod strain;
 pub mod stream;

@@ -27,6 +27,7 @@
 
 use crate::error::{Error, Location, Result};
 use crate::kinematics::Principal;
+use crate::observed::Condition;
 use crate::strain::{EngStrain, TrueStrain};
 use std::collections::HashSet;
 use std::fs::File;
@@ -104,6 +105,8 @@ pub struct Measurement {
     pub thinning: Option<f64>,
     /// Free text.
     pub note: Option<String>,
+    /// Condition observed on the part at this location (`safe`, `necked`, `split`), if marked.
+    pub condition: Option<Condition>,
 }
 
 impl Measurement {
@@ -120,6 +123,7 @@ impl Measurement {
             thickness: None,
             thinning: None,
             note: None,
+            condition: None,
         }
     }
 }
@@ -157,7 +161,7 @@ pub struct MeasurementSet {
 }
 
 /// neckline's names for the columns it reads.
-pub const NAMES: [&str; 15] = [
+pub const NAMES: [&str; 16] = [
     "id",
     "major",
     "minor",
@@ -173,6 +177,7 @@ pub const NAMES: [&str; 15] = [
     "minor_eng_pct",
     "major_true_pct",
     "minor_true_pct",
+    "condition",
 ];
 
 /// Columns of a points.csv written by `check` that are results, not readings: left aside
@@ -297,6 +302,7 @@ pub struct Columns {
     thickness: Option<usize>,
     thinning: Option<usize>,
     note: Option<usize>,
+    condition: Option<usize>,
 }
 
 fn canonical(name: &str) -> String {
@@ -482,6 +488,7 @@ impl Columns {
             thickness,
             thinning,
             note: find("note"),
+            condition: find("condition"),
             names,
         };
         Ok((cols, notes))
@@ -499,6 +506,7 @@ impl Columns {
             "thinning_pct" => self.thinning.is_some(),
             "stage" => self.stage.is_some(),
             "x" => self.x.is_some(),
+            "condition" => self.condition.is_some(),
             "y" => self.y.is_some(),
             _ => self.names.iter().any(|n| n == name),
         }
@@ -731,6 +739,11 @@ impl RowReader<'_> {
                 thickness,
                 thinning,
                 note: c.note.and_then(|s| self.text(s)),
+                condition: match c.condition {
+                    Some(col) => Condition::parse_optional(self.record.get(col).unwrap_or(""))
+                        .map_err(|e| self.reject(col, e))?,
+                    None => None,
+                },
             },
             disagree,
         ))

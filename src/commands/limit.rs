@@ -1,22 +1,27 @@
 //! `neckline limit`: forming-limit curves from material data (Keeler-Brazier, analytic necking
-//! limits, Marciniak-Kuczynski), written as the curve TOML `check` reads, and `limit compare`.
+//! limits, Marciniak-Kuczynski) or from circles read on necked and split parts (`from-parts`),
+//! written as the curve TOML `check` reads, and `limit compare`.
 
 use super::Outcome;
 use crate::analysis::{Analysis, Lengths, CAUTION};
 use crate::assess::Settings;
 use crate::error::{Error, Result};
 use crate::job::Job;
+use crate::limit::from_parts::{self, Band, FitSettings, PartCircle, PartsFit};
 use crate::limit::keeler_brazier::{self, KeelerBrazier};
 use crate::limit::mk::{self, MkMaterial, MkSettings, PathLimit};
 use crate::limit::necking::{self, RightSide};
-use crate::limit::writer::{GeneratedCurve, TOOL_VERSION};
+use crate::limit::writer::{GeneratedCurve, PREDICTION_HEADER, SHOP_HEADER, TOOL_VERSION};
 use crate::limit::LimitCurve;
+use crate::observed::Condition;
 use crate::output::fld::{self, FldOptions};
+use crate::output::plot;
 use crate::output::write_atomic;
 use crate::strain::{EngStrain, StrainMeasure};
 use crate::units::{LengthUnit, MM_PER_INCH};
 use clap::{Args, Subcommand};
-use std::io::Write;
+use plotters::prelude::*;
+use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 
 /// Arguments of `limit`.
@@ -37,6 +42,9 @@ pub enum LimitCommand {
     Necking(NeckingArgs),
     /// Marciniak-Kuczynski prediction (Hill 1948 with r0, r45, r90; Swift hardening), true strain.
     Mk(MkArgs),
+    /// Press-shop curve from circles read on necked or split parts (a `condition` column: safe,
+    /// necked, split), true strain.
+    FromParts(FromPartsArgs),
     /// Print two curves' engineering major strain and their difference at a set of minor strains.
     Compare(CompareArgs),
 }
@@ -168,6 +176,7 @@ pub fn run(args: &LimitArgs) -> Result<Outcome> {
         LimitCommand::KeelerBrazier(a) => emit(&keeler_brazier_curve(a)?, &a.out),
         LimitCommand::Necking(a) => emit(&necking_curve(a)?, &a.out),
         LimitCommand::Mk(a) => emit(&mk_curve(a)?, &a.out),
+        LimitCommand::FromParts(a) => from_parts(a),
         LimitCommand::Compare(a) => compare(a),
     }
 }
@@ -362,22 +371,49 @@ fn mk_notes(limits: &[PathLimit]) -> Vec<String> {
 /// Check the curve by reading it back, then write it to `--out` (atomically) or to standard
 /// output. With `--out`, a short table and the caution go to standard output.
 fn emit(curve: &GeneratedCurve, out: &CurveOutArgs) -> Result<Outcome> {
+    emit_with(
+        curve,
+        out,
+        &[],
+        PREDICTION_HEADER,
+        plot_curve,
+        |c, path| match path {
+            Some(path) => summary(c, path),
+            None => crate::output::terminal::wrap(CAUTION, 80, ""),
+        },
+    )
+}
+
+/// [`emit`] with the file header, the plot and the summary of the caller (given the file written, or `None` when
+/// the curve went to standard output: the summary then goes to standard error); `inputs` are
+/// never written over.
+fn emit_with(
+    curve: &GeneratedCurve,
+    out: &CurveOutArgs,
+    inputs: &[PathBuf],
+    header: &str,
+    plot: impl FnOnce(&LimitCurve, &Path, bool) -> Result<()>,
+    summary: impl FnOnce(&LimitCurve, Option<&Path>) -> String,
+) -> Result<Outcome> {
     let plot_kind = out.plot.as_deref().map(plot_kind).transpose()?;
+    for target in out.out.iter().chain(&out.plot) {
+        crate::output::guard_inputs(target, inputs)?;
+    }
     let shown = out.out.clone().unwrap_or_else(|| PathBuf::from("<stdout>"));
-    let (text, parsed) = curve.render_checked(&shown)?;
+    let (text, parsed) = curve.render_checked_with(&shown, header)?;
     if let (Some(path), Some(kind)) = (&out.plot, plot_kind) {
-        plot_curve(&parsed, path, kind)?;
+        plot(&parsed, path, kind)?;
     }
     match &out.out {
         None => {
             let mut o = std::io::stdout().lock();
             o.write_all(text.as_bytes())
                 .map_err(|e| Error::io(Path::new("<stdout>"), e))?;
-            eprint!("{}", crate::output::terminal::wrap(CAUTION, 80, ""));
+            eprint!("{}", summary(&parsed, None));
         }
         Some(path) => {
-            write_atomic(path, &[], |w| w.write_all(text.as_bytes()))?;
-            print!("{}", summary(&parsed, path));
+            write_atomic(path, inputs, |w| w.write_all(text.as_bytes()))?;
+            print!("{}", summary(&parsed, Some(path)));
         }
     }
     Ok(Outcome::Done)
@@ -523,4 +559,668 @@ fn compare_table(
     s.push('\n');
     s.push_str(&crate::output::terminal::wrap(CAUTION, 80, ""));
     s
+}
+
+/// Arguments of `limit from-parts`.
+#[derive(Debug, Clone, Args)]
+pub struct FromPartsArgs {
+    /// Circles read on necked or split parts: a measurement CSV (id, major, minor[, d0, ...])
+    /// with a `condition` column (safe, necked, split; empty = not observed); `-` = stdin.
+    #[arg(value_name = "PARTS.csv")]
+    pub parts: PathBuf,
+    /// Lengths and job file (d0 for the strains; t0 recorded as the curve's thickness).
+    #[command(flatten)]
+    pub lengths: crate::cli::LengthArgs,
+    /// Knot spacing, percent true minor strain; also the width of a range of evidence.
+    #[arg(long, value_name = "PCT", default_value_t = 5.0)]
+    pub knot_spacing: f64,
+    /// Weight of the smoothness penalty on the squared changes of slope at the knots.
+    #[arg(long, value_name = "LAMBDA", default_value_t = 0.1)]
+    pub smoothing: f64,
+    /// Smallest boundary width (logistic scale) the fit may find, percent true strain.
+    #[arg(long, value_name = "PCT", default_value_t = 0.5)]
+    pub scatter_min: f64,
+    /// Output file and name.
+    #[command(flatten)]
+    pub out: CurveOutArgs,
+}
+
+/// The words every press-shop curve carries in its `source`.
+pub const SHOP_CURVE_WORDS: &str = "press-shop curve from parts: holds for this material lot, \
+thickness and process; not a laboratory curve (ISO 12004-2)";
+
+/// The circles of a parts file with a condition, and what was left out.
+#[derive(Debug, Clone)]
+pub struct PartsData {
+    /// Circles with a condition, in file order.
+    pub circles: Vec<PartCircle>,
+    /// Rows read but with no condition marked.
+    pub unmarked: usize,
+    /// Rows rejected (unreadable, or no usable d0), with reasons.
+    pub rejected: Vec<crate::measure::RejectedRow>,
+    /// Lowercase hex SHA-256 of the file's bytes as read.
+    pub sha256: String,
+    /// The lengths used.
+    pub lengths: Lengths,
+    /// The job file, if any.
+    pub job: Job,
+}
+
+/// Lowercase hex SHA-256 (FIPS 180-4) of `bytes`.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    use sha2::Digest;
+    sha2::Sha256::digest(bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
+}
+
+/// Read the parts file (`-` = stdin) once into memory, hash those bytes, and read the circles
+/// from the same bytes, so that the recorded hash is that of the data the curve was fitted to.
+/// Strains: d0 from the row, else `--d0`, else the job file, as `check` does.
+pub fn read_parts(path: &Path, lengths: &crate::cli::LengthArgs) -> Result<PartsData> {
+    let job = super::load_job(lengths)?;
+    let l = super::resolve_lengths(lengths, &job)?;
+    let mut bytes = Vec::new();
+    crate::measure::open_input(path)?
+        .read_to_end(&mut bytes)
+        .map_err(|e| Error::io(path, e))?;
+    let sha256 = sha256_hex(&bytes);
+    let map = super::column_map(lengths, &job);
+    let set = crate::measure::read_measurements_from(&bytes[..], path, &map)?;
+    let mut data = PartsData {
+        circles: Vec::new(),
+        unmarked: 0,
+        rejected: set.rejected,
+        sha256,
+        lengths: l,
+        job,
+    };
+    for m in set.points {
+        match part_circle(&m, path, &l) {
+            Ok(Some(c)) => data.circles.push(c),
+            Ok(None) => data.unmarked += 1,
+            Err(r) => data.rejected.push(r),
+        }
+    }
+    data.rejected.sort_by_key(|r| r.location.line);
+    Ok(data)
+}
+
+/// The true strains of one marked circle; `Ok(None)` when no condition is marked.
+fn part_circle(
+    m: &crate::measure::Measurement,
+    file: &Path,
+    l: &Lengths,
+) -> std::result::Result<Option<PartCircle>, crate::measure::RejectedRow> {
+    let Some(condition) = m.condition else {
+        return Ok(None);
+    };
+    // The same strains, from axes or strain columns, with the same refusals as `check`.
+    let s = crate::analysis::state_of(m.clone(), file, l)?.strain;
+    Ok(Some(PartCircle {
+        id: m.id.clone(),
+        minor: s.true_strain.minor.value(),
+        major: s.true_strain.major.value(),
+        condition,
+    }))
+}
+
+/// Run `limit from-parts`.
+fn from_parts(a: &FromPartsArgs) -> Result<Outcome> {
+    let settings = FitSettings {
+        knot_spacing: a.knot_spacing / 100.0,
+        smoothing: a.smoothing,
+        scale_min: a.scatter_min / 100.0,
+    };
+    settings
+        .validate()
+        .map_err(|m| Error::Usage(format!("from-parts: {m}")))?;
+    plot_kind_of(&a.out)?;
+    let data = read_parts(&a.parts, &a.lengths)?;
+    require_circles(&data, &a.parts)?;
+    const SHOWN: usize = 10;
+    for r in data.rejected.iter().take(SHOWN) {
+        eprintln!("warning: row left out: {r}");
+    }
+    if data.rejected.len() > SHOWN {
+        eprintln!(
+            "warning: ... and {} more rows left out",
+            data.rejected.len() - SHOWN
+        );
+    }
+    let fit = from_parts::fit(&data.circles, &settings)
+        .map_err(|m| Error::Usage(format!("{}: {m}", shown_name(&a.parts))))?;
+    let curve = parts_curve(a, &data, &fit);
+    let mut inputs = vec![a.parts.clone()];
+    inputs.extend(a.lengths.job.clone());
+    let input = a.parts.clone();
+    emit_with(
+        &curve,
+        &a.out,
+        &inputs,
+        SHOP_HEADER,
+        |c, path, svg| plot_parts(c, &fit, &data.circles, &input, path, svg),
+        |c, path| parts_summary(c, path, &fit, &data),
+    )
+}
+
+/// Refuse a file that gave no circle with a condition, saying why: no row usable (the first
+/// rejection quoted), or no condition marked.
+fn require_circles(data: &PartsData, path: &Path) -> Result<()> {
+    if !data.circles.is_empty() {
+        return Ok(());
+    }
+    let name = shown_name(path);
+    if let Some(first) = data.rejected.first() {
+        return Err(Error::Usage(format!(
+            "{name}: no circle with a condition could be read ({} rows left out; first: {first})",
+            data.rejected.len()
+        )));
+    }
+    Err(Error::Usage(format!(
+        "{name}: none of its {} circles has a condition: the file needs a `condition` column \
+         marking each circle read on a necked or split part `safe`, `necked` or `split`",
+        data.unmarked
+    )))
+}
+
+fn plot_kind_of(out: &CurveOutArgs) -> Result<()> {
+    out.plot.as_deref().map(plot_kind).transpose().map(|_| ())
+}
+
+fn shown_name(path: &Path) -> String {
+    if path.as_os_str() == "-" {
+        "standard input".into()
+    } else {
+        path.display().to_string()
+    }
+}
+
+/// The curve file of a fit: the knots in true strain, and a `source` that records the data file
+/// and its SHA-256, the counts per condition, the method and its settings, the version and the
+/// words of [`SHOP_CURVE_WORDS`].
+fn parts_curve(a: &FromPartsArgs, data: &PartsData, fit: &PartsFit) -> GeneratedCurve {
+    let c = fit.counts;
+    let s = fit.settings;
+    let first = fit.knots[0];
+    let last = fit.knots[fit.knots.len() - 1];
+    let d0 = data.lengths.d0.map_or_else(
+        || "d0 from each row".into(),
+        |d| format!("d0 = {d} {} unless a row gives its own", data.lengths.unit),
+    );
+    let source = format!(
+        "{SHOP_CURVE_WORDS}. Data: {} (SHA-256 {}); circles: {} safe, {} necked, {} split ({} \
+         rows without a condition, {} rows rejected); {d0}. Method: penalised logistic \
+         likelihood of the condition (necked or split = at or above the limit) in the vertical \
+         true-strain distance to a piecewise-linear curve; {} knots from {:.2} to {:.2} % true \
+         minor strain (ends and multiples of {} %), smoothness lambda = {} on the squared \
+         changes of slope, logistic scale s fitted = {:.3} % (floor {} %, grid ratio {}); {} of \
+         {} circles on the wrong side; true strain; generated by neckline {TOOL_VERSION}",
+        shown_name(&a.parts),
+        data.sha256,
+        c.safe,
+        c.necked,
+        c.split,
+        data.unmarked,
+        data.rejected.len(),
+        fit.knots.len(),
+        100.0 * first,
+        100.0 * last,
+        100.0 * s.knot_spacing,
+        s.smoothing,
+        100.0 * fit.scale,
+        100.0 * s.scale_min,
+        from_parts::SCALE_RATIO,
+        fit.wrong_side(),
+        c.safe + c.failed(),
+    );
+    let material = a.out.material.clone().or_else(|| {
+        let j = &data.job;
+        match (&j.material, &j.lot) {
+            (Some(m), Some(l)) => Some(format!("{m}, {l}")),
+            (m, l) => m.clone().or_else(|| l.clone()),
+        }
+    });
+    let file = a.parts.file_name().map_or_else(
+        || "standard input".into(),
+        |n| n.to_string_lossy().into_owned(),
+    );
+    GeneratedCurve {
+        name: a
+            .out
+            .name
+            .clone()
+            .unwrap_or_else(|| format!("Press-shop curve, {file}")),
+        source,
+        material,
+        thickness_mm: data
+            .lengths
+            .t0
+            .map(|t| crate::units::Length::new(t, data.lengths.unit).mm()),
+        measure: StrainMeasure::True,
+        points_pct: fit.points_pct(),
+        notes: overlap_table(fit),
+    }
+}
+
+/// The overlap per knot, as text lines (true strain, percent).
+pub fn overlap_table(fit: &PartsFit) -> Vec<String> {
+    let mut v = vec![
+        "Overlap per knot (true strain, %), from the circles nearest each knot:".to_string(),
+        "wrong = safe on or above the curve, necked or split below it;".to_string(),
+        "band = where safe and necked-or-split circles mix, or the gap between them.".to_string(),
+        format!(
+            "{:>8} {:>8} {:>5} {:>7} {:>6} {:>6}  band",
+            "minor", "curve", "safe", "necked", "split", "wrong"
+        ),
+    ];
+    for r in &fit.overlap {
+        let band = match r.band {
+            Band::Mix(lo, hi) => format!("mix {:.1} to {:.1}", 100.0 * lo, 100.0 * hi),
+            Band::Gap(lo, hi) => format!("gap {:.1} to {:.1}", 100.0 * lo, 100.0 * hi),
+            Band::OneSided => "one kind only".into(),
+        };
+        v.push(format!(
+            "{:>8.2} {:>8.2} {:>5} {:>7} {:>6} {:>6}  {band}",
+            100.0 * r.minor,
+            100.0 * r.major,
+            r.counts.safe,
+            r.counts.necked,
+            r.counts.split,
+            r.wrong_side()
+        ));
+    }
+    v
+}
+
+/// What `from-parts` tells the user after writing the curve.
+fn parts_summary(c: &LimitCurve, path: Option<&Path>, fit: &PartsFit, data: &PartsData) -> String {
+    let n = fit.counts;
+    let plane = c
+        .limit_major_eng(crate::strain::TrueStrain(0.0))
+        .map_or_else(
+            || "not covered (no circles at plane strain)".into(),
+            |e| format!("{:.2} %", e.percent()),
+        );
+    let mut s = String::new();
+    if let Some(path) = path {
+        s.push_str(&format!(
+            "Wrote {} ({} knots, true strain): {}\n",
+            path.display(),
+            c.points.len(),
+            c.name
+        ));
+    }
+    s.push_str(&format!(
+        "Circles: {} safe, {} necked, {} split; {} rows without a condition, {} rejected\n\
+         Evidence (both kinds) on {} ranges of minor strain {:.1} % wide\n\
+         Boundary width (logistic scale s): {:.2} % true strain{}\n\n",
+        n.safe,
+        n.necked,
+        n.split,
+        data.unmarked,
+        data.rejected.len(),
+        fit.evidence.len(),
+        100.0 * fit.settings.knot_spacing,
+        100.0 * fit.scale,
+        if fit.scale_at_floor {
+            ",\n  at its floor: safe and necked circles barely mix; the curve runs through the gap"
+        } else {
+            ""
+        }
+    ));
+    for line in overlap_table(fit) {
+        s.push_str(&line);
+        s.push('\n');
+    }
+    s.push_str(&format!(
+        "\nCircles on the wrong side of the curve: {} of {}\n\
+         Plane-strain limit (FLC0): {plane} engineering major strain\n",
+        fit.wrong_side(),
+        n.safe + n.failed()
+    ));
+    let words = format!("A {SHOP_CURVE_WORDS}.");
+    s.push_str(&crate::output::terminal::wrap(&words, 80, ""));
+    s.push_str(&crate::output::terminal::wrap(CAUTION, 80, ""));
+    s
+}
+
+/// How a condition is drawn: colour and marker shape (the shape carries the meaning where
+/// colour cannot; Okabe-Ito colours as on the diagram of `check`).
+fn condition_style(c: Condition) -> (plot::Shape, RGBColor) {
+    use plot::okabe_ito::*;
+    match c {
+        Condition::Safe => (plot::Shape::Disc, GREEN),
+        Condition::Necked => (plot::Shape::Triangle, ORANGE),
+        Condition::Split => (plot::Shape::Cross, VERMILLION),
+    }
+}
+
+/// Draw the press-shop curve on a diagram in true strain with the circles by condition, the
+/// overlap band at each knot and the reference strain paths, in the plotting style of `check`.
+fn plot_parts(
+    curve: &LimitCurve,
+    fit: &PartsFit,
+    circles: &[PartCircle],
+    input: &Path,
+    path: &Path,
+    svg: bool,
+) -> Result<()> {
+    let draw = PartsPlot {
+        curve,
+        fit,
+        circles,
+        input,
+    };
+    let bytes = if svg {
+        plot::render_svg(plot::SIZE, |root| draw.draw(root)).map(String::into_bytes)
+    } else {
+        plot::render_png(plot::SIZE, |root| draw.draw(root))
+    }
+    .map_err(|e| Error::io(path, e))?;
+    write_atomic(path, &[], |w| w.write_all(&bytes))?;
+    eprintln!("Drew {}", path.display());
+    Ok(())
+}
+
+struct PartsPlot<'a> {
+    curve: &'a LimitCurve,
+    fit: &'a PartsFit,
+    circles: &'a [PartCircle],
+    input: &'a Path,
+}
+
+impl PartsPlot<'_> {
+    /// Axis ranges (true strain, percent) holding every circle and the curve, with some air.
+    fn ranges(&self) -> ((f64, f64), (f64, f64)) {
+        let pts = self
+            .circles
+            .iter()
+            .map(|c| (c.minor, c.major))
+            .chain(self.fit.knots.iter().copied().zip(self.fit.majors.clone()));
+        let (mut x, mut y) = ((0.0f64, 0.0f64), (0.0f64, 0.0f64));
+        for (a, b) in pts {
+            x = (x.0.min(100.0 * a), x.1.max(100.0 * a));
+            y = (y.0.min(100.0 * b), y.1.max(100.0 * b));
+        }
+        let out = |lo: f64, hi: f64| ((lo / 5.0).floor() * 5.0, (hi / 5.0).ceil() * 5.0);
+        (out(x.0 - 3.0, x.1 + 3.0), out(y.0 - 3.0, y.1 * 1.05 + 3.0))
+    }
+
+    fn draw<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, plotters::coord::Shift>,
+    ) -> plot::DrawResult<DB> {
+        root.fill(&WHITE)?;
+        let (xr, yr) = self.ranges();
+        let area = root.clone().shrink((0, 92), (870, 708));
+        let mut chart = ChartBuilder::on(&area)
+            .margin(12)
+            .x_label_area_size(50)
+            .y_label_area_size(62)
+            .build_cartesian_2d(xr.0..xr.1, yr.0..yr.1)?;
+        chart
+            .configure_mesh()
+            .x_desc("minor strain ε2, true %")
+            .y_desc("major strain ε1, true %")
+            .axis_desc_style(plot::text(17.0))
+            .label_style(plot::text(14.0))
+            .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
+            .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
+            .light_line_style(RGBColor(240, 240, 240))
+            .bold_line_style(RGBColor(215, 215, 215))
+            .draw()?;
+        let px = |p: (f64, f64)| chart.backend_coord(&p);
+        let grey = RGBColor(120, 120, 120);
+        for (_, line) in fld::reference_paths(StrainMeasure::True) {
+            for run in plot::clip_polyline(&line, xr, yr) {
+                let run: Vec<_> = run.iter().map(|p| px(*p)).collect();
+                for d in plot::dashes(&run, 10.0, 4.0) {
+                    root.draw(&PathElement::new(d, grey.stroke_width(1)))?;
+                }
+            }
+        }
+        self.draw_bands(root, &px)?;
+        self.draw_curve(root, &px, xr, yr)?;
+        for c in Condition::ALL {
+            let (shape, colour) = condition_style(c);
+            for p in self.circles.iter().filter(|p| p.condition == c) {
+                let at = px((100.0 * p.minor, 100.0 * p.major));
+                plot::marker(root, shape, at, 5, colour, BLACK)?;
+                if self.wrong_side(p) {
+                    root.draw(&Circle::new(at, 10, BLACK.stroke_width(2)))?;
+                }
+            }
+        }
+        self.draw_title(root)?;
+        self.draw_legend(root)?;
+        self.draw_footer(root)
+    }
+
+    /// Whether a circle lies on the wrong side of the fitted curve.
+    fn wrong_side(&self, p: &PartCircle) -> bool {
+        let d = p.major - self.fit.major_at(p.minor);
+        if p.condition.failed() {
+            d < 0.0
+        } else {
+            d >= 0.0
+        }
+    }
+
+    /// The fitted curve: solid between knots that both have safe and necked-or-split circles
+    /// near them, dashed where a knot has one kind only (the curve is carried there by the
+    /// smoothness penalty, not bracketed by evidence).
+    fn draw_curve<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, plotters::coord::Shift>,
+        px: &dyn Fn((f64, f64)) -> (i32, i32),
+        xr: (f64, f64),
+        yr: (f64, f64),
+    ) -> plot::DrawResult<DB> {
+        let o = &self.fit.overlap;
+        for w in o.windows(2) {
+            let piece = [
+                (100.0 * w[0].minor, 100.0 * w[0].major),
+                (100.0 * w[1].minor, 100.0 * w[1].major),
+            ];
+            let bracketed = w.iter().all(|r| r.band != Band::OneSided);
+            for run in plot::clip_polyline(&piece, xr, yr) {
+                let run: Vec<_> = run.iter().map(|p| px(*p)).collect();
+                if bracketed {
+                    root.draw(&PathElement::new(run, BLACK.stroke_width(3)))?;
+                } else {
+                    for d in plot::dashes(&run, 8.0, 5.0) {
+                        root.draw(&PathElement::new(d, BLACK.stroke_width(3)))?;
+                    }
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// At each knot, a translucent bar over the band where safe and necked circles mix, or an
+    /// outlined bar over the gap between them.
+    fn draw_bands<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, plotters::coord::Shift>,
+        px: &dyn Fn((f64, f64)) -> (i32, i32),
+    ) -> plot::DrawResult<DB> {
+        let mix = plot::okabe_ito::PURPLE;
+        for r in &self.fit.overlap {
+            let x = 100.0 * r.minor;
+            match r.band {
+                Band::Mix(lo, hi) => {
+                    let (a, b) = (px((x, 100.0 * lo)), px((x, 100.0 * hi)));
+                    root.draw(&Rectangle::new(
+                        [(a.0 - 9, a.1 + 1), (b.0 + 9, b.1 - 1)],
+                        mix.mix(0.45).filled(),
+                    ))?;
+                }
+                Band::Gap(lo, hi) => {
+                    let (a, b) = (px((x, 100.0 * lo)), px((x, 100.0 * hi)));
+                    root.draw(&Rectangle::new(
+                        [(a.0 - 9, a.1 + 1), (b.0 + 9, b.1 - 1)],
+                        mix.stroke_width(2),
+                    ))?;
+                }
+                Band::OneSided => {}
+            }
+            let k = px((x, 100.0 * r.major));
+            root.draw(&Rectangle::new(
+                [(k.0 - 3, k.1 - 3), (k.0 + 3, k.1 + 3)],
+                WHITE.filled(),
+            ))?;
+            root.draw(&Rectangle::new(
+                [(k.0 - 3, k.1 - 3), (k.0 + 3, k.1 + 3)],
+                BLACK.stroke_width(1),
+            ))?;
+        }
+        Ok(())
+    }
+
+    fn draw_title<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, plotters::coord::Shift>,
+    ) -> plot::DrawResult<DB> {
+        let n = self.fit.counts;
+        let width = plot::SIZE.0 - 30;
+        let head = format!("Forming-limit diagram: {}", self.curve.name);
+        let second = format!(
+            "{} circles: {} safe, {} necked, {} split  ·  {} on the wrong side  ·  boundary \
+             width s = {:.2} %{}",
+            n.safe + n.failed(),
+            n.safe,
+            n.necked,
+            n.split,
+            self.fit.wrong_side(),
+            100.0 * self.fit.scale,
+            self.curve
+                .material
+                .as_deref()
+                .map(|m| format!("  ·  {m}"))
+                .unwrap_or_default()
+        );
+        let third = format!("{SHOP_CURVE_WORDS}  (true strain axes)");
+        for (text, style, y) in [
+            (head, plot::bold(23.0), 10),
+            (second, plot::text(16.0), 40),
+            (third, plot::text(14.0), 64),
+        ] {
+            let t = plot::fit_px(root, &text, &style, width);
+            root.draw_text(&t, &style, (15, y))?;
+        }
+        Ok(())
+    }
+
+    fn draw_legend<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, plotters::coord::Shift>,
+    ) -> plot::DrawResult<DB> {
+        let x = 885;
+        let mut y = 108;
+        root.draw_text("Circles (condition)", &plot::bold(16.0), (x, y))?;
+        y += 28;
+        let n = self.fit.counts;
+        for (c, count) in [
+            (Condition::Safe, n.safe),
+            (Condition::Necked, n.necked),
+            (Condition::Split, n.split),
+        ] {
+            let (shape, colour) = condition_style(c);
+            plot::marker(root, shape, (x + 10, y + 8), 6, colour, BLACK)?;
+            root.draw_text(c.name(), &plot::text(15.0), (x + 28, y))?;
+            let count = count.to_string();
+            let (w, _) = root.estimate_text_size(&count, &plot::bold(15.0))?;
+            root.draw_text(&count, &plot::bold(15.0), (x + 200 - w as i32, y))?;
+            y += 25;
+        }
+        y += 12;
+        root.draw_text("Curve and overlap", &plot::bold(16.0), (x, y))?;
+        y += 26;
+        let sample = |y: i32| vec![(x, y + 8), (x + 40, y + 8)];
+        root.draw(&PathElement::new(sample(y), BLACK.stroke_width(3)))?;
+        root.draw_text("fitted curve, □ knots", &plot::text(14.0), (x + 50, y))?;
+        y += 22;
+        for d in plot::dashes(&sample(y), 8.0, 5.0) {
+            root.draw(&PathElement::new(d, BLACK.stroke_width(3)))?;
+        }
+        root.draw_text("one kind of circle only", &plot::text(14.0), (x + 50, y))?;
+        y += 24;
+        root.draw(&Circle::new((x + 20, y + 8), 10, BLACK.stroke_width(2)))?;
+        root.draw_text("circle on the wrong side", &plot::text(14.0), (x + 50, y))?;
+        y += 26;
+        let mix = plot::okabe_ito::PURPLE;
+        root.draw(&Rectangle::new(
+            [(x + 11, y), (x + 29, y + 16)],
+            mix.mix(0.45).filled(),
+        ))?;
+        root.draw_text(
+            "overlap: safe and necked mix",
+            &plot::text(14.0),
+            (x + 50, y),
+        )?;
+        y += 24;
+        root.draw(&Rectangle::new(
+            [(x + 11, y), (x + 29, y + 16)],
+            mix.stroke_width(2),
+        ))?;
+        root.draw_text("gap: they do not mix", &plot::text(14.0), (x + 50, y))?;
+        y += 24;
+        for d in plot::dashes(&sample(y), 10.0, 4.0) {
+            root.draw(&PathElement::new(
+                d,
+                RGBColor(120, 120, 120).stroke_width(1),
+            ))?;
+        }
+        root.draw_text("strain paths", &plot::text(14.0), (x + 50, y))?;
+        y += 36;
+        root.draw_text("Knots (true %)", &plot::bold(16.0), (x, y))?;
+        y += 24;
+        let right = |root: &DrawingArea<DB, plotters::coord::Shift>, text: &str, at: (i32, i32)| {
+            let (w, _) = root.estimate_text_size(text, &plot::text(13.0))?;
+            root.draw_text(text, &plot::text(13.0), (at.0 - w as i32, at.1))
+        };
+        let columns = [x + 45, x + 110, x + 200];
+        for (text, at) in ["minor", "curve", "wrong side"].iter().zip(columns) {
+            right(root, text, (at, y))?;
+        }
+        y += 19;
+        for r in &self.fit.overlap {
+            let cells = [
+                format!("{:.1}", 100.0 * r.minor),
+                format!("{:.1}", 100.0 * r.major),
+                r.wrong_side().to_string(),
+            ];
+            for (text, at) in cells.iter().zip(columns) {
+                right(root, text, (at, y))?;
+            }
+            y += 18;
+        }
+        Ok(())
+    }
+
+    fn draw_footer<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, plotters::coord::Shift>,
+    ) -> plot::DrawResult<DB> {
+        let top = 800;
+        let style = plot::text(13.0).color(&RGBColor(60, 60, 60));
+        root.draw(&PathElement::new(
+            vec![(15, top), (plot::SIZE.0 as i32 - 15, top)],
+            RGBColor(200, 200, 200).stroke_width(1),
+        ))?;
+        let mut y = top + 8;
+        for line in plot::wrap_px(root, CAUTION, &style, plot::SIZE.0 - 30) {
+            root.draw_text(&line, &style, (15, y))?;
+            y += 17;
+        }
+        let prov = format!(
+            "neckline {TOOL_VERSION}  ·  input {}  ·  band and wrong side per knot: circles \
+             nearest that knot",
+            shown_name(self.input)
+        );
+        let prov = plot::fit_px(root, &prov, &style, plot::SIZE.0 - 30);
+        root.draw_text(&prov, &style, (15, y))
+    }
 }

@@ -6,6 +6,7 @@
 //! increasing, or a `[keeler_brazier]` table that generates the empirical steel curve.
 //! Between points the curve is linear in the file's own strain measure.
 
+pub mod from_parts;
 pub mod keeler_brazier;
 pub mod mk;
 pub mod necking;
