@@ -19,8 +19,9 @@ use std::hash::{BuildHasherDefault, Hash, Hasher};
 use std::io::{self, Read, Write};
 
 /// Target size of one chunk: large enough that a chunk's overhead is nothing, small enough
-/// that a batch of them in flight stays a few MB.
-pub const CHUNK_BYTES: usize = 1 << 19;
+/// that a batch of them in flight stays a few MB (1 KiB in the unit tests, so that a small
+/// file is cut into many chunks and their merging is tested).
+pub const CHUNK_BYTES: usize = if cfg!(test) { 1 << 10 } else { 1 << 19 };
 
 /// The longest record read (64 MiB): a longer one is an error, not a reason to hold the file.
 pub const MAX_RECORD_BYTES: usize = 64 << 20;
@@ -374,7 +375,7 @@ mod tests {
     use super::*;
 
     /// A reader that gives at most 3 bytes a call, so that chunks end anywhere.
-    struct Trickle<'a>(&'a [u8]);
+    pub(super) struct Trickle<'a>(pub(super) &'a [u8]);
 
     impl Read for Trickle<'_> {
         fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
@@ -412,6 +413,79 @@ mod tests {
                 assert_eq!(ch.first_line, line);
                 line += ch.bytes.iter().filter(|&&b| b == b'\n').count() as u64;
             }
+        }
+    }
+
+    /// The demo tryouts streamed in small chunks and judged in memory give the same zones,
+    /// margins, worst list and rows.
+    #[test]
+    fn streaming_agrees_with_judging_in_memory() {
+        use crate::analysis::{state_of, Analysis, Context, Lengths};
+        use crate::measure::{read_measurements_from, ColumnMap};
+        use std::path::Path;
+        let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+        let curve = crate::limit::LimitCurve::load(
+            &root.join("limits/steel-0.80mm-n0.20-keeler-brazier.toml"),
+        )
+        .unwrap();
+        let lengths = Lengths {
+            unit: Default::default(),
+            d0: Some(2.5),
+            t0: Some(0.8),
+        };
+        let ctx = Context {
+            curve,
+            settings: crate::assess::Settings::default(),
+            lengths,
+            strain_input: false,
+        };
+        for t in ["tryout-1.csv", "tryout-2.csv"] {
+            let path = root.join("demo-parts/rear-floor-pan").join(t);
+            let text = std::fs::read_to_string(&path).unwrap();
+            let set =
+                read_measurements_from(text.as_bytes(), &path, &ColumnMap::default()).unwrap();
+            let states = set
+                .points
+                .into_iter()
+                .map(|m| state_of(m, &path, &lengths).unwrap());
+            let (a, all) = Analysis::of_states(
+                path.clone(),
+                Default::default(),
+                ctx.clone(),
+                View::default(),
+                states,
+                set.rejected,
+                &[],
+            );
+            let layout = Layout::default();
+            let table = crate::output::points_csv::table(&layout, &all);
+
+            let mut input = text.as_bytes();
+            let header = Header::read(&mut input, &path, &ColumnMap::default()).unwrap();
+            let pass = Pass {
+                header: &header,
+                ctx: &ctx,
+                layout: &layout,
+                view: View::default(),
+                write: true,
+                size_hint: None,
+            };
+            let mut out = layout.header_line().into_bytes();
+            // Trickled input: many small chunks, so that merging is exercised.
+            let streamed = pass
+                .run(Trickle(input), Some(&mut out), &mut |_| {})
+                .unwrap();
+            assert_eq!(String::from_utf8(out).unwrap(), table, "{t}");
+            assert_eq!(streamed.counts, a.summary.counts, "{t}");
+            let ids = |s: &Summary| {
+                s.worst
+                    .iter()
+                    .map(|p| p.input.id.clone())
+                    .collect::<Vec<_>>()
+            };
+            assert_eq!(ids(&streamed), ids(&a.summary), "{t}");
+            assert_eq!(streamed.margins, a.summary.margins);
+            assert_eq!(streamed.kept, a.summary.kept);
         }
     }
 

@@ -565,3 +565,173 @@ impl Summary {
         self.counts[zone as usize]
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::{state_of, Context, Lengths};
+    use crate::assess::Settings;
+    use crate::limit::LimitCurve;
+    use crate::measure::Measurement;
+    use std::path::Path;
+
+    /// `n` judged locations (invented), spread over every zone, some with positions.
+    fn points(n: usize) -> Vec<PointResult> {
+        let curve = LimitCurve::parse(
+            "name = \"t\"\nsource = \"test\"\nstrain = \"engineering\"\npoints = [[-30, 50], [0, 30], [30, 45]]\n",
+            Path::new("c.toml"),
+        )
+        .unwrap();
+        let lengths = Lengths {
+            unit: Default::default(),
+            d0: Some(2.5),
+            t0: Some(0.8),
+        };
+        let ctx = Context {
+            curve,
+            settings: Settings::default(),
+            lengths,
+            strain_input: false,
+        };
+        let mut state = 11u64;
+        let mut next = || {
+            state = state
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        (0..n)
+            .map(|i| {
+                let minor = 2.5 * (0.6 + 0.8 * next());
+                let major = minor.max(2.5 * (0.95 + 0.5 * next()));
+                let mut m = Measurement::axes(&format!("P{i}"), i as u64 + 2, major, minor, None);
+                if i % 3 != 0 {
+                    m.x = Some((i % 97) as f64 * 3.7);
+                    m.y = Some((i / 97) as f64 * 2.9);
+                }
+                ctx.judge(state_of(m, Path::new("t.csv"), &lengths).unwrap())
+            })
+            .collect()
+    }
+
+    fn fold_all(ps: &[PointResult]) -> Summary {
+        let mut s = Summary::new(View::default());
+        for p in ps {
+            s.fold(p.clone());
+        }
+        s
+    }
+
+    /// Everything a summary holds, in a form that compares: maps as sorted lists.
+    fn shape(s: &Summary) -> String {
+        let mut d: Vec<_> = s.density.cells.iter().map(|(k, c)| (*k, c.0)).collect();
+        d.sort();
+        let mut m: Vec<_> = s
+            .map
+            .cells
+            .iter()
+            .map(|(k, c)| (*k, c.n, c.margin.map(f32::to_bits), c.zone))
+            .collect();
+        m.sort();
+        let ids = |v: &[PointResult]| v.iter().map(|p| p.input.id.clone()).collect::<Vec<_>>();
+        format!(
+            "{} {:?} {} {:?} {:?} {:?} {:?} {:?} {:?} {} {:?} {:?} {} {}",
+            s.total,
+            s.counts,
+            s.complete,
+            ids(&s.kept),
+            ids(&s.worst),
+            s.zone_ids
+                .iter()
+                .map(|c| (&c.items, c.total))
+                .collect::<Vec<_>>(),
+            s.margins,
+            s.extent,
+            s.map_extent,
+            s.placed,
+            d,
+            m,
+            s.density.size(),
+            s.map.size()
+        )
+    }
+
+    // Folding every location in order and merging parts folded separately give one summary:
+    // what lets the stream judge parts of a file on several threads.
+    #[test]
+    fn merging_parts_equals_folding_everything() {
+        for n in [10, KEEP_ALL - 3, KEEP_ALL + 7, 3 * KEEP_ALL] {
+            let ps = points(n);
+            let whole = shape(&fold_all(&ps));
+            for parts in [2, 3, 7] {
+                let size = n.div_ceil(parts);
+                let mut merged = Summary::new(View::default());
+                for chunk in ps.chunks(size) {
+                    let mut part = merged.next_part();
+                    for p in chunk {
+                        part.fold(p.clone());
+                    }
+                    merged.merge(part);
+                }
+                assert_eq!(shape(&merged), whole, "{n} locations in {parts} parts");
+            }
+        }
+    }
+
+    #[test]
+    fn large_files_keep_only_the_at_risk_and_the_worst_in_order() {
+        let ps = points(3 * KEEP_ALL);
+        let s = fold_all(&ps);
+        assert!(!s.complete);
+        assert!(s.kept.iter().all(at_risk));
+        assert!(s.kept.len() <= AT_RISK_KEPT);
+        assert_eq!(s.worst.len(), WORST_KEPT);
+        // The worst list is the brute-force sort of every location, cut.
+        let mut all: Vec<&PointResult> = ps
+            .iter()
+            .filter(|p| p.judgement.margin_pct.is_some())
+            .collect();
+        all.sort_by(|a, b| {
+            worst_key(a)
+                .0
+                .cmp(&worst_key(b).0)
+                .then(worst_key(a).1.total_cmp(&worst_key(b).1))
+        });
+        let want: Vec<&str> = all
+            .iter()
+            .take(WORST_KEPT)
+            .map(|p| p.input.id.as_str())
+            .collect();
+        let got: Vec<&str> = s.worst.iter().map(|p| p.input.id.as_str()).collect();
+        assert_eq!(got, want);
+        assert_eq!(s.counts.iter().sum::<usize>(), ps.len());
+        let cells: u32 = s
+            .density
+            .cells
+            .values()
+            .map(|c| c.0.iter().sum::<u32>())
+            .sum();
+        assert_eq!(cells as usize, ps.len(), "every location is in the density");
+    }
+
+    #[test]
+    fn bins_coarsen_and_merge_whatever_their_size() {
+        let mut a: Bins<ZoneCounts> = Bins::new(1.0, 4);
+        for i in 0..20 {
+            a.add(i as f64, 0.5, |c| c.0[0] += 1);
+        }
+        assert!(a.cells.len() <= 4 && a.size() >= 4.0);
+        let mut b: Bins<ZoneCounts> = Bins::new(1.0, 1000);
+        b.add(3.5, 0.5, |c| c.0[1] += 1);
+        a.merge(b);
+        let total: u32 = a.cells.values().map(|c| c.0.iter().sum::<u32>()).sum();
+        assert_eq!(total, 21);
+        // Negative coordinates floor the same way at every size.
+        let mut n: Bins<ZoneCounts> = Bins::new(1.0, 100);
+        n.add(-0.5, -0.5, |c| c.0[0] += 1);
+        assert_eq!(n.cells.keys().next(), Some(&(-1, -1)));
+        n.coarsen();
+        assert_eq!(n.cells.keys().next(), Some(&(-1, -1)));
+        assert_eq!(n.corner((-1, -1)), (-2.0, -2.0));
+    }
+}

@@ -3,7 +3,8 @@
 //!
 //! Precision per column, chosen so that a points.csv judged again gives itself back and no
 //! digit is noise: strains and margins 3 decimals of a percent (0.001 pp, well below any
-//! reading's resolution of 0.5 pp or more), limit use 2 decimals, `beta` 3 decimals, thickness
+//! reading's resolution of 0.5 pp or more; the true strains, which a points.csv judged again
+//! is read from, 4), limit use 2 decimals, `beta` 3 decimals, thickness
 //! 4 decimals in mm and 5 in inches (0.1 µm, 0.01 thou), positions 3 decimals, d0 4 decimals.
 
 use crate::analysis::PointResult;
@@ -127,15 +128,13 @@ impl Layout {
         let mut f = Fields { out, first: true };
         let s = &p.strain;
         f.text(&p.input.id);
-        for v in [
-            s.eng.major.value(),
-            s.eng.minor.value(),
-            s.true_strain.major.value(),
-            s.true_strain.minor.value(),
-            s.thickness_strain.value(),
-        ] {
-            f.num(Some(v * 100.0), 3);
-        }
+        f.num(Some(s.eng.major.percent()), 3);
+        f.num(Some(s.eng.minor.percent()), 3);
+        // One more decimal on the true strains: a points.csv judged again reads them, and
+        // should land on the same side of every zone edge as the engineering values shown.
+        f.num(Some(s.true_strain.major.percent()), 4);
+        f.num(Some(s.true_strain.minor.percent()), 4);
+        f.num(Some(s.thickness_strain.percent()), 3);
         f.num(p.thickness, self.thickness_decimals());
         for v in [
             s.thinning,
