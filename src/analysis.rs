@@ -44,6 +44,8 @@ pub struct PointResult {
     pub judgement: Judgement,
     /// Element values when the location was computed from grid nodes (`None` for a circle).
     pub grid: Option<Box<crate::grid::GridExtras>>,
+    /// The path criterion's judgement, for a location measured after several stages.
+    pub path: Option<Box<crate::path::PathJudgement>>,
 }
 
 impl PointResult {
@@ -117,6 +119,7 @@ impl Context {
             d0: s.d0,
             strain: s.strain,
             grid: s.grid,
+            path: None,
         };
         if p.grid.is_some() {
             // Grid elements: the reading error is on the node coordinates, not on axes.
@@ -196,6 +199,8 @@ pub struct Analysis {
     pub strain_input: bool,
     /// The judged locations, summarised.
     pub summary: Summary,
+    /// The forming stages in order, for a file whose locations were measured after several.
+    pub stages: Vec<String>,
     /// Things the user should know (clamps, ignored columns).
     pub warnings: Vec<String>,
 }
@@ -254,6 +259,7 @@ impl Analysis {
             settings: ctx.settings,
             strain_input: ctx.strain_input,
             summary: Summary::new(view),
+            stages: Vec::new(),
             warnings,
         }
     }

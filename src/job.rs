@@ -65,6 +65,9 @@ pub struct Job {
     /// Reading error of one axis, in `unit` (percentage points of strain for a file that
     /// gives strains).
     pub reading_error: Option<f64>,
+    /// The order of the forming stages of a multi-stage file (`stages = ["draw", "restrike"]`);
+    /// without it, the order in which stages first appear in the file.
+    pub stages: Option<Vec<String>>,
     /// The file's own headers mapped onto neckline's column names (`[columns]` table:
     /// `major_true_pct = "Major strain (%)"`).
     #[serde(default, skip_serializing_if = "std::collections::BTreeMap::is_empty")]

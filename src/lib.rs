@@ -26,6 +26,7 @@ pub mod limit;
 pub mod measure;
 pub mod observed;
 pub mod output;
+pub mod path;
 pub mod strain;
 pub mod stream;
 pub mod summary;

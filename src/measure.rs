@@ -107,6 +107,8 @@ pub struct Measurement {
     pub note: Option<String>,
     /// Condition observed on the part at this location (`safe`, `necked`, `split`), if marked.
     pub condition: Option<Condition>,
+    /// Direction of the major axis, degrees (for a location measured after several stages).
+    pub angle_deg: Option<f64>,
 }
 
 impl Measurement {
@@ -124,6 +126,7 @@ impl Measurement {
             thinning: None,
             note: None,
             condition: None,
+            angle_deg: None,
         }
     }
 }
@@ -161,7 +164,7 @@ pub struct MeasurementSet {
 }
 
 /// neckline's names for the columns it reads.
-pub const NAMES: [&str; 16] = [
+pub const NAMES: [&str; 17] = [
     "id",
     "major",
     "minor",
@@ -178,6 +181,7 @@ pub const NAMES: [&str; 16] = [
     "major_true_pct",
     "minor_true_pct",
     "condition",
+    "angle_deg",
 ];
 
 /// Columns of a points.csv written by `check` that are results, not readings: left aside
@@ -303,6 +307,7 @@ pub struct Columns {
     thinning: Option<usize>,
     note: Option<usize>,
     condition: Option<usize>,
+    angle: Option<usize>,
 }
 
 fn canonical(name: &str) -> String {
@@ -489,6 +494,7 @@ impl Columns {
             thinning,
             note: find("note"),
             condition: find("condition"),
+            angle: find("angle_deg"),
             names,
         };
         Ok((cols, notes))
@@ -499,6 +505,11 @@ impl Columns {
         !matches!(self.kind, Kind::Axes { .. })
     }
 
+    /// The field number of neckline's column `name`, when the file has it.
+    pub fn index(&self, name: &str) -> Option<usize> {
+        self.names.iter().position(|n| n == name)
+    }
+
     /// Whether the file has the column `name` (neckline's name).
     pub fn has(&self, name: &str) -> bool {
         match name {
@@ -507,6 +518,7 @@ impl Columns {
             "stage" => self.stage.is_some(),
             "x" => self.x.is_some(),
             "condition" => self.condition.is_some(),
+            "angle_deg" => self.angle.is_some(),
             "y" => self.y.is_some(),
             _ => self.names.iter().any(|n| n == name),
         }
@@ -739,6 +751,7 @@ impl RowReader<'_> {
                 thickness,
                 thinning,
                 note: c.note.and_then(|s| self.text(s)),
+                angle_deg: self.optional(c.angle)?,
                 condition: match c.condition {
                     Some(col) => Condition::parse_optional(self.record.get(col).unwrap_or(""))
                         .map_err(|e| self.reject(col, e))?,
@@ -893,13 +906,18 @@ impl<B: BufRead> MeasurementReader<B> {
     /// Read and check the header; `name` is used in messages.
     pub fn new(mut input: B, name: &Path, map: &ColumnMap) -> Result<Self> {
         let header = Header::read(&mut input, name, map)?;
-        Ok(MeasurementReader {
+        Ok(Self::after(input, header))
+    }
+
+    /// The rows of `input`, whose header was read already.
+    pub fn after(input: B, header: Header) -> Self {
+        MeasurementReader {
             reader: csv_reader(header.dialect, input),
             header,
             ids: HashSet::new(),
             record: csv::StringRecord::new(),
             failed: false,
-        })
+        }
     }
 }
 

@@ -398,6 +398,12 @@ pub struct Summary {
     pub disagree: Capped<String>,
     /// Whether any location came from grid nodes, and any from a 3-D grid.
     pub grid: (bool, bool),
+    /// Locations judged along a multi-stage path.
+    pub paths: usize,
+    /// Locations the strain curve calls safe or marginal and the path criterion at risk or failed.
+    pub hidden: Capped<String>,
+    /// Locations whose major axis turned between stages beyond the assumption's limit.
+    pub turned: Capped<String>,
 }
 
 impl Summary {
@@ -424,6 +430,9 @@ impl Summary {
             placed: 0,
             disagree: Capped::default(),
             grid: (false, false),
+            paths: 0,
+            hidden: Capped::default(),
+            turned: Capped::default(),
         }
     }
 
@@ -478,6 +487,15 @@ impl Summary {
         if let Some(g) = &p.grid {
             self.grid.0 = true;
             self.grid.1 |= g.normal.is_some();
+        }
+        if let Some(j) = &p.path {
+            self.paths += 1;
+            if j.hidden() {
+                self.hidden.push_with(|| p.input.id.clone());
+            }
+            if j.turned {
+                self.turned.push_with(|| p.input.id.clone());
+            }
         }
         if p.judgement.margin_pct.is_some() {
             self.offer_worst(p);
@@ -558,6 +576,9 @@ impl Summary {
         self.placed += o.placed;
         self.disagree.merge(o.disagree);
         self.grid = (self.grid.0 || o.grid.0, self.grid.1 || o.grid.1);
+        self.paths += o.paths;
+        self.hidden.merge(o.hidden);
+        self.turned.merge(o.turned);
     }
 
     /// Number of locations in `zone`.

@@ -115,14 +115,24 @@ pub fn judge_file(
         lengths: prep.lengths,
         strain_input,
     };
-    let layout = Layout {
+    let mut layout = Layout {
         strains_only: false,
         z: header.columns.has("z"),
         thinning: header.columns.has("thinning_pct"),
         reading: prep.settings.reading_error.is_some(),
         grid: false,
+        path: false,
         unit: prep.lengths.unit,
     };
+    if header.columns.has("stage") {
+        let order = prep.job.stages.as_deref();
+        let rows = crate::measure::MeasurementReader::after(input, header);
+        let staged = crate::path::judge_staged(rows, &ctx, order)?;
+        layout.path = staged.stages.len() >= 2;
+        return judged_in_memory(
+            path, prep, output, plan, inputs, ctx, layout, staged, &notes,
+        );
+    }
     let mut file = match &plan.points {
         Some(p) if !plan.points_to_stdout() => Some(AtomicFile::create(p, inputs)?),
         _ => None,
@@ -165,6 +175,57 @@ pub fn judge_file(
     a.summary = summary;
     a.finish();
     let a = require_points(a, path, "no location could be judged", "rows")?;
+    Ok((a, file))
+}
+
+/// A file judged in memory (several stages per location): its rows written and folded in the
+/// order of the ids.
+#[allow(clippy::too_many_arguments)]
+fn judged_in_memory(
+    path: &Path,
+    prep: &Prepared,
+    output: &OutputArgs,
+    plan: &Plan,
+    inputs: &[PathBuf],
+    ctx: Context,
+    layout: Layout,
+    staged: crate::path::Staged,
+    notes: &[String],
+) -> Result<(Analysis, Option<AtomicFile>)> {
+    let mut a = Analysis::new(
+        path.to_path_buf(),
+        prep.job.clone(),
+        ctx,
+        output.view(),
+        notes,
+    );
+    if layout.path {
+        a.stages = staged.stages.clone();
+    }
+    let mut text = layout.header_line().into_bytes();
+    for p in staged.points {
+        if plan.points.is_some() {
+            layout.push_row(&mut text, &p);
+        }
+        a.summary.fold(p);
+    }
+    for r in staged.rejected {
+        a.summary.rejected.push(r);
+    }
+    a.finish();
+    let a = require_points(a, path, "no location could be judged", "rows")?;
+    let file = match &plan.points {
+        Some(_) if plan.points_to_stdout() => {
+            super::outputs::write_stdout(&text)?;
+            None
+        }
+        Some(p) => {
+            let mut f = AtomicFile::create(p, inputs)?;
+            f.write_all(&text).map_err(|e| Error::io(p, e))?;
+            Some(f)
+        }
+        None => None,
+    };
     Ok((a, file))
 }
 

@@ -214,7 +214,7 @@ fn fld_options(args: &OutputArgs) -> FldOptions {
 }
 
 /// Every file name `check` and `grid` may write into the output folder.
-pub const OUTPUT_NAMES: [&str; 7] = [
+pub const OUTPUT_NAMES: [&str; 9] = [
     "points.csv",
     "summary.json",
     "fld.svg",
@@ -222,6 +222,8 @@ pub const OUTPUT_NAMES: [&str; 7] = [
     "fld.png",
     "map.png",
     "report.html",
+    "peps.svg",
+    "peps.png",
 ];
 
 /// Render every planned output in memory first (so a failure leaves the folder as it was),
@@ -248,11 +250,19 @@ fn write_outputs(
         if let Some(svg) = map::map_svg(a, args.map_value).map_err(|e| render(m, e))? {
             files.push((m.clone(), svg.into_bytes()));
         }
+        let p = f.with_file_name("peps.svg");
+        if let Some(svg) = crate::output::peps::peps_svg(a).map_err(|e| render(&p, e))? {
+            files.push((p, svg.into_bytes()));
+        }
     }
     if let Some((f, m)) = &plan.png {
         files.push((f.clone(), fld::fld_png(a, &opts).map_err(|e| render(f, e))?));
         if let Some(png) = map::map_png(a, args.map_value).map_err(|e| render(m, e))? {
             files.push((m.clone(), png));
+        }
+        let p = f.with_file_name("peps.png");
+        if let Some(png) = crate::output::peps::peps_png(a).map_err(|e| render(&p, e))? {
+            files.push((p, png));
         }
     }
     if let Some(p) = &plan.html {

@@ -232,6 +232,34 @@ impl LimitCurve {
     }
 }
 
+impl LimitCurve {
+    /// Where the straight path from the origin in direction `d = [ε2, ε1]` (true strain) meets
+    /// the curve: the curve's point on that ray, or `None` when the ray leaves its range.
+    pub fn point_on_ray(&self, d: [f64; 2]) -> Option<[f64; 2]> {
+        let path = self
+            .true_path
+            .get_or_init(|| TruePath::new(self.true_polyline(16)));
+        ray_hit(path, d).map(|s| [s * d[0], s * d[1]])
+    }
+
+    /// Where the same ray meets the safety band: the curve lowered by `band_pct` percentage
+    /// points of engineering major strain at each minor strain (in true strain).
+    pub fn band_point_on_ray(&self, band_pct: f64, d: [f64; 2]) -> Option<[f64; 2]> {
+        let band: Vec<[f64; 2]> = self
+            .true_polyline(16)
+            .into_iter()
+            .filter_map(|[e2, e1]| {
+                let eng = e1.exp() - 1.0 - band_pct / 100.0;
+                (eng > -1.0).then(|| [e2, (1.0 + eng).ln()])
+            })
+            .collect();
+        if band.len() < 2 {
+            return None;
+        }
+        ray_hit(&TruePath::new(band), d).map(|s| [s * d[0], s * d[1]])
+    }
+}
+
 fn cross(a: [f64; 2], b: [f64; 2]) -> f64 {
     a[0] * b[1] - a[1] * b[0]
 }

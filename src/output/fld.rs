@@ -249,6 +249,7 @@ fn draw<DB: DrawingBackend>(
         draw_density(root, a, &px, (xr.1 - xr.0).max(yr.1 - yr.0))?;
     }
     draw_points(root, a, m, &px, &mut placer)?;
+    draw_paths(root, a, opts, &px)?;
     draw_worst_labels(root, a, opts, &px, &mut placer)?;
     if let Some(end) = curve.first().and_then(|r| r.iter().min_by_key(|p| p.1)) {
         line_labels.push(("limit curve".into(), *end, BLACK));
@@ -365,8 +366,43 @@ fn draw_points<DB: DrawingBackend>(
     Ok(())
 }
 
+/// The strain path of each labelled worst location measured after several stages: a line from
+/// the origin through its strains after each stage, a dot at each stage.
+fn draw_paths<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    opts: &FldOptions,
+    px: &dyn Fn((f64, f64)) -> (i32, i32),
+) -> DrawResult<DB> {
+    let ink = RGBColor(60, 60, 60);
+    for p in a.worst(opts.labelled) {
+        let Some(j) = &p.path else { continue };
+        let mut line = vec![px((0.0, 0.0))];
+        for s in &j.stages {
+            let at = (
+                plot::axis_value(opts.measure, s[0]),
+                plot::axis_value(opts.measure, s[1]),
+            );
+            line.push(px(at));
+        }
+        root.draw(&PathElement::new(line.clone(), ink.stroke_width(2)))?;
+        for c in &line[1..] {
+            root.draw(&Circle::new(*c, 3, ink.filled()))?;
+        }
+    }
+    Ok(())
+}
+
 /// Label text of a worst location: its id and vertical margin.
 pub fn worst_label(p: &PointResult) -> String {
+    if let Some(j) = p.path.as_ref().filter(|j| j.hidden()) {
+        // At risk along its path while the strain curve is content: say so.
+        return format!(
+            "{} (path {:.0} %)",
+            p.input.id,
+            j.use_pct.unwrap_or(f64::NAN)
+        );
+    }
     let below_curve = p.judgement.margin_pct.is_some_and(|m| m > 0.0);
     if p.zone() == crate::assess::Zone::Failed && below_curve {
         // Failed by thinning while below the curve: say why, not a margin that reads as safe.

@@ -6,6 +6,7 @@
 pub mod fixture;
 pub mod fld;
 pub mod map;
+pub mod peps;
 pub mod plot;
 pub mod points_csv;
 pub mod report;
@@ -190,6 +191,46 @@ pub fn notes(a: &crate::analysis::Analysis) -> Vec<String> {
             tc.largest_diff,
             tc.id
         ));
+    }
+    let sm = &a.summary;
+    if sm.paths > 0 {
+        let ids: Vec<&str> = sm
+            .hidden
+            .items
+            .iter()
+            .take(12)
+            .map(String::as_str)
+            .collect();
+        out.push(format!(
+            "Path criterion (polar effective plastic strain): {} judged along their stages \
+             ({}); hidden by the strain curve (safe or marginal on it, at risk along the \
+             path): {}{}{}{}",
+            crate::output::terminal::count_of(sm.paths, "location"),
+            a.stages.join(" → "),
+            crate::output::terminal::count_of(sm.hidden.total, "location"),
+            if ids.is_empty() { "" } else { ": " },
+            ids.join(", "),
+            if sm.hidden.total > ids.len() {
+                ", ..."
+            } else {
+                ""
+            }
+        ));
+        if sm.turned.total > 0 {
+            out.push(format!(
+                "Major axis turned by more than {} degrees between stages at {} (the path \
+                 criterion assumes fixed axes): {}",
+                crate::path::TURN_LIMIT_DEG,
+                crate::output::terminal::count_of(sm.turned.total, "location"),
+                sm.turned
+                    .items
+                    .iter()
+                    .take(12)
+                    .cloned()
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            ));
+        }
     }
     if let Some(tc) = &a.summary.thinning {
         out.push(format!(

@@ -48,6 +48,23 @@ pub const CARRIED_COLUMNS: [&str; 7] = [
 /// difference from the computed one (percentage points).
 pub const OPTIONAL_COLUMNS: [&str; 3] = ["z", "thinning_measured_pct", "thinning_diff_pp"];
 
+/// Columns added for a multi-stage file: the stage count, the path criterion's accumulated
+/// effective strain, the direction of the last increment (degrees: 90 plane strain, 45
+/// equibiaxial), its limit and the use of it, the bend of the path (degrees between the first
+/// and the last increment), the zone by the strain curve alone and by the path criterion, and
+/// `yes` where the major axis turned between stages (the criterion's fixed-axes assumption fails).
+pub const PATH_COLUMNS: [&str; 9] = [
+    "stages",
+    "peps_effective_pct",
+    "peps_angle_deg",
+    "peps_limit_pct",
+    "peps_use_pct",
+    "path_bend_deg",
+    "strain_zone",
+    "peps_zone",
+    "path_turned",
+];
+
 /// Columns added when a reading error is set: the margin's uncertainty (percentage points) and
 /// `yes` where the zone could change within it.
 pub const READING_COLUMNS: [&str; 2] = ["margin_uncertainty_pct", "borderline"];
@@ -81,6 +98,8 @@ pub struct Layout {
     pub reading: bool,
     /// Locations come from grid nodes.
     pub grid: bool,
+    /// Locations were measured after several stages.
+    pub path: bool,
     /// The length unit (for the thickness's decimals).
     pub unit: LengthUnit,
 }
@@ -102,6 +121,9 @@ impl Layout {
         }
         if self.reading {
             h.extend(READING_COLUMNS);
+        }
+        if self.path {
+            h.extend(PATH_COLUMNS);
         }
         if self.grid {
             h.extend(GRID_COLUMNS);
@@ -178,6 +200,9 @@ impl Layout {
             f.num(j.uncertainty_pct, 2);
             f.text(if j.borderline { "yes" } else { "" });
         }
+        if self.path {
+            path_fields(f, p);
+        }
         if self.grid {
             grid_fields(f, p);
         }
@@ -215,6 +240,28 @@ impl Fields<'_> {
             self.out.extend_from_slice(s.as_bytes());
         }
     }
+}
+
+fn path_fields(f: &mut Fields<'_>, p: &PointResult) {
+    let Some(j) = &p.path else {
+        f.text("1");
+        for _ in &PATH_COLUMNS[1..6] {
+            f.text("");
+        }
+        f.text(p.zone().name());
+        f.text("");
+        f.text("");
+        return;
+    };
+    f.text(&j.stages.len().to_string());
+    f.num(Some(j.effective * 100.0), 3);
+    f.num(j.angle_deg, 2);
+    f.num(j.limit.map(|l| l * 100.0), 3);
+    f.num(j.use_pct, 2);
+    f.num(j.bend_deg, 2);
+    f.text(j.strain_zone.name());
+    f.text(j.zone.name());
+    f.text(if j.turned { "yes" } else { "" });
 }
 
 fn grid_fields(f: &mut Fields<'_>, p: &PointResult) {

@@ -77,6 +77,12 @@ pub fn summary(a: &Analysis) -> Value {
             "largest_diff_pp": t.largest_diff,
             "id": t.id,
         })),
+        "paths": (a.summary.paths > 0).then(|| json!({
+            "criterion": "polar effective plastic strain (Stoughton & Yoon 2012)",
+            "count": a.summary.paths,
+            "hidden_by_strain_curve": capped_ids(&a.summary.hidden),
+            "axes_turned": capped_ids(&a.summary.turned),
+        })),
         "warnings": a.warnings,
         "caution": CAUTION,
     })
