@@ -104,8 +104,11 @@ pub struct ObservedTally {
     /// `Zone::ALL[z]`.
     pub table: [[usize; 6]; 3],
     /// Ids observed necked or split but judged safe, marginal, thickening or low-stretch: where
-    /// the curve is not conservative for this part. In the order they were added.
+    /// the curve is not conservative for this part. In the order they were added; the first
+    /// [`crate::summary::LIST_CAP`] of them.
     pub non_conservative: Vec<String>,
+    /// How many locations are not conservative in all.
+    pub non_conservative_total: usize,
     /// Locations observed safe but judged failed: where the curve is conservative.
     pub conservative: usize,
     /// Locations with no observed condition.
@@ -122,7 +125,10 @@ impl ObservedTally {
         let z = Zone::ALL.iter().position(|&x| x == zone).unwrap_or(0);
         self.table[c.index()][z] += 1;
         if c.failed() && passes(zone) {
-            self.non_conservative.push(id.to_string());
+            self.non_conservative_total += 1;
+            if self.non_conservative.len() < crate::summary::LIST_CAP {
+                self.non_conservative.push(id.to_string());
+            }
         } else if c == Condition::Safe && zone == Zone::Failed {
             self.conservative += 1;
         }
@@ -135,7 +141,10 @@ impl ObservedTally {
                 *x += y;
             }
         }
-        self.non_conservative.extend(other.non_conservative);
+        self.non_conservative_total += other.non_conservative_total;
+        let room = crate::summary::LIST_CAP.saturating_sub(self.non_conservative.len());
+        self.non_conservative
+            .extend(other.non_conservative.into_iter().take(room));
         self.conservative += other.conservative;
         self.not_observed += other.not_observed;
     }

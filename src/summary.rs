@@ -404,6 +404,10 @@ pub struct Summary {
     pub hidden: Capped<String>,
     /// Locations whose major axis turned between stages beyond the assumption's limit.
     pub turned: Capped<String>,
+    /// Observed conditions (marked on the part) against the judged zones.
+    pub observed: crate::observed::ObservedTally,
+    /// Locations observed necked or split, kept for drawing (the first [`AT_RISK_KEPT`]).
+    pub observed_failed: Vec<PointResult>,
 }
 
 impl Summary {
@@ -433,6 +437,8 @@ impl Summary {
             paths: 0,
             hidden: Capped::default(),
             turned: Capped::default(),
+            observed: Default::default(),
+            observed_failed: Vec::new(),
         }
     }
 
@@ -454,6 +460,11 @@ impl Summary {
     /// [`Summary::fold`], the location copied only where it is kept.
     pub fn fold_owned(&mut self, p: PointResult) {
         self.fold_ref(&p);
+        if p.input.condition.is_some_and(|c| c.failed())
+            && self.observed_failed.len() < AT_RISK_KEPT
+        {
+            self.observed_failed.push(p.clone());
+        }
         self.keep(p);
     }
 
@@ -488,6 +499,7 @@ impl Summary {
             self.grid.0 = true;
             self.grid.1 |= g.normal.is_some();
         }
+        self.observed.add(&p.input.id, p.zone(), p.input.condition);
         if let Some(j) = &p.path {
             self.paths += 1;
             if j.hidden() {
@@ -579,6 +591,10 @@ impl Summary {
         self.paths += o.paths;
         self.hidden.merge(o.hidden);
         self.turned.merge(o.turned);
+        self.observed.merge(o.observed);
+        let room = AT_RISK_KEPT.saturating_sub(self.observed_failed.len());
+        self.observed_failed
+            .extend(o.observed_failed.into_iter().take(room));
     }
 
     /// Number of locations in `zone`.

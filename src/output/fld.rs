@@ -250,6 +250,7 @@ fn draw<DB: DrawingBackend>(
     }
     draw_points(root, a, m, &px, &mut placer)?;
     draw_paths(root, a, opts, &px)?;
+    draw_observed(root, a, m, &px)?;
     draw_worst_labels(root, a, opts, &px, &mut placer)?;
     if let Some(end) = curve.first().and_then(|r| r.iter().min_by_key(|p| p.1)) {
         line_labels.push(("limit curve".into(), *end, BLACK));
@@ -362,6 +363,20 @@ fn draw_points<DB: DrawingBackend>(
             marker(root, zone_shape(*zone), c, 5, zone_colour(*zone), BLACK)?;
             placer.obstacles.push((c.0 - 6, c.1 - 6, c.0 + 6, c.1 + 6));
         }
+    }
+    Ok(())
+}
+
+/// A ring round each location observed necked or split on the part, in its zone's colour.
+fn draw_observed<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    m: StrainMeasure,
+    px: &dyn Fn((f64, f64)) -> (i32, i32),
+) -> DrawResult<DB> {
+    for p in &a.summary.observed_failed {
+        let c = px(point_xy(p, m));
+        root.draw(&Circle::new(c, 10, zone_colour(p.zone()).stroke_width(2)))?;
     }
     Ok(())
 }
@@ -580,6 +595,11 @@ fn draw_legend<DB: DrawingBackend>(
         ))?;
     }
     root.draw_text("thinning iso-lines", &plot::text(14.0), (x + 50, y))?;
+    if !a.summary.observed_failed.is_empty() {
+        y += 22;
+        root.draw(&Circle::new((x + 20, y + 8), 8, BLACK.stroke_width(2)))?;
+        root.draw_text("observed necked or split", &plot::text(14.0), (x + 50, y))?;
+    }
     y += 34;
     let worst = a.worst(opts.labelled.max(1));
     if worst.is_empty() {

@@ -330,6 +330,12 @@ fn draw<DB: DrawingBackend>(
             }
         }
     }
+    let plane = a.summary.view.plane;
+    for p in &a.summary.observed_failed {
+        if let Some(xy) = plane.coords(p) {
+            root.draw(&Circle::new(px(xy), 12, BLACK.stroke_width(2)))?;
+        }
+    }
     draw_worst(root, a, &px, &mut placer)?;
     draw_title(root, a, value)?;
     match scale {

@@ -232,6 +232,37 @@ pub fn notes(a: &crate::analysis::Analysis) -> Vec<String> {
             ));
         }
     }
+    let ob = &a.summary.observed;
+    if ob.observed() > 0 {
+        let row = |c: crate::observed::Condition| {
+            let cells: Vec<String> = crate::assess::Zone::ALL
+                .iter()
+                .filter(|z| ob.count(c, **z) > 0)
+                .map(|z| format!("{} {}", ob.count(c, *z), z.name()))
+                .collect();
+            format!(
+                "{}: {}",
+                c.name(),
+                if cells.is_empty() {
+                    "-".into()
+                } else {
+                    cells.join(", ")
+                }
+            )
+        };
+        let rows: Vec<String> = crate::observed::Condition::ALL
+            .iter()
+            .map(|c| row(*c))
+            .collect();
+        out.push(format!(
+            "Observed on the part against judged ({} marked): {}; the curve is conservative at \
+             {} (observed safe, judged failed) and not conservative at {}",
+            crate::output::terminal::count_of(ob.observed(), "location"),
+            rows.join("; "),
+            crate::output::terminal::count_of(ob.conservative, "location"),
+            crate::output::terminal::count_of(ob.non_conservative_total, "location"),
+        ));
+    }
     if let Some(tc) = &a.summary.thinning {
         out.push(format!(
             "Thinning cross-check: {} measured; largest difference {:+.1} pp \
@@ -242,6 +273,31 @@ pub fn notes(a: &crate::analysis::Analysis) -> Vec<String> {
         ));
     }
     out
+}
+
+/// The warning that goes under the verdict when locations observed necked or split on the part
+/// were judged to pass: the curve is not conservative for this part.
+pub fn curve_warning(a: &crate::analysis::Analysis) -> Option<String> {
+    let ob = &a.summary.observed;
+    (ob.non_conservative_total > 0).then(|| {
+        let ids: Vec<&str> = ob
+            .non_conservative
+            .iter()
+            .take(12)
+            .map(String::as_str)
+            .collect();
+        format!(
+            "Warning: the limit curve is not conservative for this part: {} observed necked or \
+             split judged to pass: {}{}",
+            crate::output::terminal::count_of(ob.non_conservative_total, "location"),
+            ids.join(", "),
+            if ob.non_conservative_total > ids.len() {
+                ", ..."
+            } else {
+                ""
+            }
+        )
+    })
 }
 
 /// Format an optional number with `decimals`, empty when absent.

@@ -83,6 +83,26 @@ pub fn summary(a: &Analysis) -> Value {
             "hidden_by_strain_curve": capped_ids(&a.summary.hidden),
             "axes_turned": capped_ids(&a.summary.turned),
         })),
+        "observed": (a.summary.observed.observed() > 0).then(|| {
+            let ob = &a.summary.observed;
+            let table: Map<String, Value> = crate::observed::Condition::ALL
+                .iter()
+                .map(|c| {
+                    let row: Map<String, Value> = crate::assess::Zone::ALL
+                        .iter()
+                        .map(|z| (z.name().to_string(), json!(ob.count(*c, *z))))
+                        .collect();
+                    (c.name().to_string(), Value::Object(row))
+                })
+                .collect();
+            json!({
+                "marked": ob.observed(),
+                "against_judged": table,
+                "conservative": ob.conservative,
+                "non_conservative": { "count": ob.non_conservative_total, "ids": ob.non_conservative },
+                "curve_conservative": ob.non_conservative_total == 0,
+            })
+        }),
         "warnings": a.warnings,
         "caution": CAUTION,
     })

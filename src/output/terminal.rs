@@ -245,6 +245,9 @@ pub fn summary_text(a: &Analysis) -> String {
     }
     let _ = writeln!(s);
     let _ = writeln!(s, "Verdict: {}", a.verdict().name().to_uppercase());
+    if let Some(w) = crate::output::curve_warning(a) {
+        s.push_str(&wrap(&w, 80, ""));
+    }
     s.push_str(&wrap(CAUTION, 80, ""));
     s
 }
