@@ -111,35 +111,56 @@ impl Context {
 
     /// Judge one location.
     pub fn judge(&self, s: StateInput) -> PointResult {
-        let de = self.strain_error(s.d0);
-        let mut p = PointResult {
-            judgement: judge_reading(&s.strain, de, &self.curve, &self.settings),
-            thickness: self.lengths.t0.map(|t0| s.strain.thickness(t0)),
-            input: s.input,
-            d0: s.d0,
-            strain: s.strain,
-            grid: s.grid,
-            path: None,
-        };
+        let mut p = self.judge_parts(s.input, s.d0, s.strain);
+        p.grid = s.grid;
         if p.grid.is_some() {
             // Grid elements: the reading error is on the node coordinates, not on axes.
             crate::grid::node_reading_uncertainty(&mut p, &self.curve, &self.settings);
         }
         p
     }
+
+    /// Judge a measured location from its parts (no grid values).
+    pub fn judge_parts(
+        &self,
+        input: Measurement,
+        d0: Option<f64>,
+        strain: StrainState,
+    ) -> PointResult {
+        PointResult {
+            judgement: judge_reading(&strain, self.strain_error(d0), &self.curve, &self.settings),
+            thickness: self.lengths.t0.map(|t0| strain.thickness(t0)),
+            input,
+            d0,
+            strain,
+            grid: None,
+            path: None,
+        }
+    }
 }
 
 /// The strains of one measured location, or why the row cannot give them.
 pub fn state_of(m: Measurement, file: &Path, lengths: &Lengths) -> Result<StateInput, RejectedRow> {
+    let (d0, strain) = strain_of(&m, file, lengths)?;
+    Ok(StateInput {
+        input: m,
+        d0,
+        strain,
+        grid: None,
+    })
+}
+
+/// The d0 used (none for strains given directly) and the strains of one measured location, or
+/// why the row cannot give them.
+pub fn strain_of(
+    m: &Measurement,
+    file: &Path,
+    lengths: &Lengths,
+) -> Result<(Option<f64>, StrainState), RejectedRow> {
     let (major, minor, row_d0) = match m.reading {
         Reading::Strains(t) => {
             let strain = StrainState::from_stretches(t.major.stretch(), t.minor.stretch());
-            return Ok(StateInput {
-                input: m,
-                d0: None,
-                strain,
-                grid: None,
-            });
+            return Ok((None, strain));
         }
         Reading::Axes { major, minor, d0 } => (major, minor, d0),
     };
@@ -163,23 +184,15 @@ pub fn state_of(m: Measurement, file: &Path, lengths: &Lengths) -> Result<StateI
             return Err(r);
         }
     }
-    let strain = match (
+    match (
         Stretch::from_lengths(major, d0),
         Stretch::from_lengths(minor, d0),
     ) {
-        (Some(a), Some(b)) => StrainState::from_stretches(a, b),
-        _ => {
-            return Err(reject(format!(
-                "axes {major} and {minor} with d0 {d0} give no strain"
-            )))
-        }
-    };
-    Ok(StateInput {
-        input: m,
-        d0: Some(d0),
-        strain,
-        grid: None,
-    })
+        (Some(a), Some(b)) => Ok((Some(d0), StrainState::from_stretches(a, b))),
+        _ => Err(reject(format!(
+            "axes {major} and {minor} with d0 {d0} give no strain"
+        ))),
+    }
 }
 
 /// A whole analysed file: its settings and the summary of its judged locations.

@@ -8,7 +8,7 @@
 //! and formats them, each chunk into its own text and partial summary; the main thread writes
 //! the texts and merges the summaries in order.
 
-use crate::analysis::{state_of, Context};
+use crate::analysis::{strain_of, Context};
 use crate::error::{Error, Location, Result};
 use crate::measure::{csv_error, duplicate, Header, Measurement, RejectedRow};
 use crate::output::points_csv::Layout;
@@ -236,14 +236,14 @@ fn judge_chunk(rows: Vec<Parsed>, pass: &Pass<'_>, like: &Summary) -> Judged {
         if disagree {
             summary.disagree.push(m.id.clone());
         }
-        match state_of(m, &pass.header.file, &pass.ctx.lengths) {
+        match strain_of(&m, &pass.header.file, &pass.ctx.lengths) {
             Err(r) => summary.rejected.push(r),
-            Ok(s) => {
-                let p = pass.ctx.judge(s);
+            Ok((d0, strain)) => {
+                let p = pass.ctx.judge_parts(m, d0, strain);
                 if pass.write {
                     pass.layout.push_row(&mut text, &p);
                 }
-                summary.fold_owned(p);
+                summary.fold_ref(&p);
             }
         }
     }

@@ -454,12 +454,12 @@ impl Summary {
 
     /// Fold one judged location in (locations come in file order).
     pub fn fold(&mut self, p: PointResult) {
-        self.fold_owned(p);
+        self.fold_ref(&p);
     }
 
-    /// [`Summary::fold`], the location copied only where it is kept.
-    pub fn fold_owned(&mut self, p: PointResult) {
-        self.fold_ref(&p);
+    /// [`Summary::fold`] by reference: the location is copied only where it is kept.
+    pub fn fold_ref(&mut self, p: &PointResult) {
+        self.count_in(p);
         if p.input.condition.is_some_and(|c| c.failed())
             && self.observed_failed.len() < AT_RISK_KEPT
         {
@@ -468,7 +468,7 @@ impl Summary {
         self.keep(p);
     }
 
-    fn fold_ref(&mut self, p: &PointResult) {
+    fn count_in(&mut self, p: &PointResult) {
         let z = p.zone() as usize;
         self.total += 1;
         self.counts[z] += 1;
@@ -533,9 +533,9 @@ impl Summary {
         }
     }
 
-    fn keep(&mut self, p: PointResult) {
+    fn keep(&mut self, p: &PointResult) {
         if self.complete && self.kept.len() < KEEP_ALL {
-            self.kept.push(p);
+            self.kept.push(p.clone());
             return;
         }
         if self.complete {
@@ -543,8 +543,8 @@ impl Summary {
             self.kept.retain(at_risk);
             self.kept.truncate(AT_RISK_KEPT);
         }
-        if at_risk(&p) && self.kept.len() < AT_RISK_KEPT {
-            self.kept.push(p);
+        if at_risk(p) && self.kept.len() < AT_RISK_KEPT {
+            self.kept.push(p.clone());
         }
     }
 
