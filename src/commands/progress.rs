@@ -38,9 +38,11 @@ impl Progress {
             let bar = match self.total {
                 Some(t) => ProgressBar::new(t),
                 None => ProgressBar::new_spinner(),
-            };
+            }
+            .with_elapsed(self.start.elapsed())
+            .with_position(done);
             let style = ProgressStyle::with_template(
-                "{msg} [{bar:30}] {bytes}/{total_bytes} {bytes_per_sec} eta {eta}",
+                "{msg} [{bar:30}] {bytes}/{total_bytes}, {elapsed}",
             )
             .unwrap_or_else(|_| ProgressStyle::default_bar())
             .progress_chars("=> ");
