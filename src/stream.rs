@@ -12,7 +12,7 @@ use crate::analysis::{strain_of, Context};
 use crate::error::{Error, Location, Result};
 use crate::measure::{csv_error, duplicate, Header, Measurement, RejectedRow};
 use crate::output::points_csv::Layout;
-use crate::summary::{Summary, View};
+use crate::summary::{Summary, Template, View};
 use rayon::prelude::*;
 use std::collections::HashSet;
 use std::hash::{BuildHasherDefault, Hash, Hasher};
@@ -123,7 +123,11 @@ impl<R: Read> Chunker<R> {
             };
             match cut {
                 Some(c) => {
-                    let rest = self.buf.split_off(c);
+                    // The next buffer is made as large as a chunk at once, so that filling it
+                    // does not copy it again and again as it grows.
+                    let mut rest = Vec::with_capacity(want.max(self.buf.len() - c) + (1 << 16));
+                    rest.extend_from_slice(&self.buf[c..]);
+                    self.buf.truncate(c);
                     let bytes = std::mem::replace(&mut self.buf, rest);
                     let first_line = self.line;
                     self.line += memchr::memchr_iter(b'\n', &bytes).count() as u64;
@@ -222,9 +226,10 @@ struct Judged {
     summary: Summary,
 }
 
-fn judge_chunk(rows: Vec<Parsed>, pass: &Pass<'_>, like: &Summary) -> Judged {
-    let mut text = Vec::with_capacity(if pass.write { rows.len() * 180 } else { 0 });
-    let mut summary = like.next_part();
+fn judge_chunk(rows: Vec<Parsed>, pass: &Pass<'_>, like: &Template) -> Judged {
+    // Rows of points.csv are about 190 bytes: room for 240 each means no copy as it grows.
+    let mut text = Vec::with_capacity(if pass.write { rows.len() * 240 } else { 0 });
+    let mut summary = like.part();
     for row in rows {
         let (m, disagree, _) = match row {
             Ok(r) => r,
@@ -315,21 +320,33 @@ impl Pass<'_> {
                 })
             });
             let mut todo = read_batch(&mut chunks, batch, &h.file)?;
+            let mut pending: Vec<Judged> = Vec::new();
             let mut stopped = false;
-            while !todo.is_empty() && !stopped {
-                let (next, judged) = rayon::join(
-                    || read_batch(&mut chunks, batch, &h.file),
-                    || self.batch(todo, &mut seen, &summary),
-                );
-                for j in judged? {
-                    if writer.is_some() && tx.send(j.text).is_err() {
+            // While one batch is judged on the workers, the one before it is written and
+            // merged and the next one read.
+            let mut take_in = |pending: Vec<Judged>, summary: &mut Summary| {
+                for j in pending {
+                    if writer.is_some() && !stopped && tx.send(j.text).is_err() {
                         stopped = true; // the writer failed: its error is reported below
                     }
                     summary.merge(j.summary);
                 }
+            };
+            while !todo.is_empty() {
+                let template = summary.template();
+                let first = summary.total == 0 && summary.rejected.total == 0;
+                let (next, judged) = rayon::join(
+                    || {
+                        take_in(std::mem::take(&mut pending), &mut summary);
+                        read_batch(&mut chunks, batch, &h.file)
+                    },
+                    || self.batch(todo, &mut seen, &template, first),
+                );
+                pending = judged?;
                 progress(chunks.bytes_read);
                 todo = next?;
             }
+            take_in(pending, &mut summary);
             drop(tx);
             if let Some(w) = writer {
                 w.join()
@@ -342,11 +359,17 @@ impl Pass<'_> {
 
     /// Parse a batch of chunks in parallel, mark the duplicate keys in file order, then judge
     /// and format the chunks in parallel.
-    fn batch(&self, todo: Vec<Chunk>, seen: &mut SeenIds, like: &Summary) -> Result<Vec<Judged>> {
+    fn batch(
+        &self,
+        todo: Vec<Chunk>,
+        seen: &mut SeenIds,
+        like: &Template,
+        first: bool,
+    ) -> Result<Vec<Judged>> {
         let h = self.header;
         let parsed: Vec<Result<Vec<Parsed>>> = todo.par_iter().map(|c| parse_chunk(c, h)).collect();
         let mut parsed = parsed.into_iter().collect::<Result<Vec<_>>>()?;
-        if like.total == 0 && like.rejected.total == 0 {
+        if first {
             // Room for the whole file at this batch's bytes per row, so the set of ids is not
             // rehashed again and again.
             let rows: usize = parsed.iter().map(Vec::len).sum();

@@ -78,7 +78,7 @@ pub trait Cell: Default + Clone {
 #[derive(Debug, Clone, PartialEq)]
 pub struct Bins<C> {
     base: f64,
-    level: u32,
+    pub(crate) level: u32,
     cap: usize,
     /// Cells by integer key at the current size.
     pub cells: FxHashMap<(i64, i64), C>,
@@ -120,13 +120,6 @@ impl<C: Cell> Bins<C> {
         if self.cells.len() > self.cap {
             self.coarsen();
         }
-    }
-
-    /// Start at cells as large as `other`'s (so that parts of one file need not each find
-    /// their size again).
-    pub fn like(mut self, other: &Bins<C>) -> Self {
-        self.level = other.level;
-        self
     }
 
     /// Double the cell size, merging each 2×2 block of cells.
@@ -354,6 +347,28 @@ fn widen_by(e: &mut Option<[f64; 4]>, o: Option<[f64; 4]>) {
     }
 }
 
+/// The cell sizes and keeping mode of a summary, for the summaries of the parts that follow it
+/// (any template gives the right merged summary; a recent one saves work).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Template {
+    view: View,
+    density_level: u32,
+    map_level: u32,
+    complete: bool,
+}
+
+impl Template {
+    /// An empty summary to fold the next part of the file into.
+    pub fn part(&self) -> Summary {
+        let mut s = Summary::new(self.view);
+        s.density.level = self.density_level;
+        s.map.level = self.map_level;
+        // Past the size where every location is kept, the parts keep only what a merge keeps.
+        s.complete = self.complete;
+        s
+    }
+}
+
 /// Everything the outputs need of a file's judged locations, in bounded memory.
 #[derive(Debug, Clone)]
 pub struct Summary {
@@ -444,12 +459,17 @@ impl Summary {
 
     /// An empty summary for the locations that follow `self`'s, binned at its cell sizes.
     pub fn next_part(&self) -> Self {
-        let mut s = Summary::new(self.view);
-        s.density = s.density.like(&self.density);
-        s.map = s.map.like(&self.map);
-        // Past the size where every location is kept, the parts keep only what a merge keeps.
-        s.complete = self.complete;
-        s
+        self.template().part()
+    }
+
+    /// What a summary of the locations that follow needs to know of this one.
+    pub fn template(&self) -> Template {
+        Template {
+            view: self.view,
+            density_level: self.density.level,
+            map_level: self.map.level,
+            complete: self.complete,
+        }
     }
 
     /// Fold one judged location in (locations come in file order).

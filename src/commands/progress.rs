@@ -41,11 +41,10 @@ impl Progress {
             }
             .with_elapsed(self.start.elapsed())
             .with_position(done);
-            let style = ProgressStyle::with_template(
-                "{msg} [{bar:30}] {bytes}/{total_bytes}, {elapsed}",
-            )
-            .unwrap_or_else(|_| ProgressStyle::default_bar())
-            .progress_chars("=> ");
+            let style =
+                ProgressStyle::with_template("{msg} [{bar:30}] {bytes}/{total_bytes}, {elapsed}")
+                    .unwrap_or_else(|_| ProgressStyle::default_bar())
+                    .progress_chars("=> ");
             bar.set_style(style);
             bar.set_message(self.label.clone());
             self.bar = Some(bar);

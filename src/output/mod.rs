@@ -137,30 +137,40 @@ pub fn push_fixed_bytes(buf: &mut Vec<u8>, v: f64, decimals: usize) {
     }
 }
 
-/// `v` with `decimals` fixed decimals as ASCII in `out`; `None` when it does not fit in an
-/// `i64` at that scale (or `decimals > 9`): one integer formatting of all the digits, the
-/// decimal point put in after.
+/// `v` with `decimals` fixed decimals as ASCII at the end of `out`; `None` when it does not fit
+/// in an `i64` at that scale (or `decimals > 9`). The digits are written right to left from the
+/// rounded integer `round(v · 10^decimals)`, the decimal point put in on the way.
 fn fixed(out: &mut [u8; 32], v: f64, decimals: usize) -> Option<&[u8]> {
     const SCALE: [f64; 10] = [1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9];
     let scaled = (v * *SCALE.get(decimals)?).round_ties_even();
     if scaled.is_nan() || scaled.abs() >= 9.0e15 {
         return None;
     }
-    let n = scaled as i64;
-    let mut digits = itoa::Buffer::new();
-    let d = digits.format(n.unsigned_abs()).as_bytes();
-    let width = d.len().max(decimals + 1);
-    let sign = usize::from(n < 0);
-    out[0] = b'-';
-    out[sign..sign + width - d.len()].fill(b'0');
-    out[sign + width - d.len()..sign + width].copy_from_slice(d);
-    if decimals == 0 {
-        return Some(&out[..sign + width]);
+    let negative = scaled < 0.0;
+    let mut n = scaled.abs() as u64;
+    let mut i = out.len();
+    for _ in 0..decimals {
+        i -= 1;
+        out[i] = b'0' + (n % 10) as u8;
+        n /= 10;
     }
-    let point = sign + width - decimals;
-    out.copy_within(point..sign + width, point + 1);
-    out[point] = b'.';
-    Some(&out[..sign + width + 1])
+    if decimals > 0 {
+        i -= 1;
+        out[i] = b'.';
+    }
+    loop {
+        i -= 1;
+        out[i] = b'0' + (n % 10) as u8;
+        n /= 10;
+        if n == 0 {
+            break;
+        }
+    }
+    if negative {
+        i -= 1;
+        out[i] = b'-';
+    }
+    Some(&out[i..])
 }
 
 /// Findings beside the zone counts, as sentences for people (the terminal and the report show
