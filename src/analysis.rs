@@ -304,6 +304,7 @@ impl Analysis {
 
     /// Add the warnings that need the whole file (strain columns that disagree).
     pub fn finish(&mut self) {
+        self.summary.flush();
         let d = &self.summary.disagree;
         if d.total > 0 {
             self.warnings.push(format!(

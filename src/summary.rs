@@ -80,8 +80,10 @@ pub struct Bins<C> {
     base: f64,
     pub(crate) level: u32,
     cap: usize,
-    /// Cells by integer key at the current size.
-    pub cells: FxHashMap<(i64, i64), C>,
+    cells: FxHashMap<(i64, i64), C>,
+    /// The cell added to last, not yet in `cells`: neighbouring locations usually share a
+    /// cell, so most additions touch no hash table.
+    pending: Option<((i64, i64), C)>,
 }
 
 impl<C: Cell> Bins<C> {
@@ -92,6 +94,23 @@ impl<C: Cell> Bins<C> {
             level: 0,
             cap,
             cells: FxHashMap::default(),
+            pending: None,
+        }
+    }
+
+    /// The cells by integer key at the current size (call [`Bins::flush`] first after adding).
+    pub fn cells(&self) -> &FxHashMap<(i64, i64), C> {
+        debug_assert!(self.pending.is_none(), "cells read before a flush");
+        &self.cells
+    }
+
+    /// Put the pending cell into the table.
+    pub fn flush(&mut self) {
+        if let Some((k, c)) = self.pending.take() {
+            self.cells.entry(k).or_default().absorb(&c);
+            if self.cells.len() > self.cap {
+                self.coarsen();
+            }
         }
     }
 
@@ -116,14 +135,23 @@ impl<C: Cell> Bins<C> {
         if !(x.is_finite() && y.is_finite()) {
             return;
         }
-        f(self.cells.entry(self.key(x, y)).or_default());
-        if self.cells.len() > self.cap {
-            self.coarsen();
+        let key = self.key(x, y);
+        match &mut self.pending {
+            Some((k, c)) if *k == key => f(c),
+            _ => {
+                self.flush();
+                let mut c = C::default();
+                f(&mut c);
+                self.pending = Some((key, c));
+            }
         }
     }
 
     /// Double the cell size, merging each 2×2 block of cells.
     pub fn coarsen(&mut self) {
+        if let Some((k, c)) = self.pending.take() {
+            self.cells.entry(k).or_default().absorb(&c);
+        }
         self.level += 1;
         let old = std::mem::take(&mut self.cells);
         for ((i, j), c) in old {
@@ -140,6 +168,8 @@ impl<C: Cell> Bins<C> {
 
     /// Take `other`'s cells in.
     pub fn merge(&mut self, mut other: Bins<C>) {
+        self.flush();
+        other.flush();
         while self.level < other.level {
             self.coarsen();
         }
@@ -617,6 +647,12 @@ impl Summary {
             .extend(o.observed_failed.into_iter().take(room));
     }
 
+    /// Put every pending cell into its table (after folding, before drawing).
+    pub fn flush(&mut self) {
+        self.density.flush();
+        self.map.flush();
+    }
+
     /// Number of locations in `zone`.
     pub fn count(&self, zone: Zone) -> usize {
         self.counts[zone as usize]
@@ -681,11 +717,14 @@ mod tests {
 
     /// Everything a summary holds, in a form that compares: maps as sorted lists.
     fn shape(s: &Summary) -> String {
-        let mut d: Vec<_> = s.density.cells.iter().map(|(k, c)| (*k, c.0)).collect();
+        let mut s = s.clone();
+        s.flush();
+        let s = &s;
+        let mut d: Vec<_> = s.density.cells().iter().map(|(k, c)| (*k, c.0)).collect();
         d.sort();
         let mut m: Vec<_> = s
             .map
-            .cells
+            .cells()
             .iter()
             .map(|(k, c)| (*k, c.n, c.margin.map(f32::to_bits), c.zone))
             .collect();
@@ -738,7 +777,8 @@ mod tests {
     #[test]
     fn large_files_keep_only_the_at_risk_and_the_worst_in_order() {
         let ps = points(3 * KEEP_ALL);
-        let s = fold_all(&ps);
+        let mut s = fold_all(&ps);
+        s.flush();
         assert!(!s.complete);
         assert!(s.kept.iter().all(at_risk));
         assert!(s.kept.len() <= AT_RISK_KEPT);
@@ -777,18 +817,20 @@ mod tests {
         for i in 0..20 {
             a.add(i as f64, 0.5, |c| c.0[0] += 1);
         }
-        assert!(a.cells.len() <= 4 && a.size() >= 4.0);
+        a.flush();
+        assert!(a.cells().len() <= 4 && a.size() >= 4.0);
         let mut b: Bins<ZoneCounts> = Bins::new(1.0, 1000);
         b.add(3.5, 0.5, |c| c.0[1] += 1);
         a.merge(b);
-        let total: u32 = a.cells.values().map(|c| c.0.iter().sum::<u32>()).sum();
+        let total: u32 = a.cells().values().map(|c| c.0.iter().sum::<u32>()).sum();
         assert_eq!(total, 21);
         // Negative coordinates floor the same way at every size.
         let mut n: Bins<ZoneCounts> = Bins::new(1.0, 100);
         n.add(-0.5, -0.5, |c| c.0[0] += 1);
-        assert_eq!(n.cells.keys().next(), Some(&(-1, -1)));
+        n.flush();
+        assert_eq!(n.cells().keys().next(), Some(&(-1, -1)));
         n.coarsen();
-        assert_eq!(n.cells.keys().next(), Some(&(-1, -1)));
+        assert_eq!(n.cells().keys().next(), Some(&(-1, -1)));
         assert_eq!(n.corner((-1, -1)), (-2.0, -2.0));
     }
 }

@@ -313,7 +313,7 @@ fn draw_density<DB: DrawingBackend>(
     // Per cell: key, quiet population and its main zone, at-risk overflow and its zone.
     type Shade = ((i64, i64), u32, Zone, u32, Zone);
     let cells: Vec<Shade> = bins
-        .cells
+        .cells()
         .iter()
         .map(|(k, c)| {
             let n = |z: Zone| c.0[z as usize];

@@ -99,7 +99,7 @@ impl Scale {
                 let top = a
                     .summary
                     .map
-                    .cells
+                    .cells()
                     .values()
                     .map(|c| c.thinning)
                     .fold(0f32, f32::max);
@@ -116,7 +116,7 @@ impl Scale {
                 let top = a
                     .summary
                     .map
-                    .cells
+                    .cells()
                     .values()
                     .map(|c| c.major)
                     .fold(0f32, f32::max);
@@ -383,7 +383,7 @@ fn draw_raster<DB: DrawingBackend>(
     let mut bins = a.summary.map.clone();
     bins.coarsen_to(span, RASTER_CELLS);
     let size = bins.size();
-    for (k, c) in &bins.cells {
+    for (k, c) in bins.cells() {
         let (x0, y0) = bins.corner(*k);
         let (a0, b0) = px((x0, y0 + size));
         let (a1, b1) = px((x0 + size, y0));
