@@ -58,7 +58,8 @@ def main(inp, own_path, true_path, out):
     p, q = tru[order][i - 1], tru[order][i]
     ex, ey = q[:, 0] - p[:, 0], q[:, 1] - p[:, 1]
     den = px * ey - py * ex
-    s = (p[:, 0] * ey - p[:, 1] * ex) / den
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s = (p[:, 0] * ey - p[:, 1] * ex) / den
     use = np.where(inside, 100.0 / s, np.nan)
     out_df = out_df.with_columns(
         pl.Series("limit_major_eng_pct", lim * 100),
