@@ -198,6 +198,8 @@ pub struct Analysis {
     pub summary: Summary,
     /// Things the user should know (clamps, ignored columns).
     pub warnings: Vec<String>,
+    /// The input files and their SHA-256, where the command recorded them.
+    pub files: Vec<crate::digest::FileDigest>,
 }
 
 /// The overall verdict of an analysis.
@@ -255,6 +257,7 @@ impl Analysis {
             strain_input: ctx.strain_input,
             summary: Summary::new(view),
             warnings,
+            files: Vec::new(),
         }
     }
 

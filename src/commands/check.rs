@@ -7,6 +7,7 @@ use super::progress::Progress;
 use super::{require_points, Outcome, Prepared};
 use crate::analysis::{Analysis, Context};
 use crate::cli::{JudgeArgs, LengthArgs};
+use crate::digest::FileDigest;
 use crate::error::{Error, Result};
 use crate::measure::{open_input, Header};
 use crate::output::points_csv::Layout;
@@ -52,7 +53,12 @@ pub fn run(args: &CheckArgs) -> Result<Outcome> {
 }
 
 fn outcome(args: &CheckArgs, a: &Analysis) -> Outcome {
-    if args.judge.fail_on.is_some_and(|z| a.trips(z)) {
+    if args
+        .judge
+        .fail_on
+        .or(a.job.fail_on)
+        .is_some_and(|z| a.trips(z))
+    {
         Outcome::Tripped
     } else {
         Outcome::Done
@@ -102,7 +108,8 @@ pub fn judge_file(
     inputs: &[PathBuf],
     progress: bool,
 ) -> Result<(Analysis, Option<AtomicFile>)> {
-    let mut input = open_input(path)?;
+    // The measurement file is hashed as it streams past (standard input too), never held.
+    let mut input = crate::digest::HashingReader::new(open_input(path)?);
     let header = Header::read(&mut input, path, &prep.map)?;
     let strain_input = header.columns.gives_strains();
     let mut notes = header.notes.clone();
@@ -148,7 +155,7 @@ pub fn judge_file(
         write: sink.is_some(),
         size_hint: size,
     };
-    let summary = pass.run(input, sink, &mut |b| bar.set(b));
+    let summary = pass.run(&mut input, sink, &mut |b| bar.set(b));
     bar.finish();
     let summary = summary?;
     match out.flush() {
@@ -163,9 +170,24 @@ pub fn judge_file(
         &notes,
     );
     a.summary = summary;
+    a.files = input_digests(path, input.hex(), prep);
     a.finish();
     let a = require_points(a, path, "no location could be judged", "rows")?;
     Ok((a, file))
+}
+
+/// The measurement file's digest (taken as it streamed), then the curve's and the job's.
+fn input_digests(path: &Path, measurements: String, prep: &Prepared) -> Vec<FileDigest> {
+    let mut v = vec![FileDigest {
+        role: "measurements",
+        path: path.to_path_buf(),
+        sha256: measurements,
+    }];
+    v.extend(crate::digest::of_file("curve", &prep.curve_path).ok());
+    if let Some(j) = &prep.job_path {
+        v.extend(crate::digest::of_file("job", j).ok());
+    }
+    v
 }
 
 /// Several files: each judged into `DIR/<file stem>/`, one thread each, then `DIR/index.csv`

@@ -221,7 +221,12 @@ fn verdict(a: &Analysis) -> String {
         s.push_str("</ul>\n");
     }
     for note in crate::output::notes(a) {
-        let _ = writeln!(s, "<p class=\"note\">{}</p>", escape(&note));
+        let _ = writeln!(
+            s,
+            "<p class=\"note\">{} {}</p>",
+            escape(&note.text),
+            escape(&note.ids.join(", "))
+        );
     }
     for w in &a.warnings {
         let _ = writeln!(s, "<p class=\"note\">Warning: {}</p>", escape(w));
