@@ -6,6 +6,7 @@
 pub mod fixture;
 pub mod fld;
 pub mod map;
+pub mod page;
 pub mod plot;
 pub mod points_csv;
 pub mod report;
