@@ -27,6 +27,10 @@ td.z { background: #f3f3f3; font-weight: bold; }
 thead { display: table-header-group; }
 tr { break-inside: avoid; page-break-inside: avoid; }
 table.job th { width: 46mm; background: none; font-weight: normal; color: #555; }
+table.job2 { width: 100%; }
+table.job2 th { width: 17%; background: none; font-weight: normal; color: #555; }
+table.job2 td { width: 33%; }
+.keep { break-inside: avoid; page-break-inside: avoid; }
 .verdict { display: inline-block; font-size: 15pt; font-weight: bold; padding: 1.5mm 5mm;
            border: 2.5px solid var(--ink); margin: 3mm 0; }
 .verdicts { display: flex; gap: 4mm; align-items: center; margin: 3mm 0; flex-wrap: wrap; }
@@ -41,7 +45,7 @@ table.job th { width: 46mm; background: none; font-weight: normal; color: #555; 
 .note { color: #444; }
 .ids { columns: 4 40mm; margin: 1mm 0 2mm 6mm; }
 table.signoff { width: 100%; margin-top: 4mm; }
-table.signoff td, table.signoff th { border: 1px solid var(--ink); height: 9mm; }
+table.signoff td, table.signoff th { border: 1px solid var(--ink); height: 8mm; }
 table.signoff th { width: 24mm; }
 table.points, table.worst { font-size: 8pt; }
 table.points td, table.points th, table.worst td, table.worst th { padding: 0.3mm 1.2mm; }
@@ -50,7 +54,12 @@ figure svg { width: 100%; height: auto; display: block; }
 code, .formula { font-family: "DejaVu Sans Mono", "Liberation Mono", monospace; font-size: 9.5pt; }
 @page { margin: 16mm 12mm 16mm 12mm; }
 @media print {
-  body { font-size: 9.5pt; }
+  body { font-size: 9pt; line-height: 1.25; }
+  h3 { margin: 2.5mm 0 1mm 0; }
+  th, td { padding: 0.35mm 1.5mm; }
+  table.signoff td, table.signoff th { height: 7mm; }
+  h1 { font-size: 15pt; }
+  .verdict { margin: 1.5mm 0; }
   section.page { break-before: page; page-break-before: always; }
   section.page:first-of-type { break-before: auto; page-break-before: auto; }
 }

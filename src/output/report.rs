@@ -51,12 +51,21 @@ fn rows(pairs: &[(&str, String)]) -> Markup {
     }
 }
 
+/// Label-value pairs two to a row (page 1 must hold all its parts).
+fn rows2(pairs: &[(&str, String)]) -> Markup {
+    html! {
+        table.job2 { @for pair in pairs.chunks(2) { tr {
+            @for (k, v) in pair { th { (k) } td { (v) } }
+        } } }
+    }
+}
+
 fn header(a: &Analysis) -> Markup {
     let j = &a.job;
     html! {
         h1 { "Forming-limit check: " (j.part.as_deref().unwrap_or("(part not named)")) }
         @if let Some(c) = &j.company { p.note { (c) } }
-        (rows(&[
+        (rows2(&[
             ("Part", or_dash(&j.part)),
             ("Die", or_dash(&j.die)),
             ("Tryout", or_dash(&j.tryout)),
@@ -68,6 +77,8 @@ fn header(a: &Analysis) -> Markup {
             ("Measured by", or_dash(&j.measured_by)),
             ("Measurement file", file_name(a)),
             ("Report", format!("{}, revision {}", or_dash(&j.report_id), or_dash(&j.revision))),
+            ("Limit curve", format!("{} ({} strain)", a.curve.name, a.curve.measure.name())),
+            ("Curve source", a.curve.source.clone()),
         ]))
     }
 }
@@ -137,21 +148,13 @@ fn zone_meaning(z: Zone, a: &Analysis) -> String {
 }
 
 fn curve_brief(a: &Analysis) -> Markup {
-    let c = &a.curve;
-    html! {
-        h3 { "Limit curve and settings" }
-        (rows(&[
-            ("Limit curve", c.name.clone()),
-            ("Source", c.source.clone()),
-            ("Strain measure of the curve", c.measure.name().to_string()),
-            ("Settings", super::terminal::settings_line(a).trim_start_matches("Settings: ").to_string()),
-        ]))
-    }
+    html! { p { (super::terminal::settings_line(a)) "." } }
 }
 
 fn signoff(a: &Analysis) -> Markup {
     let j = &a.job;
     html! {
+        div.keep {
         h3 { "Sign-off" }
         table.signoff {
             thead { tr { th { "" } th { "Name" } th { "Signature" } th { "Date" } } }
@@ -160,6 +163,7 @@ fn signoff(a: &Analysis) -> Markup {
                     tr { th { (role) } td { (name.as_deref().unwrap_or("")) } td {} td {} }
                 }
             }
+        }
         }
     }
 }
