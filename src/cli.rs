@@ -74,7 +74,8 @@ pub struct JudgeArgs {
     /// Under-stretch threshold, percent engineering major strain [default: 2].
     #[arg(long, value_name = "PCT")]
     pub low_stretch: Option<f64>,
-    /// Maximum thinning, percent of t0; a point at or past it is failed [default: not checked].
+    /// Maximum thinning, percent of t0; a point at or past it is failed, whatever the curve's
+    /// range (thinning needs no curve) [default: not checked].
     #[arg(long, value_name = "PCT")]
     pub max_thinning: Option<f64>,
     /// Thickening threshold: the thickness increase, percent of t0, at which a location is

@@ -257,8 +257,11 @@ fn draw<DB: DrawingBackend>(
     if let Some(max) = a.settings.max_thinning_pct.filter(|_| !opts.curve_only) {
         let runs = path_px(&thinning_line(max, m));
         for run in &runs {
-            for d in plot::dashes(run, 14.0, 4.0) {
-                root.draw(&PathElement::new(d, BLACK.stroke_width(2)))?;
+            for d in plot::dashes(run, 14.0, 3.0) {
+                root.draw(&PathElement::new(
+                    d,
+                    zone_colour(Zone::Failed).stroke_width(3),
+                ))?;
             }
         }
         if let Some(end) = runs.last().and_then(|r| r.last()) {
@@ -572,8 +575,11 @@ fn draw_legend<DB: DrawingBackend>(
         root.draw_text(&band_label(a, opts.measure), &plot::text(14.0), (x + 50, y))?;
         y += 22;
         if let Some(max) = a.settings.max_thinning_pct {
-            for d in plot::dashes(&sample(y), 14.0, 4.0) {
-                root.draw(&PathElement::new(d, BLACK.stroke_width(2)))?;
+            for d in plot::dashes(&sample(y), 14.0, 3.0) {
+                root.draw(&PathElement::new(
+                    d,
+                    zone_colour(Zone::Failed).stroke_width(3),
+                ))?;
             }
             let t = format!("max thinning {} %", super::fmt_setting(max));
             root.draw_text(&t, &plot::text(14.0), (x + 50, y))?;

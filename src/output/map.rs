@@ -605,6 +605,11 @@ fn draw_shapes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) 
         (x, y),
     )?;
     y += 18;
+    if a.borderline().1 > 0 {
+        super::fld::borderline_ring(root, (x + 6, y + 7), 7)?;
+        root.draw_text("dashed ring: borderline", &plot::text(13.0), (x + 18, y))?;
+        y += 18;
+    }
     root.draw_text(
         if a.summary.complete {
             "dashed: hull of the measured locations"

@@ -58,8 +58,8 @@ code, .formula { font-family: "DejaVu Sans Mono", "Liberation Mono", monospace; 
   h3 { margin: 2.5mm 0 1mm 0; }
   th, td { padding: 0.35mm 1.5mm; }
   table.signoff td, table.signoff th { height: 7mm; }
-  h1 { font-size: 15pt; }
-  .verdict { margin: 1.5mm 0; }
+  h1 { font-size: 14pt; margin-bottom: 1mm; }
+  .verdict { margin: 1mm 0; font-size: 13pt; padding: 1mm 4mm; }
   section.page { break-before: page; page-break-before: always; }
   section.page:first-of-type { break-before: auto; page-break-before: auto; }
 }

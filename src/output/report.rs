@@ -78,8 +78,8 @@ fn header(a: &Analysis) -> Markup {
             ("Measurement file", file_name(a)),
             ("Report", format!("{}, revision {}", or_dash(&j.report_id), or_dash(&j.revision))),
             ("Limit curve", format!("{} ({} strain)", a.curve.name, a.curve.measure.name())),
-            ("Curve source", a.curve.source.clone()),
         ]))
+        p.note { "Curve source: " (a.curve.source) }
     }
 }
 
@@ -186,11 +186,11 @@ fn summary_page(a: &Analysis, bd: &Badges) -> Markup {
             }
         }
         (worst_brief(a, bd))
-        (rejected(a))
-        (notes(a))
-        @for w in &a.warnings { p.note { "Warning: " (w) } }
         (signoff(a))
         (page::caution())
+        @if a.rejected_total() > 0 || !a.warnings.is_empty() || !crate::output::notes(a).is_empty() {
+            p.note { "Findings, warnings and rejected rows: see the worst-locations page." }
+        }
     }
 }
 
@@ -434,6 +434,9 @@ pub fn report_html(a: &Analysis, opts: &FldOptions, value: map::MapValue) -> io:
             h2 { "Worst locations" }
             p { "The " (worst.len()) " worst locations: failed first, then by margin to the limit curve, smallest first." }
             (points_table(a, &worst, "worst", &bd))
+            (notes(a))
+            @for w in &a.warnings { p.note { "Warning: " (w) } }
+            (rejected(a))
         }))
         (page::section("points", all_locations(a, &bd)))
         (page::section("curve", curve_section(a)))
