@@ -216,6 +216,8 @@ pub struct Analysis {
     pub stages: Vec<String>,
     /// Things the user should know (clamps, ignored columns).
     pub warnings: Vec<String>,
+    /// The input files and their SHA-256, where the command recorded them.
+    pub files: Vec<crate::digest::FileDigest>,
 }
 
 /// The overall verdict of an analysis.
@@ -274,6 +276,7 @@ impl Analysis {
             summary: Summary::new(view),
             stages: Vec::new(),
             warnings,
+            files: Vec::new(),
         }
     }
 

@@ -1,13 +1,19 @@
 //! Judging each location against the forming-limit curve.
 //!
-//! Zones, checked in this order (the first that applies wins):
-//! 1. `uncovered`: the point's minor strain is outside the curve's range: no verdict, never safe;
-//! 2. `failed`: on or above the curve, or thinning at or past the set maximum;
-//! 3. `marginal`: inside the safety band below the curve (default 10 percentage points of
-//!    engineering major strain, common practice for steel);
-//! 4. `thickening`: `ε1 + ε2 < 0`, the sheet got thicker (wrinkle tendency, common practice);
-//! 5. `low-stretch`: engineering major strain below the threshold (default 2 %, common practice);
-//! 6. `safe`.
+//! Zones, checked in this order (the first that applies wins), each with the [`Reason`] that
+//! put the location there:
+//! 1. `failed`, reason `curve`: on or above the curve (margin ≤ 0, within round-off);
+//! 2. `failed`, reason `thinning`: thinning at or past the set maximum, whatever the curve's
+//!    range (thinning needs no curve);
+//! 3. `uncovered`, reason `no-curve`: the minor strain is outside the curve's range: no verdict,
+//!    never safe;
+//! 4. `marginal`, reason `band`: inside the safety band below the curve (default 10 percentage
+//!    points of engineering major strain, common practice for steel);
+//! 5. `thickening`, reason `thickening`: the sheet got thicker by at least the threshold
+//!    (default 2 % of t0, a judgement of ours, see [`DEFAULT_THICKENING_PCT`]): wrinkle tendency;
+//! 6. `low-stretch`, reason `low-stretch`: engineering major strain below the threshold
+//!    (default 2 %, common practice);
+//! 7. `safe`, reason `none`.
 
 use crate::kinematics::StrainState;
 use crate::limit::LimitCurve;
@@ -74,6 +80,74 @@ impl FromStr for Zone {
     }
 }
 
+/// Why a location is in its zone: the rule of [`zone_of`] that applied.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Reason {
+    /// On or above the limit curve.
+    Curve,
+    /// Thinned to or past the set maximum.
+    Thinning,
+    /// Inside the safety band below the curve.
+    Band,
+    /// Thicker than the thickening threshold.
+    Thickening,
+    /// Major strain below the under-stretch threshold.
+    LowStretch,
+    /// Minor strain outside the curve's range.
+    NoCurve,
+    /// At risk or past the limit along its multi-stage path (polar effective plastic strain)
+    /// while the strain curve is content.
+    Path,
+    /// No rule applied: safe.
+    None,
+}
+
+impl Reason {
+    /// Every reason, in the order of the rules.
+    pub const ALL: [Reason; 8] = [
+        Reason::Curve,
+        Reason::Thinning,
+        Reason::NoCurve,
+        Reason::Band,
+        Reason::Path,
+        Reason::Thickening,
+        Reason::LowStretch,
+        Reason::None,
+    ];
+
+    /// Name as written in files.
+    pub fn name(self) -> &'static str {
+        match self {
+            Reason::Curve => "curve",
+            Reason::Thinning => "thinning",
+            Reason::Band => "band",
+            Reason::Thickening => "thickening",
+            Reason::LowStretch => "low-stretch",
+            Reason::NoCurve => "no-curve",
+            Reason::Path => "path",
+            Reason::None => "none",
+        }
+    }
+}
+
+impl fmt::Display for Reason {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// Default thickening threshold, percent of t0: a judgement of ours. A reading error of 1 %
+/// strain per axis (0.025 mm on a 2.5 mm circle, common practice) gives the thickness strain
+/// `ε3 = −(ε1 + ε2)` an error of about √2 · 1 % ≈ 1.4 %; 2 % lies beyond it, so an undeformed
+/// or barely compressed circle is not called thickening by reading noise alone.
+pub const DEFAULT_THICKENING_PCT: f64 = 2.0;
+
+/// Round-off allowed in comparisons at zero (margin on the curve, thickness change), percentage
+/// points: 1e-7 pp is 1e-9 of strain, far above the round-off of a strain computed from two
+/// lengths (about 1e-16 per operation) and far below any printed digit (0.001 pp).
+pub const ROUND_OFF_PP: f64 = 1e-7;
+
 /// The judgement settings.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub struct Settings {
@@ -83,10 +157,18 @@ pub struct Settings {
     pub low_stretch_pct: f64,
     /// Maximum thinning, percent of the initial thickness; `None` = not checked.
     pub max_thinning_pct: Option<f64>,
+    /// Thickening threshold: the thickness increase, percent of t0, at which a location is
+    /// called thickening.
+    #[serde(default = "default_thickening")]
+    pub thickening_pct: f64,
     /// Reading error of one axis, in the measurement's length unit (e.g. 0.02 mm), or in
     /// percentage points of strain for a file that gives strains; `None` = no borderline flag.
     #[serde(default)]
     pub reading_error: Option<f64>,
+}
+
+fn default_thickening() -> f64 {
+    DEFAULT_THICKENING_PCT
 }
 
 impl Default for Settings {
@@ -95,6 +177,7 @@ impl Default for Settings {
             margin_pct: 10.0,
             low_stretch_pct: 2.0,
             max_thinning_pct: None,
+            thickening_pct: DEFAULT_THICKENING_PCT,
             reading_error: None,
         }
     }
@@ -113,6 +196,12 @@ impl Settings {
             return Err(format!(
                 "low-stretch {} is outside 0..=50 %",
                 self.low_stretch_pct
+            ));
+        }
+        if !(self.thickening_pct.is_finite() && (0.0..=50.0).contains(&self.thickening_pct)) {
+            return Err(format!(
+                "thickening {} is outside 0..=50 %",
+                self.thickening_pct
             ));
         }
         if let Some(r) = self.reading_error {
@@ -140,6 +229,8 @@ pub struct Judgement {
     pub limit_use_pct: Option<f64>,
     /// The zone.
     pub zone: Zone,
+    /// Why the location is in its zone.
+    pub reason: Reason,
     /// Uncertainty of the vertical margin from the reading error, percentage points.
     pub uncertainty_pct: Option<f64>,
     /// Whether the zone could change within that uncertainty (the margin is that close to 0 or
@@ -152,12 +243,13 @@ pub fn judge(state: &StrainState, curve: &LimitCurve, settings: &Settings) -> Ju
     let limit_major = curve.limit_major_eng(state.true_strain.minor);
     let margin_pct = limit_major.map(|l| l.percent() - state.eng.major.percent());
     let limit_use_pct = limit_major.and(curve.limit_use_pct(state));
-    let zone = zone_of(state, margin_pct, settings);
+    let (zone, reason) = zone_of(state, margin_pct, settings);
     Judgement {
         limit_major,
         margin_pct,
         limit_use_pct,
         zone,
+        reason,
         uncertainty_pct: None,
         borderline: false,
     }
@@ -208,24 +300,36 @@ pub fn is_borderline(m: f64, u: f64, settings: &Settings) -> bool {
     m.abs() < u || (m - settings.margin_pct).abs() < u
 }
 
-/// The zone from the vertical margin (`None` = uncovered) and the point's strains.
-pub fn zone_of(state: &StrainState, margin_pct: Option<f64>, settings: &Settings) -> Zone {
-    let Some(margin) = margin_pct else {
-        return Zone::Uncovered;
-    };
+/// The thickness increase, percent of t0: `t/t0 − 1 = exp(−(ε1 + ε2)) − 1` (plastic
+/// incompressibility); negative when the sheet thinned.
+pub fn thickening_pct(state: &StrainState) -> f64 {
+    -state.thinning * 100.0
+}
+
+/// The zone and its reason from the vertical margin (`None` = minor strain outside the curve's
+/// range) and the point's strains; the rules in the module's order.
+pub fn zone_of(
+    state: &StrainState,
+    margin_pct: Option<f64>,
+    settings: &Settings,
+) -> (Zone, Reason) {
     let thinned_out = settings
         .max_thinning_pct
-        .is_some_and(|m| state.thinning * 100.0 >= m);
-    if margin <= 0.0 || thinned_out {
-        Zone::Failed
-    } else if margin < settings.margin_pct {
-        Zone::Marginal
-    } else if state.true_strain.major.value() + state.true_strain.minor.value() < 0.0 {
-        Zone::Thickening
-    } else if state.eng.major.percent() < settings.low_stretch_pct {
-        Zone::LowStretch
+        .is_some_and(|m| state.thinning * 100.0 >= m - ROUND_OFF_PP);
+    match margin_pct {
+        Some(m) if m <= ROUND_OFF_PP => return (Zone::Failed, Reason::Curve),
+        _ if thinned_out => return (Zone::Failed, Reason::Thinning),
+        None => return (Zone::Uncovered, Reason::NoCurve),
+        Some(m) if m < settings.margin_pct - ROUND_OFF_PP => return (Zone::Marginal, Reason::Band),
+        Some(_) => {}
+    }
+    let thicker = thickening_pct(state);
+    if thicker >= settings.thickening_pct.max(0.0) - ROUND_OFF_PP && thicker > ROUND_OFF_PP {
+        (Zone::Thickening, Reason::Thickening)
+    } else if state.eng.major.percent() < settings.low_stretch_pct - ROUND_OFF_PP {
+        (Zone::LowStretch, Reason::LowStretch)
     } else {
-        Zone::Safe
+        (Zone::Safe, Reason::None)
     }
 }
 
@@ -236,7 +340,7 @@ mod tests {
 
     fn curve() -> LimitCurve {
         LimitCurve::parse(
-            "name = \"flat\"\nsource = \"test\"\npoints = [[-30, 30], [30, 30]]\n",
+            "name = \"flat\"\nsource = \"test\"\nstrain = \"engineering\"\npoints = [[-30, 30], [30, 30]]\n",
             Path::new("c.toml"),
         )
         .unwrap()
@@ -254,13 +358,82 @@ mod tests {
         };
         let c = curve();
         let z = |ma, mi| judge(&at(ma, mi), &c, &s).zone;
-        assert_eq!(z(10.0, -40.0), Zone::Uncovered);
+        assert_eq!(z(10.0, -40.0), Zone::Uncovered); // thinning −(1/(1.1·0.6) − 1) < 0
         assert_eq!(z(30.0, 0.0), Zone::Failed); // on the curve counts as failed
+        assert_eq!(z(40.0, 35.0), Zone::Failed); // thinning 47 %, minor outside the curve
         assert_eq!(z(28.0, 20.0), Zone::Failed); // thinning 1 - 1/(1.28·1.2) = 34.9 %
         assert_eq!(z(25.0, 0.0), Zone::Marginal);
         assert_eq!(z(10.0, -15.0), Zone::Thickening);
         assert_eq!(z(1.0, 0.5), Zone::LowStretch);
         assert_eq!(z(10.0, 5.0), Zone::Safe);
+    }
+
+    // Every rule gives its reason. Thinning 1 − t/t0 = 1 − 1/(λ1 λ2) by constant volume (any
+    // continuum mechanics text; FIELD notes §2).
+    #[test]
+    fn each_zone_has_its_reason() {
+        let s = Settings {
+            max_thinning_pct: Some(25.0),
+            ..Settings::default()
+        };
+        let c = curve();
+        let r = |ma, mi| {
+            let j = judge(&at(ma, mi), &c, &s);
+            (j.zone, j.reason)
+        };
+        assert_eq!(r(31.0, 0.0), (Zone::Failed, Reason::Curve));
+        // 1 − 1/(1.28 · 1.20) = 34.9 % thinning, 2 pp below the curve.
+        assert_eq!(r(28.0, 20.0), (Zone::Failed, Reason::Thinning));
+        assert_eq!(r(10.0, -40.0), (Zone::Uncovered, Reason::NoCurve));
+        assert_eq!(r(25.0, 0.0), (Zone::Marginal, Reason::Band));
+        assert_eq!(r(10.0, -15.0), (Zone::Thickening, Reason::Thickening));
+        assert_eq!(r(1.0, 0.5), (Zone::LowStretch, Reason::LowStretch));
+        assert_eq!(r(10.0, 5.0), (Zone::Safe, Reason::None));
+    }
+
+    // Thinning needs no curve: past the maximum is failed even where the minor strain is outside
+    // the curve's range. (1.40)(1.35) = 1.89 -> thinning 1 − 1/1.89 = 47.1 % (constant volume).
+    #[test]
+    fn thinning_fails_beyond_the_curves_range() {
+        let s = Settings {
+            max_thinning_pct: Some(25.0),
+            ..Settings::default()
+        };
+        let j = judge(&at(40.0, 35.0), &curve(), &s);
+        assert_eq!(j.margin_pct, None);
+        assert_eq!((j.zone, j.reason), (Zone::Failed, Reason::Thinning));
+        // Without a thinning limit the same location cannot be judged.
+        let j = judge(&at(40.0, 35.0), &curve(), &Settings::default());
+        assert_eq!((j.zone, j.reason), (Zone::Uncovered, Reason::NoCurve));
+    }
+
+    // Thickness increase t/t0 − 1 = 1/(λ1 λ2) − 1 (constant volume). (1.10)(0.90) = 0.99 ->
+    // 1.01 % thicker: below the default 2 % threshold; (1.10)(0.88) = 0.968 -> 3.31 % thicker.
+    #[test]
+    fn thickening_threshold_and_round_off_at_zero() {
+        let c = curve();
+        let d = Settings::default();
+        assert!((thickening_pct(&at(10.0, -10.0)) - (1.0 / 0.99 - 1.0) * 100.0).abs() < 1e-9);
+        assert_eq!(judge(&at(10.0, -10.0), &c, &d).zone, Zone::Safe);
+        assert_eq!(judge(&at(10.0, -12.0), &c, &d).zone, Zone::Thickening);
+        let loose = Settings {
+            thickening_pct: 1.0,
+            ..d
+        };
+        assert_eq!(judge(&at(10.0, -10.0), &c, &loose).zone, Zone::Thickening);
+        // At a threshold of 0, an undeformed circle read through round-off (a stretch of
+        // 1 − 1e-15) is not thicker: the comparison at zero allows round-off.
+        let zero = Settings {
+            thickening_pct: 0.0,
+            low_stretch_pct: 0.0,
+            ..d
+        };
+        let undeformed = StrainState::from_circle(2.5, 2.5, 2.5 * (1.0 - 1e-15)).unwrap();
+        assert_eq!(judge(&undeformed, &c, &zero).zone, Zone::Safe);
+        // ... while a real 0.5 % thickening is thickening at that threshold, not by default.
+        let thick = at(0.5, -1.0); // 1/(1.005 · 0.99) − 1 = 0.50 %
+        assert_eq!(judge(&thick, &c, &zero).zone, Zone::Thickening);
+        assert_eq!(judge(&thick, &c, &d).zone, Zone::LowStretch);
     }
 
     #[test]

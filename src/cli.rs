@@ -74,9 +74,15 @@ pub struct JudgeArgs {
     /// Under-stretch threshold, percent engineering major strain [default: 2].
     #[arg(long, value_name = "PCT")]
     pub low_stretch: Option<f64>,
-    /// Maximum thinning, percent of t0; a point at or past it is failed [default: not checked].
+    /// Maximum thinning, percent of t0; a point at or past it is failed, whatever the curve's
+    /// range (thinning needs no curve) [default: not checked].
     #[arg(long, value_name = "PCT")]
     pub max_thinning: Option<f64>,
+    /// Thickening threshold: the thickness increase, percent of t0, at which a location is
+    /// called thickening (wrinkle tendency) [default: 2, a judgement of ours: beyond the
+    /// √2 · 1 % thickness-strain error of a 1 % reading error per axis].
+    #[arg(long, value_name = "PCT")]
+    pub thickening: Option<f64>,
     /// Reading error of one axis, in --unit (e.g. 0.02 for a measuring microscope, 0.05 for a
     /// flexible scale); for a file that gives strains, in percentage points of strain (e.g.
     /// 0.5 for an optical system): locations whose zone could change within it are flagged
@@ -84,7 +90,8 @@ pub struct JudgeArgs {
     #[arg(long, value_name = "LENGTH")]
     pub reading_error: Option<f64>,
     /// Exit with status 1 when any location is failed (`failed`), or failed or marginal
-    /// (`marginal`); uncovered locations and rejected rows always count [default: never].
+    /// (`marginal`); uncovered locations and rejected rows always count [default: the job
+    /// file's `fail_on`, else never].
     #[arg(long, value_name = "failed|marginal", value_parser = parse_fail_on)]
     pub fail_on: Option<Zone>,
 }

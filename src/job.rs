@@ -10,6 +10,11 @@
 //! date = "2026-11-20"
 //! measured_by = "Night shift metrology"
 //! company = "Example Pressworks (invented)"
+//! report_id = "QR-0042"          # the report's own number; with `revision`, on every page
+//! revision = "B"
+//! prepared_by = "A. Example"     # names for the sign-off block (blank lines where left out)
+//! checked_by = "B. Example"
+//! approved_by = "C. Example"
 //! limit = "../limits/steel-0.8mm-kb.toml"
 //! unit = "mm"         # or "in"
 //! d0 = 2.5            # initial circle diameter, in `unit`
@@ -17,6 +22,8 @@
 //! margin = 10         # safety band, percentage points of engineering major strain
 //! low_stretch = 2     # under-stretch threshold, percent engineering major strain
 //! max_thinning = 25   # percent; leave out to not check
+//! thickening = 2      # percent thicker than t0 that counts as thickening
+//! fail_on = "failed"  # or "marginal": exit status 1 when reached
 //! reading_error = 0.02 # one axis, in `unit` (pp of strain for strain files); flags borderline
 //! [columns]           # the file's own headers, mapped onto neckline's names
 //! major_true_pct = "Major strain (%)"
@@ -42,12 +49,22 @@ pub struct Job {
     pub material: Option<String>,
     /// Material lot or coil.
     pub lot: Option<String>,
-    /// Date of measurement.
+    /// Date of measurement, `YYYY-MM-DD` (checked to be a real date).
     pub date: Option<String>,
     /// Who measured.
     pub measured_by: Option<String>,
     /// Company or plant.
     pub company: Option<String>,
+    /// The report's own number.
+    pub report_id: Option<String>,
+    /// The report's revision.
+    pub revision: Option<String>,
+    /// Who prepared the report.
+    pub prepared_by: Option<String>,
+    /// Who checked it.
+    pub checked_by: Option<String>,
+    /// Who approved it.
+    pub approved_by: Option<String>,
     /// Limit curve file, relative to the job file.
     pub limit: Option<PathBuf>,
     /// Length unit of d0, t0 and the measurement file.
@@ -62,12 +79,16 @@ pub struct Job {
     pub low_stretch: Option<f64>,
     /// Maximum thinning, percent.
     pub max_thinning: Option<f64>,
+    /// Thickening threshold, percent of t0.
+    pub thickening: Option<f64>,
     /// Reading error of one axis, in `unit` (percentage points of strain for a file that
     /// gives strains).
     pub reading_error: Option<f64>,
     /// The order of the forming stages of a multi-stage file (`stages = ["draw", "restrike"]`);
     /// without it, the order in which stages first appear in the file.
     pub stages: Option<Vec<String>>,
+    /// The zone at which `check` exits with status 1: `failed` or `marginal`.
+    pub fail_on: Option<crate::assess::Zone>,
     /// The file's own headers mapped onto neckline's column names (`[columns]` table:
     /// `major_true_pct = "Major strain (%)"`).
     #[serde(default, skip_serializing_if = "std::collections::BTreeMap::is_empty")]
@@ -96,6 +117,7 @@ impl Job {
             })?;
         }
         check_ranges(path, &text)?;
+        check_words(path, &text)?;
         if let Some(limit) = job.limit.take() {
             let base = path.parent().unwrap_or(Path::new(""));
             let limit = if limit.is_absolute() {
@@ -140,6 +162,76 @@ fn check_limit_path(path: &Path, text: &str, limit: &Path) -> Result<()> {
     ))
 }
 
+/// The keys of a job file whose text has a form, with their places.
+#[derive(Debug, Default, Deserialize)]
+struct WordSpans {
+    date: Option<Spanned<String>>,
+    fail_on: Option<Spanned<String>>,
+}
+
+/// Whether `s` is a real calendar date written `YYYY-MM-DD` (proleptic Gregorian calendar,
+/// ISO 8601: leap years every 4th year but centuries not divisible by 400).
+pub fn is_date(s: &str) -> bool {
+    let b = s.as_bytes();
+    if b.len() != 10 || b[4] != b'-' || b[7] != b'-' {
+        return false;
+    }
+    let num = |r: std::ops::Range<usize>| -> Option<u32> {
+        let t = &s[r];
+        t.bytes()
+            .all(|c| c.is_ascii_digit())
+            .then(|| t.parse().ok())?
+    };
+    let (Some(y), Some(m), Some(d)) = (num(0..4), num(5..7), num(8..10)) else {
+        return false;
+    };
+    let leap = (y % 4 == 0 && y % 100 != 0) || y % 400 == 0;
+    let days = match m {
+        1 | 3 | 5 | 7 | 8 | 10 | 12 => 31,
+        4 | 6 | 9 | 11 => 30,
+        2 if leap => 29,
+        2 => 28,
+        _ => return false,
+    };
+    (1..=days).contains(&d)
+}
+
+/// `date` must be a real date and `fail_on` one of the zones that stop a qualification; an
+/// error names the job file, the key's line and column, the value and what was expected.
+fn check_words(path: &Path, text: &str) -> Result<()> {
+    let spans: WordSpans =
+        toml::from_str(text).map_err(|e| crate::error::toml_error(path, text, &e))?;
+    let at = |start: usize| {
+        let (line, col) = line_col(text, start);
+        let mut loc = Location::file(path).at_line(line);
+        loc.column = Some(col);
+        loc
+    };
+    if let Some(d) = &spans.date {
+        if !is_date(d.get_ref()) {
+            return Err(Error::input(
+                at(d.span().start),
+                format!(
+                    "`date` = \"{}\" is not a real date: expected YYYY-MM-DD, e.g. \"2026-11-30\"",
+                    d.get_ref()
+                ),
+            ));
+        }
+    }
+    if let Some(f) = &spans.fail_on {
+        if !matches!(f.get_ref().as_str(), "failed" | "marginal") {
+            return Err(Error::input(
+                at(f.span().start),
+                format!(
+                    "`fail_on` = \"{}\": expected \"failed\" or \"marginal\"",
+                    f.get_ref()
+                ),
+            ));
+        }
+    }
+    Ok(())
+}
+
 /// The numeric keys of a job file with their places in the text, for range messages.
 #[derive(Debug, Default, Deserialize)]
 struct NumberSpans {
@@ -148,6 +240,7 @@ struct NumberSpans {
     margin: Option<Spanned<f64>>,
     low_stretch: Option<Spanned<f64>>,
     max_thinning: Option<Spanned<f64>>,
+    thickening: Option<Spanned<f64>>,
     reading_error: Option<Spanned<f64>>,
 }
 
@@ -167,7 +260,7 @@ fn check_ranges(path: &Path, text: &str) -> Result<()> {
     let percent: fn(f64) -> bool = |v| v.is_finite() && (0.0..=50.0).contains(&v);
     let thinning: fn(f64) -> bool = |v| v.is_finite() && v > 0.0 && v < 100.0;
     let length = "a positive length in the job's `unit`, at most 1000";
-    let checks: [RangeCheck; 6] = [
+    let checks: [RangeCheck; 7] = [
         ("d0", &spans.d0, positive, length),
         ("t0", &spans.t0, positive, length),
         ("reading_error", &spans.reading_error, positive, length),
@@ -178,6 +271,7 @@ fn check_ranges(path: &Path, text: &str) -> Result<()> {
             "0 to 50 percentage points",
         ),
         ("low_stretch", &spans.low_stretch, percent, "0 to 50 %"),
+        ("thickening", &spans.thickening, percent, "0 to 50 %"),
         (
             "max_thinning",
             &spans.max_thinning,
@@ -269,6 +363,59 @@ mod tests {
         std::fs::write(&p, "limit = \".\"\n").unwrap();
         let e = Job::load(&p).unwrap_err().to_string();
         assert!(e.contains("job.toml:1:9") && e.contains("folder"), "{e}");
+    }
+
+    // Calendar rules of ISO 8601 (proleptic Gregorian): 30 days in November, 29 in February of
+    // a leap year (2024; 2000 is one, 1900 is not).
+    #[test]
+    fn dates_must_be_real() {
+        for ok in ["2026-11-30", "2024-02-29", "2000-02-29", "2026-01-31"] {
+            assert!(is_date(ok), "{ok}");
+        }
+        for bad in [
+            "2026-11-31",
+            "1900-02-29",
+            "2026-13-01",
+            "2026-00-10",
+            "2026-1-5",
+            "26-11-30",
+            "2026/11/30",
+            "2026-11-3x",
+        ] {
+            assert!(!is_date(bad), "{bad}");
+        }
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("job.toml");
+        std::fs::write(&p, "part = \"x\"\ndate = \"2026-11-31\"\n").unwrap();
+        let e = Job::load(&p).unwrap_err().to_string();
+        assert!(
+            e.contains("job.toml:2:8") && e.contains("`date`") && e.contains("YYYY-MM-DD"),
+            "{e}"
+        );
+    }
+
+    #[test]
+    fn fail_on_and_sign_off_keys_are_read() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("job.toml");
+        std::fs::write(
+            &p,
+            "fail_on = \"marginal\"\nprepared_by = \"A\"\nrevision = \"B\"\nthickening = 3\n",
+        )
+        .unwrap();
+        let j = Job::load(&p).unwrap();
+        assert_eq!(j.fail_on, Some(crate::assess::Zone::Marginal));
+        assert_eq!(j.prepared_by.as_deref(), Some("A"));
+        assert_eq!(j.thickening, Some(3.0));
+        std::fs::write(&p, "fail_on = \"safe\"\n").unwrap();
+        let e = Job::load(&p).unwrap_err().to_string();
+        assert!(e.contains("job.toml:1:") && e.contains("`fail_on`"), "{e}");
+        std::fs::write(&p, "thickening = 80\n").unwrap();
+        let e = Job::load(&p).unwrap_err().to_string();
+        assert!(
+            e.contains("job.toml:1:") && e.contains("`thickening`"),
+            "{e}"
+        );
     }
 
     #[test]

@@ -17,6 +17,7 @@ pub mod assess;
 pub mod cli;
 pub mod commands;
 pub mod compare;
+pub mod digest;
 pub mod error;
 pub mod fit;
 pub mod grid;

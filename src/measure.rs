@@ -186,7 +186,7 @@ pub const NAMES: [&str; 17] = [
 
 /// Columns of a points.csv written by `check` that are results, not readings: left aside
 /// without a warning when such a file is judged again.
-const OWN_RESULT_COLUMNS: [&str; 20] = [
+const OWN_RESULT_COLUMNS: &[&str] = &[
     "thickness_true_pct",
     "thickness",
     "thinning_pct",
@@ -206,6 +206,7 @@ const OWN_RESULT_COLUMNS: [&str; 20] = [
     "margin_uncertainty_pct",
     "borderline",
     "thinning_measured_pct",
+    "reason",
     "",
 ];
 
@@ -466,6 +467,7 @@ impl Columns {
         let used: Vec<&str> = if own {
             let mut v = NAMES.to_vec();
             v.extend(OWN_RESULT_COLUMNS);
+            v.extend(crate::output::points_csv::PATH_COLUMNS);
             v.extend(["thickness_measured", "thinning_measured_pct"]);
             v.extend(crate::output::points_csv::GRID_COLUMNS);
             v

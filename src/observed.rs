@@ -199,7 +199,7 @@ mod tests {
     /// A flat curve at `level` percent engineering major strain from -20 % to +20 % minor.
     fn flat_curve(level: f64) -> LimitCurve {
         let text = format!(
-            "name = \"flat\"\nsource = \"test\"\npoints = [[-20, {level}], [20, {level}]]\n"
+            "name = \"flat\"\nsource = \"test\"\nstrain = \"engineering\"\npoints = [[-20, {level}], [20, {level}]]\n"
         );
         LimitCurve::parse(&text, Path::new("flat.toml")).unwrap()
     }

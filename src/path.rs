@@ -223,7 +223,10 @@ pub fn judge_staged<B: std::io::BufRead>(
         let mut p = ctx.judge(last);
         if staged {
             let j = judge_path(&path, &ctx.curve, ctx.settings.margin_pct, p.zone(), &axes);
-            p.judgement.zone = p.judgement.zone.min(j.zone);
+            if j.zone < p.judgement.zone {
+                p.judgement.zone = j.zone;
+                p.judgement.reason = crate::assess::Reason::Path;
+            }
             p.path = Some(Box::new(j));
         }
         out.points.push(p);

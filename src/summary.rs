@@ -253,12 +253,12 @@ impl MapCell {
 /// The margin a location is coloured by on the map: a location failed by thinning keeps a
 /// positive margin, so it is shown just below the curve, never as safe.
 pub fn map_margin(p: &PointResult) -> Option<f64> {
-    let m = p.judgement.margin_pct?;
-    Some(if p.zone() == Zone::Failed {
-        m.min(-0.01)
-    } else {
-        m
-    })
+    let m = p.judgement.margin_pct;
+    if p.zone() == Zone::Failed {
+        // Failed by thinning can have no margin at all (minor strain outside the curve).
+        return Some(m.unwrap_or(0.0).min(-0.01));
+    }
+    m
 }
 
 /// The measured-against-computed thickness check over a file.
@@ -559,7 +559,7 @@ impl Summary {
                 self.turned.push_with(|| p.input.id.clone());
             }
         }
-        if p.judgement.margin_pct.is_some() {
+        if p.judgement.margin_pct.is_some() || p.zone() == Zone::Failed {
             self.offer_worst(p);
         }
     }

@@ -303,7 +303,7 @@ fn usage_errors_exit_2() {
     let (_d, r) = run(&["check", &csv, "--limit", &unsorted, "--d0", "2.5"]);
     assert_eq!(r.code, 2, "{r}");
     assert!(
-        r.stderr.contains("unsorted.toml:5:") && r.stderr.contains("does not increase"),
+        r.stderr.contains("unsorted.toml:6:") && r.stderr.contains("does not increase"),
         "{r}"
     );
 }

@@ -11,7 +11,7 @@ use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
 
 const CURVE: &str =
-    "name = \"c\"\nsource = \"test only\"\npoints = [[-40, 60], [0, 30], [20, 42]]\n";
+    "name = \"c\"\nsource = \"test only\"\nstrain = \"engineering\"\npoints = [[-40, 60], [0, 30], [20, 42]]\n";
 const NODES_ID: &str = "id,X,Y,x,y\nA,0,0,0,0\nB,2.5,0,3,0\nC,2.5,2.5,3,2.5\nD,0,2.5,0,2.5\n";
 const MEASURED: &str = "id,major,minor\nA,3.0,2.6\n";
 
@@ -141,8 +141,8 @@ fn expected_line(name: &str) -> Option<u64> {
         "curve-one-point.toml"
         | "curve-nan.toml"
         | "curve-1e308.toml"
-        | "curve-three-numbers.toml" => Some(3),
-        "curve-inf.toml" => Some(3),
+        | "curve-three-numbers.toml" => Some(4),
+        "curve-inf.toml" => Some(4),
         "curve-duplicate-key.toml"
         | "job-self-limit.toml"
         | "job-inf-t0.toml"
@@ -175,8 +175,10 @@ fn every_corpus_file_is_refused_cleanly() {
 // Too big to commit: made here.
 #[test]
 fn generated_hostile_files_are_refused_cleanly() {
-    // A curve of 200 000 points: refused at the first point past the cap (line 4 + 10 000).
-    let mut curve = String::from("name = \"big\"\nsource = \"hostile test\"\npoints = [\n");
+    // A curve of 200 000 points: refused at the first point past the cap (line 5 + 10 000).
+    let mut curve = String::from(
+        "name = \"big\"\nsource = \"hostile test\"\nstrain = \"engineering\"\npoints = [\n",
+    );
     for i in 0..200_000 {
         curve += &format!("[{}, 40],\n", -50.0 + f64::from(i) * 1e-4);
     }
@@ -186,7 +188,7 @@ fn generated_hostile_files_are_refused_cleanly() {
         &[("curve-200000.toml", curve.as_bytes())],
         &args,
         "curve-200000.toml",
-        Some(10_004),
+        Some(10_005),
     );
     // A 5 MB field in a nodes file, an outlines file and an elements file.
     let big = "7".repeat(5 << 20);

@@ -1,6 +1,8 @@
 //! The report in a real browser: `check` writes report.html, headless Chromium prints it to PDF
-//! (Letter and A4) and takes a screenshot. Asserts: the expected number of pages, a screenshot
-//! that is not blank, and no request from the page other than the report file itself.
+//! (Letter and A4) and takes a screenshot. Asserts: the expected number of pages, "page N of M"
+//! and the running header on every printed page, the sign-off block on page 1 (the PDF's text,
+//! read by `pdftotext`), a screenshot that is not blank, and no request from the page other
+//! than the report file itself.
 //!
 //! Skipped with a message when `chromium` is not installed and `CI` is unset; in CI its absence
 //! fails (`.ci/run` installs Debian's `chromium`).
@@ -115,6 +117,23 @@ fn media_box(pdf: &[u8]) -> (f64, f64) {
     (nums[2] - nums[0], nums[3] - nums[1])
 }
 
+/// The text of each page of a PDF, by `pdftotext` (poppler-utils; pages end with a form feed).
+fn pdf_text_pages(pdf: &Path) -> Vec<String> {
+    let out = std::process::Command::new("pdftotext")
+        .args(["-layout"])
+        .arg(pdf)
+        .arg("-")
+        .output()
+        .expect("pdftotext is installed with chromium (apt-get install poppler-utils)");
+    assert!(out.status.success());
+    let text = String::from_utf8_lossy(&out.stdout).into_owned();
+    let mut pages: Vec<String> = text.split('\u{c}').map(str::to_string).collect();
+    if pages.last().is_some_and(|p| p.trim().is_empty()) {
+        pages.pop();
+    }
+    pages
+}
+
 fn check(dir: &Path, csv: &Path, extra: &[&str]) -> PathBuf {
     let out = dir.join("out");
     let st = Command::cargo_bin("neckline")
@@ -177,6 +196,35 @@ fn report_prints_on_letter_and_a4_and_loads_nothing_else() {
         "Letter is 612 x 792 pt: {w} x {h}"
     );
     assert_eq!(pdf_pages(&pdf), sections, "one page per section on Letter");
+    let pages = pdf_text_pages(&letter);
+    assert_eq!(pages.len(), sections);
+    for (k, text) in pages.iter().enumerate() {
+        let number = format!("page {} of {}", k + 1, sections);
+        assert!(
+            text.contains(&number),
+            "page {}: no `{number}`:\n{text}",
+            k + 1
+        );
+        assert!(
+            text.contains("Forming-limit check") && text.contains("revision"),
+            "page {}: no running header:\n{text}",
+            k + 1
+        );
+    }
+    for words in [
+        "Sign-off",
+        "Prepared",
+        "Checked",
+        "Approved",
+        "Signature",
+        "Verdict: FAIL",
+    ] {
+        assert!(
+            pages[0].contains(words),
+            "page 1 lacks `{words}`:\n{}",
+            pages[0]
+        );
+    }
 
     // A4: the same report with the paper size set, as a printer set to A4 would use.
     let a4_html = dir.path().join("out/report-a4.html");

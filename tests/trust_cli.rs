@@ -72,7 +72,7 @@ fn num(row: &std::collections::HashMap<String, String>, col: &str) -> f64 {
         .unwrap_or_else(|_| panic!("{col}: {row:?}"))
 }
 
-const FLAT: &str = "name = \"flat\"\nsource = \"test only\"\npoints = [[-30, 30], [30, 30]]\n";
+const FLAT: &str = "name = \"flat\"\nsource = \"test only\"\nstrain = \"engineering\"\npoints = [[-30, 30], [30, 30]]\n";
 
 // The job file gives the reading error in its own unit (mm); the circles are in inches. On a
 // flat curve the margin's uncertainty is 100·δd/d0 (δe ≈ δd/d0, common practice: 0.025 mm on a
@@ -131,7 +131,7 @@ fn job_out_of_range_names_the_job_file_and_key() {
 // exactly (e = d/d0 − 1), the curve's own ends, and must be judged, not left uncovered.
 #[test]
 fn readings_at_the_curve_ends_are_covered() {
-    let curve = "name = \"c\"\nsource = \"test only\"\npoints = [[-30, 60], [0, 30], [10, 36]]\n";
+    let curve = "name = \"c\"\nsource = \"test only\"\nstrain = \"engineering\"\npoints = [[-30, 60], [0, 30], [10, 36]]\n";
     let csv = "id,major,minor\nLEFT,3.0,1.75\nRIGHT,3.0,2.75\n";
     let r = run(
         &[("c.toml", curve), ("m.csv", csv)],

@@ -7,6 +7,7 @@ use super::progress::Progress;
 use super::{require_points, Outcome, Prepared};
 use crate::analysis::{Analysis, Context};
 use crate::cli::{JudgeArgs, LengthArgs};
+use crate::digest::FileDigest;
 use crate::error::{Error, Result};
 use crate::measure::{open_input, Header};
 use crate::output::points_csv::Layout;
@@ -52,7 +53,12 @@ pub fn run(args: &CheckArgs) -> Result<Outcome> {
 }
 
 fn outcome(args: &CheckArgs, a: &Analysis) -> Outcome {
-    if args.judge.fail_on.is_some_and(|z| a.trips(z)) {
+    if args
+        .judge
+        .fail_on
+        .or(a.job.fail_on)
+        .is_some_and(|z| a.trips(z))
+    {
         Outcome::Tripped
     } else {
         Outcome::Done
@@ -102,7 +108,8 @@ pub fn judge_file(
     inputs: &[PathBuf],
     progress: bool,
 ) -> Result<(Analysis, Option<AtomicFile>)> {
-    let mut input = open_input(path)?;
+    // The measurement file is hashed as it streams past (standard input too), never held.
+    let mut input = crate::digest::HashingReader::new(open_input(path)?);
     let header = Header::read(&mut input, path, &prep.map)?;
     let strain_input = header.columns.gives_strains();
     let mut notes = header.notes.clone();
@@ -126,11 +133,12 @@ pub fn judge_file(
     };
     if header.columns.has("stage") {
         let order = prep.job.stages.as_deref();
-        let rows = crate::measure::MeasurementReader::after(input, header);
+        let rows = crate::measure::MeasurementReader::after(&mut input, header);
         let staged = crate::path::judge_staged(rows, &ctx, order)?;
         layout.path = staged.stages.len() >= 2;
+        let files = input_digests(path, input.hex(), prep);
         return judged_in_memory(
-            path, prep, output, plan, inputs, ctx, layout, staged, &notes,
+            path, prep, output, plan, inputs, ctx, layout, staged, &notes, files,
         );
     }
     let mut file = match &plan.points {
@@ -158,7 +166,7 @@ pub fn judge_file(
         write: sink.is_some(),
         size_hint: size,
     };
-    let summary = pass.run(input, sink, &mut |b| bar.set(b));
+    let summary = pass.run(&mut input, sink, &mut |b| bar.set(b));
     bar.finish();
     let summary = summary?;
     match out.flush() {
@@ -173,6 +181,7 @@ pub fn judge_file(
         &notes,
     );
     a.summary = summary;
+    a.files = input_digests(path, input.hex(), prep);
     a.finish();
     let a = require_points(a, path, "no location could be judged", "rows")?;
     Ok((a, file))
@@ -191,6 +200,7 @@ fn judged_in_memory(
     layout: Layout,
     staged: crate::path::Staged,
     notes: &[String],
+    files: Vec<FileDigest>,
 ) -> Result<(Analysis, Option<AtomicFile>)> {
     let mut a = Analysis::new(
         path.to_path_buf(),
@@ -202,6 +212,7 @@ fn judged_in_memory(
     if layout.path {
         a.stages = staged.stages.clone();
     }
+    a.files = files;
     let mut text = layout.header_line().into_bytes();
     for p in staged.points {
         if plan.points.is_some() {
@@ -227,6 +238,20 @@ fn judged_in_memory(
         None => None,
     };
     Ok((a, file))
+}
+
+/// The measurement file's digest (taken as it streamed), then the curve's and the job's.
+fn input_digests(path: &Path, measurements: String, prep: &Prepared) -> Vec<FileDigest> {
+    let mut v = vec![FileDigest {
+        role: "measurements",
+        path: path.to_path_buf(),
+        sha256: measurements,
+    }];
+    v.extend(crate::digest::of_file("curve", &prep.curve_path).ok());
+    if let Some(j) = &prep.job_path {
+        v.extend(crate::digest::of_file("job", j).ok());
+    }
+    v
 }
 
 /// Several files: each judged into `DIR/<file stem>/`, one thread each, then `DIR/index.csv`

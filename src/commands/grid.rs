@@ -174,7 +174,11 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
         None => None,
     };
     emit(&a, &args.output, &plan, &inputs, &preface, points, true)?;
-    let tripped = args.judge.fail_on.is_some_and(|z| a.trips(z));
+    let tripped = args
+        .judge
+        .fail_on
+        .or(a.job.fail_on)
+        .is_some_and(|z| a.trips(z));
     Ok(if tripped {
         Outcome::Tripped
     } else {

@@ -464,6 +464,7 @@ fn plot_curve(curve: &LimitCurve, path: &Path, svg: bool) -> Result<()> {
     a.warnings.clear();
     let opts = FldOptions {
         measure: curve.measure,
+        curve_only: true,
         ..FldOptions::default()
     };
     let bytes = if svg {
@@ -891,9 +892,9 @@ fn parts_summary(c: &LimitCurve, path: Option<&Path>, fit: &PartsFit, data: &Par
 fn condition_style(c: Condition) -> (plot::Shape, RGBColor) {
     use plot::okabe_ito::*;
     match c {
-        Condition::Safe => (plot::Shape::Disc, GREEN),
+        Condition::Safe => (plot::Shape::Square, GREEN),
         Condition::Necked => (plot::Shape::Triangle, ORANGE),
-        Condition::Split => (plot::Shape::Cross, VERMILLION),
+        Condition::Split => (plot::Shape::Barred, VERMILLION),
     }
 }
 

@@ -71,6 +71,10 @@ pub fn resolve_settings(args: &JudgeArgs, job: &Job, unit: LengthUnit) -> Result
             .or(job.low_stretch)
             .unwrap_or(d.low_stretch_pct),
         max_thinning_pct: args.max_thinning.or(job.max_thinning),
+        thickening_pct: args
+            .thickening
+            .or(job.thickening)
+            .unwrap_or(d.thickening_pct),
         reading_error: args.reading_error.or(job_reading),
     };
     s.validate().map_err(Error::Usage)?;
@@ -114,6 +118,10 @@ pub struct Prepared {
     pub curve: LimitCurve,
     /// The column map.
     pub map: ColumnMap,
+    /// The curve file read.
+    pub curve_path: PathBuf,
+    /// The job file read, if any.
+    pub job_path: Option<PathBuf>,
 }
 
 impl Prepared {
@@ -122,7 +130,8 @@ impl Prepared {
         let job = load_job(lengths)?;
         let l = resolve_lengths(lengths, &job)?;
         let settings = resolve_settings(judge, &job, l.unit)?;
-        let curve = LimitCurve::load(&limit_path(judge, &job)?)?;
+        let curve_path = limit_path(judge, &job)?;
+        let curve = LimitCurve::load(&curve_path)?;
         let map = column_map(lengths, &job);
         Ok(Prepared {
             job,
@@ -130,6 +139,8 @@ impl Prepared {
             settings,
             curve,
             map,
+            curve_path,
+            job_path: lengths.job.clone(),
         })
     }
 }

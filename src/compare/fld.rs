@@ -10,7 +10,7 @@
 use super::csv_out::latest;
 use super::{count, Change, Comparison, Track};
 use crate::analysis::CAUTION;
-use crate::output::plot::{self, marker, okabe_ito, zone_colour, zone_shape, DrawResult, Placer};
+use crate::output::plot::{self, marker, palette, zone_colour, zone_shape, DrawResult, Placer};
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;
@@ -28,11 +28,12 @@ pub const PANEL_LEFT: i32 = 885;
 /// How many of the largest losses carry their id.
 pub const LABELLED: usize = 6;
 
-/// Colour of a change: blue improved, vermillion worsened, grey unchanged (Okabe-Ito set).
+/// Colour of a change: blue improved, purple worsened, grey unchanged (Tol's bright scheme;
+/// none of them a zone colour, so that a change never reads as a zone).
 pub fn change_colour(c: Option<Change>) -> RGBColor {
     match c {
-        Some(Change::Improved) => okabe_ito::BLUE,
-        Some(Change::Worsened) => okabe_ito::VERMILLION,
+        Some(Change::Improved) => palette::BLUE,
+        Some(Change::Worsened) => palette::PURPLE,
         _ => RGBColor(150, 150, 150),
     }
 }
@@ -277,8 +278,17 @@ fn draw_tracks<DB: DrawingBackend>(
                     BLACK,
                 )?;
             } else {
-                // Not measured in the last tryout: an open ring where it was last seen.
-                root.draw(&Circle::new(*now, 4, earlier.stroke_width(1)))?;
+                // Not measured in the last tryout: a grey plus (no zone's shape) where it was
+                // last seen.
+                let g = earlier.stroke_width(1);
+                root.draw(&PathElement::new(
+                    vec![(now.0 - 4, now.1), (now.0 + 4, now.1)],
+                    g,
+                ))?;
+                root.draw(&PathElement::new(
+                    vec![(now.0, now.1 - 4), (now.0, now.1 + 4)],
+                    g,
+                ))?;
             }
             placer
                 .obstacles

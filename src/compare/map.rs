@@ -9,7 +9,7 @@ use super::fld::{
     TITLE_H,
 };
 use super::{Comparison, Track};
-use crate::output::plot::{self, marker, zone_shape, DrawResult, Placer, Shape};
+use crate::output::plot::{self, marker, zone_shape, DrawResult, Placer};
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;
@@ -152,15 +152,19 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &Comparison) -> Dr
         let p = px(*xy);
         placer.obstacles.push((p.0 - 8, p.1 - 8, p.0 + 8, p.1 + 8));
         let Some(after) = t.after().filter(|_| t.before().is_some()) else {
-            root.draw(&Circle::new(p, 6, RGBColor(120, 120, 120).stroke_width(2)))?;
+            // Measured in one tryout only: a grey plus, a shape no zone uses.
+            let g = RGBColor(120, 120, 120).stroke_width(2);
+            root.draw(&PathElement::new(vec![(p.0 - 6, p.1), (p.0 + 6, p.1)], g))?;
+            root.draw(&PathElement::new(vec![(p.0, p.1 - 6), (p.0, p.1 + 6)], g))?;
             continue;
         };
-        let fill = t.margin_change().map_or(WITHIN, |d| scale.colour(d));
         let shape = zone_shape(after.zone);
-        if matches!(shape, Shape::Cross | Shape::Diamond) {
-            // Open shapes: a black halo keeps pale colours visible on white.
-            marker(root, shape, p, 9, BLACK, BLACK)?;
-        }
+        // Hollow shapes keep their neutral zone colour: one zone, one colour.
+        let fill = if shape.hollow() {
+            crate::output::plot::zone_colour(after.zone)
+        } else {
+            t.margin_change().map_or(WITHIN, |d| scale.colour(d))
+        };
         marker(root, shape, p, 7, fill, BLACK)?;
     }
     draw_labels(root, c, &px, &mut placer)?;
@@ -265,11 +269,9 @@ fn draw_scale<DB: DrawingBackend>(
     let note = format!("grey: within ±{} pp", c.tolerance);
     root.draw_text(&note, &plot::text(14.0), (x, y))?;
     y += 22;
-    root.draw(&Circle::new(
-        (x + 8, y + 8),
-        6,
-        RGBColor(120, 120, 120).stroke_width(2),
-    ))?;
+    let g = RGBColor(120, 120, 120).stroke_width(2);
+    root.draw(&PathElement::new(vec![(x + 2, y + 8), (x + 14, y + 8)], g))?;
+    root.draw(&PathElement::new(vec![(x + 8, y + 2), (x + 8, y + 14)], g))?;
     root.draw_text(
         "measured in one of the two only",
         &plot::text(14.0),
@@ -280,7 +282,13 @@ fn draw_scale<DB: DrawingBackend>(
     y += 26;
     let k = c.tryouts.len() - 1;
     for (zone, n) in c.zone_counts(k).into_iter().filter(|(_, n)| *n > 0) {
-        marker(root, zone_shape(zone), (x + 10, y + 8), 6, WITHIN, BLACK)?;
+        let shape = zone_shape(zone);
+        let fill = if shape.hollow() {
+            plot::zone_colour(zone)
+        } else {
+            WITHIN
+        };
+        marker(root, shape, (x + 10, y + 8), 6, fill, BLACK)?;
         root.draw_text(&format!("{zone} ({n})"), &plot::text(14.0), (x + 28, y))?;
         y += 22;
     }

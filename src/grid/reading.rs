@@ -311,7 +311,7 @@ mod tests {
     #[test]
     fn square_cell_on_a_flat_curve() {
         let flat = LimitCurve::parse(
-            "name = \"flat\"\nsource = \"test\"\npoints = [[-30, 30], [30, 30]]\n",
+            "name = \"flat\"\nsource = \"test\"\nstrain = \"engineering\"\npoints = [[-30, 30], [30, 30]]\n",
             std::path::Path::new("flat.toml"),
         )
         .unwrap();

@@ -1,8 +1,9 @@
 //! Forming-limit curves: loading from TOML, interpolation, and distances along strain paths.
 //!
 //! A curve file (`limits/*.toml`) carries `name`, `source` (required: where the curve comes from),
-//! optional `material` and `thickness_mm`, `strain = "engineering" | "true"` (default
-//! engineering), and either `points = [[minor, major], ...]` in percent with minor strictly
+//! optional `material` and `thickness_mm`, `strain = "engineering" | "true"` (required: lab
+//! curves after ISO 12004-2 are usually in true strain, press-shop ones in engineering, and
+//! reading one as the other moves the curve by several points), and either `points = [[minor, major], ...]` in percent with minor strictly
 //! increasing, or a `[keeler_brazier]` table that generates the empirical steel curve.
 //! Between points the curve is linear in the file's own strain measure.
 
@@ -49,8 +50,7 @@ struct CurveFile {
     source: String,
     material: Option<String>,
     thickness_mm: Option<f64>,
-    #[serde(default)]
-    strain: StrainMeasure,
+    strain: Option<StrainMeasure>,
     points: Option<Vec<Spanned<Vec<f64>>>>,
     keeler_brazier: Option<KeelerBrazier>,
 }
@@ -111,6 +111,13 @@ impl LimitCurve {
         let file: CurveFile =
             toml::from_str(text).map_err(|e| crate::error::toml_error(path, text, &e))?;
         let whole = |m: String| Error::input(Location::file(path), m);
+        let Some(strain) = file.strain else {
+            return Err(whole(
+                "`strain` is missing: give the strain measure of the points, one of \
+                 `strain = \"engineering\"` or `strain = \"true\"`"
+                    .into(),
+            ));
+        };
         if file.source.trim().is_empty() {
             return Err(whole(
                 "`source` is empty: say where the curve comes from".into(),
@@ -137,24 +144,24 @@ impl LimitCurve {
             (None, Some(kb)) => {
                 kb.validate()
                     .map_err(|m| whole(format!("[keeler_brazier]: {m}")))?;
-                if file.strain != StrainMeasure::Engineering {
+                if strain != StrainMeasure::Engineering {
                     return Err(whole(
                         "a [keeler_brazier] curve is defined in engineering strain: \
-                         remove `strain = \"true\"`"
+                         set `strain = \"engineering\"`"
                             .into(),
                     ));
                 }
                 let (_, _, w) = kb.clamped();
                 (kb.points_pct(), w)
             }
-            (Some(points), None) => (validate_points(&points, &at, file.strain)?, Vec::new()),
+            (Some(points), None) => (validate_points(&points, &at, strain)?, Vec::new()),
         };
         Ok(LimitCurve {
             name: file.name,
             source: file.source,
             material: file.material,
             thickness_mm: file.thickness_mm,
-            measure: file.strain,
+            measure: strain,
             points: pct.iter().map(|p| [p[0] / 100.0, p[1] / 100.0]).collect(),
             warnings,
             true_path: OnceLock::new(),
@@ -379,7 +386,7 @@ mod tests {
         LimitCurve::parse(text, Path::new("c.toml"))
     }
 
-    const TAB: &str = "name = \"t\"\nsource = \"test\"\npoints = [[-20, 50], [0, 30], [20, 40]]\n";
+    const TAB: &str = "name = \"t\"\nsource = \"test\"\nstrain = \"engineering\"\npoints = [[-20, 50], [0, 30], [20, 40]]\n";
 
     #[test]
     fn linear_interpolation_in_own_measure() {
@@ -391,11 +398,25 @@ mod tests {
 
     #[test]
     fn unsorted_points_name_the_line() {
-        let e = curve("name = \"t\"\nsource = \"s\"\npoints = [\n [0, 30],\n [-5, 40],\n]\n")
+        let e = curve("name = \"t\"\nsource = \"s\"\nstrain = \"engineering\"\npoints = [\n [0, 30],\n [-5, 40],\n]\n")
             .unwrap_err()
             .to_string();
         assert!(
-            e.starts_with("c.toml:5:") && e.contains("does not increase"),
+            e.starts_with("c.toml:6:") && e.contains("does not increase"),
+            "{e}"
+        );
+    }
+
+    // A curve without its strain measure is refused, and the message names the measures.
+    #[test]
+    fn missing_strain_is_refused_naming_the_measures() {
+        let e = curve("name = \"t\"\nsource = \"s\"\npoints = [[0, 30], [1, 31]]\n")
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("`strain` is missing")
+                && e.contains("\"engineering\"")
+                && e.contains("\"true\""),
             "{e}"
         );
     }
@@ -414,7 +435,7 @@ mod tests {
     // beyond −30 % and 10 %; 1e-6 beyond is outside.
     #[test]
     fn range_ends_hold_against_round_off() {
-        let c = curve("name = \"t\"\nsource = \"s\"\npoints = [[-30, 60], [0, 30], [10, 36]]\n")
+        let c = curve("name = \"t\"\nsource = \"s\"\nstrain = \"engineering\"\npoints = [[-30, 60], [0, 30], [10, 36]]\n")
             .unwrap();
         let (lo, hi) = (1.75 / 2.5 - 1.0, 2.75 / 2.5 - 1.0);
         assert!(lo < -0.3 && hi > 0.1, "the round-off this test is about");

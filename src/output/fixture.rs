@@ -15,6 +15,7 @@ pub const CURVE_TOML: &str = "name = \"test curve (invented)\"\n\
 source = \"tabulated for the tests, invented\"\n\
 material = \"test steel (invented)\"\n\
 thickness_mm = 0.8\n\
+strain = \"engineering\"\n\
 points = [[-40, 70], [-20, 48], [0, 33], [20, 45], [40, 52]]\n";
 
 /// `(id, engineering major %, engineering minor %, x, y)`.

@@ -25,6 +25,9 @@ pub struct FldOptions {
     pub measure: StrainMeasure,
     /// How many of the worst locations carry their id.
     pub labelled: usize,
+    /// Only the curve(s) and the reference lines: no locations, zone legend or safety band
+    /// (a curve drawn on its own, `limit --plot`).
+    pub curve_only: bool,
 }
 
 impl Default for FldOptions {
@@ -32,6 +35,29 @@ impl Default for FldOptions {
         FldOptions {
             measure: StrainMeasure::Engineering,
             labelled: 6,
+            curve_only: false,
+        }
+    }
+}
+
+/// The safety band's label in the measure plotted: the band is set in percentage points of
+/// engineering major strain, so on true-strain axes it is drawn converted and says so.
+pub fn band_label(a: &Analysis, m: StrainMeasure) -> String {
+    let b = super::fmt_setting(a.settings.margin_pct);
+    match m {
+        StrainMeasure::Engineering => format!("safety band −{b} pp"),
+        StrainMeasure::True => format!("safety band −{b} pp eng. (in true strain)"),
+    }
+}
+
+/// A margin in the measure plotted, percentage points: the engineering margin itself, or on
+/// true-strain axes `ln(1 + e1,limit) − ln(1 + e1)` (same sign: ln is increasing).
+pub fn margin_in(p: &PointResult, m: StrainMeasure) -> Option<f64> {
+    let lim = p.judgement.limit_major?;
+    match m {
+        StrainMeasure::Engineering => p.judgement.margin_pct,
+        StrainMeasure::True => {
+            Some(100.0 * ((1.0 + lim.value()).ln() - p.strain.true_strain.major.value()))
         }
     }
 }
@@ -228,7 +254,29 @@ fn draw<DB: DrawingBackend>(
             line_labels.push((name.to_string(), *end, grey));
         }
     }
-    let band = path_px(&band_line(a, m));
+    if let Some(max) = a.settings.max_thinning_pct.filter(|_| !opts.curve_only) {
+        let runs = path_px(&thinning_line(max, m));
+        for run in &runs {
+            for d in plot::dashes(run, 14.0, 3.0) {
+                root.draw(&PathElement::new(
+                    d,
+                    zone_colour(Zone::Failed).stroke_width(3),
+                ))?;
+            }
+        }
+        if let Some(end) = runs.last().and_then(|r| r.last()) {
+            line_labels.push((
+                format!("max thinning {} %", super::fmt_setting(max)),
+                *end,
+                BLACK,
+            ));
+        }
+    }
+    let band = if opts.curve_only {
+        Vec::new()
+    } else {
+        path_px(&band_line(a, m))
+    };
     for run in &band {
         for d in plot::dashes(run, 9.0, 6.0) {
             root.draw(&PathElement::new(d, BLACK.stroke_width(2)))?;
@@ -245,22 +293,20 @@ fn draw<DB: DrawingBackend>(
         plot_box.2 - 2,
         plot_box.3 - 2,
     ));
-    if draws_density(a, m) {
+    if draws_density(a, m) && !opts.curve_only {
         draw_density(root, a, &px, (xr.1 - xr.0).max(yr.1 - yr.0))?;
     }
-    draw_points(root, a, m, &px, &mut placer)?;
-    draw_paths(root, a, opts, &px)?;
-    draw_observed(root, a, m, &px)?;
-    draw_worst_labels(root, a, opts, &px, &mut placer)?;
+    if !opts.curve_only {
+        draw_points(root, a, m, &px, &mut placer)?;
+        draw_paths(root, a, opts, &px)?;
+        draw_observed(root, a, m, &px)?;
+        draw_worst_labels(root, a, opts, &px, &mut placer)?;
+    }
     if let Some(end) = curve.first().and_then(|r| r.iter().min_by_key(|p| p.1)) {
         line_labels.push(("limit curve".into(), *end, BLACK));
     }
     if let Some(end) = band.last().and_then(|r| r.last()) {
-        line_labels.push((
-            format!("safety band −{:.0} pp", a.settings.margin_pct),
-            *end,
-            BLACK,
-        ));
+        line_labels.push((band_label(a, m), *end, BLACK));
     }
     draw_line_labels(root, &line_labels, &mut placer)?;
     draw_title(root, a, m)?;
@@ -361,6 +407,9 @@ fn draw_points<DB: DrawingBackend>(
         for p in a.points().iter().filter(|p| p.zone() == *zone) {
             let c = px(point_xy(p, m));
             marker(root, zone_shape(*zone), c, 5, zone_colour(*zone), BLACK)?;
+            if p.judgement.borderline {
+                borderline_ring(root, c, 11)?;
+            }
             placer.obstacles.push((c.0 - 6, c.1 - 6, c.0 + 6, c.1 + 6));
         }
     }
@@ -408,30 +457,45 @@ fn draw_paths<DB: DrawingBackend>(
     Ok(())
 }
 
-/// Label text of a worst location: its id and vertical margin.
-pub fn worst_label(p: &PointResult) -> String {
-    if let Some(j) = p.path.as_ref().filter(|j| j.hidden()) {
-        // At risk along its path while the strain curve is content: say so.
-        return format!(
-            "{} (path {:.0} %)",
-            p.input.id,
-            j.use_pct.unwrap_or(f64::NAN)
-        );
+/// A dashed black ring of radius `r` round a borderline location's marker (its zone could
+/// change within the reading error).
+pub fn borderline_ring<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    c: (i32, i32),
+    r: i32,
+) -> DrawResult<DB> {
+    let pts: Vec<(i32, i32)> = (0..=48)
+        .map(|k| {
+            let t = k as f64 / 48.0 * std::f64::consts::TAU;
+            (
+                c.0 + (r as f64 * t.cos()).round() as i32,
+                c.1 + (r as f64 * t.sin()).round() as i32,
+            )
+        })
+        .collect();
+    for d in plot::dashes(&pts, 4.0, 3.0) {
+        root.draw(&PathElement::new(d, BLACK.stroke_width(1)))?;
     }
-    let below_curve = p.judgement.margin_pct.is_some_and(|m| m > 0.0);
-    if p.zone() == crate::assess::Zone::Failed && below_curve {
-        // Failed by thinning while below the curve: say why, not a margin that reads as safe.
-        return format!(
-            "{} (thinning {:.1} %)",
-            p.input.id,
-            p.strain.thinning * 100.0
-        );
-    }
-    match p.judgement.margin_pct {
-        // On the curve to the shown precision: no sign.
-        Some(mg) if mg.abs() < 0.05 => format!("{} (0.0)", p.input.id),
-        Some(mg) => format!("{} ({mg:+.1})", p.input.id),
-        None => p.input.id.clone(),
+    Ok(())
+}
+
+/// Label text of a worst location: its id and why it is in its zone; a margin is in the
+/// measure plotted and never printed across its zone's edges (see [`super::fmt_margin`]).
+pub fn worst_label(p: &PointResult, st: &crate::assess::Settings, m: StrainMeasure) -> String {
+    use crate::assess::Reason;
+    let id = &p.input.id;
+    match (p.judgement.reason, margin_in(p, m)) {
+        (Reason::Curve | Reason::Band | Reason::None, Some(mg)) => match m {
+            StrainMeasure::Engineering => {
+                format!("{id} ({} pp)", super::fmt_margin(mg, st.margin_pct))
+            }
+            // On true axes only the curve is an edge of the same value (0).
+            StrainMeasure::True => format!(
+                "{id} ({} pp true)",
+                super::fmt_against(mg, &[(0.0, true)], 1)
+            ),
+        },
+        _ => format!("{id}: {}", super::reason_text(p, st)),
     }
 }
 
@@ -445,7 +509,7 @@ fn draw_worst_labels<DB: DrawingBackend>(
     let style = plot::bold(15.0);
     for p in a.worst(opts.labelled) {
         let c = px(point_xy(p, opts.measure));
-        let text = worst_label(p);
+        let text = worst_label(p, &a.settings, opts.measure);
         let (w, h) = root.estimate_text_size(&text, &style)?;
         let (w, h) = (w as i32 + 6, h as i32 + 4);
         let at = placer.place(c, w, h);
@@ -538,6 +602,92 @@ fn draw_legend<DB: DrawingBackend>(
 ) -> DrawResult<DB> {
     let x = PANEL_LEFT;
     let mut y = TITLE_H + 16;
+    if !opts.curve_only {
+        y = draw_zone_legend(root, a, opts, y)?;
+    }
+    root.draw_text("Lines", &plot::bold(16.0), (x, y))?;
+    y += 26;
+    let sample = |y: i32| vec![(x, y + 8), (x + 40, y + 8)];
+    root.draw(&PathElement::new(sample(y), BLACK.stroke_width(3)))?;
+    root.draw_text("limit curve", &plot::text(14.0), (x + 50, y))?;
+    y += 22;
+    if !opts.curve_only {
+        for d in plot::dashes(&sample(y), 9.0, 6.0) {
+            root.draw(&PathElement::new(d, BLACK.stroke_width(2)))?;
+        }
+        root.draw_text(&band_label(a, opts.measure), &plot::text(14.0), (x + 50, y))?;
+        y += 22;
+        if let Some(max) = a.settings.max_thinning_pct {
+            for d in plot::dashes(&sample(y), 14.0, 3.0) {
+                root.draw(&PathElement::new(
+                    d,
+                    zone_colour(Zone::Failed).stroke_width(3),
+                ))?;
+            }
+            let t = format!("max thinning {} %", super::fmt_setting(max));
+            root.draw_text(&t, &plot::text(14.0), (x + 50, y))?;
+            y += 22;
+        }
+    }
+    for d in plot::dashes(&sample(y), 10.0, 4.0) {
+        root.draw(&PathElement::new(
+            d,
+            RGBColor(120, 120, 120).stroke_width(1),
+        ))?;
+    }
+    root.draw_text("strain paths", &plot::text(14.0), (x + 50, y))?;
+    y += 22;
+    for d in plot::dashes(&sample(y), 3.0, 4.0) {
+        root.draw(&PathElement::new(
+            d,
+            RGBColor(165, 165, 165).stroke_width(1),
+        ))?;
+    }
+    root.draw_text("thinning iso-lines", &plot::text(14.0), (x + 50, y))?;
+    if !a.summary.observed_failed.is_empty() && !opts.curve_only {
+        y += 22;
+        root.draw(&Circle::new((x + 20, y + 8), 8, BLACK.stroke_width(2)))?;
+        root.draw_text("observed necked or split", &plot::text(14.0), (x + 50, y))?;
+    }
+    y += 34;
+    if opts.curve_only {
+        return Ok(());
+    }
+    let worst = a.worst(opts.labelled.max(1));
+    if worst.is_empty() {
+        return Ok(());
+    }
+    root.draw_text(
+        "Worst: failed first, then margin",
+        &plot::bold(15.0),
+        (x, y),
+    )?;
+    y += 24;
+    for p in worst {
+        let text = worst_label(p, &a.settings, opts.measure);
+        let text = plot::fit_px(root, &text, &plot::text(13.0), SIZE.0 - x as u32 - 40);
+        marker(
+            root,
+            zone_shape(p.zone()),
+            (x + 6, y + 8),
+            5,
+            zone_colour(p.zone()),
+            BLACK,
+        )?;
+        root.draw_text(&text, &plot::text(13.0), (x + 18, y))?;
+        y += 20;
+    }
+    Ok(())
+}
+
+/// The zones with their markers and counts; returns the next free line.
+fn draw_zone_legend<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    opts: &FldOptions,
+    mut y: i32,
+) -> Result<i32, DrawingAreaErrorKind<DB::ErrorType>> {
+    let x = PANEL_LEFT;
     root.draw_text("Zones (locations)", &plot::bold(16.0), (x, y))?;
     y += 28;
     if draws_density(a, opts.measure) {
@@ -567,56 +717,15 @@ fn draw_legend<DB: DrawingBackend>(
         root.draw_text(&count, &plot::bold(15.0), (x + 200 - w as i32, y))?;
         y += 25;
     }
-    y += 12;
-    root.draw_text("Lines", &plot::bold(16.0), (x, y))?;
-    y += 26;
-    let sample = |y: i32| vec![(x, y + 8), (x + 40, y + 8)];
-    root.draw(&PathElement::new(sample(y), BLACK.stroke_width(3)))?;
-    root.draw_text("limit curve", &plot::text(14.0), (x + 50, y))?;
-    y += 22;
-    for d in plot::dashes(&sample(y), 9.0, 6.0) {
-        root.draw(&PathElement::new(d, BLACK.stroke_width(2)))?;
+    if a.borderline().1 > 0 {
+        borderline_ring(root, (x + 10, y + 8), 9)?;
+        root.draw_text("borderline", &plot::text(15.0), (x + 28, y))?;
+        let count = a.borderline().1.to_string();
+        let (w, _) = root.estimate_text_size(&count, &plot::bold(15.0))?;
+        root.draw_text(&count, &plot::bold(15.0), (x + 200 - w as i32, y))?;
+        y += 25;
     }
-    let band = format!("safety band, −{:.1} pp eng.", a.settings.margin_pct);
-    root.draw_text(&band, &plot::text(14.0), (x + 50, y))?;
-    y += 22;
-    for d in plot::dashes(&sample(y), 10.0, 4.0) {
-        root.draw(&PathElement::new(
-            d,
-            RGBColor(120, 120, 120).stroke_width(1),
-        ))?;
-    }
-    root.draw_text("strain paths", &plot::text(14.0), (x + 50, y))?;
-    y += 22;
-    for d in plot::dashes(&sample(y), 3.0, 4.0) {
-        root.draw(&PathElement::new(
-            d,
-            RGBColor(165, 165, 165).stroke_width(1),
-        ))?;
-    }
-    root.draw_text("thinning iso-lines", &plot::text(14.0), (x + 50, y))?;
-    if !a.summary.observed_failed.is_empty() {
-        y += 22;
-        root.draw(&Circle::new((x + 20, y + 8), 8, BLACK.stroke_width(2)))?;
-        root.draw_text("observed necked or split", &plot::text(14.0), (x + 50, y))?;
-    }
-    y += 34;
-    let worst = a.worst(opts.labelled.max(1));
-    if worst.is_empty() {
-        return Ok(());
-    }
-    root.draw_text("Worst locations (margin, pp)", &plot::bold(16.0), (x, y))?;
-    y += 26;
-    for p in worst {
-        let id = plot::fit_px(root, &p.input.id, &plot::text(14.0), 120);
-        root.draw_text(&id, &plot::text(14.0), (x, y))?;
-        let mg = super::fmt_opt(p.judgement.margin_pct, 1);
-        let (w, _) = root.estimate_text_size(&mg, &plot::bold(14.0))?;
-        root.draw_text(&mg, &plot::bold(14.0), (x + 175 - w as i32, y))?;
-        root.draw_text(p.zone().name(), &plot::text(13.0), (x + 190, y + 1))?;
-        y += 21;
-    }
-    Ok(())
+    Ok(y + 12)
 }
 
 /// The caution and a provenance line at the bottom of a picture.
@@ -649,21 +758,32 @@ mod tests {
     use crate::output::fixture;
     use crate::output::plot::hex;
 
-    /// Markers of each zone in an SVG diagram, in [`Zone::ALL`] order (the legend's one included).
+    /// Markers of each zone in an SVG diagram, in [`Zone::ALL`] order (legend markers
+    /// included), told apart by their element and fill or stroke: a greyscale reader sees the
+    /// same distinct shapes.
     fn marker_counts(svg: &str) -> Vec<usize> {
-        let count = |needle: &str| svg.matches(needle).count();
+        let count = |tag: &str, needle: &str| {
+            svg.split('<')
+                .filter(|e| e.starts_with(tag) && e.contains(needle))
+                .count()
+        };
         Zone::ALL
             .iter()
             .map(|z| {
                 let c = hex(zone_colour(*z)).to_uppercase();
                 match zone_shape(*z) {
-                    plot::Shape::Cross => count(&format!("stroke=\"{c}\" stroke-width=\"4\"")) / 2,
-                    plot::Shape::Diamond => count(&format!("stroke=\"{c}\" stroke-width=\"3\"")),
-                    plot::Shape::Square | plot::Shape::Disc => {
-                        count(&format!("fill=\"{c}\" stroke=\"none\""))
+                    plot::Shape::Barred => {
+                        count("circle", &format!("fill=\"{c}\" stroke=\"none\""))
                     }
-                    plot::Shape::Triangle | plot::Shape::TriangleDown => {
-                        count(&format!("fill=\"{c}\" points="))
+                    plot::Shape::Square => count("rect", &format!("fill=\"{c}\" stroke=\"none\"")),
+                    plot::Shape::Triangle | plot::Shape::Diamond => {
+                        count("polygon", &format!("fill=\"{c}\""))
+                    }
+                    plot::Shape::HollowTriangleDown => {
+                        count("polyline", &format!("stroke=\"{c}\" stroke-width=\"2\""))
+                    }
+                    plot::Shape::Ring => {
+                        count("circle", &format!("stroke=\"{c}\" stroke-width=\"2\""))
                     }
                 }
             })
@@ -684,8 +804,19 @@ mod tests {
             })
             .expect("curve polyline");
         assert_eq!(curve.matches(',').count(), n, "{curve}");
-        // Every point, by zone (+1 for the legend's sample marker).
-        let expected: Vec<usize> = a.counts().iter().map(|(_, n)| n + 1).collect();
+        // Every point, by zone, +1 for the zone legend's marker, + the worst list's markers.
+        let opts = FldOptions::default();
+        let expected: Vec<usize> = a
+            .counts()
+            .iter()
+            .map(|(z, n)| {
+                n + 1
+                    + a.worst(opts.labelled)
+                        .iter()
+                        .filter(|p| p.zone() == *z)
+                        .count()
+            })
+            .collect();
         assert_eq!(marker_counts(&svg), expected);
         for text in [
             "Forming-limit diagram: TP-1 test panel &lt;LH&gt; &amp; co (invented)",
@@ -693,6 +824,7 @@ mod tests {
             "test curve (invented)",
             "limit curve",
             "safety band −10 pp",
+            "max thinning 25 %",
             "uniaxial β = −½",
             "plane strain β = 0",
             "equibiaxial β = 1",
@@ -707,7 +839,7 @@ mod tests {
         }
         for p in a.worst(FldOptions::default().labelled) {
             assert!(
-                svg.contains(&worst_label(p)),
+                svg.contains(&worst_label(p, &a.settings, StrainMeasure::Engineering)),
                 "worst {} not labelled",
                 p.input.id
             );

@@ -6,7 +6,7 @@
 //! coloured by the worst value in it, with the worst locations marked.
 
 use super::fld::{draw_footer, title_lines, worst_label};
-use super::plot::{self, marker, zone_shape, DrawResult, Placer, SIZE};
+use super::plot::{self, marker, zone_colour, zone_shape, DrawResult, Placer, SIZE};
 use crate::analysis::{Analysis, PointResult};
 use crate::assess::Zone;
 use plotters::coord::Shift;
@@ -65,7 +65,9 @@ pub struct Ramp {
     pub hi: f64,
 }
 
-const RAMP: (Rgb, Rgb) = ((0xfe, 0xed, 0xde), (0x8c, 0x2d, 0x04));
+/// Light to dark blue (ColorBrewer "Blues", Brewer, colorbrewer2.org): one hue, and not a zone
+/// colour, so a thinning or major-strain map never reads as zones.
+const RAMP: (Rgb, Rgb) = ((0xde, 0xeb, 0xf7), (0x08, 0x30, 0x6b));
 
 impl Ramp {
     /// The colour of `v`.
@@ -130,7 +132,7 @@ impl Scale {
 
     fn colour(&self, v: Option<f64>) -> RGBColor {
         match (self, v) {
-            (_, None) => RGBColor(190, 190, 190),
+            (_, None) => plot::palette::GREY,
             (Scale::Margin(s), Some(v)) => s.colour(v),
             (Scale::Ramp(r), Some(v)) => r.colour(v),
         }
@@ -155,11 +157,11 @@ fn cell_value(c: &crate::summary::MapCell, value: MapValue) -> Option<f64> {
     }
 }
 
-/// The colour scale: margins from `lo` to `hi` percentage points. Continuous inside each zone,
-/// with a visible step at the zone boundaries 0 (on the curve: failed at or below) and `band`
-/// (edge of the safety band), so that a change of zone shows as a change of hue. Colours from the
-/// ColorBrewer RdYlBu scheme (Brewer, colorbrewer2.org, marked safe for colour-blind readers):
-/// dark red to red for failed, orange to yellow for marginal, light to dark blue beyond the band.
+/// The colour scale: margins from `lo` to `hi` percentage points. Below the band edge the
+/// zone colours themselves: the failed red at and below 0 (on the curve), the marginal yellow
+/// up to the band edge; beyond the edge a single-hue green ramp, light at the edge and dark far
+/// from it (the safe hue: further from the curve is darker). A change of zone shows as a change
+/// of hue.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct MarginScale {
     /// Low end, pp.
@@ -171,9 +173,8 @@ pub struct MarginScale {
 }
 
 type Rgb = (u8, u8, u8);
-const FAILED: (Rgb, Rgb) = ((0xa5, 0x00, 0x26), (0xd7, 0x30, 0x27));
-const MARGINAL: (Rgb, Rgb) = ((0xf4, 0x6d, 0x43), (0xfe, 0xe0, 0x90));
-const BEYOND: (Rgb, Rgb) = ((0xab, 0xd9, 0xe9), (0x31, 0x36, 0x95));
+/// Light to dark green, ending at the safe zone's green.
+const BEYOND: (Rgb, Rgb) = ((0xd4, 0xec, 0xd6), (0x22, 0x88, 0x33));
 
 impl MarginScale {
     /// A scale that holds every margin of `a`, at least `−band/2 ..= 3·band`.
@@ -194,19 +195,20 @@ impl MarginScale {
 
     /// The colour of a margin.
     pub fn colour(&self, m: f64) -> RGBColor {
-        let m = m.clamp(self.lo, self.hi);
-        let (from, to, (a, b)) = if m <= 0.0 {
-            (self.lo, 0.0, FAILED)
-        } else if m < self.band {
-            (0.0, self.band, MARGINAL)
-        } else {
-            (self.band, self.hi, BEYOND)
-        };
-        let t = if to > from {
-            (m - from) / (to - from)
+        use crate::assess::ROUND_OFF_PP;
+        if m <= ROUND_OFF_PP {
+            return zone_colour(Zone::Failed);
+        }
+        if m < self.band - ROUND_OFF_PP {
+            return zone_colour(Zone::Marginal);
+        }
+        let m = m.clamp(self.band, self.hi);
+        let t = if self.hi > self.band {
+            (m - self.band) / (self.hi - self.band)
         } else {
             1.0
         };
+        let (a, b) = BEYOND;
         let mix = |x: u8, y: u8| (x as f64 + t * (y as f64 - x as f64)).round() as u8;
         RGBColor(mix(a.0, b.0), mix(a.1, b.1), mix(a.2, b.2))
     }
@@ -359,13 +361,16 @@ fn draw_marker<DB: DrawingBackend>(
 ) -> DrawResult<DB> {
     // A location failed by thinning keeps a positive margin: it is coloured as failed all the
     // same (see `map_margin`), so that no failed location looks safe on the map.
-    let fill = scale.colour(value_of(p, value));
     let shape = zone_shape(p.zone());
+    // Hollow (neutral) shapes keep their zone colour: one zone, one colour.
+    let fill = if shape.hollow() {
+        zone_colour(p.zone())
+    } else {
+        scale.colour(value_of(p, value))
+    };
     marker(root, shape, c, 7, fill, BLACK)?;
-    if shape == plot::Shape::Cross || shape == plot::Shape::Diamond {
-        // Open shapes: a thin black halo keeps pale colours visible on white.
-        marker(root, shape, c, 9, BLACK, BLACK)?;
-        marker(root, shape, c, 7, fill, BLACK)?;
+    if p.judgement.borderline {
+        super::fld::borderline_ring(root, c, 13)?;
     }
     placer.obstacles.push((c.0 - 8, c.1 - 8, c.0 + 8, c.1 + 8));
     Ok(())
@@ -462,7 +467,7 @@ fn draw_worst<DB: DrawingBackend>(
         .take(LABELLED);
     for (p, xy) in shown {
         let c = px(xy);
-        let text = worst_label(p);
+        let text = worst_label(p, &a.settings, crate::strain::StrainMeasure::Engineering);
         let (w, h) = root.estimate_text_size(&text, &style)?;
         let (w, h) = (w as i32 + 6, h as i32 + 4);
         let at = placer.place(c, w, h);
@@ -584,13 +589,14 @@ fn draw_shapes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) 
     root.draw_text("Shape = zone (locations)", &plot::bold(16.0), (x, y))?;
     y += 26;
     for (zone, n) in a.counts() {
-        let shape = zone_shape(zone);
-        let fill = if zone == Zone::Uncovered {
-            RGBColor(190, 190, 190)
-        } else {
-            RGBColor(110, 110, 110)
-        };
-        marker(root, shape, (x + 10, y + 8), 6, fill, BLACK)?;
+        marker(
+            root,
+            zone_shape(zone),
+            (x + 10, y + 8),
+            6,
+            zone_colour(zone),
+            BLACK,
+        )?;
         root.draw_text(
             &format!("{}  {n}", zone.name()),
             &plot::text(14.0),
@@ -605,6 +611,11 @@ fn draw_shapes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) 
         (x, y),
     )?;
     y += 18;
+    if a.borderline().1 > 0 {
+        super::fld::borderline_ring(root, (x + 6, y + 7), 7)?;
+        root.draw_text("dashed ring: borderline", &plot::text(13.0), (x + 18, y))?;
+        y += 18;
+    }
     root.draw_text(
         if a.summary.complete {
             "dashed: hull of the measured locations"
@@ -636,10 +647,13 @@ mod tests {
             band: 10.0,
             hi: 40.0,
         };
-        assert_eq!(s.colour(0.0), RGBColor(0xd7, 0x30, 0x27)); // on the curve: failed
-        assert_eq!(s.colour(1e-9), RGBColor(0xf4, 0x6d, 0x43)); // just below: marginal
-        assert_eq!(s.colour(10.0), RGBColor(0xab, 0xd9, 0xe9)); // band edge: beyond the band
-        assert_eq!(s.colour(99.0), RGBColor(0x31, 0x36, 0x95));
+        // Below the band edge the zone colours themselves; beyond it a green ramp.
+        assert_eq!(s.colour(0.0), zone_colour(Zone::Failed)); // on the curve: failed
+        assert_eq!(s.colour(-8.0), zone_colour(Zone::Failed));
+        assert_eq!(s.colour(0.01), zone_colour(Zone::Marginal)); // just below: marginal
+        assert_eq!(s.colour(9.99), zone_colour(Zone::Marginal));
+        assert_eq!(s.colour(10.0), RGBColor(0xd4, 0xec, 0xd6)); // band edge: light green
+        assert_eq!(s.colour(99.0), zone_colour(Zone::Safe)); // far beyond: the safe green
     }
 
     #[test]
@@ -669,19 +683,22 @@ mod render_tests {
         let count = |needle: &str| svg.matches(needle).count();
         let n = |z: Zone| a.count(z);
         // Marker primitives at the map's size (r = 7) against the zone counts; the legend's
-        // markers are drawn at r = 6.
-        assert_eq!(count("r=\"7\" opacity=\"1\" fill=\"#"), n(Zone::Safe));
+        // markers are drawn at r = 6. Failed: a disc of r + 1 = 8 with a white bar.
+        assert_eq!(count("r=\"8\" opacity=\"1\" fill=\"#"), n(Zone::Failed));
         assert_eq!(
             count("width=\"12\" height=\"12\" opacity=\"1\" fill=\"#"),
-            n(Zone::Thickening)
+            n(Zone::Safe)
         );
         assert_eq!(
             count("<polygon"),
-            n(Zone::Marginal) + n(Zone::LowStretch) + 2,
-            "triangles up and down, legend included"
+            n(Zone::Marginal) + n(Zone::Uncovered) + 2,
+            "triangles and diamonds, legend included"
         );
-        // A failed cross is drawn fill, black halo, fill again: 3 × 2 strokes; legend 2.
-        assert_eq!(count("stroke-width=\"4\""), 6 * n(Zone::Failed) + 2);
+        // Hollow neutral shapes: rings (low-stretch) and triangles pointing down (thickening).
+        assert_eq!(
+            count("r=\"7\" opacity=\"1\" fill=\"none\" stroke=\"#444444\""),
+            n(Zone::LowStretch)
+        );
         for text in [
             "Part map: TP-1 test panel &lt;LH&gt; &amp; co (invented)",
             "x, mm",
@@ -695,7 +712,11 @@ mod render_tests {
         }
         for p in a.worst(LABELLED) {
             assert!(
-                svg.contains(&worst_label(p)),
+                svg.contains(&worst_label(
+                    p,
+                    &a.settings,
+                    crate::strain::StrainMeasure::Engineering
+                )),
                 "worst {} not labelled",
                 p.input.id
             );

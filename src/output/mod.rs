@@ -6,6 +6,7 @@
 pub mod fixture;
 pub mod fld;
 pub mod map;
+pub mod page;
 pub mod peps;
 pub mod plot;
 pub mod points_csv;
@@ -198,73 +199,86 @@ fn fixed(out: &mut [u8; 32], v: f64, decimals: usize) -> Option<&[u8]> {
     Some(&out[i..])
 }
 
-/// Findings beside the zone counts, as sentences for people (the terminal and the report show
-/// the same text): borderline locations when a reading error is set, the thickness cross-check.
-pub fn notes(a: &crate::analysis::Analysis) -> Vec<String> {
+/// A finding beside the zone counts: a sentence, and the ids it lists (shown indented under
+/// it in the terminal, as a list in the report).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Note {
+    /// The sentence.
+    pub text: String,
+    /// The ids listed under it (the first ones).
+    pub ids: Vec<String>,
+    /// Whether there are more than `ids`.
+    pub more: bool,
+}
+
+/// Ids listed under a note at most.
+pub const NOTE_IDS: usize = 24;
+
+/// Findings beside the zone counts, for people (the terminal and the report show the same
+/// text): borderline locations when a reading error is set, the thickness cross-checks.
+pub fn notes(a: &crate::analysis::Analysis) -> Vec<Note> {
     let mut out = Vec::new();
+    let count = crate::output::terminal::count_of;
     if let Some(dd) = a.settings.reading_error {
         let (ids, total) = a.borderline();
-        let shown: Vec<&str> = ids.iter().take(12).map(String::as_str).collect();
-        let more = if total > shown.len() { ", ..." } else { "" };
+        let shown: Vec<String> = ids.iter().take(NOTE_IDS).cloned().collect();
         let unit = if a.strain_input {
             "pp of strain".to_string()
         } else {
             a.lengths.unit.to_string()
         };
-        out.push(format!(
-            "Borderline (zone could change within a reading error of {dd} {unit}): {}{}{}{more}",
-            crate::output::terminal::count_of(total, "location"),
-            if shown.is_empty() { "" } else { ": " },
-            shown.join(", ")
-        ));
+        out.push(Note {
+            text: format!(
+                "Borderline (zone could change within a reading error of {dd} {unit}): {}{}",
+                count(total, "location"),
+                if shown.is_empty() { "" } else { ":" }
+            ),
+            more: total > shown.len(),
+            ids: shown,
+        });
     }
+    let plain = |text: String| Note {
+        text,
+        ids: Vec::new(),
+        more: false,
+    };
     if let Some(tc) = a.thickness_check() {
-        out.push(format!(
+        out.push(plain(format!(
             "Thickness cross-check: {} measured; largest difference {:+.1} % \
              (measured vs from strains) at {}",
-            crate::output::terminal::count_of(tc.measured, "location"),
+            count(tc.measured, "location"),
             tc.largest_diff,
             tc.id
-        ));
+        )));
     }
     let sm = &a.summary;
     if sm.paths > 0 {
-        let ids: Vec<&str> = sm
-            .hidden
-            .items
-            .iter()
-            .take(12)
-            .map(String::as_str)
-            .collect();
-        out.push(format!(
-            "Path criterion (polar effective plastic strain): {} judged along their stages \
-             ({}); hidden by the strain curve (safe or marginal on it, at risk along the \
-             path): {}{}{}{}",
-            crate::output::terminal::count_of(sm.paths, "location"),
-            a.stages.join(" → "),
-            crate::output::terminal::count_of(sm.hidden.total, "location"),
-            if ids.is_empty() { "" } else { ": " },
-            ids.join(", "),
-            if sm.hidden.total > ids.len() {
-                ", ..."
-            } else {
-                ""
-            }
-        ));
+        let ids: Vec<String> = sm.hidden.items.iter().take(NOTE_IDS).cloned().collect();
+        out.push(Note {
+            text: format!(
+                "Path criterion (polar effective plastic strain): {} judged along their stages \
+                 ({}); hidden by the strain curve (safe or marginal on it, at risk along the \
+                 path): {}{}",
+                count(sm.paths, "location"),
+                a.stages.join(" → "),
+                count(sm.hidden.total, "location"),
+                if ids.is_empty() { "" } else { ":" }
+            ),
+            more: sm.hidden.total > ids.len(),
+            ids,
+        });
         if sm.turned.total > 0 {
-            out.push(format!(
-                "Major axis turned by more than {} degrees between stages at {} (the path \
-                 criterion assumes fixed axes): {}",
-                crate::path::TURN_LIMIT_DEG,
-                crate::output::terminal::count_of(sm.turned.total, "location"),
-                sm.turned
-                    .items
-                    .iter()
-                    .take(12)
-                    .cloned()
-                    .collect::<Vec<_>>()
-                    .join(", ")
-            ));
+            let ids: Vec<String> = sm.turned.items.iter().take(NOTE_IDS).cloned().collect();
+            out.push(Note {
+                text: format!(
+                    "Major axis turned by more than {} degrees between stages at {} (the path \
+                     criterion assumes fixed axes):",
+                    crate::path::TURN_LIMIT_DEG,
+                    count(sm.turned.total, "location"),
+                ),
+                more: sm.turned.total > ids.len(),
+                ids,
+            });
         }
     }
     let ob = &a.summary.observed;
@@ -275,37 +289,34 @@ pub fn notes(a: &crate::analysis::Analysis) -> Vec<String> {
                 .filter(|z| ob.count(c, **z) > 0)
                 .map(|z| format!("{} {}", ob.count(c, *z), z.name()))
                 .collect();
-            format!(
-                "{}: {}",
-                c.name(),
-                if cells.is_empty() {
-                    "-".into()
-                } else {
-                    cells.join(", ")
-                }
-            )
+            let cells = if cells.is_empty() {
+                "-".to_string()
+            } else {
+                cells.join(", ")
+            };
+            format!("{}: {cells}", c.name())
         };
         let rows: Vec<String> = crate::observed::Condition::ALL
             .iter()
             .map(|c| row(*c))
             .collect();
-        out.push(format!(
+        out.push(plain(format!(
             "Observed on the part against judged ({} marked): {}; the curve is conservative at \
              {} (observed safe, judged failed) and not conservative at {}",
-            crate::output::terminal::count_of(ob.observed(), "location"),
+            count(ob.observed(), "location"),
             rows.join("; "),
-            crate::output::terminal::count_of(ob.conservative, "location"),
-            crate::output::terminal::count_of(ob.non_conservative_total, "location"),
-        ));
+            count(ob.conservative, "location"),
+            count(ob.non_conservative_total, "location"),
+        )));
     }
     if let Some(tc) = &a.summary.thinning {
-        out.push(format!(
+        out.push(plain(format!(
             "Thinning cross-check: {} measured; largest difference {:+.1} pp \
              (measured vs from strains) at {}",
-            crate::output::terminal::count_of(tc.measured, "location"),
+            count(tc.measured, "location"),
             tc.largest_diff,
             tc.id
-        ));
+        )));
     }
     out
 }
@@ -335,6 +346,143 @@ pub fn curve_warning(a: &crate::analysis::Analysis) -> Option<String> {
     })
 }
 
+/// A zone edge: its value, and whether a value on it belongs below (`margin ≤ 0` is failed)
+/// or above (`margin ≥ band` is beyond the band).
+pub type Edge = (f64, bool);
+
+/// Which side of `edge` a value is on, round-off ([`crate::assess::ROUND_OFF_PP`]) counted
+/// as on the edge, as the zone rules count it.
+fn below(v: f64, (e, on_is_below): Edge) -> bool {
+    if on_is_below {
+        v <= e + crate::assess::ROUND_OFF_PP
+    } else {
+        v < e - crate::assess::ROUND_OFF_PP
+    }
+}
+
+/// `v` printed with at least `decimals` decimals and never on the wrong side of any of
+/// `edges`: more decimals near an edge (up to 4), and at 4 decimals rounded away from the
+/// edge when plain rounding would land across it. "-0.0" is printed "0.0".
+pub fn fmt_against(v: f64, edges: &[Edge], decimals: usize) -> String {
+    let keeps = |t: &str| {
+        t.parse::<f64>()
+            .is_ok_and(|p| edges.iter().all(|e| below(p, *e) == below(v, *e)))
+    };
+    let clean = |t: String| {
+        if t.starts_with('-') && t[1..].chars().all(|c| c == '0' || c == '.') {
+            t[1..].to_string()
+        } else {
+            t
+        }
+    };
+    for d in decimals..=4 {
+        let t = clean(format!("{v:.d$}"));
+        if keeps(&t) {
+            return t;
+        }
+    }
+    // Within 0.00005 of an edge: the last digit moves away from the edge, to v's side.
+    let near = edges
+        .iter()
+        .map(|e| e.0)
+        .min_by(|a, b| (v - a).abs().total_cmp(&(v - b).abs()))
+        .unwrap_or(0.0);
+    let scaled = v * 1e4;
+    let r = if v > near {
+        scaled.ceil()
+    } else {
+        scaled.floor()
+    };
+    clean(format!("{:.4}", r / 1e4))
+}
+
+/// A margin, pp, that never reads across 0 (the curve) or the band edge: 1 decimal unless
+/// that would put it on the wrong side.
+pub fn fmt_margin(m: f64, band: f64) -> String {
+    fmt_against(m, &[(0.0, true), (band, false)], 1)
+}
+
+/// [`fmt_margin`] of an optional margin, empty when absent.
+pub fn fmt_margin_opt(m: Option<f64>, band: f64) -> String {
+    m.map_or_else(String::new, |m| fmt_margin(m, band))
+}
+
+/// A setting without trailing zeros: 25 -> "25", 12.5 -> "12.5".
+pub fn fmt_setting(v: f64) -> String {
+    let t = format!("{v:.3}");
+    t.trim_end_matches('0').trim_end_matches('.').to_string()
+}
+
+/// A length to the resolution of its unit (4 decimals of a millimetre, 0.1 µm; 5 of an inch,
+/// 0.01 thou: the same resolution as points.csv), trailing zeros dropped.
+pub fn fmt_length(v: f64, unit: crate::units::LengthUnit) -> String {
+    let d = match unit {
+        crate::units::LengthUnit::Mm => 4,
+        crate::units::LengthUnit::In => 5,
+    };
+    let t = format!("{v:.d$}");
+    t.trim_end_matches('0').trim_end_matches('.').to_string()
+}
+
+/// Why a location is in its zone, in words with the numbers that decided it:
+/// "thinning 27.7 % (max 25)", "margin 4.2 pp < band 10", "thicker 3.3 % (from 2)".
+pub fn reason_text(p: &crate::analysis::PointResult, st: &crate::assess::Settings) -> String {
+    use crate::assess::Reason;
+    let j = &p.judgement;
+    let band = st.margin_pct;
+    let margin = || fmt_margin_opt(j.margin_pct, band);
+    match j.reason {
+        Reason::Curve => format!("margin {} pp, over curve", margin()),
+        Reason::Thinning => {
+            let max = st.max_thinning_pct.unwrap_or(0.0);
+            format!(
+                "thinning {} % (max {})",
+                fmt_against(p.strain.thinning * 100.0, &[(max, false)], 1),
+                fmt_setting(max)
+            )
+        }
+        Reason::Band => format!("margin {} pp < band {}", margin(), fmt_setting(band)),
+        Reason::Thickening => format!(
+            "thicker {} % (from {})",
+            fmt_against(
+                crate::assess::thickening_pct(&p.strain),
+                &[(st.thickening_pct, false)],
+                1
+            ),
+            fmt_setting(st.thickening_pct)
+        ),
+        Reason::LowStretch => format!(
+            "major {} % (below {})",
+            fmt_against(
+                p.strain.eng.major.percent(),
+                &[(st.low_stretch_pct, false)],
+                1
+            ),
+            fmt_setting(st.low_stretch_pct)
+        ),
+        Reason::NoCurve => format!(
+            "minor {} % off the curve",
+            fmt_against(p.strain.eng.minor.percent(), &[], 1)
+        ),
+        Reason::Path => match &p.path {
+            Some(pj) if pj.use_pct.is_none() => format!(
+                "no path limit in the direction of its last stage ({}: margin {} pp on the curve)",
+                pj.strain_zone,
+                margin()
+            ),
+            Some(pj) => format!(
+                "path {} % of its limit, {} ({}: margin {} pp on the curve)",
+                fmt_against(pj.use_pct.unwrap_or(f64::NAN), &[(100.0, false)], 1),
+                pj.zone,
+                pj.strain_zone,
+                margin()
+            ),
+            None => "along its path".into(),
+        },
+        Reason::None => format!("margin {} pp", margin()),
+    }
+}
+
 /// Format an optional number with `decimals`, empty when absent.
 pub fn fmt_opt(v: Option<f64>, decimals: usize) -> String {
     v.map_or_else(String::new, |v| format!("{v:.decimals$}"))
@@ -342,7 +490,38 @@ pub fn fmt_opt(v: Option<f64>, decimals: usize) -> String {
 
 #[cfg(test)]
 mod tests {
-    use super::push_fixed;
+    use super::{fmt_against, fmt_margin, push_fixed};
+
+    // Printed margins never read across the zone edges (0 = the curve, 10 = the band edge):
+    // at 0 ± 0.04 and 10 ± 0.04, and closer still; the zone rules are those of assess.rs.
+    #[test]
+    fn margins_never_contradict_their_zone() {
+        let side = |v: f64| {
+            if v <= 0.0 {
+                0
+            } else if v < 10.0 {
+                1
+            } else {
+                2
+            }
+        };
+        for m in [
+            0.04, -0.04, 9.96, 10.04, 0.004, -0.004, 9.996, 10.0004, 0.00004, 9.99996, 0.05, 9.95,
+            10.0, 0.0, 3.25, -12.5,
+        ] {
+            let t = fmt_margin(m, 10.0);
+            let shown: f64 = t.parse().unwrap();
+            assert_eq!(side(shown), side(m), "{m} printed {t}");
+        }
+        assert_eq!(fmt_margin(0.04, 10.0), "0.04");
+        assert_eq!(fmt_margin(9.96, 10.0), "9.96");
+        assert_eq!(fmt_margin(10.04, 10.0), "10.0");
+        assert_eq!(fmt_margin(-0.04, 10.0), "0.0"); // failed: on the curve at this precision
+        assert_eq!(fmt_margin(0.00004, 10.0), "0.0001");
+        assert_eq!(fmt_margin(9.99996, 10.0), "9.9999");
+        assert_eq!(fmt_margin(3.25, 10.0), "3.2"); // round half to even, away from edges
+        assert_eq!(fmt_against(24.96, &[(25.0, false)], 1), "24.96");
+    }
 
     #[test]
     proptest::proptest! {

@@ -39,8 +39,30 @@ pub fn bold(size: f64) -> TextStyle<'static> {
     TextStyle::from((FONT, size, FontStyle::Bold).into_font()).color(&BLACK)
 }
 
-/// Colours of the Okabe-Ito set, chosen to stay apart for the common colour-vision deficiencies
-/// (Okabe & Ito 2008, "Color Universal Design", J*Fly).
+/// neckline's zone colours: Paul Tol's "bright" scheme (Tol 2021, "Colour Schemes",
+/// SRON/EPS/TN/09-002), made to stay apart for colour-blind readers. The three zone colours
+/// carry the meanings of the ISO 3864-1 safety colours: red danger, yellow warning, green
+/// safe condition; the neutral zones are grey. Shape, not colour, is the first cue.
+pub mod palette {
+    use plotters::style::RGBColor;
+    /// Red: danger (failed).
+    pub const RED: RGBColor = RGBColor(0xEE, 0x66, 0x77);
+    /// Yellow: warning (marginal).
+    pub const YELLOW: RGBColor = RGBColor(0xCC, 0xBB, 0x44);
+    /// Green: safe condition (safe).
+    pub const GREEN: RGBColor = RGBColor(0x22, 0x88, 0x33);
+    /// Grey: no verdict (uncovered).
+    pub const GREY: RGBColor = RGBColor(0xBB, 0xBB, 0xBB);
+    /// Dark grey: the neutral hollow markers (thickening, low-stretch).
+    pub const NEUTRAL: RGBColor = RGBColor(0x44, 0x44, 0x44);
+    /// Blue: not a zone (margin improved, in comparisons).
+    pub const BLUE: RGBColor = RGBColor(0x44, 0x77, 0xAA);
+    /// Purple: not a zone (margin worsened, in comparisons).
+    pub const PURPLE: RGBColor = RGBColor(0xAA, 0x33, 0x77);
+}
+
+/// Colours of the Okabe-Ito set (Okabe & Ito 2008, "Color Universal Design", J*Fly), for
+/// pictures of things that are not zones (observed conditions of a press-shop curve).
 pub mod okabe_ito {
     use plotters::style::RGBColor;
     /// Vermillion.
@@ -49,23 +71,18 @@ pub mod okabe_ito {
     pub const ORANGE: RGBColor = RGBColor(0xE6, 0x9F, 0x00);
     /// Reddish purple.
     pub const PURPLE: RGBColor = RGBColor(0xCC, 0x79, 0xA7);
-    /// Blue.
-    pub const BLUE: RGBColor = RGBColor(0x00, 0x72, 0xB2);
-    /// Sky blue.
-    pub const SKY: RGBColor = RGBColor(0x56, 0xB4, 0xE9);
     /// Bluish green.
     pub const GREEN: RGBColor = RGBColor(0x00, 0x9E, 0x73);
 }
 
-/// The colour of a zone on the diagram and in the report.
+/// The colour of a zone, the same on every picture and page.
 pub fn zone_colour(z: Zone) -> RGBColor {
-    use okabe_ito::*;
+    use palette::*;
     match z {
-        Zone::Failed => VERMILLION,
-        Zone::Marginal => ORANGE,
-        Zone::Uncovered => PURPLE,
-        Zone::Thickening => BLUE,
-        Zone::LowStretch => SKY,
+        Zone::Failed => RED,
+        Zone::Marginal => YELLOW,
+        Zone::Uncovered => GREY,
+        Zone::Thickening | Zone::LowStretch => NEUTRAL,
         Zone::Safe => GREEN,
     }
 }
@@ -75,32 +92,41 @@ pub fn hex(c: RGBColor) -> String {
     format!("#{:02x}{:02x}{:02x}", c.0, c.1, c.2)
 }
 
-/// Marker shape of each zone, so that zones differ without colour too.
+/// Marker shape of each zone: the first cue, so that zones differ in greyscale and for
+/// colour-blind readers. The filled shapes follow the ISO 3864-1 sign shapes of their
+/// meaning; the neutral zones are hollow.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Shape {
-    /// A bold X.
-    Cross,
-    /// A triangle, point up.
+    /// A filled disc crossed by a white bar (prohibition sign): failed.
+    Barred,
+    /// A filled triangle, point up (warning sign): marginal.
     Triangle,
-    /// A diamond.
+    /// A filled diamond: uncovered.
     Diamond,
-    /// A square.
+    /// A hollow triangle, point down: thickening.
+    HollowTriangleDown,
+    /// A hollow circle: low-stretch.
+    Ring,
+    /// A filled square (safe-condition sign): safe.
     Square,
-    /// A triangle, point down.
-    TriangleDown,
-    /// A disc.
-    Disc,
+}
+
+impl Shape {
+    /// Whether the shape is drawn as an outline only (in the neutral colour).
+    pub fn hollow(self) -> bool {
+        matches!(self, Shape::HollowTriangleDown | Shape::Ring)
+    }
 }
 
 /// The shape of a zone's marker.
 pub fn zone_shape(z: Zone) -> Shape {
     match z {
-        Zone::Failed => Shape::Cross,
+        Zone::Failed => Shape::Barred,
         Zone::Marginal => Shape::Triangle,
         Zone::Uncovered => Shape::Diamond,
-        Zone::Thickening => Shape::Square,
-        Zone::LowStretch => Shape::TriangleDown,
-        Zone::Safe => Shape::Disc,
+        Zone::Thickening => Shape::HollowTriangleDown,
+        Zone::LowStretch => Shape::Ring,
+        Zone::Safe => Shape::Square,
     }
 }
 
@@ -108,7 +134,7 @@ pub fn zone_shape(z: Zone) -> Shape {
 pub type DrawResult<DB> = Result<(), DrawingAreaErrorKind<<DB as DrawingBackend>::ErrorType>>;
 
 /// Draw a marker of `shape` centred at pixel `c` with half-size `r`: filled with `fill` and
-/// outlined in `edge` (for the open shapes the outline takes the fill colour).
+/// outlined in `edge`; a hollow shape is an outline in `fill`.
 pub fn marker<DB: DrawingBackend>(
     area: &DrawingArea<DB, Shift>,
     shape: Shape,
@@ -120,13 +146,17 @@ pub fn marker<DB: DrawingBackend>(
     let (x, y) = c;
     let outline = edge.stroke_width(1);
     match shape {
-        Shape::Cross => {
-            let s = fill.stroke_width(4);
-            area.draw(&PathElement::new(vec![(x - r, y - r), (x + r, y + r)], s))?;
-            area.draw(&PathElement::new(vec![(x - r, y + r), (x + r, y - r)], s))
+        Shape::Barred => {
+            area.draw(&Circle::new((x, y), r + 1, fill.filled()))?;
+            area.draw(&Circle::new((x, y), r + 1, outline))?;
+            let k = (r as f64 * 0.7).round() as i32;
+            area.draw(&PathElement::new(
+                vec![(x - k, y - k), (x + k, y + k)],
+                WHITE.stroke_width(2),
+            ))
         }
         Shape::Triangle => {
-            let pts = vec![(x, y - r - 1), (x + r + 1, y + r), (x - r - 1, y + r)];
+            let pts = vec![(x, y - r - 2), (x + r + 2, y + r), (x - r - 2, y + r)];
             area.draw(&Polygon::new(pts.clone(), fill.filled()))?;
             area.draw(&PathElement::new(closed(pts), outline))
         }
@@ -137,28 +167,20 @@ pub fn marker<DB: DrawingBackend>(
                 (x, y + r + 1),
                 (x - r - 1, y),
             ];
-            area.draw(&PathElement::new(closed(pts), fill.stroke_width(3)))
-        }
-        Shape::Square => {
-            let rr = r - 1;
-            area.draw(&Rectangle::new(
-                [(x - rr, y - rr), (x + rr, y + rr)],
-                fill.filled(),
-            ))?;
-            area.draw(&Rectangle::new(
-                [(x - rr, y - rr), (x + rr, y + rr)],
-                outline,
-            ))
-        }
-        Shape::TriangleDown => {
-            let pts = vec![(x, y + r + 1), (x + r + 1, y - r), (x - r - 1, y - r)];
             area.draw(&Polygon::new(pts.clone(), fill.filled()))?;
             area.draw(&PathElement::new(closed(pts), outline))
         }
-        Shape::Disc => {
-            area.draw(&Circle::new((x, y), r, fill.filled()))?;
-            area.draw(&Circle::new((x, y), r, outline))
+        Shape::Square => {
+            let rr = r - 1;
+            let corners = [(x - rr, y - rr), (x + rr, y + rr)];
+            area.draw(&Rectangle::new(corners, fill.filled()))?;
+            area.draw(&Rectangle::new(corners, outline))
         }
+        Shape::HollowTriangleDown => {
+            let pts = vec![(x, y + r + 1), (x + r + 1, y - r), (x - r - 1, y - r)];
+            area.draw(&PathElement::new(closed(pts), fill.stroke_width(2)))
+        }
+        Shape::Ring => area.draw(&Circle::new((x, y), r, fill.stroke_width(2))),
     }
 }
 
@@ -521,6 +543,61 @@ pub fn fit_px<DB: DrawingBackend>(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Each zone's marker alone, 24 × 24 px, as greyscale (ITU-R BT.601 luma,
+    /// Y = 0.299 R + 0.587 G + 0.114 B).
+    fn grey_marker(z: Zone) -> Vec<u8> {
+        let png = render_png((24, 24), |root| {
+            root.fill(&WHITE)?;
+            marker(root, zone_shape(z), (12, 12), 6, zone_colour(z), BLACK)
+        })
+        .unwrap();
+        let img = image::load_from_memory(&png).unwrap().to_rgb8();
+        img.pixels()
+            .map(|p| {
+                let [r, g, b] = p.0;
+                (0.299 * f64::from(r) + 0.587 * f64::from(g) + 0.114 * f64::from(b)).round() as u8
+            })
+            .collect()
+    }
+
+    // Shape first: in greyscale (a black-and-white print), every zone's marker differs from
+    // every other's in at least 20 pixels by more than a quarter of the grey range.
+    #[test]
+    fn zones_stay_apart_in_greyscale() {
+        let greys: Vec<Vec<u8>> = Zone::ALL.iter().map(|z| grey_marker(*z)).collect();
+        for i in 0..greys.len() {
+            for j in i + 1..greys.len() {
+                let differ = greys[i]
+                    .iter()
+                    .zip(&greys[j])
+                    .filter(|(a, b)| a.abs_diff(**b) > 64)
+                    .count();
+                assert!(
+                    differ >= 20,
+                    "{} and {} differ in {differ} pixels only",
+                    Zone::ALL[i],
+                    Zone::ALL[j]
+                );
+            }
+        }
+    }
+
+    // One zone, one colour, shared by all; the neutral zones are hollow.
+    #[test]
+    fn neutral_zones_are_hollow_and_grey() {
+        for z in [Zone::Thickening, Zone::LowStretch] {
+            assert!(zone_shape(z).hollow());
+            assert_eq!(zone_colour(z), palette::NEUTRAL);
+        }
+        assert_eq!(zone_colour(Zone::Uncovered), palette::GREY);
+        let mut shapes: Vec<String> = Zone::ALL
+            .iter()
+            .map(|z| format!("{:?}", zone_shape(*z)))
+            .collect();
+        shapes.dedup();
+        assert_eq!(shapes.len(), 6);
+    }
 
     #[test]
     fn clip_keeps_inside_part() {

@@ -30,8 +30,15 @@ pub const STRAIN_COLUMNS: [&str; 14] = [
 ];
 
 /// The judgement columns that follow the strain columns.
-pub const JUDGEMENT_COLUMNS: [&str; 4] =
-    ["limit_major_eng_pct", "margin_pct", "limit_use_pct", "zone"];
+/// `reason` says which rule put the location in its zone: `curve`, `thinning`, `band`,
+/// `thickening`, `low-stretch`, `no-curve` or `none` (see [`crate::assess`]).
+pub const JUDGEMENT_COLUMNS: [&str; 5] = [
+    "limit_major_eng_pct",
+    "margin_pct",
+    "limit_use_pct",
+    "zone",
+    "reason",
+];
 
 /// Input columns carried at the end.
 pub const CARRIED_COLUMNS: [&str; 7] = [
@@ -182,6 +189,7 @@ impl Layout {
         f.num(j.margin_pct, 3);
         f.num(j.limit_use_pct, 2);
         f.text(j.zone.name());
+        f.text(j.reason.name());
         f.num(p.d0, 4);
         f.num(m.x, 3);
         f.num(m.y, 3);

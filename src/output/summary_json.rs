@@ -1,5 +1,7 @@
-//! `summary.json`: counts, per-zone ids, the worst locations, verdict, curve, settings, rejected
-//! rows, caution.
+//! `summary.json`: counts, per-zone ids (capped, with the total), the worst locations, verdict,
+//! curve (with its points in its own measure), settings, rejected rows, the SHA-256 of every
+//! input file, the neckline version, the run time (UTC, ISO 8601) and the caution: a filed
+//! summary proves what it judged.
 
 use crate::analysis::{Analysis, CAUTION};
 use crate::summary::Capped;
@@ -28,6 +30,7 @@ pub fn summary(a: &Analysis) -> Value {
     let point = |p: &crate::analysis::PointResult| {
         json!({ "id": p.input.id, "margin_pct": p.judgement.margin_pct,
                 "limit_use_pct": p.judgement.limit_use_pct, "zone": p.zone().name(),
+                "reason": p.judgement.reason.name(),
                 "major_eng_pct": p.strain.eng.major.percent(),
                 "minor_eng_pct": p.strain.eng.minor.percent(),
                 "thinning_pct": p.strain.thinning * 100.0 })
@@ -44,8 +47,23 @@ pub fn summary(a: &Analysis) -> Value {
         })
         .collect();
     let (b_ids, b_total) = a.borderline();
+    let files: Vec<Value> = a
+        .files
+        .iter()
+        .map(
+            |f| json!({ "role": f.role, "path": f.path.display().to_string(), "sha256": f.sha256 }),
+        )
+        .collect();
+    let curve_points: Vec<[f64; 2]> = a
+        .curve
+        .points
+        .iter()
+        .map(|p| [p[0] * 100.0, p[1] * 100.0])
+        .collect();
     json!({
         "tool": { "name": "neckline", "version": env!("CARGO_PKG_VERSION") },
+        "run_time_utc": utc_now(),
+        "files": files,
         "input": a.input.display().to_string(),
         "input_kind": if a.strain_input { "strains" } else { "axes" },
         "job": a.job,
@@ -58,7 +76,8 @@ pub fn summary(a: &Analysis) -> Value {
         "worst_list": worst_list,
         "verdict": a.verdict().name(),
         "limit": { "name": a.curve.name, "source": a.curve.source,
-                   "material": a.curve.material, "strain": a.curve.measure.name() },
+                   "material": a.curve.material, "strain": a.curve.measure.name(),
+                   "points_pct": curve_points },
         "settings": a.settings,
         "lengths": { "unit": a.lengths.unit.name(), "d0": a.lengths.d0, "t0": a.lengths.t0 },
         "borderline": a.settings.reading_error.map(|dd| json!({
@@ -108,8 +127,68 @@ pub fn summary(a: &Analysis) -> Value {
     })
 }
 
+/// Now, UTC, as ISO 8601 (`2026-11-30T14:05:09Z`).
+pub fn utc_now() -> String {
+    let secs = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map_or(0, |d| d.as_secs());
+    iso8601(secs)
+}
+
+/// Seconds since 1970-01-01T00:00:00Z as ISO 8601 UTC. Days to a civil date by H. Hinnant's
+/// `civil_from_days` ("chrono-Compatible Low-Level Date Algorithms", proleptic Gregorian).
+pub fn iso8601(secs: u64) -> String {
+    let days = (secs / 86_400) as i64;
+    let rem = secs % 86_400;
+    let z = days + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z - era * 146_097;
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let d = doy - (153 * mp + 2) / 5 + 1;
+    let m = if mp < 10 { mp + 3 } else { mp - 9 };
+    let y = yoe + era * 400 + i64::from(m <= 2);
+    format!(
+        "{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}Z",
+        rem / 3600,
+        rem % 3600 / 60,
+        rem % 60
+    )
+}
+
 /// Write the summary, pretty-printed.
 pub fn write_summary(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
     serde_json::to_writer_pretty(&mut *out, &summary(a))?;
     writeln!(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Reference instants: the Unix epoch; 2000-02-29 (a leap day of a century year divisible by
+    // 400) = 951 782 400 s; 2038-01-19T03:14:08Z = 2^31 s (the 32-bit time_t rollover).
+    #[test]
+    fn iso8601_of_known_instants() {
+        assert_eq!(iso8601(0), "1970-01-01T00:00:00Z");
+        assert_eq!(iso8601(951_782_400), "2000-02-29T00:00:00Z");
+        assert_eq!(iso8601(1 << 31), "2038-01-19T03:14:08Z");
+        assert!(crate::job::is_date(&utc_now()[..10]));
+    }
+
+    #[test]
+    fn worst_list_carries_reasons_and_curve_its_points() {
+        let a = crate::output::fixture::analysis(true);
+        let v = summary(&a);
+        let reasons: Vec<&str> = v["worst_list"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|p| p["reason"].as_str().unwrap())
+            .collect();
+        assert_eq!(&reasons[..3], &["curve", "curve", "thinning"]);
+        assert_eq!(v["limit"]["points_pct"][0], json!([-40.0, 70.0]));
+        assert_eq!(v["zone_ids"]["failed"]["count"], json!(3));
+    }
 }

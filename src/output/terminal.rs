@@ -3,7 +3,7 @@
 
 use crate::analysis::{Analysis, Verdict, CAUTION};
 use crate::assess::Zone;
-use crate::output::fmt_opt;
+use crate::output::{fmt_length, fmt_setting, reason_text};
 use std::fmt::Write as _;
 
 /// Width the summary fits in, columns.
@@ -14,14 +14,16 @@ pub fn use_colour(is_terminal: bool) -> bool {
     is_terminal && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
 }
 
-/// ANSI SGR code of a zone: red, yellow, magenta, blue, cyan, green.
+/// ANSI SGR code of a zone, after neckline's zone code (README): red for failed, yellow for
+/// marginal, green for safe (the meanings of ISO 3864-1's safety colours), grey for
+/// uncovered, plain text for the neutral thickening and low-stretch.
 fn zone_sgr(z: Zone) -> &'static str {
     match z {
         Zone::Failed => "1;31",
         Zone::Marginal => "1;33",
-        Zone::Uncovered => "35",
-        Zone::Thickening => "34",
-        Zone::LowStretch => "36",
+        Zone::Uncovered => "90",
+        Zone::Thickening => "1",
+        Zone::LowStretch => "1",
         Zone::Safe => "32",
     }
 }
@@ -30,7 +32,7 @@ fn verdict_sgr(v: Verdict) -> &'static str {
     match v {
         Verdict::Fail => "1;37;41",
         Verdict::Marginal => "1;30;43",
-        Verdict::Incomplete => "1;37;45",
+        Verdict::Incomplete => "1;30;47",
         Verdict::Pass => "1;37;42",
     }
 }
@@ -56,14 +58,19 @@ pub fn summary(a: &Analysis, colour: bool) -> String {
             if l == verdict_line {
                 return paint(l, verdict_sgr(verdict), true);
             }
-            // A zone name at the end of a worst-table row or at the start of a count row.
+            // A zone name at the start of a count row, or between two-space gaps in a
+            // worst-table row.
             for z in Zone::ALL {
                 let name = z.name();
-                if let Some(head) = l.strip_suffix(name).filter(|h| h.ends_with("  ")) {
-                    return format!("{head}{}", paint(name, zone_sgr(z), true));
-                }
                 if let Some(tail) = l.strip_prefix(&format!("  {name} ")) {
                     return format!("  {} {tail}", paint(name, zone_sgr(z), true));
+                }
+                if l.starts_with(WORST_ROW_MARK) {
+                    if let Some(at) = l.find(&format!("  {name}  ")) {
+                        let (head, tail) = l.split_at(at + 2);
+                        let tail = &tail[name.len()..];
+                        return format!("{head}{}{tail}", paint(name, zone_sgr(z), true));
+                    }
                 }
             }
             l.to_string()
@@ -114,64 +121,66 @@ pub fn wrap(text: &str, width: usize, indent: &str) -> String {
     out
 }
 
-fn clip(s: &str, n: usize) -> String {
-    if s.chars().count() <= n {
-        s.to_string()
-    } else {
-        let mut c: String = s.chars().take(n.saturating_sub(1)).collect();
-        c.push('~');
-        c
+/// Wrap `text` to `width` columns: the first line as it is, the next ones indented by
+/// `hang` (a long name is wrapped, never cut short).
+pub fn wrap_hanging(text: &str, width: usize, hang: &str) -> String {
+    if text.chars().count() <= width && !text.contains('\n') {
+        return format!("{text}\n");
     }
+    let first = wrap(text, width, "");
+    let mut lines = first.lines();
+    let Some(head) = lines.next() else {
+        return String::new();
+    };
+    let rest: Vec<&str> = lines.collect();
+    let mut out = format!("{head}\n");
+    if !rest.is_empty() {
+        out.push_str(&wrap(&rest.join(" "), width, hang));
+    }
+    out
 }
+
+/// Rows of the worst table start with this (so that colour finds them).
+const WORST_ROW_MARK: &str = "  ";
 
 /// The summary text (no colour).
 pub fn summary_text(a: &Analysis) -> String {
     let mut s = String::new();
     let job = &a.job;
     let field = |v: &Option<String>| v.clone().unwrap_or_else(|| "-".into());
-    let version = format!("neckline {} | ", env!("CARGO_PKG_VERSION"));
-    let input = clip(&a.input.display().to_string(), WIDTH - version.len());
-    let _ = writeln!(s, "{version}{input}");
-    let _ = writeln!(
-        s,
+    let hang = |t: String| wrap_hanging(&t, WIDTH, "    ");
+    s.push_str(&hang(format!(
+        "neckline {} | {}",
+        env!("CARGO_PKG_VERSION"),
+        a.input.display()
+    )));
+    s.push_str(&hang(format!(
         "Part: {}   Tryout: {}",
-        clip(&field(&job.part), 45),
-        clip(&field(&job.tryout), 14)
-    );
+        field(&job.part),
+        field(&job.tryout)
+    )));
     if job.material.is_some() || job.lot.is_some() {
-        let _ = writeln!(
-            s,
+        s.push_str(&hang(format!(
             "Material: {}   Lot: {}",
-            clip(&field(&job.material), 40),
-            clip(&field(&job.lot), 22)
-        );
+            field(&job.material),
+            field(&job.lot)
+        )));
     }
-    let _ = writeln!(
-        s,
+    if job.report_id.is_some() || job.revision.is_some() {
+        s.push_str(&hang(format!(
+            "Report: {}   Revision: {}",
+            field(&job.report_id),
+            field(&job.revision)
+        )));
+    }
+    s.push_str(&hang(format!(
         "Limit curve: {} ({} strain)",
-        clip(&a.curve.name, 45),
-        a.curve.measure
-    );
-    s.push_str(&wrap(&format!("Source: {}", a.curve.source), 80, "  "));
-    let st = &a.settings;
-    let _ = writeln!(
-        s,
-        "Settings: safety band {:.1} pp, low stretch < {:.1} %, max thinning {}",
-        st.margin_pct,
-        st.low_stretch_pct,
-        st.max_thinning_pct
-            .map_or("not checked".into(), |t| format!("{t:.1} %"))
-    );
-    let len = |v: Option<f64>| {
-        v.map_or_else(
-            || "-".to_string(),
-            |x| {
-                let t = format!("{x:.4}");
-                t.trim_end_matches('0').trim_end_matches('.').to_string()
-            },
-        )
-    };
+        a.curve.name, a.curve.measure
+    )));
+    s.push_str(&wrap(&format!("Source: {}", a.curve.source), WIDTH, "  "));
+    s.push_str(&hang(settings_line(a)));
     let l = &a.lengths;
+    let len = |v: Option<f64>| v.map_or_else(|| "-".to_string(), |x| fmt_length(x, l.unit));
     let _ = writeln!(
         s,
         "Lengths in {}: d0 {}{}, t0 {}",
@@ -196,32 +205,7 @@ pub fn summary_text(a: &Analysis) -> String {
     for (zone, n) in a.counts() {
         let _ = writeln!(s, "  {:<12}{n:>6}", zone.name());
     }
-    let worst = a.worst(WORST_SHOWN);
-    if !worst.is_empty() {
-        let _ = writeln!(s);
-        let _ = writeln!(
-            s,
-            "Worst locations (margin = curve minus major strain, eng. %):"
-        );
-        let _ = writeln!(
-            s,
-            "  {:<14}{:>9}{:>9}{:>10}{:>9}{:>9}  zone",
-            "id", "major %", "minor %", "margin pp", "use %", "thin %"
-        );
-        for p in worst {
-            let _ = writeln!(
-                s,
-                "  {:<14}{:>9.1}{:>9.1}{:>10}{:>9}{:>9.1}  {}",
-                clip(&p.input.id, 13),
-                p.strain.eng.major.percent(),
-                p.strain.eng.minor.percent(),
-                fmt_opt(p.judgement.margin_pct, 1),
-                fmt_opt(p.judgement.limit_use_pct, 0),
-                p.strain.thinning * 100.0,
-                p.zone()
-            );
-        }
-    }
+    worst_table(&mut s, a);
     if a.rejected_total() > 0 {
         let _ = writeln!(s);
         let _ = writeln!(s, "Rejected rows (not judged):");
@@ -238,18 +222,80 @@ pub fn summary_text(a: &Analysis) -> String {
         }
     }
     for note in crate::output::notes(a) {
-        s.push_str(&wrap(&note, 80, ""));
+        s.push_str(&wrap(&note.text, WIDTH, ""));
+        if !note.ids.is_empty() {
+            let more = if note.more { ", ..." } else { "" };
+            s.push_str(&wrap(
+                &format!("{}{more}", note.ids.join(", ")),
+                WIDTH,
+                "  ",
+            ));
+        }
     }
     for w in &a.warnings {
-        s.push_str(&wrap(&format!("warning: {w}"), 80, ""));
+        s.push_str(&wrap(&format!("warning: {w}"), WIDTH, ""));
     }
     let _ = writeln!(s);
     let _ = writeln!(s, "Verdict: {}", a.verdict().name().to_uppercase());
     if let Some(w) = crate::output::curve_warning(a) {
-        s.push_str(&wrap(&w, 80, ""));
+        s.push_str(&wrap(&w, WIDTH, ""));
     }
-    s.push_str(&wrap(CAUTION, 80, ""));
+    s.push_str(&wrap(CAUTION, WIDTH, ""));
     s
+}
+
+/// The settings in one sentence.
+pub fn settings_line(a: &Analysis) -> String {
+    let st = &a.settings;
+    format!(
+        "Settings: safety band {} pp, low stretch < {} %, thickening from {} %, max thinning {}",
+        fmt_setting(st.margin_pct),
+        fmt_setting(st.low_stretch_pct),
+        fmt_setting(st.thickening_pct),
+        st.max_thinning_pct
+            .map_or("not checked".into(), |t| format!("{} %", fmt_setting(t)))
+    )
+}
+
+/// Width of the id column of the worst table; a longer id takes a line of its own.
+const ID_WIDTH: usize = 12;
+
+fn worst_table(s: &mut String, a: &Analysis) {
+    let worst = a.worst(WORST_SHOWN);
+    if worst.is_empty() {
+        return;
+    }
+    let _ = writeln!(s);
+    s.push_str(&wrap(
+        "Worst locations, failed first, then by margin (margin = curve minus major strain, \
+         pp of engineering strain):",
+        WIDTH,
+        "",
+    ));
+    let _ = writeln!(
+        s,
+        "  {:<ID_WIDTH$}{:>8}{:>8}{:>8}  {:<11}  why",
+        "id", "major %", "minor %", "thin %", "zone"
+    );
+    for p in worst {
+        let id = &p.input.id;
+        let shown_id = if id.chars().count() > ID_WIDTH - 1 {
+            s.push_str(&wrap(id, WIDTH, "  "));
+            ""
+        } else {
+            id.as_str()
+        };
+        let _ = writeln!(
+            s,
+            "{WORST_ROW_MARK}{:<ID_WIDTH$}{:>8.1}{:>8.1}{:>8.1}  {:<11}  {}",
+            shown_id,
+            p.strain.eng.major.percent(),
+            p.strain.eng.minor.percent(),
+            p.strain.thinning * 100.0,
+            p.zone().name(),
+            reason_text(p, &a.settings)
+        );
+    }
 }
 
 #[cfg(test)]
@@ -277,13 +323,29 @@ mod tests {
         a.curve.source = format!("{long} {long}");
         a.warnings
             .push(format!("a warning with a long word {long}"));
-        for line in summary_text(&a).lines() {
+        let text = summary_text(&a);
+        for line in text.lines() {
             assert!(
                 line.chars().count() <= WIDTH,
                 "{} columns: {line}",
                 line.chars().count()
             );
         }
+        // Wrapped, never cut short: every character of the long name is there.
+        let joined: String = text.chars().filter(|c| !c.is_whitespace()).collect();
+        assert!(joined.contains(&format!("Part:{long}")), "{text}");
+        assert!(!text.contains('~'));
+    }
+
+    #[test]
+    fn plurals_and_indented_borderline_ids() {
+        let mut a = fixture::analysis(true);
+        a.settings.reading_error = Some(0.05);
+        a.summary.borderline.push("M1".into());
+        let text = summary_text(&a);
+        assert!(text.contains("1 location:"), "{text}");
+        assert!(text.contains("\n  M1\n"), "borderline ids indented: {text}");
+        assert!(text.contains("0 rows rejected"));
     }
 
     #[test]

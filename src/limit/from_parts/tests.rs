@@ -37,7 +37,7 @@ fn circle(id: usize, minor: f64, major: f64, condition: Condition) -> PartCircle
 /// Brazier 1977, formula from memory, as in limits/), as a true major strain at true minor `x`.
 fn known_curve() -> impl Fn(f64) -> f64 {
     let c = LimitCurve::parse(
-        "name = \"kb\"\nsource = \"test\"\n[keeler_brazier]\nn = 0.20\nthickness_mm = 0.8\n",
+        "name = \"kb\"\nsource = \"test\"\nstrain = \"engineering\"\n[keeler_brazier]\nn = 0.20\nthickness_mm = 0.8\n",
         Path::new("kb.toml"),
     )
     .unwrap();
