@@ -99,14 +99,19 @@ pub fn verdict_sentence(a: &Analysis) -> String {
         .unwrap_or_default();
     match a.verdict() {
         Verdict::Fail => format!(
-            "{} failed: on or above the limit curve{}.{why}",
+            "{} failed: on or above the limit curve{}{}.{why}",
             count(a.count(Zone::Failed), "location"),
             a.settings
                 .max_thinning_pct
                 .map_or(String::new(), |t| format!(
                     ", or thinned to {} % or more",
                     fmt_setting(t)
-                ))
+                )),
+            if a.summary.paths > 0 {
+                ", or past the limit along the strain path"
+            } else {
+                ""
+            }
         ),
         Verdict::Marginal => format!(
             "No location failed; {} inside the safety band of {} pp below the curve.{why}",
@@ -128,6 +133,19 @@ pub fn verdict_sentence(a: &Analysis) -> String {
 
 fn zone_meaning(z: Zone, a: &Analysis) -> String {
     let st = &a.settings;
+    let along = if a.summary.paths > 0 {
+        " (on the strain curve or along the path)"
+    } else {
+        ""
+    };
+    let text = zone_rule(z, st);
+    match z {
+        Zone::Failed | Zone::Marginal => format!("{text}{along}"),
+        _ => text,
+    }
+}
+
+fn zone_rule(z: Zone, st: &crate::assess::Settings) -> String {
     match z {
         Zone::Failed => match st.max_thinning_pct {
             Some(t) => format!(
@@ -297,6 +315,64 @@ fn points_table(a: &Analysis, points: &[&PointResult], class: &str, bd: &Badges)
     }
 }
 
+/// The multi-stage section: the path criterion, its diagram, the locations it finds at risk
+/// where the strain curve does not, and its assumptions.
+fn paths_section(a: &Analysis, bd: &Badges) -> io::Result<Markup> {
+    let svg = super::peps::peps_svg(a)?.unwrap_or_default();
+    let hidden: Vec<&PointResult> = a
+        .points()
+        .iter()
+        .filter(|p| p.path.as_ref().is_some_and(|j| j.hidden()))
+        .collect();
+    let sm = &a.summary;
+    Ok(html! {
+        h2 { "Strain paths (multi-stage)" }
+        p {
+            (super::terminal::count_of(sm.paths, "location")) " were measured after each stage ("
+            (a.stages.join(" → ")) ") and judged along their paths by the polar effective plastic "
+            "strain criterion (Stoughton & Yoon 2012) as well as by the strain curve at the last "
+            "stage; each location's zone is the worse of the two. "
+            (super::terminal::count_of(sm.hidden.total, "location"))
+            " are at risk along the path while the strain curve calls them safe or marginal."
+        }
+        figure { (page::inline_svg(&svg)) }
+        @if !hidden.is_empty() {
+            h3 { "Hidden by the strain curve" }
+            table.brief {
+                thead { tr {
+                    th { "id" } th.n { "stages" } th.n { "path use %" } th.n { "last direction °" }
+                    th.n { "bend °" } th { "strain curve" } th { "path" } th { "note" }
+                } }
+                tbody {
+                    @for p in &hidden {
+                        @if let Some(j) = &p.path {
+                            tr {
+                                td { (id_cell(p)) }
+                                td.n { (j.stages.len()) }
+                                td.n { (fmt_opt(j.use_pct, 1)) }
+                                td.n { (fmt_opt(j.angle_deg, 0)) }
+                                td.n { (fmt_opt(j.bend_deg, 0)) }
+                                td { (bd.zone(j.strain_zone)) }
+                                td { (bd.zone(j.zone)) }
+                                td { (p.input.note.as_deref().unwrap_or("")) }
+                            }
+                        }
+                    }
+                }
+            }
+        }
+        @if sm.turned.total > 0 {
+            p.note { "The major axis turned by more than 20° between stages at " (sm.turned.total)
+                " locations (" (sm.turned.items.join(", ")) "): the criterion's fixed-axes assumption fails there." }
+        }
+        p.note {
+            "Assumptions: von Mises effective strain; each stage straight in true strain; principal "
+            "axes fixed between stages; the criterion is a path-independent approximation. Where a "
+            "tested limit for the part's non-linear path exists, it governs."
+        }
+    })
+}
+
 fn curve_section(a: &Analysis) -> Markup {
     let c = &a.curve;
     let st = &a.settings;
@@ -430,6 +506,7 @@ pub fn report_html(a: &Analysis, opts: &FldOptions, value: map::MapValue) -> io:
                 None => p.note { "No map: no location carries x, y coordinates." },
             }
         }))
+        @if a.summary.paths > 0 { (page::section("paths", paths_section(a, &bd)?)) }
         (page::section("worst", html! {
             h2 { "Worst locations" }
             p { "The " (worst.len()) " worst locations: failed first, then by margin to the limit curve, smallest first." }
