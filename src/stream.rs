@@ -14,14 +14,13 @@ use crate::measure::{csv_error, duplicate, Header, Measurement, RejectedRow};
 use crate::output::points_csv::Layout;
 use crate::summary::{Summary, Template, View};
 use rayon::prelude::*;
-use std::collections::HashSet;
-use std::hash::{BuildHasherDefault, Hash, Hasher};
+use std::hash::{Hash, Hasher};
 use std::io::{self, Read, Write};
 
 /// Target size of one chunk: large enough that a chunk's overhead is nothing, small enough
 /// that a batch of them in flight stays a few MB (1 KiB in the unit tests, so that a small
 /// file is cut into many chunks and their merging is tested).
-pub const CHUNK_BYTES: usize = if cfg!(test) { 1 << 10 } else { 1 << 19 };
+pub const CHUNK_BYTES: usize = if cfg!(test) { 1 << 10 } else { 1 << 18 };
 
 /// The longest record read (64 MiB): a longer one is an error, not a reason to hold the file.
 pub const MAX_RECORD_BYTES: usize = 64 << 20;
@@ -186,37 +185,55 @@ fn parse_chunk(chunk: &Chunk, header: &Header) -> Result<Vec<Parsed>> {
     }
 }
 
-/// A hasher that passes a `u64` key through: the keys are hashes already.
+/// The set of (id, stage) keys seen, as 64-bit SipHash values in an open-addressing table
+/// filled to at most 7/8, sized from the file's length: about 9 bytes a location (two
+/// different keys share a hash with probability about n²/2⁶⁵: 3·10⁻⁸ at a million rows). The
+/// only memory of the pass that grows with the file.
 #[derive(Default)]
-struct Passthrough(u64);
-
-impl Hasher for Passthrough {
-    fn finish(&self) -> u64 {
-        self.0
-    }
-    fn write(&mut self, bytes: &[u8]) {
-        for &b in bytes {
-            self.0 = (self.0 << 8) | u64::from(b);
-        }
-    }
-    fn write_u64(&mut self, v: u64) {
-        self.0 = v;
-    }
+pub struct SeenIds {
+    slots: Vec<u64>,
+    len: usize,
 }
-
-/// The set of (id, stage) keys seen, as 64-bit SipHash values (8 bytes a location; two
-/// different keys share a hash with probability about n²/2⁶⁵: 3·10⁻⁸ at a million rows).
-#[derive(Default)]
-pub struct SeenIds(HashSet<u64, BuildHasherDefault<Passthrough>>);
 
 impl SeenIds {
     /// Record a key's hash; `false` when it was seen before.
     pub fn insert(&mut self, hash: u64) -> bool {
-        self.0.insert(hash)
+        // 0 marks an empty slot: the one hash that is 0 is stored as 1.
+        let h = hash.max(1);
+        if (self.len + 1) * 8 > self.slots.len() * 7 {
+            self.grow((self.len + 1) * 2);
+        }
+        let n = self.slots.len();
+        // Multiply-shift maps the hash onto 0..n without a power-of-two size (Lemire 2019).
+        let mut i = ((u128::from(h) * n as u128) >> 64) as usize;
+        loop {
+            match self.slots[i] {
+                0 => {
+                    self.slots[i] = h;
+                    self.len += 1;
+                    return true;
+                }
+                s if s == h => return false,
+                _ => i = if i + 1 == n { 0 } else { i + 1 },
+            }
+        }
     }
+
     /// Make room for `n` more keys.
     pub fn reserve(&mut self, n: usize) {
-        self.0.reserve(n);
+        let want = self.len + n;
+        if want * 8 > self.slots.len() * 7 {
+            self.grow(want);
+        }
+    }
+
+    fn grow(&mut self, keys: usize) {
+        let size = (keys * 8 / 7 + 16).max(self.slots.len());
+        let old = std::mem::replace(&mut self.slots, vec![0; size]);
+        self.len = 0;
+        for h in old.into_iter().filter(|&h| h != 0) {
+            self.insert(h);
+        }
     }
 }
 
@@ -310,7 +327,7 @@ impl Pass<'_> {
         let batch = 2 * rayon::current_num_threads().max(1);
         let out_err = |e| Error::io(std::path::Path::new("points.csv"), e);
         std::thread::scope(|scope| {
-            let (tx, rx) = std::sync::mpsc::sync_channel::<Vec<u8>>(batch);
+            let (tx, rx) = std::sync::mpsc::sync_channel::<Vec<u8>>(1);
             let writer = sink.map(|w| {
                 scope.spawn(move || -> io::Result<()> {
                     for text in rx {
@@ -510,6 +527,32 @@ mod tests {
             assert_eq!(streamed.margins, a.summary.margins);
             assert_eq!(streamed.kept, a.summary.kept);
         }
+    }
+
+    #[test]
+    fn seen_ids_find_every_repeat_and_nothing_else() {
+        let mut s = SeenIds::default();
+        let keys: Vec<u64> = (0..10_000u64)
+            .map(|k| k.wrapping_mul(0x9E37_79B9_7F4A_7C15))
+            .collect();
+        for k in &keys {
+            assert!(s.insert(*k));
+        }
+        for k in &keys {
+            assert!(!s.insert(*k));
+        }
+        let mut z = SeenIds::default();
+        assert!(
+            z.insert(0) && !z.insert(0) && !z.insert(1),
+            "0 is kept as 1"
+        );
+        let mut r = SeenIds::default();
+        r.reserve(100);
+        let size = r.slots.len();
+        for k in 0..100u64 {
+            r.insert(k * 7919 + 3);
+        }
+        assert_eq!(r.slots.len(), size, "sized once from the reserve");
     }
 
     #[test]
