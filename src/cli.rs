@@ -55,7 +55,7 @@ pub struct LengthArgs {
     #[arg(long, value_name = "mm|in")]
     pub unit: Option<LengthUnit>,
     /// Read the file's column HEADER as neckline's column NAME (repeatable; over the job
-    /// file's [columns]), e.g. --column "major_true_pct=Major strain (%)". Names: id, major,
+    /// file's `[columns]`), e.g. --column "major_true_pct=Major strain (%)". Names: id, major,
     /// minor, d0, x, y, z, stage, thickness, thinning_pct, note, major_eng_pct, minor_eng_pct,
     /// major_true_pct, minor_true_pct.
     #[arg(long = "column", value_name = "NAME=HEADER", value_parser = crate::measure::ColumnMap::parse_arg)]

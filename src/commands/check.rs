@@ -23,7 +23,7 @@ use std::path::{Path, PathBuf};
 pub struct CheckArgs {
     /// Measurement files (CSV: id, major, minor[, d0, x, y, z, stage, thickness, note], or
     /// strain columns in percent instead of axes); `-` = stdin. Several files are judged each
-    /// into DIR/<file name>/, with DIR/index.csv.
+    /// into `DIR/<file name>/`, with `DIR/index.csv`.
     #[arg(value_name = "MEASUREMENTS.csv", required = true, num_args = 1..)]
     pub measurements: Vec<PathBuf>,
     /// Refuse the whole file (exit 2, nothing written) if any row is rejected.

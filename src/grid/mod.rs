@@ -4,7 +4,7 @@
 //! [`deformation`]: the kinematics of one gradient (F, C, B, E, Almansi, polar decomposition);
 //! [`mesh`]: triangles and quads (quads at their centre, and why); [`read`]: the node and
 //! element files. [`evaluate`] turns a mesh into strain states that
-//! [`crate::analysis::analyse_states`] judges like measured circles.
+//! [`crate::analysis::Context`] judges like measured circles.
 
 pub mod deformation;
 pub mod mesh;
