@@ -7,100 +7,13 @@
 //! Skipped with a message when `chromium` is not installed and `CI` is unset; in CI its absence
 //! fails (`.ci/run` installs Debian's `chromium`).
 
+mod common;
 use assert_cmd::Command;
+use common::browser::{chromium, page_requests, pdf_pages, run_chromium};
 use std::path::{Path, PathBuf};
 
 fn repo(p: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join(p)
-}
-
-/// `chromium` on PATH, or `None` (after the skip message) outside CI.
-fn chromium() -> Option<PathBuf> {
-    let found = std::env::var_os("PATH").and_then(|paths| {
-        std::env::split_paths(&paths)
-            .map(|d| d.join("chromium"))
-            .find(|p| p.is_file())
-    });
-    match found {
-        Some(p) => Some(p),
-        None if std::env::var_os("CI").is_some() => {
-            panic!("CI is set but `chromium` is not on PATH: install it (apt-get install chromium)")
-        }
-        None => {
-            eprintln!(
-                "SKIPPED report_browser: `chromium` is not installed (apt-get install chromium); \
-                 in CI this test fails instead"
-            );
-            None
-        }
-    }
-}
-
-/// Run headless Chromium on `page` with `action` flags and verbose logging; returns its log.
-fn run_chromium(chromium: &Path, page: &Path, action: &[String]) -> String {
-    let profile = tempfile::tempdir().unwrap();
-    let out = std::process::Command::new(chromium)
-        .args([
-            "--headless",
-            "--no-sandbox",
-            "--disable-gpu",
-            "--no-first-run",
-            "--disable-background-networking",
-            "--disable-component-update",
-            "--disable-sync",
-            "--enable-logging=stderr",
-            "--v=1",
-        ])
-        .arg(format!("--user-data-dir={}", profile.path().display()))
-        .args(action)
-        .arg(format!("file://{}", page.display()))
-        .output()
-        .unwrap();
-    let log = String::from_utf8_lossy(&out.stderr).into_owned();
-    assert!(
-        out.status.success(),
-        "chromium failed: {}\n{log}",
-        out.status
-    );
-    log
-}
-
-/// URLs the page asked for: every file loaded other than the page itself, and every network
-/// request to a host that the page's own text names. Without scripts a page can only request
-/// what its text names; Chromium's own background calls (updates, clock, accounts), which it
-/// makes with any page, even a blank one, go to hosts the page never mentions.
-fn page_requests(log: &str, page: &Path) -> Vec<String> {
-    let own = format!("file://{}", page.display());
-    let text = std::fs::read_to_string(page).unwrap_or_default();
-    let url_after = |line: &str, key: &str| {
-        line.split_once(key)
-            .map(|(_, rest)| rest.split_whitespace().next().unwrap_or("").to_string())
-    };
-    let named_by_page = |u: &str| {
-        let host = u
-            .split("://")
-            .nth(1)
-            .unwrap_or("")
-            .split(['/', '?', ':'])
-            .next()
-            .unwrap_or("");
-        !host.is_empty() && text.contains(host)
-    };
-    log.lines()
-        .filter_map(|l| {
-            url_after(l, "FileURLLoader::Start:")
-                .filter(|u| *u != own)
-                .or_else(|| url_after(l, "NotifyBeforeURLRequest:").filter(|u| named_by_page(u)))
-        })
-        .collect()
-}
-
-/// Number of page objects in a PDF: `/Type /Page` not followed by `s` (which is `/Pages`).
-fn pdf_pages(pdf: &[u8]) -> usize {
-    let key = b"/Type /Page";
-    pdf.windows(key.len() + 1)
-        .filter(|w| &w[..key.len()] == key && w[key.len()] != b's')
-        .count()
 }
 
 /// Width and height of the first page's MediaBox, points.
@@ -156,7 +69,9 @@ fn check(dir: &Path, csv: &Path, extra: &[&str]) -> PathBuf {
 
 #[test]
 fn report_prints_on_letter_and_a4_and_loads_nothing_else() {
-    let Some(chromium) = chromium() else { return };
+    let Some(chromium) = chromium("report_browser") else {
+        return;
+    };
     let dir = tempfile::tempdir().unwrap();
     // Four located points: every section fits on one page, so 7 sections give 7 pages.
     let report = check(
@@ -254,7 +169,9 @@ fn report_prints_on_letter_and_a4_and_loads_nothing_else() {
 
 #[test]
 fn demo_report_screenshot_is_not_blank() {
-    let Some(chromium) = chromium() else { return };
+    let Some(chromium) = chromium("report_browser") else {
+        return;
+    };
     let dir = tempfile::tempdir().unwrap();
     let report = check(
         dir.path(),
@@ -293,7 +210,9 @@ fn demo_report_screenshot_is_not_blank() {
 #[test]
 fn request_check_catches_a_page_that_loads_things() {
     // Control: the detector must see both a local file and a network request made by a page.
-    let Some(chromium) = chromium() else { return };
+    let Some(chromium) = chromium("report_browser") else {
+        return;
+    };
     let dir = tempfile::tempdir().unwrap();
     let page = dir.path().join("control.html");
     std::fs::write(

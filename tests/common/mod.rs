@@ -67,3 +67,5 @@ pub fn read_rows(p: &Path) -> Vec<std::collections::HashMap<String, String>> {
         })
         .collect()
 }
+
+pub mod browser;
