@@ -307,22 +307,16 @@ fn draw_loss_labels<DB: DrawingBackend>(
     let style = plot::bold(15.0);
     for t in c.losses().into_iter().take(LABELLED) {
         let Some(a) = t.after() else { continue };
-        let at_px = px((a.minor_pct, a.major_pct));
         let text = format!("{} ({:+.1})", t.name(), t.margin_change().unwrap_or(0.0));
-        let (w, h) = root.estimate_text_size(&text, &style)?;
-        let (w, h) = (w as i32 + 6, h as i32 + 4);
-        let at = placer.place(at_px, w, h);
-        let to = (at_px.0.clamp(at.0, at.0 + w), at_px.1.clamp(at.1, at.1 + h));
-        root.draw(&PathElement::new(vec![at_px, to], BLACK.stroke_width(1)))?;
-        root.draw(&Rectangle::new(
-            [at, (at.0 + w, at.1 + h)],
-            WHITE.mix(0.85).filled(),
-        ))?;
-        root.draw(&Rectangle::new(
-            [at, (at.0 + w, at.1 + h)],
-            change_colour(Some(Change::Worsened)).stroke_width(1),
-        ))?;
-        root.draw_text(&text, &style, (at.0 + 3, at.1 + 2))?;
+        let border = change_colour(Some(Change::Worsened));
+        plot::label_box(
+            root,
+            placer,
+            px((a.minor_pct, a.major_pct)),
+            &text,
+            &style,
+            border,
+        )?;
     }
     Ok(())
 }

@@ -186,22 +186,8 @@ fn draw_labels<DB: DrawingBackend>(
         .filter_map(|t| Some((t, latest(t).xy()?)))
         .take(LABELLED);
     for (t, xy) in shown {
-        let p = px(xy);
         let text = format!("{} ({:+.1})", t.name(), t.margin_change().unwrap_or(0.0));
-        let (w, h) = root.estimate_text_size(&text, &style)?;
-        let (w, h) = (w as i32 + 6, h as i32 + 4);
-        let at = placer.place(p, w, h);
-        let to = (p.0.clamp(at.0, at.0 + w), p.1.clamp(at.1, at.1 + h));
-        root.draw(&PathElement::new(vec![p, to], BLACK.stroke_width(1)))?;
-        root.draw(&Rectangle::new(
-            [at, (at.0 + w, at.1 + h)],
-            WHITE.mix(0.85).filled(),
-        ))?;
-        root.draw(&Rectangle::new(
-            [at, (at.0 + w, at.1 + h)],
-            BLACK.stroke_width(1),
-        ))?;
-        root.draw_text(&text, &style, (at.0 + 3, at.1 + 2))?;
+        plot::label_box(root, placer, px(xy), &text, &style, BLACK)?;
     }
     Ok(())
 }

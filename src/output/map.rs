@@ -466,22 +466,8 @@ fn draw_worst<DB: DrawingBackend>(
         .filter_map(|p| Some((p, plane.coords(p)?)))
         .take(LABELLED);
     for (p, xy) in shown {
-        let c = px(xy);
         let text = worst_label(p, &a.settings, crate::strain::StrainMeasure::Engineering);
-        let (w, h) = root.estimate_text_size(&text, &style)?;
-        let (w, h) = (w as i32 + 6, h as i32 + 4);
-        let at = placer.place(c, w, h);
-        let to = (c.0.clamp(at.0, at.0 + w), c.1.clamp(at.1, at.1 + h));
-        root.draw(&PathElement::new(vec![c, to], BLACK.stroke_width(1)))?;
-        root.draw(&Rectangle::new(
-            [at, (at.0 + w, at.1 + h)],
-            WHITE.mix(0.85).filled(),
-        ))?;
-        root.draw(&Rectangle::new(
-            [at, (at.0 + w, at.1 + h)],
-            BLACK.stroke_width(1),
-        ))?;
-        root.draw_text(&text, &style, (at.0 + 3, at.1 + 2))?;
+        plot::label_box(root, placer, px(xy), &text, &style, BLACK)?;
     }
     Ok(())
 }
