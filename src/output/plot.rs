@@ -540,6 +540,35 @@ pub fn fit_px<DB: DrawingBackend>(
     "…".into()
 }
 
+/// A label for the marker at `anchor`: a white box with a `border`-coloured frame, placed by
+/// `placer` where it hides nothing, and a thin line from the marker to the box.
+pub fn label_box<DB: DrawingBackend>(
+    root: &DrawingArea<DB, plotters::coord::Shift>,
+    placer: &mut Placer,
+    anchor: (i32, i32),
+    text: &str,
+    style: &TextStyle<'_>,
+    border: RGBColor,
+) -> DrawResult<DB> {
+    let (w, h) = root.estimate_text_size(text, style)?;
+    let (w, h) = (w as i32 + 6, h as i32 + 4);
+    let at = placer.place(anchor, w, h);
+    let to = (
+        anchor.0.clamp(at.0, at.0 + w),
+        anchor.1.clamp(at.1, at.1 + h),
+    );
+    root.draw(&PathElement::new(vec![anchor, to], BLACK.stroke_width(1)))?;
+    root.draw(&Rectangle::new(
+        [at, (at.0 + w, at.1 + h)],
+        WHITE.mix(0.85).filled(),
+    ))?;
+    root.draw(&Rectangle::new(
+        [at, (at.0 + w, at.1 + h)],
+        border.stroke_width(1),
+    ))?;
+    root.draw_text(text, style, (at.0 + 3, at.1 + 2))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -629,33 +658,4 @@ mod tests {
         let rb = (b.0, b.1, b.0 + 60, b.1 + 14);
         assert!(!overlaps(ra, rb));
     }
-}
-
-/// A label for the marker at `anchor`: a white box with a `border`-coloured frame, placed by
-/// `placer` where it hides nothing, and a thin line from the marker to the box.
-pub fn label_box<DB: DrawingBackend>(
-    root: &DrawingArea<DB, plotters::coord::Shift>,
-    placer: &mut Placer,
-    anchor: (i32, i32),
-    text: &str,
-    style: &TextStyle<'_>,
-    border: RGBColor,
-) -> DrawResult<DB> {
-    let (w, h) = root.estimate_text_size(text, style)?;
-    let (w, h) = (w as i32 + 6, h as i32 + 4);
-    let at = placer.place(anchor, w, h);
-    let to = (
-        anchor.0.clamp(at.0, at.0 + w),
-        anchor.1.clamp(at.1, at.1 + h),
-    );
-    root.draw(&PathElement::new(vec![anchor, to], BLACK.stroke_width(1)))?;
-    root.draw(&Rectangle::new(
-        [at, (at.0 + w, at.1 + h)],
-        WHITE.mix(0.85).filled(),
-    ))?;
-    root.draw(&Rectangle::new(
-        [at, (at.0 + w, at.1 + h)],
-        border.stroke_width(1),
-    ))?;
-    root.draw_text(text, style, (at.0 + 3, at.1 + 2))
 }
