@@ -8,7 +8,7 @@ use super::{require_points, Outcome, Prepared};
 use crate::analysis::{Analysis, Context};
 use crate::cli::{JudgeArgs, LengthArgs};
 use crate::error::{Error, Result};
-use crate::measure::{open_input, Header};
+use crate::measure::{open_input, Header, RowRules};
 use crate::output::points_csv::Layout;
 use crate::output::{push_fixed, write_atomic, AtomicFile};
 use crate::stream::Pass;
@@ -103,7 +103,9 @@ pub fn judge_file(
     progress: bool,
 ) -> Result<(Analysis, Option<AtomicFile>)> {
     let mut input = open_input(path)?;
-    let header = Header::read(&mut input, path, &prep.map)?;
+    let rules = RowRules::new(&prep.lengths, prep.settings.reading_error);
+    let header = Header::read(&mut input, path, &prep.map)?.with_rules(rules);
+    let input = crate::measure::screen(input, &header)?;
     let strain_input = header.columns.gives_strains();
     let mut notes = header.notes.clone();
     if strain_input && prep.lengths.d0.is_some() {
@@ -151,6 +153,7 @@ pub fn judge_file(
     let summary = pass.run(input, sink, &mut |b| bar.set(b));
     bar.finish();
     let summary = summary?;
+    notes.extend(header.swap_note());
     match out.flush() {
         Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => return Err(io_err(e)),
         _ => {}
