@@ -138,7 +138,8 @@ fn csv_input() -> impl Strategy<Value = Vec<u8>> {
 /// Inputs the fuzzers (fuzz/) stopped at, replayed through the same path; the file name starts
 /// with the target's name. `measurements_stream-leak-*`: LeakSanitizer reported 112 bytes held
 /// by a thread-local of std's channel in a pool thread still alive at exit (the pass's own
-/// memory is freed): not a fault of the parser, kept as a regression input.
+/// memory is freed): not a fault of the parser, kept as a regression input. `nodes-crash-*`:
+/// a grid row of −9223372036854775808 (i64::MIN), whose absolute value overflowed.
 #[test]
 fn fuzz_findings_replay_without_a_panic() {
     let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/hostile/fuzz");
@@ -154,6 +155,13 @@ fn fuzz_findings_replay_without_a_panic() {
             }
             "compare_points" => {
                 let _ = neckline::compare::read::read_results_from(&bytes[..], &path);
+            }
+            "nodes" => {
+                if let Ok(t) = read_table_from(&bytes[..], &path, "nodes") {
+                    if let Ok(set) = nodes_from_table(t) {
+                        let _ = neckline::grid::read::grid_cells(&set);
+                    }
+                }
             }
             other => panic!("{name}: no replay for target `{other}`"),
         }
