@@ -550,6 +550,87 @@ pub fn parse_number(text: &str, dialect: Dialect) -> std::result::Result<f64, St
 /// 5). Outside it the reading, d0, the unit or the column is wrong, not the sheet.
 pub const STRETCH_RANGE: (f64, f64) = (0.2, 5.0);
 
+/// Whether a difference is within a tolerance, allowing for the round-off of decimal
+/// readings (2.28 − 2.26 is 0.020000000000000018 in binary).
+fn within(diff: f64, tol: f64) -> bool {
+    diff <= tol * (1.0 + 1e-9) + 1e-12
+}
+
+/// Most fields a row may have: a measurement row has up to 17, so a thousand is not one of
+/// them but a mangled file (trailing empty fields count).
+pub const MAX_FIELDS: usize = 1000;
+/// Longest field, bytes: a number, an id or a note is far shorter; longer is an unclosed
+/// quote or a pasted document, not a value.
+pub const MAX_FIELD_BYTES: usize = 4096;
+/// Largest position or thickness read (in the file's unit): 1e9 (a thousand km in mm), so
+/// that sums and squares of positions stay finite.
+pub const MAX_LENGTH: f64 = 1e9;
+/// Longest row, bytes of its fields: 64 KiB.
+pub const MAX_ROW_BYTES: usize = 64 << 10;
+
+/// Near-equal axes: the default tolerance when no reading error is given, a fraction of d0
+/// (1 %: 0.025 mm on a 2.5 mm circle, the reading error of a measuring microscope or a
+/// strain-reading tape, common practice).
+pub const SWAP_TOLERANCE_OF_D0: f64 = 0.01;
+/// Near-equal strains: the default tolerance when no reading error is given, percentage
+/// points (0.1 pp: the last digit an optical system or a tape reports, common practice).
+pub const SWAP_TOLERANCE_PP: f64 = 0.1;
+
+/// What a file's rows are read with beyond their own fields, in the file's unit: the d0 and
+/// the reading error in force (the near-equal axes rule) and the unit (the plausibility
+/// screen's advice). The default knows neither d0 nor a reading error.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct RowRules {
+    /// d0 in force for rows without their own.
+    pub d0: Option<f64>,
+    /// Reading error of one axis (file unit), or of a strain (percentage points) for a file
+    /// that gives strains.
+    pub reading_error: Option<f64>,
+    /// The unit in use.
+    pub unit: crate::units::LengthUnit,
+}
+
+impl RowRules {
+    /// The rules of a run: its lengths and its reading error.
+    pub fn new(lengths: &crate::analysis::Lengths, reading_error: Option<f64>) -> Self {
+        RowRules {
+            d0: lengths.d0,
+            reading_error,
+            unit: lengths.unit,
+        }
+    }
+}
+
+/// The rows whose near-equal axes (or strains) were swapped: a count and the first line, shared
+/// by every thread reading the file.
+#[derive(Debug)]
+pub struct SwapLog {
+    count: std::sync::atomic::AtomicU64,
+    first: std::sync::atomic::AtomicU64,
+}
+
+impl Default for SwapLog {
+    fn default() -> Self {
+        SwapLog {
+            count: 0.into(),
+            first: u64::MAX.into(),
+        }
+    }
+}
+
+impl SwapLog {
+    fn add(&self, line: u64) {
+        use std::sync::atomic::Ordering::Relaxed;
+        self.count.fetch_add(1, Relaxed);
+        self.first.fetch_min(line, Relaxed);
+    }
+    /// How many rows were swapped, and the first line.
+    pub fn get(&self) -> (u64, u64) {
+        use std::sync::atomic::Ordering::Relaxed;
+        (self.count.load(Relaxed), self.first.load(Relaxed))
+    }
+}
+
 /// Reads one row into a [`Measurement`], or says why it is rejected.
 struct RowReader<'a> {
     cols: &'a Columns,
@@ -557,6 +638,8 @@ struct RowReader<'a> {
     file: &'a Path,
     line: u64,
     record: &'a csv::StringRecord,
+    rules: &'a RowRules,
+    swaps: &'a SwapLog,
 }
 
 impl RowReader<'_> {
@@ -593,7 +676,14 @@ impl RowReader<'_> {
     fn optional(&self, col: Option<usize>) -> std::result::Result<Option<f64>, RejectedRow> {
         match col {
             Some(c) if !self.record.get(c).unwrap_or("").trim().is_empty() => {
-                self.number(c).map(Some)
+                let v = self.number(c)?;
+                if v.abs() > MAX_LENGTH {
+                    return Err(self.reject(
+                        c,
+                        format!("{v:e} is beyond ±{MAX_LENGTH:e}: not a position or length"),
+                    ));
+                }
+                Ok(Some(v))
             }
             _ => Ok(None),
         }
@@ -602,9 +692,96 @@ impl RowReader<'_> {
     fn positive(&self, col: usize, what: &str) -> std::result::Result<f64, RejectedRow> {
         let v = self.number(col)?;
         if v <= 0.0 {
-            return Err(self.reject(col, format!("{what} must be greater than zero, found {v}")));
+            let hint = if what.ends_with("axis") && v < 0.0 {
+                " (an axis is a length; a negative value looks like a strain in percent: \
+                 strains go in columns major_eng_pct and minor_eng_pct)"
+            } else {
+                ""
+            };
+            return Err(self.reject(
+                col,
+                format!("{what} must be greater than zero, found {v}{hint}"),
+            ));
         }
         Ok(v)
+    }
+
+    /// Refuse a row with too many fields, a field or the row too long, or a NUL byte: a
+    /// mangled or binary file, never a reading. The id of such a row is not kept.
+    fn check_size(&self) -> std::result::Result<(), RejectedRow> {
+        let at = |col: Option<usize>, reason: String| {
+            let mut location = Location::file(self.file).at_line(self.line);
+            location.column = col.map(|c| c as u64 + 1);
+            location.column_name = col.and_then(|c| self.cols.names.get(c).cloned());
+            RejectedRow {
+                location,
+                id: None,
+                reason,
+            }
+        };
+        let n = self.record.len();
+        if n > MAX_FIELDS {
+            return Err(at(
+                None,
+                format!("{n} fields on one row, more than {MAX_FIELDS}: not a measurement row"),
+            ));
+        }
+        let bytes = self.record.as_byte_record().as_slice();
+        if bytes.len() > MAX_FIELD_BYTES {
+            if let Some((i, f)) = self
+                .record
+                .iter()
+                .enumerate()
+                .find(|(_, f)| f.len() > MAX_FIELD_BYTES)
+            {
+                return Err(at(
+                    Some(i),
+                    format!(
+                        "a field of {} bytes, more than {MAX_FIELD_BYTES}: an unclosed quote or \
+                         pasted text?",
+                        f.len()
+                    ),
+                ));
+            }
+        }
+        if bytes.len() > MAX_ROW_BYTES {
+            return Err(at(
+                None,
+                format!(
+                    "a row of {} bytes, more than {} KiB: an unclosed quote or pasted text?",
+                    bytes.len(),
+                    MAX_ROW_BYTES >> 10
+                ),
+            ));
+        }
+        if memchr::memchr(0, bytes).is_some() {
+            let col = self.record.iter().position(|f| f.contains('\0'));
+            return Err(at(
+                col,
+                "a NUL byte: binary data, or UTF-16 text read as UTF-8 (save the file as CSV \
+                 UTF-8)"
+                    .into(),
+            ));
+        }
+        Ok(())
+    }
+
+    /// The tolerance within which a minor axis above the major one is taken as near-equal:
+    /// the reading error, else 1 % of d0, else none.
+    fn axis_tolerance(&self, d0: Option<f64>) -> Option<(f64, String)> {
+        if let Some(r) = self.rules.reading_error {
+            return Some((r, format!("the reading error {r}")));
+        }
+        let d0 = d0.or(self.rules.d0)?;
+        Some((SWAP_TOLERANCE_OF_D0 * d0, format!("1 % of d0 {d0}")))
+    }
+
+    /// The tolerance for strains given directly, percentage points.
+    fn strain_tolerance(&self) -> (f64, String) {
+        match self.rules.reading_error {
+            Some(r) => (r, format!("the reading error {r} pp")),
+            None => (SWAP_TOLERANCE_PP, format!("{SWAP_TOLERANCE_PP} pp")),
+        }
     }
 
     /// A strain in percent as a true strain; `eng` says which measure the column holds.
@@ -631,66 +808,106 @@ impl RowReader<'_> {
         })
     }
 
+    /// The two strains of a pair; a minor strain above the major one by no more than the
+    /// tolerance is near-equal, and the two are swapped (the note says so).
     fn pair(
         &self,
         (major, minor): (usize, usize),
         eng: bool,
-    ) -> std::result::Result<Principal<TrueStrain>, RejectedRow> {
+    ) -> std::result::Result<(Principal<TrueStrain>, Option<String>), RejectedRow> {
         let (a, b) = (self.strain(major, eng)?, self.strain(minor, eng)?);
-        if a.value() < b.value() {
-            return Err(self.reject(
-                minor,
-                format!(
-                    "major strain {} is smaller than minor strain {}: columns swapped?",
-                    self.record.get(major).unwrap_or("").trim(),
-                    self.record.get(minor).unwrap_or("").trim()
-                ),
-            ));
+        if a.value() >= b.value() {
+            return Ok((Principal { major: a, minor: b }, None));
         }
-        Ok(Principal { major: a, minor: b })
+        let (va, vb) = (self.number(major)?, self.number(minor)?);
+        let (tol, what) = self.strain_tolerance();
+        if within(vb - va, tol) {
+            let note = format!(
+                "near-equal strains swapped: minor {vb} % read {:.3} pp above major {va} %, \
+                 within {what}",
+                vb - va
+            );
+            return Ok((Principal { major: b, minor: a }, Some(note)));
+        }
+        Err(self.reject(
+            minor,
+            format!(
+                "major strain {va} is smaller than minor strain {vb} by {:.3} pp, more than \
+                 {what}: columns swapped?",
+                vb - va
+            ),
+        ))
     }
 
-    fn reading(&self) -> std::result::Result<(Reading, bool), RejectedRow> {
+    /// The axes; a minor axis above the major one by no more than the tolerance is
+    /// near-equal (a dome top read a hair apart), and the two are swapped with a note.
+    fn axes(
+        &self,
+        major: usize,
+        minor: usize,
+    ) -> std::result::Result<(Reading, Option<String>), RejectedRow> {
+        let d1 = self.positive(major, "the major axis")?;
+        let d2 = self.positive(minor, "the minor axis")?;
+        let d0 = match self.cols.d0 {
+            Some(col) if self.text(col).is_some() => Some(self.positive(col, "d0")?),
+            _ => None,
+        };
+        let axes = |major, minor| Reading::Axes { major, minor, d0 };
+        if d1 >= d2 {
+            return Ok((axes(d1, d2), None));
+        }
+        match self.axis_tolerance(d0) {
+            Some((tol, what)) if within(d2 - d1, tol) => {
+                let note = format!(
+                    "near-equal axes swapped: minor {d2} read {:.4} above major {d1}, within \
+                     {what}",
+                    d2 - d1
+                );
+                Ok((axes(d2, d1), Some(note)))
+            }
+            tol => {
+                let within = tol.map_or_else(
+                    || "no reading error or d0 to judge it by".to_string(),
+                    |(_, what)| format!("more than {what}"),
+                );
+                Err(self.reject(
+                    minor,
+                    format!(
+                        "major axis {d1} is smaller than minor axis {d2} by {:.4}, {within}: \
+                         columns swapped?",
+                        d2 - d1
+                    ),
+                ))
+            }
+        }
+    }
+
+    /// The reading, a note when it was swapped, and whether engineering and true strains
+    /// disagree.
+    fn reading(&self) -> std::result::Result<(Reading, Option<String>, bool), RejectedRow> {
         let c = self.cols;
         Ok(match c.kind {
             Kind::Axes { major, minor } => {
-                let d1 = self.positive(major, "the major axis")?;
-                let d2 = self.positive(minor, "the minor axis")?;
-                if d1 < d2 {
-                    return Err(self.reject(
-                        minor,
-                        format!(
-                            "major axis {d1} is smaller than minor axis {d2}: columns swapped?"
-                        ),
-                    ));
-                }
-                let d0 = match c.d0 {
-                    Some(col) if self.text(col).is_some() => Some(self.positive(col, "d0")?),
-                    _ => None,
-                };
-                (
-                    Reading::Axes {
-                        major: d1,
-                        minor: d2,
-                        d0,
-                    },
-                    false,
-                )
+                let (r, note) = self.axes(major, minor)?;
+                (r, note, false)
             }
             Kind::Eng { major, minor } => {
-                (Reading::Strains(self.pair((major, minor), true)?), false)
+                let (p, note) = self.pair((major, minor), true)?;
+                (Reading::Strains(p), note, false)
             }
             Kind::True { major, minor } => {
-                (Reading::Strains(self.pair((major, minor), false)?), false)
+                let (p, note) = self.pair((major, minor), false)?;
+                (Reading::Strains(p), note, false)
             }
             Kind::Both { eng, tru } => {
-                let t = self.pair(tru, false)?;
-                let e = self.pair(eng, true)?;
+                let (t, note) = self.pair(tru, false)?;
+                let (e, _) = self.pair(eng, true)?;
                 // Rounding to 0.01 pp in each column keeps the two within 0.01 pp.
                 let off =
                     |a: TrueStrain, b: TrueStrain| (a.percent() - b.percent()).abs() > 0.01 + 1e-9;
                 (
                     Reading::Strains(t),
+                    note,
                     off(t.major, e.major) || off(t.minor, e.minor),
                 )
             }
@@ -700,6 +917,7 @@ impl RowReader<'_> {
     /// The measurement, and whether its engineering and true strains disagree.
     fn read(&self) -> std::result::Result<(Measurement, bool), RejectedRow> {
         let c = self.cols;
+        self.check_size()?;
         // Spreadsheets often end rows with empty fields: they are not fields of the header.
         let mut len = self.record.len();
         while len > c.names.len()
@@ -727,9 +945,12 @@ impl RowReader<'_> {
                 .ok_or_else(|| self.reject(col, "empty id".into()))?,
             None => self.line.to_string(),
         };
-        let (reading, disagree) = self.reading()?;
+        let (reading, swapped, disagree) = self.reading()?;
         let thickness = match c.thickness {
-            Some(col) if self.text(col).is_some() => Some(self.positive(col, "thickness")?),
+            Some(col) if self.text(col).is_some() => {
+                self.optional(Some(col))?;
+                Some(self.positive(col, "thickness")?)
+            }
             _ => None,
         };
         let thinning = match self.optional(c.thinning)? {
@@ -741,6 +962,14 @@ impl RowReader<'_> {
             }
             t => t.map(|t| t / 100.0),
         };
+        let mut note = c.note.and_then(|s| self.text(s));
+        if let Some(swap) = swapped {
+            self.swaps.add(self.line);
+            note = Some(match note {
+                Some(n) => format!("{n}; {swap}"),
+                None => swap,
+            });
+        }
         Ok((
             Measurement {
                 id,
@@ -752,7 +981,7 @@ impl RowReader<'_> {
                 stage: c.stage.and_then(|s| self.text(s)),
                 thickness,
                 thinning,
-                note: c.note.and_then(|s| self.text(s)),
+                note,
                 angle_deg: self.optional(c.angle)?,
                 condition: match c.condition {
                     Some(col) => Condition::parse_optional(self.record.get(col).unwrap_or(""))
@@ -830,6 +1059,10 @@ pub struct Header {
     pub notes: Vec<String>,
     /// Lines taken by comments and the header: the first data line is `lines + 1`.
     pub lines: u64,
+    /// The d0, reading error and unit the rows are read with (see [`Header::with_rules`]).
+    pub rules: RowRules,
+    /// The rows whose near-equal axes were swapped.
+    pub swaps: std::sync::Arc<SwapLog>,
 }
 
 impl Header {
@@ -837,6 +1070,8 @@ impl Header {
     /// line.
     pub fn read(input: &mut impl BufRead, name: &Path, map: &ColumnMap) -> Result<Self> {
         let loc = Location::file(name);
+        let head = input.fill_buf().map_err(|e| Error::io(name, e))?;
+        crate::error::check_text(name, head, false)?;
         let (prefix, header) = read_header_line(input, name)?;
         if header.is_empty() {
             return Err(Error::input(
@@ -851,6 +1086,15 @@ impl Header {
         reader
             .read_record(&mut record)
             .map_err(|e| csv_error(&loc, e))?;
+        if record.len() > MAX_FIELDS {
+            return Err(Error::input(
+                loc.at_line(lines),
+                format!(
+                    "the header has {} fields, more than {MAX_FIELDS}: not a measurement file",
+                    record.len()
+                ),
+            ));
+        }
         let (columns, notes) = Columns::from_header(&record, map, &loc)?;
         Ok(Header {
             file: name.to_path_buf(),
@@ -858,6 +1102,32 @@ impl Header {
             columns,
             notes,
             lines,
+            rules: RowRules::default(),
+            swaps: Default::default(),
+        })
+    }
+
+    /// The same header, its rows read with `rules` (the run's d0, reading error and unit).
+    pub fn with_rules(mut self, rules: RowRules) -> Self {
+        self.rules = rules;
+        self
+    }
+
+    /// A note for the user when near-equal axes or strains were swapped.
+    pub fn swap_note(&self) -> Option<String> {
+        let (n, first) = self.swaps.get();
+        let tol = match (self.rules.reading_error, self.columns.gives_strains()) {
+            (Some(r), true) => format!("the reading error {r} pp"),
+            (Some(r), false) => format!("the reading error {r}"),
+            (None, true) => format!("{SWAP_TOLERANCE_PP} pp"),
+            (None, false) => "1 % of d0".into(),
+        };
+        (n > 0).then(|| {
+            format!(
+                "{n} row{} read minor a hair above major (within {tol}): taken as \
+                 near-equal and swapped, first at line {first}; each is noted in points.csv",
+                if n == 1 { "" } else { "s" }
+            )
         })
     }
 
@@ -874,9 +1144,197 @@ impl Header {
             file: &self.file,
             line,
             record,
+            rules: &self.rules,
+            swaps: &self.swaps,
         }
         .read()
     }
+}
+
+/// The plausibility screen reads at most this many bytes of the body (256 KiB) ...
+pub const SCREEN_BYTES: u64 = 256 << 10;
+/// ... and at most this many data rows.
+pub const SCREEN_ROWS: usize = 1000;
+/// The stretches (axis / d0) a measured circle's axes lie between in practice: 0.5 to 2.5,
+/// i.e. −50 % to +150 % engineering strain (sheet-metal forming limits reach about 100 %
+/// major strain at most, and minor strains below −50 % are beyond any drawing; common
+/// practice). A row outside it is not refused for that alone (see [`STRETCH_RANGE`]); a file
+/// with most of its first rows outside it is.
+pub const SCREEN_STRETCH: (f64, f64) = (0.5, 2.5);
+
+/// One sampled row of the screen: its line, axes and d0.
+struct Sample {
+    line: u64,
+    major: f64,
+    minor: f64,
+    d0: Option<f64>,
+}
+
+impl Sample {
+    fn implausible(&self) -> bool {
+        let out = |v: f64, d0: f64| !(SCREEN_STRETCH.0..=SCREEN_STRETCH.1).contains(&(v / d0));
+        self.major <= 0.0
+            || self.minor <= 0.0
+            || self
+                .d0
+                .is_some_and(|d0| out(self.major, d0) || out(self.minor, d0))
+    }
+}
+
+/// Refuse a file of axes that, as a whole, cannot be axes: most of its first rows (up to
+/// [`SCREEN_ROWS`] rows in [`SCREEN_BYTES`]) have an axis that is not positive or lies outside
+/// [`SCREEN_STRETCH`] times d0. The message names the likely cause and its fix: the wrong
+/// length unit (the axes are about 25.4 times too large or too small: `--unit`), strains in
+/// percent pasted as axes (use the strain columns), or a wrong d0. Returns `input` with the
+/// bytes read put back in front, so the pass reads the whole body; nothing has been written
+/// when it refuses. Files that give strains are not screened (each strain row is checked
+/// against −80 % to 400 %).
+pub fn screen<R: BufRead>(
+    mut input: R,
+    header: &Header,
+) -> Result<io::Chain<io::Cursor<Vec<u8>>, R>> {
+    let mut head = Vec::new();
+    (&mut input)
+        .take(SCREEN_BYTES)
+        .read_to_end(&mut head)
+        .map_err(|e| Error::io(&header.file, e))?;
+    if let Kind::Axes { major, minor } = header.columns.kind {
+        let whole = (head.len() as u64) < SCREEN_BYTES;
+        let end = if whole {
+            head.len()
+        } else {
+            memchr::memrchr(b'\n', &head).map_or(0, |i| i + 1)
+        };
+        let rows = sample(&head[..end], header, major, minor);
+        judge_sample(&rows, header)?;
+    }
+    Ok(io::Cursor::new(head).chain(input))
+}
+
+/// The axes of the first rows of `body` whose two axes are numbers.
+fn sample(body: &[u8], header: &Header, major: usize, minor: usize) -> Vec<Sample> {
+    let mut reader = csv_reader(header.dialect, body);
+    let mut record = csv::StringRecord::new();
+    let mut rows = Vec::new();
+    let number = |r: &csv::StringRecord, c: usize| {
+        r.get(c)
+            .filter(|f| f.len() <= 64)
+            .and_then(|f| parse_number(f, header.dialect).ok())
+    };
+    // A record the reader cannot read ends the sample: the pass reports it.
+    while rows.len() < SCREEN_ROWS && matches!(reader.read_record(&mut record), Ok(true)) {
+        let (Some(a), Some(b)) = (number(&record, major), number(&record, minor)) else {
+            continue;
+        };
+        let row_d0 = header.columns.d0.and_then(|c| number(&record, c));
+        rows.push(Sample {
+            line: header.lines + record.position().map_or(1, |p| p.line()),
+            major: a,
+            minor: b,
+            d0: row_d0.filter(|d| *d > 0.0).or(header.rules.d0),
+        });
+    }
+    rows
+}
+
+/// Refuse the sample when more than half of its rows are implausible and a likely cause is
+/// found (the unit, strains in percent), or when nine in ten are (a wrong d0); otherwise the
+/// rows are judged, or rejected, one by one.
+fn judge_sample(rows: &[Sample], header: &Header) -> Result<()> {
+    let bad: Vec<&Sample> = rows.iter().filter(|r| r.implausible()).collect();
+    if rows.is_empty() || 2 * bad.len() <= rows.len() {
+        return Ok(());
+    }
+    let first = bad[0];
+    let mut ratios: Vec<f64> = rows
+        .iter()
+        .filter(|r| r.major > 0.0)
+        .filter_map(|r| Some(r.major / r.d0?))
+        .collect();
+    ratios.sort_by(f64::total_cmp);
+    let median = ratios.get(ratios.len() / 2).copied();
+    let fits = |r: f64| (SCREEN_STRETCH.0..=SCREEN_STRETCH.1).contains(&r);
+    let mm = crate::units::MM_PER_INCH;
+    let shown = |r: &Sample| {
+        let (a, b) = (short(r.major), short(r.minor));
+        match r.d0 {
+            Some(d0) => format!(
+                "line {}: major {a}, minor {b} with d0 {} would be {} % and {} % strain",
+                r.line,
+                round4(d0),
+                short((100.0 * (r.major / d0 - 1.0)).round()),
+                short((100.0 * (r.minor / d0 - 1.0)).round())
+            ),
+            None => format!("line {}: major {a}, minor {b}", r.line),
+        }
+    };
+    use crate::units::LengthUnit::{In, Mm};
+    let cause = match (median, header.rules.unit) {
+        (Some(m), Mm) if fits(m * mm) => format!(
+            "the axes are about {mm} times smaller than d0: the file looks like inches read \
+             as millimetres. Give --unit in (a job file's d0 is converted; --d0 is read in \
+             --unit)"
+        ),
+        (Some(m), In) if fits(m / mm) => format!(
+            "the axes are about {mm} times larger than d0: the file looks like millimetres \
+             read as inches. Give --unit mm (a job file's d0 is converted; --d0 is read in \
+             --unit)"
+        ),
+        (m, _) if looks_like_percent(rows, m) => {
+            "the file looks like strains in percent pasted as \
+             axes. Name its columns major_eng_pct and minor_eng_pct (or major_true_pct and \
+             minor_true_pct for true strain), or map them with --column \
+             major_eng_pct=HEADER --column minor_eng_pct=HEADER"
+                .to_string()
+        }
+        _ if 10 * bad.len() >= 9 * rows.len() => "the axes are far from d0: is d0 the \
+             initial circle diameter, in the file's unit (--d0, a d0 column or the job file)?"
+            .to_string(),
+        _ => return Ok(()),
+    };
+    let d0_word = match header.rules.d0 {
+        Some(d) => format!("d0 {}", round4(d)),
+        None => "d0".into(),
+    };
+    Err(Error::input(
+        Location::file(&header.file).at_line(first.line),
+        format!(
+            "{} of the first {} rows cannot be the axes of a stretched circle (not positive, or \
+             not {} to {} times {d0_word}), e.g. {}: {cause}; the whole file is refused, nothing \
+             was written",
+            bad.len(),
+            rows.len(),
+            SCREEN_STRETCH.0,
+            SCREEN_STRETCH.1,
+            shown(first),
+        ),
+    ))
+}
+
+/// A length for a message, to 4 decimals.
+fn round4(v: f64) -> f64 {
+    (v * 1e4).round() / 1e4
+}
+
+/// A number for a message: in exponent form when very large or very small.
+fn short(v: f64) -> String {
+    if v.abs() > 0.0 && !(1e-3..1e6).contains(&v.abs()) {
+        format!("{v:e}")
+    } else {
+        format!("{v}")
+    }
+}
+
+/// Whether sampled axes read better as strains in percent: some are negative, or the axes
+/// are larger than d0 allows (median stretch above [`SCREEN_STRETCH`]) while every value lies
+/// within the plausible strain range (−80 % to 400 %) with the major above the minor.
+fn looks_like_percent(rows: &[Sample], median: Option<f64>) -> bool {
+    let range = |v: f64| (-80.0..=400.0).contains(&v);
+    rows.iter().any(|r| r.major < 0.0 || r.minor < 0.0)
+        || (median.is_some_and(|m| m > SCREEN_STRETCH.1)
+            && rows
+                .iter()
+                .all(|r| range(r.major) && range(r.minor) && r.major >= r.minor))
 }
 
 /// A CSV reader over `input` for `dialect`, without a header row.

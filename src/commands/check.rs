@@ -9,7 +9,7 @@ use crate::analysis::{Analysis, Context};
 use crate::cli::{JudgeArgs, LengthArgs};
 use crate::digest::FileDigest;
 use crate::error::{Error, Result};
-use crate::measure::{open_input, Header};
+use crate::measure::{open_input, Header, RowRules};
 use crate::output::points_csv::Layout;
 use crate::output::{push_fixed, write_atomic, AtomicFile};
 use crate::stream::Pass;
@@ -108,9 +108,12 @@ pub fn judge_file(
     inputs: &[PathBuf],
     progress: bool,
 ) -> Result<(Analysis, Option<AtomicFile>)> {
-    // The measurement file is hashed as it streams past (standard input too), never held.
-    let mut input = crate::digest::HashingReader::new(open_input(path)?);
-    let header = Header::read(&mut input, path, &prep.map)?;
+    // The measurement file is hashed as it streams past (standard input too), never held;
+    // its first rows are screened for a file that cannot be meant as it reads.
+    let mut hashed = crate::digest::HashingReader::new(open_input(path)?);
+    let rules = RowRules::new(&prep.lengths, prep.settings.reading_error);
+    let header = Header::read(&mut hashed, path, &prep.map)?.with_rules(rules);
+    let mut input = crate::measure::screen(hashed, &header)?;
     let strain_input = header.columns.gives_strains();
     let mut notes = header.notes.clone();
     if strain_input && prep.lengths.d0.is_some() {
@@ -136,7 +139,7 @@ pub fn judge_file(
         let rows = crate::measure::MeasurementReader::after(&mut input, header);
         let staged = crate::path::judge_staged(rows, &ctx, order)?;
         layout.path = staged.stages.len() >= 2;
-        let files = input_digests(path, input.hex(), prep);
+        let files = input_digests(path, input.into_inner().1.hex(), prep);
         return judged_in_memory(
             path, prep, output, plan, inputs, ctx, layout, staged, &notes, files,
         );
@@ -169,6 +172,7 @@ pub fn judge_file(
     let summary = pass.run(&mut input, sink, &mut |b| bar.set(b));
     bar.finish();
     let summary = summary?;
+    notes.extend(header.swap_note());
     match out.flush() {
         Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => return Err(io_err(e)),
         _ => {}
@@ -181,7 +185,7 @@ pub fn judge_file(
         &notes,
     );
     a.summary = summary;
-    a.files = input_digests(path, input.hex(), prep);
+    a.files = input_digests(path, input.into_inner().1.hex(), prep);
     a.finish();
     let a = require_points(a, path, "no location could be judged", "rows")?;
     Ok((a, file))

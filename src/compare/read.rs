@@ -123,8 +123,14 @@ pub fn read_results(path: &Path) -> Result<Vec<ResultRow>> {
     read_results_from(open_input(path)?, path)
 }
 
-fn read_results_from(mut input: impl BufRead, path: &Path) -> Result<Vec<ResultRow>> {
+/// Read the columns a comparison needs from `input`; `path` names it in messages. The file is
+/// refused whole at its first bad row (a comparison needs every location): a field longer than
+/// [`crate::measure::MAX_FIELD_BYTES`], a row of more than [`crate::measure::MAX_FIELDS`]
+/// fields, a number that is not finite, an empty or duplicate id, an unknown zone.
+pub fn read_results_from(mut input: impl BufRead, path: &Path) -> Result<Vec<ResultRow>> {
     let loc = Location::file(path);
+    let head = input.fill_buf().map_err(|e| Error::io(path, e))?;
+    crate::error::check_text(path, head, false)?;
     let (prefix, header) = read_header_line(&mut input, path)?;
     if header.is_empty() {
         return Err(Error::input(
@@ -139,6 +145,18 @@ fn read_results_from(mut input: impl BufRead, path: &Path) -> Result<Vec<ResultR
         .from_reader(Cursor::new(prefix.into_bytes()).chain(input));
     let head = rdr.headers().map_err(|e| csv_error(&loc, e))?.clone();
     let find = |name: &str| head.iter().position(|h| h == name);
+    for (i, name) in head.iter().enumerate() {
+        if NEEDED.contains(&name) || OPTIONAL.contains(&name) {
+            if let Some(j) = head.iter().skip(i + 1).position(|h| h == name) {
+                return Err(Error::input(
+                    loc.clone()
+                        .at_line(header_line)
+                        .at_column((i + j + 2) as u64, name),
+                    format!("column `{name}` appears twice in the header"),
+                ));
+            }
+        }
+    }
     let mut idx = [0usize; 5];
     for (k, name) in NEEDED.iter().enumerate() {
         idx[k] = find(name).ok_or_else(|| {
@@ -154,13 +172,18 @@ fn read_results_from(mut input: impl BufRead, path: &Path) -> Result<Vec<ResultR
     for rec in rdr.records() {
         let rec = rec.map_err(|e| csv_error(&loc, e))?;
         let line = rec.position().map_or(0, |p| p.line());
+        check_size(&rec, &loc.clone().at_line(line))?;
         let at = |i: usize, name: &str| loc.clone().at_line(line).at_column(i as u64 + 1, name);
         let number = |i: usize, name: &str| -> Result<Option<f64>> {
             match rec.get(i).unwrap_or("") {
                 "" => Ok(None),
-                t => parse_number(t, Dialect::Comma)
-                    .map(Some)
-                    .map_err(|m| Error::input(at(i, name), m)),
+                t => match parse_number(t, Dialect::Comma) {
+                    Ok(v) if v.abs() > 1e9 => Err(Error::input(
+                        at(i, name),
+                        format!("{v:e} is beyond ±1e9: not a value `check` writes"),
+                    )),
+                    r => r.map(Some).map_err(|m| Error::input(at(i, name), m)),
+                },
             }
         };
         let required = |k: usize| -> Result<f64> {
@@ -206,6 +229,34 @@ fn read_results_from(mut input: impl BufRead, path: &Path) -> Result<Vec<ResultR
         ));
     }
     Ok(rows)
+}
+
+/// Refuse a row with a field too long or too many fields: a mangled file, not a result.
+fn check_size(rec: &csv::StringRecord, at: &Location) -> Result<()> {
+    use crate::measure::{MAX_FIELDS, MAX_FIELD_BYTES};
+    if rec.len() > MAX_FIELDS {
+        return Err(Error::input(
+            at.clone(),
+            format!("{} fields on one row, more than {MAX_FIELDS}", rec.len()),
+        ));
+    }
+    if let Some((i, f)) = rec
+        .iter()
+        .enumerate()
+        .find(|(_, f)| f.len() > MAX_FIELD_BYTES)
+    {
+        let mut at = at.clone();
+        at.column = Some(i as u64 + 1);
+        return Err(Error::input(
+            at,
+            format!(
+                "a field of {} bytes, more than {MAX_FIELD_BYTES}: an unclosed quote or pasted \
+                 text?",
+                f.len()
+            ),
+        ));
+    }
+    Ok(())
 }
 
 /// The `summary.json` that `check` wrote beside `points` (when there is one and it parses).

@@ -285,7 +285,7 @@ fn integer(
 ) -> std::result::Result<i64, RejectedRow> {
     let raw = r.get(col).unwrap_or("").trim();
     match raw.parse::<i64>() {
-        Ok(v) if v.abs() <= MAX_GRID_INDEX => Ok(v),
+        Ok(v) if (-MAX_GRID_INDEX..=MAX_GRID_INDEX).contains(&v) => Ok(v),
         Ok(v) => Err(t.reject(
             line,
             Some(col),
