@@ -134,3 +134,55 @@ proptest! {
         }
     }
 }
+
+/// Judge a one-row measurement CSV read through neckline's own reader: (zone, margin).
+fn judge_csv(text: &str) -> (Zone, Option<f64>) {
+    use neckline::analysis::{state_of, Context, Lengths};
+    use neckline::measure::{read_measurements_from, ColumnMap};
+    let file = Path::new("p.csv");
+    let set = read_measurements_from(text.as_bytes(), file, &ColumnMap::default()).unwrap();
+    let lengths = Lengths {
+        unit: Default::default(),
+        d0: Some(2.5),
+        t0: None,
+    };
+    let ctx = Context {
+        curve: demo_curve(),
+        settings: Settings::default(),
+        lengths,
+        strain_input: false,
+    };
+    let m = set.points.into_iter().next().expect("the row is read");
+    let p = ctx.judge(state_of(m, file, &lengths).unwrap());
+    (p.zone(), p.judgement.margin_pct)
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(128))]
+
+    // The same location given as ellipse axes, as engineering percent and as true percent
+    // (e = d/d0 − 1, ε = ln(d/d0): the strain definitions) is judged alike: the same zone, the
+    // same margin to the rounding of the percent written (6 decimals).
+    #[test]
+    fn axes_and_strain_columns_judge_alike(a in 0.7f64..1.8, b in 0.7f64..1.8) {
+        let (l1, l2) = if a >= b { (a, b) } else { (b, a) };
+        let (d1, d2) = (2.5 * l1, 2.5 * l2);
+        let axes = judge_csv(&format!("id,major,minor\nP,{d1:.9},{d2:.9}\n"));
+        let (e1, e2) = (100.0 * (d1 / 2.5 - 1.0), 100.0 * (d2 / 2.5 - 1.0));
+        let eng = judge_csv(&format!("id,major_eng_pct,minor_eng_pct\nP,{e1:.6},{e2:.6}\n"));
+        let (t1, t2) = (100.0 * (d1 / 2.5).ln(), 100.0 * (d2 / 2.5).ln());
+        let tru = judge_csv(&format!("id,major_true_pct,minor_true_pct\nP,{t1:.6},{t2:.6}\n"));
+        for other in [eng, tru] {
+            match (axes.1, other.1) {
+                (Some(x), Some(y)) => {
+                    prop_assert!((x - y).abs() < 1e-4, "{x} vs {y}");
+                    // Zones agree unless the margin sits within rounding of a zone edge.
+                    if x.abs() > 1e-3 && (x - 10.0).abs() > 1e-3 {
+                        prop_assert_eq!(axes.0, other.0);
+                    }
+                }
+                (x, y) => prop_assert!(x.is_none() && y.is_none(), "{x:?} vs {y:?}"),
+            }
+        }
+    }
+}
