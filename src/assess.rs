@@ -240,7 +240,7 @@ pub struct Judgement {
 
 /// Judge one location's strains against `curve` with `settings`.
 pub fn judge(state: &StrainState, curve: &LimitCurve, settings: &Settings) -> Judgement {
-    let limit_major = curve.limit_major_eng(state.true_strain.minor);
+    let limit_major = curve.limit_major_eng_of(state.true_strain.minor, state.eng.minor);
     let margin_pct = limit_major.map(|l| l.percent() - state.eng.major.percent());
     let limit_use_pct = limit_major.and(curve.limit_use_pct(state));
     let (zone, reason) = zone_of(state, margin_pct, settings);

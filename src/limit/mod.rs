@@ -196,6 +196,15 @@ impl LimitCurve {
         self.measure.to_true(major).map(TrueStrain::to_eng)
     }
 
+    /// [`LimitCurve::limit_major_eng`] at a location whose engineering minor strain is known
+    /// too: an engineering curve is read with it directly (no round trip through true strain).
+    pub fn limit_major_eng_of(&self, minor: TrueStrain, minor_eng: EngStrain) -> Option<EngStrain> {
+        match self.measure {
+            StrainMeasure::Engineering => self.major_at(minor_eng.value()).map(EngStrain),
+            StrainMeasure::True => self.limit_major_eng(minor),
+        }
+    }
+
     /// The curve as a polyline in true strain `[ε2, ε1]`; each straight piece of an engineering
     /// curve is split in `pieces` so that the bend it takes in true strain is followed.
     pub fn true_polyline(&self, pieces: usize) -> Vec<[f64; 2]> {
