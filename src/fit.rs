@@ -386,7 +386,8 @@ pub fn direct_conic(p: &[Vector2<f64>]) -> Result<[f64; 6], FitError> {
 /// of `M`'s smallest eigenvalue. The constrained fit always returns an ellipse, even for points on
 /// a hyperbola; this check says when that ellipse is forced on data that are not elliptic.
 fn check_free_conic(m: &Matrix3<f64>) -> Result<(), FitError> {
-    let eig = nalgebra::SymmetricEigen::new(*m);
+    let eig = nalgebra::SymmetricEigen::try_new(*m, f64::EPSILON, MAX_EIGEN_ITERATIONS)
+        .ok_or_else(not_converged)?;
     let v = eig.eigenvectors.column(eig.eigenvalues.imin());
     let disc = 4.0 * v[0] * v[2] - v[1] * v[1];
     if disc <= 1e-9 {
@@ -402,13 +403,27 @@ fn check_free_conic(m: &Matrix3<f64>) -> Result<(), FitError> {
     Ok(())
 }
 
+/// Iterations allowed to an eigenvalue solve of a 3×3 matrix: a well-posed one converges in
+/// a few dozen; one that has not after this many is degenerate.
+const MAX_EIGEN_ITERATIONS: usize = 10_000;
+
+fn not_converged() -> FitError {
+    FitError::NotAnEllipse(
+        "the eigenvalue solve did not converge: too few distinct points, or points repeated".into(),
+    )
+}
+
 /// The eigenvector of `m` (real eigenvalue) satisfying the ellipse constraint `4ac − b² > 0`,
 /// normalised so that `4ac − b² = 1`. Eigenvalues from nalgebra's real Schur form; each vector
 /// is the null direction of `M − μI` (its last right singular vector). When several qualify
 /// (noise), the one with the smallest `|μ|` (the least-squares minimum) is taken.
 fn elliptic_eigenvector(m: &Matrix3<f64>) -> Result<Vector3<f64>, FitError> {
     let mut best: Option<(f64, Vector3<f64>)> = None;
-    for mu in m.complex_eigenvalues().iter() {
+    // nalgebra's own `complex_eigenvalues` iterates without a bound, and never ends on some
+    // degenerate scatter matrices (an outline of four points each given three times).
+    let schur = nalgebra::linalg::Schur::try_new(*m, f64::EPSILON, MAX_EIGEN_ITERATIONS)
+        .ok_or_else(not_converged)?;
+    for mu in schur.complex_eigenvalues().iter() {
         if mu.im.abs() > 1e-9 * (1.0 + mu.re.abs()) {
             continue;
         }

@@ -140,6 +140,8 @@ fn csv_input() -> impl Strategy<Value = Vec<u8>> {
 /// by a thread-local of std's channel in a pool thread still alive at exit (the pass's own
 /// memory is freed): not a fault of the parser, kept as a regression input. `nodes-crash-*`:
 /// a grid row of −9223372036854775808 (i64::MIN), whose absolute value overflowed.
+/// `outlines-timeout-*`: an outline of four points each given three times, on which the
+/// eigenvalue solve of the ellipse fit never ended (now bounded).
 #[test]
 fn fuzz_findings_replay_without_a_panic() {
     let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/hostile/fuzz");
@@ -160,6 +162,15 @@ fn fuzz_findings_replay_without_a_panic() {
                 if let Ok(t) = read_table_from(&bytes[..], &path, "nodes") {
                     if let Ok(set) = nodes_from_table(t) {
                         let _ = neckline::grid::read::grid_cells(&set);
+                    }
+                }
+            }
+            "outlines" => {
+                if let Ok(t) = read_table_from(&bytes[..], &path, "outlines") {
+                    if let Ok((list, _)) = neckline::commands::fit::outlines(&t) {
+                        for o in list {
+                            let _ = neckline::fit::fit_robust(&o.points);
+                        }
                     }
                 }
             }
