@@ -10,7 +10,7 @@
 
 use crate::analysis::{strain_of, Context};
 use crate::error::{Error, Location, Result};
-use crate::measure::{csv_error, duplicate, Header, Measurement, RejectedRow};
+use crate::measure::{csv_error, duplicate, Header, Measurement};
 use crate::output::points_csv::Layout;
 use crate::summary::{Summary, Template, View};
 use rayon::prelude::*;
@@ -148,41 +148,11 @@ impl<R: Read> Chunker<R> {
     }
 }
 
-/// One parsed row: the measurement, whether its two strain measures disagree and the hash of
-/// its (id, stage), or why it was rejected.
-type Parsed = std::result::Result<(Measurement, bool, u64), RejectedRow>;
-
 /// The hash of a location's (id, stage) key.
 fn key_hash(m: &Measurement) -> u64 {
     let mut h = std::hash::DefaultHasher::new();
     (&m.id, &m.stage).hash(&mut h);
     h.finish()
-}
-
-/// Parse the records of one chunk.
-fn parse_chunk(chunk: &Chunk, header: &Header) -> Result<Vec<Parsed>> {
-    let mut reader = crate::measure::csv_reader(header.dialect, &chunk.bytes[..]);
-    let mut record = csv::StringRecord::new();
-    let mut rows = Vec::with_capacity(chunk.bytes.len() / 32);
-    let at = |line: u64| chunk.first_line + line - 1;
-    loop {
-        match reader.read_record(&mut record) {
-            Ok(false) => return Ok(rows),
-            Err(e) => {
-                let err = csv_error(&Location::file(&header.file), e);
-                return Err(err.shift_line(chunk.first_line - 1));
-            }
-            // A blank spreadsheet row carries nothing to drop.
-            Ok(true) if record.iter().all(|f| f.trim().is_empty()) => continue,
-            Ok(true) => {
-                let line = at(record.position().map_or(1, |p| p.line()));
-                rows.push(header.row(&record, line).map(|(m, d)| {
-                    let h = key_hash(&m);
-                    (m, d, h)
-                }));
-            }
-        }
-    }
 }
 
 /// The set of (id, stage) keys seen, as 64-bit SipHash values in an open-addressing table
@@ -237,39 +207,71 @@ impl SeenIds {
     }
 }
 
-/// What one chunk gives: its points.csv text and its partial summary.
+/// What one chunk gives: its points.csv text, its partial summary, and the key hash and line
+/// of each row it judged (for the check of duplicates, which needs the file's order).
 struct Judged {
     text: Vec<u8>,
     summary: Summary,
+    keys: Vec<(u64, u64)>,
 }
 
-fn judge_chunk(rows: Vec<Parsed>, pass: &Pass<'_>, like: &Template) -> Judged {
-    // Rows of points.csv are about 190 bytes: room for 240 each means no copy as it grows.
-    let mut text = Vec::with_capacity(if pass.write { rows.len() * 240 } else { 0 });
-    let mut summary = like.part();
-    for row in rows {
-        let (m, disagree, _) = match row {
+/// Parse, judge and format the rows of one chunk, the rows at `duplicates` (lines) rejected as
+/// repeats of an earlier key.
+fn judge_chunk(
+    chunk: &Chunk,
+    pass: &Pass<'_>,
+    like: &Template,
+    duplicates: &[u64],
+) -> Result<Judged> {
+    let header = pass.header;
+    let mut reader = crate::measure::csv_reader(header.dialect, &chunk.bytes[..]);
+    let mut record = csv::StringRecord::new();
+    // Rows of points.csv are about 190 bytes, input rows 30 or more: room enough not to copy.
+    let room = if pass.write { chunk.bytes.len() * 8 } else { 0 };
+    let mut out = Judged {
+        text: Vec::with_capacity(room),
+        summary: like.part(),
+        keys: Vec::with_capacity(chunk.bytes.len() / 24),
+    };
+    let summary = &mut out.summary;
+    loop {
+        match reader.read_record(&mut record) {
+            Ok(false) => return Ok(out),
+            Err(e) => {
+                let err = csv_error(&Location::file(&header.file), e);
+                return Err(err.shift_line(chunk.first_line - 1));
+            }
+            // A blank spreadsheet row carries nothing to drop.
+            Ok(true) if record.iter().all(|f| f.trim().is_empty()) => continue,
+            Ok(true) => {}
+        }
+        let line = chunk.first_line + record.position().map_or(1, |p| p.line()) - 1;
+        let (m, disagree) = match header.row(&record, line) {
             Ok(r) => r,
             Err(r) => {
                 summary.rejected.push(r);
                 continue;
             }
         };
+        if duplicates.contains(&line) {
+            summary.rejected.push(duplicate(header, &m));
+            continue;
+        }
+        out.keys.push((key_hash(&m), line));
         if disagree {
             summary.disagree.push(m.id.clone());
         }
-        match strain_of(&m, &pass.header.file, &pass.ctx.lengths) {
+        match strain_of(&m, &header.file, &pass.ctx.lengths) {
             Err(r) => summary.rejected.push(r),
             Ok((d0, strain)) => {
                 let p = pass.ctx.judge_parts(m, d0, strain);
                 if pass.write {
-                    pass.layout.push_row(&mut text, &p);
+                    pass.layout.push_row(&mut out.text, &p);
                 }
                 summary.fold_ref(&p);
             }
         }
     }
-    Judged { text, summary }
 }
 
 /// One streaming pass over a measurement file's body.
@@ -374,8 +376,8 @@ impl Pass<'_> {
         })
     }
 
-    /// Parse a batch of chunks in parallel, mark the duplicate keys in file order, then judge
-    /// and format the chunks in parallel.
+    /// Judge a batch of chunks in parallel, then check their keys in file order: a chunk with a
+    /// key seen before (rare) is judged again with those rows rejected as duplicates.
     fn batch(
         &self,
         todo: Vec<Chunk>,
@@ -383,30 +385,31 @@ impl Pass<'_> {
         like: &Template,
         first: bool,
     ) -> Result<Vec<Judged>> {
-        let h = self.header;
-        let parsed: Vec<Result<Vec<Parsed>>> = todo.par_iter().map(|c| parse_chunk(c, h)).collect();
-        let mut parsed = parsed.into_iter().collect::<Result<Vec<_>>>()?;
+        let judged: Vec<Result<Judged>> = todo
+            .par_iter()
+            .map(|c| judge_chunk(c, self, like, &[]))
+            .collect();
+        let mut judged = judged.into_iter().collect::<Result<Vec<_>>>()?;
         if first {
             // Room for the whole file at this batch's bytes per row, so the set of ids is not
             // rehashed again and again.
-            let rows: usize = parsed.iter().map(Vec::len).sum();
+            let rows: usize = judged.iter().map(|j| j.keys.len()).sum();
             let bytes: usize = todo.iter().map(|c| c.bytes.len()).sum::<usize>().max(1);
             let size = self.size_hint.unwrap_or(0) as f64;
             seen.reserve((rows as f64 * (size / bytes as f64).max(1.0)) as usize);
         }
-        for rows in &mut parsed {
-            for row in rows.iter_mut() {
-                if let Ok((m, _, hash)) = row {
-                    if !seen.insert(*hash) {
-                        *row = Err(duplicate(h, m));
-                    }
-                }
+        for (j, chunk) in judged.iter_mut().zip(&todo) {
+            let repeats: Vec<u64> = j
+                .keys
+                .iter()
+                .filter(|(hash, _)| !seen.insert(*hash))
+                .map(|(_, line)| *line)
+                .collect();
+            if !repeats.is_empty() {
+                *j = judge_chunk(chunk, self, like, &repeats)?;
             }
         }
-        Ok(parsed
-            .into_par_iter()
-            .map(|rows| judge_chunk(rows, self, like))
-            .collect())
+        Ok(judged)
     }
 }
 
