@@ -229,18 +229,7 @@ fn judged_in_memory(
     }
     a.finish();
     let a = require_points(a, path, "no location could be judged", "rows")?;
-    let file = match &plan.points {
-        Some(_) if plan.points_to_stdout() => {
-            super::outputs::write_stdout(&text)?;
-            None
-        }
-        Some(p) => {
-            let mut f = AtomicFile::create(p, inputs)?;
-            f.write_all(&text).map_err(|e| Error::io(p, e))?;
-            Some(f)
-        }
-        None => None,
-    };
+    let file = super::outputs::points_out(plan, inputs, &text)?;
     Ok((a, file))
 }
 

@@ -8,10 +8,8 @@ use crate::error::{Error, Result};
 use crate::grid::{evaluate, read::read_mesh};
 use crate::limit::LimitCurve;
 use crate::output::points_csv::{self, Layout};
-use crate::output::AtomicFile;
 use crate::units::LengthUnit;
 use clap::Args;
-use std::io::Write;
 use std::path::PathBuf;
 
 /// Arguments of `grid`.
@@ -161,18 +159,7 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
     };
     let text = points_csv::table(&layout, &all);
     drop(all);
-    let points = match &plan.points {
-        Some(_) if plan.points_to_stdout() => {
-            super::outputs::write_stdout(text.as_bytes())?;
-            None
-        }
-        Some(p) => {
-            let mut f = AtomicFile::create(p, &inputs)?;
-            f.write_all(text.as_bytes()).map_err(|e| Error::io(p, e))?;
-            Some(f)
-        }
-        None => None,
-    };
+    let points = super::outputs::points_out(&plan, &inputs, text.as_bytes())?;
     emit(&a, &args.output, &plan, &inputs, &preface, points, true)?;
     let tripped = args
         .judge

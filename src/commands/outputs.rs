@@ -292,6 +292,23 @@ fn stale_outputs(dir: &Path, written: &[PathBuf]) -> Vec<PathBuf> {
         .collect()
 }
 
+/// A points table made in memory, to its planned place: standard output at once, or a
+/// temporary file returned for [`emit`] to commit with the other outputs.
+pub fn points_out(plan: &Plan, inputs: &[PathBuf], text: &[u8]) -> Result<Option<AtomicFile>> {
+    match &plan.points {
+        Some(_) if plan.points_to_stdout() => {
+            write_stdout(text)?;
+            Ok(None)
+        }
+        Some(p) => {
+            let mut f = AtomicFile::create(p, inputs)?;
+            f.write_all(text).map_err(|e| Error::io(p, e))?;
+            Ok(Some(f))
+        }
+        None => Ok(None),
+    }
+}
+
 /// Write to standard output; a closed pipe is not an error.
 pub fn write_stdout(bytes: &[u8]) -> Result<()> {
     let stdout = std::io::stdout();
