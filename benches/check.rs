@@ -133,7 +133,7 @@ fn main() {
 
     // The polars baseline, given the same curve: its own (engineering) points and the
     // true-strain polyline neckline searches for the limit use.
-    let curve = neckline::limit::LimitCurve::load(&limit).unwrap();
+    let curve = neckline_core::limit::LimitCurve::load(&limit).unwrap();
     let own: String = curve
         .points
         .iter()

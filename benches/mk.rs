@@ -3,9 +3,9 @@
 //!
 //! Run: `cargo bench --bench mk`. One thread; every timing is the median of several runs.
 
-use neckline::limit::keeler_brazier::KeelerBrazier;
-use neckline::limit::mk::{self, MkMaterial, MkSettings};
-use neckline::limit::necking::strain_ratios;
+use neckline_core::limit::keeler_brazier::KeelerBrazier;
+use neckline_core::limit::mk::{self, MkMaterial, MkSettings};
+use neckline_core::limit::necking::strain_ratios;
 use std::hint::black_box;
 use std::time::{Duration, Instant};
 

@@ -2,8 +2,8 @@
 //! each test prints the directory, the exit status, stdout and stderr.
 
 use assert_cmd::Command;
-use neckline::limit::LimitCurve;
-use neckline::strain::{StrainMeasure, TrueStrain};
+use neckline_core::limit::LimitCurve;
+use neckline_core::strain::{StrainMeasure, TrueStrain};
 use std::path::Path;
 use tempfile::TempDir;
 
@@ -131,9 +131,8 @@ fn derived_curve_reads_back_and_records_the_input_hash() {
     } else {
         eprintln!("sha256sum not found: hash checked against the library only");
     }
-    let own = neckline::commands::limit::sha256_hex(
-        &std::fs::read(dir.path().join("parts.csv")).unwrap(),
-    );
+    let own =
+        neckline_core::digest::sha256_hex(&std::fs::read(dir.path().join("parts.csv")).unwrap());
     assert!(c.source.contains(&own));
     for part in [
         "press-shop curve from parts: holds for this material lot, thickness and process; not a \
@@ -170,7 +169,7 @@ fn derived_curve_reads_back_and_records_the_input_hash() {
 #[test]
 fn sha256_of_the_standard_example() {
     assert_eq!(
-        neckline::commands::limit::sha256_hex(b"abc"),
+        neckline_core::digest::sha256_hex(b"abc"),
         "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
     );
 }

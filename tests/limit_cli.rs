@@ -3,7 +3,7 @@
 
 use approx::assert_abs_diff_eq;
 use assert_cmd::Command;
-use neckline::limit::LimitCurve;
+use neckline_core::limit::LimitCurve;
 use std::path::Path;
 use tempfile::TempDir;
 
@@ -48,7 +48,7 @@ fn load(dir: &TempDir, name: &str) -> LimitCurve {
 
 /// Engineering major strain, percent, of a curve at engineering minor strain `minor_pct`.
 fn major_eng_pct(c: &LimitCurve, minor_pct: f64) -> f64 {
-    let t = neckline::strain::EngStrain::from_percent(minor_pct)
+    let t = neckline_core::strain::EngStrain::from_percent(minor_pct)
         .to_true()
         .unwrap();
     c.limit_major_eng(t).unwrap().percent()

@@ -186,7 +186,7 @@ fn necking_curve_always_holds_plane_strain() {
         r.stdout.contains("Plane-strain limit (FLC0): 22.14 %"),
         "{r}"
     );
-    let curve = neckline::limit::LimitCurve::load(&r.dir.path().join("n.toml")).unwrap();
+    let curve = neckline_core::limit::LimitCurve::load(&r.dir.path().join("n.toml")).unwrap();
     assert_eq!(curve.points.len(), 30);
     assert!(curve.points.iter().any(|p| p[0].abs() < 1e-12), "{r}");
     // Two paths cannot hold both ends and plane strain: refused with the range.

@@ -1,7 +1,7 @@
 //! points.csv as `compare` reads it.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
-use neckline::compare::read::read_results_from;
+use neckline_core::compare::read::read_results_from;
 use std::path::Path;
 
 fuzz_target!(|data: &[u8]| {

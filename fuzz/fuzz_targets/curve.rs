@@ -1,8 +1,8 @@
 //! Limit curve TOML, and a query of a curve that parses.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
-use neckline::limit::LimitCurve;
-use neckline::strain::TrueStrain;
+use neckline_core::limit::LimitCurve;
+use neckline_core::strain::TrueStrain;
 use std::path::Path;
 
 fuzz_target!(|data: &[u8]| {

@@ -1,7 +1,7 @@
 //! Job file TOML.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
-use neckline::job::Job;
+use neckline_core::job::Job;
 use std::path::Path;
 
 fuzz_target!(|data: &[u8]| {

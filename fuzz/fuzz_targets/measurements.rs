@@ -2,8 +2,8 @@
 //! turned into strains.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
-use neckline::analysis::{state_of, Lengths};
-use neckline::measure::{read_measurements_from, ColumnMap};
+use neckline_core::analysis::{state_of, Lengths};
+use neckline_core::measure::{read_measurements_from, ColumnMap};
 use std::path::Path;
 
 fuzz_target!(|data: &[u8]| {

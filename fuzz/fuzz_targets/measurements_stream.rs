@@ -2,12 +2,12 @@
 //! judged in parallel, points.csv text and the summary.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
-use neckline::analysis::{Context, Lengths};
-use neckline::assess::Settings;
-use neckline::limit::LimitCurve;
-use neckline::measure::{screen, ColumnMap, Header, RowRules};
-use neckline::output::points_csv::Layout;
-use neckline::stream::Pass;
+use neckline_core::analysis::{Context, Lengths};
+use neckline_core::assess::Settings;
+use neckline_core::limit::LimitCurve;
+use neckline_core::measure::{screen, ColumnMap, Header, RowRules};
+use neckline_core::output::points_csv::Layout;
+use neckline_core::stream::Pass;
 use std::path::Path;
 
 const CURVE: &str = "name = \"c\"\nsource = \"fuzz only\"\nstrain = \"engineering\"\npoints = [[-40, 60], [0, 30], [30, 45]]\n";

@@ -1,19 +1,19 @@
 //! `neckline check`: the main job. Measured circles (or strains) -> judgement -> files + summary.
-//! One file streams through [`crate::stream`]; several files are judged side by side, each into
+//! One file streams through [`neckline_core::stream`]; several files are judged side by side, each into
 //! its own folder, with an index.
 
 use super::outputs::{emit, OutputArgs, Plan};
 use super::progress::Progress;
 use super::{require_points, Outcome, Prepared};
-use crate::analysis::{Analysis, Context};
-use crate::cli::{JudgeArgs, LengthArgs};
-use crate::digest::FileDigest;
-use crate::error::{Error, Result};
-use crate::measure::{open_input, Header, RowRules};
-use crate::output::points_csv::Layout;
-use crate::output::{push_fixed, write_atomic, AtomicFile};
-use crate::stream::Pass;
+use crate::args::{JudgeArgs, LengthArgs};
 use clap::Args;
+use neckline_core::analysis::{Analysis, Context};
+use neckline_core::digest::FileDigest;
+use neckline_core::error::{Error, Result};
+use neckline_core::measure::{open_input, Header, RowRules};
+use neckline_core::output::points_csv::Layout;
+use neckline_core::output::{push_fixed, write_atomic, AtomicFile};
+use neckline_core::stream::Pass;
 use rayon::prelude::*;
 use std::io::Write;
 use std::path::{Path, PathBuf};
@@ -110,10 +110,10 @@ pub fn judge_file(
 ) -> Result<(Analysis, Option<AtomicFile>)> {
     // The measurement file is hashed as it streams past (standard input too), never held;
     // its first rows are screened for a file that cannot be meant as it reads.
-    let mut hashed = crate::digest::HashingReader::new(open_input(path)?);
+    let mut hashed = neckline_core::digest::HashingReader::new(open_input(path)?);
     let rules = RowRules::new(&prep.lengths, prep.settings.reading_error);
     let header = Header::read(&mut hashed, path, &prep.map)?.with_rules(rules);
-    let mut input = crate::measure::screen(hashed, &header)?;
+    let mut input = neckline_core::measure::screen(hashed, &header)?;
     let strain_input = header.columns.gives_strains();
     let mut notes = header.notes.clone();
     if strain_input && prep.lengths.d0.is_some() {
@@ -136,8 +136,8 @@ pub fn judge_file(
     };
     if header.columns.has("stage") {
         let order = prep.job.stages.as_deref();
-        let rows = crate::measure::MeasurementReader::after(&mut input, header);
-        let staged = crate::path::judge_staged(rows, &ctx, order)?;
+        let rows = neckline_core::measure::MeasurementReader::after(&mut input, header);
+        let staged = neckline_core::path::judge_staged(rows, &ctx, order)?;
         layout.path = staged.stages.len() >= 2;
         let files = input_digests(path, input.into_inner().1.hex(), prep);
         return judged_in_memory(
@@ -202,7 +202,7 @@ fn judged_in_memory(
     inputs: &[PathBuf],
     ctx: Context,
     layout: Layout,
-    staged: crate::path::Staged,
+    staged: neckline_core::path::Staged,
     notes: &[String],
     files: Vec<FileDigest>,
 ) -> Result<(Analysis, Option<AtomicFile>)> {
@@ -240,9 +240,9 @@ fn input_digests(path: &Path, measurements: String, prep: &Prepared) -> Vec<File
         path: path.to_path_buf(),
         sha256: measurements,
     }];
-    v.extend(crate::digest::of_file("curve", &prep.curve_path).ok());
+    v.extend(neckline_core::digest::of_file("curve", &prep.curve_path).ok());
     if let Some(j) = &prep.job_path {
-        v.extend(crate::digest::of_file("job", j).ok());
+        v.extend(neckline_core::digest::of_file("job", j).ok());
     }
     v
 }
@@ -284,8 +284,8 @@ fn run_many(args: &CheckArgs) -> Result<Outcome> {
                     a.verdict().name().to_uppercase(),
                     path.display(),
                     a.total(),
-                    a.count(crate::assess::Zone::Failed),
-                    a.count(crate::assess::Zone::Marginal),
+                    a.count(neckline_core::assess::Zone::Failed),
+                    a.count(neckline_core::assess::Zone::Marginal),
                     dir.display()
                 ));
             }
@@ -302,7 +302,7 @@ fn run_many(args: &CheckArgs) -> Result<Outcome> {
     })?;
     print!("{text}");
     println!("Wrote {}", index.display());
-    println!("{}", crate::analysis::CAUTION);
+    println!("{}", neckline_core::analysis::CAUTION);
     if failed > 0 {
         return Err(Error::Usage(format!(
             "{failed} of {} files could not be judged (see above)",
@@ -341,7 +341,7 @@ fn folders(files: &[PathBuf], out: &Path) -> Result<Vec<PathBuf>> {
 /// `index.csv`: one row per file.
 fn index_csv(files: &[PathBuf], results: &[Result<Analysis>]) -> String {
     let mut s = String::from("file,points,rejected");
-    for z in crate::assess::Zone::ALL {
+    for z in neckline_core::assess::Zone::ALL {
         s.push(',');
         s.push_str(z.name());
     }

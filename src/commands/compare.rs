@@ -1,13 +1,12 @@
 //! `neckline compare`: one tryout against the next, location by location, and the review pack.
 
 use super::Outcome;
-use crate::compare::{
-    self, csv_out, fld, json_out, map, page, read_tryout, terminal, Comparison, Matching,
-};
-use crate::error::{Error, Result};
-use crate::output::terminal::{wrap, WIDTH};
-use crate::output::{guard_inputs, write_atomic};
 use clap::{Args, ValueEnum};
+use neckline_core::compare::{self, csv_out, json_out, read_tryout, Comparison, Matching};
+use neckline_core::error::{Error, Result};
+use neckline_core::output::{guard_inputs, write_atomic};
+use neckline_render::compare::{fld, map, page, terminal};
+use neckline_render::terminal::{wrap, WIDTH};
 use std::path::{Path, PathBuf};
 
 /// How locations are paired between tryouts.

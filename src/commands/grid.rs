@@ -2,14 +2,14 @@
 
 use super::outputs::{emit, OutputArgs, Plan};
 use super::{limit_path, load_job, resolve_lengths, resolve_settings, Outcome};
-use crate::analysis::{Analysis, Context, PointResult};
-use crate::cli::{JudgeArgs, LengthArgs};
-use crate::error::{Error, Result};
-use crate::grid::{evaluate, read::read_mesh};
-use crate::limit::LimitCurve;
-use crate::output::points_csv::{self, Layout};
-use crate::units::LengthUnit;
+use crate::args::{JudgeArgs, LengthArgs};
 use clap::Args;
+use neckline_core::analysis::{Analysis, Context, PointResult};
+use neckline_core::error::{Error, Result};
+use neckline_core::grid::{evaluate, read::read_mesh};
+use neckline_core::limit::LimitCurve;
+use neckline_core::output::points_csv::{self, Layout};
+use neckline_core::units::LengthUnit;
 use std::path::PathBuf;
 
 /// Arguments of `grid`.

@@ -3,23 +3,24 @@
 //! written as the curve TOML `check` reads, and `limit compare`.
 
 use super::Outcome;
-use crate::analysis::{Analysis, Lengths, CAUTION};
-use crate::assess::Settings;
-use crate::error::{Error, Result};
-use crate::job::Job;
-use crate::limit::from_parts::{self, Band, FitSettings, PartCircle, PartsFit};
-use crate::limit::keeler_brazier::{self, KeelerBrazier};
-use crate::limit::mk::{self, MkMaterial, MkSettings, PathLimit};
-use crate::limit::necking::{self, RightSide};
-use crate::limit::writer::{GeneratedCurve, PREDICTION_HEADER, SHOP_HEADER, TOOL_VERSION};
-use crate::limit::LimitCurve;
-use crate::observed::Condition;
-use crate::output::fld::{self, FldOptions};
-use crate::output::plot;
-use crate::output::write_atomic;
-use crate::strain::{EngStrain, StrainMeasure};
-use crate::units::{LengthUnit, MM_PER_INCH};
 use clap::{Args, Subcommand};
+use neckline_core::analysis::{Analysis, Lengths, CAUTION};
+use neckline_core::assess::Settings;
+use neckline_core::digest::sha256_hex;
+use neckline_core::error::{Error, Result};
+use neckline_core::job::Job;
+use neckline_core::limit::from_parts::{self, Band, FitSettings, PartCircle, PartsFit};
+use neckline_core::limit::keeler_brazier::{self, KeelerBrazier};
+use neckline_core::limit::mk::{self, MkMaterial, MkSettings, PathLimit};
+use neckline_core::limit::necking::{self, RightSide};
+use neckline_core::limit::writer::{GeneratedCurve, PREDICTION_HEADER, SHOP_HEADER, TOOL_VERSION};
+use neckline_core::limit::LimitCurve;
+use neckline_core::observed::Condition;
+use neckline_core::output::write_atomic;
+use neckline_core::strain::{EngStrain, StrainMeasure};
+use neckline_core::units::{LengthUnit, MM_PER_INCH};
+use neckline_render::fld::{self, FldOptions};
+use neckline_render::plot;
 use plotters::prelude::*;
 use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
@@ -379,7 +380,7 @@ fn emit(curve: &GeneratedCurve, out: &CurveOutArgs) -> Result<Outcome> {
         plot_curve,
         |c, path| match path {
             Some(path) => summary(c, path),
-            None => crate::output::terminal::wrap(CAUTION, 80, ""),
+            None => neckline_render::terminal::wrap(CAUTION, 80, ""),
         },
     )
 }
@@ -397,7 +398,7 @@ fn emit_with(
 ) -> Result<Outcome> {
     let plot_kind = out.plot.as_deref().map(plot_kind).transpose()?;
     for target in out.out.iter().chain(&out.plot) {
-        crate::output::guard_inputs(target, inputs)?;
+        neckline_core::output::guard_inputs(target, inputs)?;
     }
     let shown = out.out.clone().unwrap_or_else(|| PathBuf::from("<stdout>"));
     let (text, parsed) = curve.render_checked_with(&shown, header)?;
@@ -444,7 +445,7 @@ fn plot_curve(curve: &LimitCurve, path: &Path, svg: bool) -> Result<()> {
         material: curve.material.clone(),
         ..Job::default()
     };
-    let ctx = crate::analysis::Context {
+    let ctx = neckline_core::analysis::Context {
         curve: curve.clone(),
         settings: Settings::default(),
         lengths: Lengths {
@@ -481,7 +482,7 @@ fn plot_curve(curve: &LimitCurve, path: &Path, svg: bool) -> Result<()> {
 /// A few lines for people: the file written, its plane-strain limit and the caution.
 fn summary(c: &LimitCurve, path: &Path) -> String {
     let plane = c
-        .limit_major_eng(crate::strain::TrueStrain(0.0))
+        .limit_major_eng(neckline_core::strain::TrueStrain(0.0))
         .map_or_else(|| "not covered".into(), |e| format!("{:.2} %", e.percent()));
     format!(
         "Wrote {} ({} points, {} strain): {}\n\
@@ -491,7 +492,7 @@ fn summary(c: &LimitCurve, path: &Path) -> String {
         c.points.len(),
         c.measure,
         c.name,
-        crate::output::terminal::wrap(CAUTION, 80, "")
+        neckline_render::terminal::wrap(CAUTION, 80, "")
     )
 }
 
@@ -527,7 +528,7 @@ fn compare_table(
     pa: &Path,
     cb: &LimitCurve,
     pb: &Path,
-    minors: &[(f64, crate::strain::TrueStrain)],
+    minors: &[(f64, neckline_core::strain::TrueStrain)],
 ) -> String {
     let mut s = format!(
         "A: {} ({}, {} strain)\nB: {} ({}, {} strain)\n\
@@ -558,7 +559,7 @@ fn compare_table(
         ));
     }
     s.push('\n');
-    s.push_str(&crate::output::terminal::wrap(CAUTION, 80, ""));
+    s.push_str(&neckline_render::terminal::wrap(CAUTION, 80, ""));
     s
 }
 
@@ -571,7 +572,7 @@ pub struct FromPartsArgs {
     pub parts: PathBuf,
     /// Lengths and job file (d0 for the strains; t0 recorded as the curve's thickness).
     #[command(flatten)]
-    pub lengths: crate::cli::LengthArgs,
+    pub lengths: crate::args::LengthArgs,
     /// Knot spacing, percent true minor strain; also the width of a range of evidence.
     #[arg(long, value_name = "PCT", default_value_t = 5.0)]
     pub knot_spacing: f64,
@@ -598,7 +599,7 @@ pub struct PartsData {
     /// Rows read but with no condition marked.
     pub unmarked: usize,
     /// Rows rejected (unreadable, or no usable d0), with reasons.
-    pub rejected: Vec<crate::measure::RejectedRow>,
+    pub rejected: Vec<neckline_core::measure::RejectedRow>,
     /// Lowercase hex SHA-256 of the file's bytes as read.
     pub sha256: String,
     /// The lengths used.
@@ -607,28 +608,19 @@ pub struct PartsData {
     pub job: Job,
 }
 
-/// Lowercase hex SHA-256 (FIPS 180-4) of `bytes`.
-pub fn sha256_hex(bytes: &[u8]) -> String {
-    use sha2::Digest;
-    sha2::Sha256::digest(bytes)
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect()
-}
-
 /// Read the parts file (`-` = stdin) once into memory, hash those bytes, and read the circles
 /// from the same bytes, so that the recorded hash is that of the data the curve was fitted to.
 /// Strains: d0 from the row, else `--d0`, else the job file, as `check` does.
-pub fn read_parts(path: &Path, lengths: &crate::cli::LengthArgs) -> Result<PartsData> {
+pub fn read_parts(path: &Path, lengths: &crate::args::LengthArgs) -> Result<PartsData> {
     let job = super::load_job(lengths)?;
     let l = super::resolve_lengths(lengths, &job)?;
     let mut bytes = Vec::new();
-    crate::measure::open_input(path)?
+    neckline_core::measure::open_input(path)?
         .read_to_end(&mut bytes)
         .map_err(|e| Error::io(path, e))?;
     let sha256 = sha256_hex(&bytes);
     let map = super::column_map(lengths, &job);
-    let set = crate::measure::read_measurements_from(&bytes[..], path, &map)?;
+    let set = neckline_core::measure::read_measurements_from(&bytes[..], path, &map)?;
     let mut data = PartsData {
         circles: Vec::new(),
         unmarked: 0,
@@ -650,15 +642,15 @@ pub fn read_parts(path: &Path, lengths: &crate::cli::LengthArgs) -> Result<Parts
 
 /// The true strains of one marked circle; `Ok(None)` when no condition is marked.
 fn part_circle(
-    m: &crate::measure::Measurement,
+    m: &neckline_core::measure::Measurement,
     file: &Path,
     l: &Lengths,
-) -> std::result::Result<Option<PartCircle>, crate::measure::RejectedRow> {
+) -> std::result::Result<Option<PartCircle>, neckline_core::measure::RejectedRow> {
     let Some(condition) = m.condition else {
         return Ok(None);
     };
     // The same strains, from axes or strain columns, with the same refusals as `check`.
-    let s = crate::analysis::state_of(m.clone(), file, l)?.strain;
+    let s = neckline_core::analysis::state_of(m.clone(), file, l)?.strain;
     Ok(Some(PartCircle {
         id: m.id.clone(),
         minor: s.true_strain.minor.value(),
@@ -798,7 +790,7 @@ fn parts_curve(a: &FromPartsArgs, data: &PartsData, fit: &PartsFit) -> Generated
         thickness_mm: data
             .lengths
             .t0
-            .map(|t| crate::units::Length::new(t, data.lengths.unit).mm()),
+            .map(|t| neckline_core::units::Length::new(t, data.lengths.unit).mm()),
         measure: StrainMeasure::True,
         points_pct: fit.points_pct(),
         notes: overlap_table(fit),
@@ -839,7 +831,7 @@ pub fn overlap_table(fit: &PartsFit) -> Vec<String> {
 fn parts_summary(c: &LimitCurve, path: Option<&Path>, fit: &PartsFit, data: &PartsData) -> String {
     let n = fit.counts;
     let plane = c
-        .limit_major_eng(crate::strain::TrueStrain(0.0))
+        .limit_major_eng(neckline_core::strain::TrueStrain(0.0))
         .map_or_else(
             || "not covered (no circles at plane strain)".into(),
             |e| format!("{:.2} %", e.percent()),
@@ -882,8 +874,8 @@ fn parts_summary(c: &LimitCurve, path: Option<&Path>, fit: &PartsFit, data: &Par
         n.safe + n.failed()
     ));
     let words = format!("A {SHOP_CURVE_WORDS}.");
-    s.push_str(&crate::output::terminal::wrap(&words, 80, ""));
-    s.push_str(&crate::output::terminal::wrap(CAUTION, 80, ""));
+    s.push_str(&neckline_render::terminal::wrap(&words, 80, ""));
+    s.push_str(&neckline_render::terminal::wrap(CAUTION, 80, ""));
     s
 }
 

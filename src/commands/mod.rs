@@ -9,14 +9,14 @@ pub mod outputs;
 pub mod progress;
 pub mod strains;
 
-use crate::analysis::{Analysis, Lengths};
-use crate::assess::Settings;
-use crate::cli::{JudgeArgs, LengthArgs};
-use crate::error::{Error, Result};
-use crate::job::Job;
-use crate::limit::LimitCurve;
-use crate::measure::ColumnMap;
-use crate::units::{Length, LengthUnit};
+use crate::args::{JudgeArgs, LengthArgs};
+use neckline_core::analysis::{Analysis, Lengths};
+use neckline_core::assess::Settings;
+use neckline_core::error::{Error, Result};
+use neckline_core::job::Job;
+use neckline_core::limit::LimitCurve;
+use neckline_core::measure::ColumnMap;
+use neckline_core::units::{Length, LengthUnit};
 use std::path::{Path, PathBuf};
 
 /// What a command asks `main` to exit with.

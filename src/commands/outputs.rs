@@ -1,15 +1,16 @@
 //! Output selection shared by the commands that judge locations (`check`, `grid`): which files,
 //! where, checked before the work starts, and the summary printed after.
 
-use crate::analysis::Analysis;
-use crate::error::{Error, Result};
-use crate::output::fld::{self, FldOptions};
-use crate::output::map::MapValue;
-use crate::output::AtomicFile;
-use crate::output::{guard_inputs, map, report, summary_json, terminal, write_atomic};
-use crate::strain::StrainMeasure;
-use crate::summary::{MapPlane, View};
+use crate::args::{MapPlaneArg, MapValueArg};
 use clap::{Args, ValueEnum};
+use neckline_core::analysis::Analysis;
+use neckline_core::error::{Error, Result};
+use neckline_core::output::AtomicFile;
+use neckline_core::output::{guard_inputs, summary_json, write_atomic};
+use neckline_core::strain::StrainMeasure;
+use neckline_core::summary::{MapPlane, View};
+use neckline_render::fld::{self, FldOptions};
+use neckline_render::{map, report, terminal};
 use std::io::{IsTerminal, Write};
 use std::path::{Path, PathBuf};
 
@@ -62,11 +63,11 @@ pub struct OutputArgs {
     /// What the part map shows: the margin to the curve (pp), the thinning (%) or the major
     /// strain (engineering %).
     #[arg(long, value_name = "VALUE", default_value = "margin")]
-    pub map_value: MapValue,
+    pub map_value: MapValueArg,
     /// The plane the part map is drawn in (for parts whose main face is not in x-y; z comes
     /// from a `z` column or the grid).
     #[arg(long, value_name = "PLANE", default_value = "xy")]
-    pub map_plane: MapPlane,
+    pub map_plane: MapPlaneArg,
 }
 
 impl OutputArgs {
@@ -77,7 +78,7 @@ impl OutputArgs {
                 PlotStrain::Engineering => StrainMeasure::Engineering,
                 PlotStrain::True => StrainMeasure::True,
             },
-            plane: self.map_plane,
+            plane: self.map_plane.into(),
         }
     }
 }
@@ -173,7 +174,7 @@ pub fn emit(
     }
     let mut text = String::new();
     if a.summary.placed == 0 && (plan.svg.is_some() || plan.png.is_some()) {
-        let (u, v) = args.map_plane.axes();
+        let (u, v) = MapPlane::from(args.map_plane).axes();
         text.push_str(&format!(
             "note: no location has {u}, {v}: the part map was not drawn\n"
         ));
@@ -247,26 +248,27 @@ fn write_outputs(
     if let Some((f, m)) = &plan.svg {
         let svg = fld::fld_svg(a, &opts).map_err(|e| render(f, e))?;
         files.push((f.clone(), svg.into_bytes()));
-        if let Some(svg) = map::map_svg(a, args.map_value).map_err(|e| render(m, e))? {
+        if let Some(svg) = map::map_svg(a, args.map_value.into()).map_err(|e| render(m, e))? {
             files.push((m.clone(), svg.into_bytes()));
         }
         let p = f.with_file_name("peps.svg");
-        if let Some(svg) = crate::output::peps::peps_svg(a).map_err(|e| render(&p, e))? {
+        if let Some(svg) = neckline_render::peps::peps_svg(a).map_err(|e| render(&p, e))? {
             files.push((p, svg.into_bytes()));
         }
     }
     if let Some((f, m)) = &plan.png {
         files.push((f.clone(), fld::fld_png(a, &opts).map_err(|e| render(f, e))?));
-        if let Some(png) = map::map_png(a, args.map_value).map_err(|e| render(m, e))? {
+        if let Some(png) = map::map_png(a, args.map_value.into()).map_err(|e| render(m, e))? {
             files.push((m.clone(), png));
         }
         let p = f.with_file_name("peps.png");
-        if let Some(png) = crate::output::peps::peps_png(a).map_err(|e| render(&p, e))? {
+        if let Some(png) = neckline_render::peps::peps_png(a).map_err(|e| render(&p, e))? {
             files.push((p, png));
         }
     }
     if let Some(p) = &plan.html {
-        let html = report::report_html(a, &opts, args.map_value).map_err(|e| render(p, e))?;
+        let html =
+            report::report_html(a, &opts, args.map_value.into()).map_err(|e| render(p, e))?;
         files.push((p.clone(), html.into_bytes()));
     }
     let mut written = Vec::with_capacity(files.len() + 1);

@@ -1,15 +1,15 @@
 //! `neckline strains`: the strain columns alone, as CSV on stdout, streamed.
 
 use super::Outcome;
-use crate::analysis::{Analysis, Context, Lengths};
-use crate::assess::Settings;
-use crate::cli::LengthArgs;
-use crate::error::{Error, Result};
-use crate::limit::LimitCurve;
-use crate::measure::{open_input, Header};
-use crate::output::points_csv::Layout;
-use crate::stream::Pass;
+use crate::args::LengthArgs;
 use clap::Args;
+use neckline_core::analysis::{Analysis, Context, Lengths};
+use neckline_core::assess::Settings;
+use neckline_core::error::{Error, Result};
+use neckline_core::limit::LimitCurve;
+use neckline_core::measure::{open_input, Header};
+use neckline_core::output::points_csv::Layout;
+use neckline_core::stream::Pass;
 use std::io::Write;
 use std::path::PathBuf;
 
@@ -32,7 +32,7 @@ fn unbounded_curve() -> LimitCurve {
         source: "strains only".into(),
         material: None,
         thickness_mm: None,
-        measure: crate::strain::StrainMeasure::True,
+        measure: neckline_core::strain::StrainMeasure::True,
         points: vec![[-1e6, 1e6], [1e6, 1e6]],
         warnings: Vec::new(),
         true_path: Default::default(),

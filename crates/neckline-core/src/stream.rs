@@ -1,0 +1,570 @@
+//! The streaming pass: a measurement file read in chunks, judged on every core, written to
+//! points.csv in file order and folded into one [`Summary`], in memory that does not grow with
+//! the file (but for one 8-byte hash per location, to find duplicate ids).
+//!
+//! The main thread cuts the file into chunks at record boundaries (a small CSV state machine,
+//! so a quoted field with a line break is never cut) and keeps the order; rayon parses the
+//! chunks, then (after the main thread has marked duplicate ids, which needs the order) judges
+//! and formats them, each chunk into its own text and partial summary; the main thread writes
+//! the texts and merges the summaries in order.
+
+use crate::analysis::{strain_of, Context};
+use crate::error::{Error, Location, Result};
+use crate::measure::{csv_error, duplicate, Header, Measurement};
+use crate::output::points_csv::Layout;
+use crate::summary::{Summary, Template, View};
+use rayon::prelude::*;
+use std::hash::{Hash, Hasher};
+use std::io::{self, Read, Write};
+
+/// Target size of one chunk: large enough that a chunk's overhead is nothing, small enough
+/// that a batch of them in flight stays a few MB (1 KiB in the unit tests, so that a small
+/// file is cut into many chunks and their merging is tested).
+pub const CHUNK_BYTES: usize = if cfg!(test) { 1 << 10 } else { 1 << 18 };
+
+/// The longest record read (64 MiB): a longer one is an error, not a reason to hold the file.
+pub const MAX_RECORD_BYTES: usize = 64 << 20;
+
+/// A piece of the file's body that ends at a record boundary.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Chunk {
+    /// The bytes.
+    pub bytes: Vec<u8>,
+    /// The file's line number of the first byte.
+    pub first_line: u64,
+}
+
+/// Where a CSV scanner is within a record.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Scan {
+    /// At the start of a field.
+    FieldStart,
+    /// In an unquoted field.
+    Unquoted,
+    /// Inside quotes.
+    Quoted,
+    /// Just after a quote inside quotes: `""` is an escaped quote, anything else closes.
+    QuoteInQuoted,
+}
+
+/// Cuts a reader into [`Chunk`]s at record boundaries.
+pub struct Chunker<R: Read> {
+    input: R,
+    buf: Vec<u8>,
+    line: u64,
+    delimiter: u8,
+    eof: bool,
+    /// Bytes read from the input so far.
+    pub bytes_read: u64,
+}
+
+impl<R: Read> Chunker<R> {
+    /// Chunks of `input`, whose first byte is on line `first_line`.
+    pub fn new(input: R, first_line: u64, delimiter: u8) -> Self {
+        Chunker {
+            input,
+            buf: Vec::new(),
+            line: first_line,
+            delimiter,
+            eof: false,
+            bytes_read: 0,
+        }
+    }
+
+    fn fill(&mut self, want: usize) -> io::Result<()> {
+        while !self.eof && self.buf.len() < want {
+            let need = (want - self.buf.len()) as u64;
+            let n = (&mut self.input).take(need).read_to_end(&mut self.buf)?;
+            self.bytes_read += n as u64;
+            self.eof = n == 0;
+        }
+        Ok(())
+    }
+
+    /// The end of the last whole record in `bytes` (just after its line break), scanning from
+    /// a record start. Without a quote in `bytes` that is simply after the last line break.
+    fn last_record_end(&self, bytes: &[u8]) -> Option<usize> {
+        if memchr::memchr(b'"', bytes).is_none() {
+            return memchr::memrchr(b'\n', bytes).map(|i| i + 1);
+        }
+        let mut state = Scan::FieldStart;
+        let mut end = None;
+        for (i, &b) in bytes.iter().enumerate() {
+            state = match (state, b) {
+                (Scan::Quoted, b'"') => Scan::QuoteInQuoted,
+                (Scan::Quoted, _) => Scan::Quoted,
+                (Scan::QuoteInQuoted, b'"') => Scan::Quoted,
+                (_, b'\n') => {
+                    end = Some(i + 1);
+                    Scan::FieldStart
+                }
+                (_, d) if d == self.delimiter => Scan::FieldStart,
+                (Scan::FieldStart, b'"') => Scan::Quoted,
+                (Scan::FieldStart, b' ' | b'\t') => Scan::FieldStart,
+                _ => Scan::Unquoted,
+            };
+        }
+        end
+    }
+
+    /// The next chunk of about `target` bytes, or `None` at the end.
+    pub fn next_chunk(&mut self, target: usize) -> io::Result<Option<Chunk>> {
+        let mut want = target;
+        loop {
+            self.fill(want)?;
+            if self.buf.is_empty() {
+                return Ok(None);
+            }
+            let cut = if self.eof {
+                Some(self.buf.len())
+            } else {
+                self.last_record_end(&self.buf)
+            };
+            match cut {
+                Some(c) => {
+                    // The next buffer is made as large as a chunk at once, so that filling it
+                    // does not copy it again and again as it grows.
+                    let mut rest = Vec::with_capacity(want.max(self.buf.len() - c) + (1 << 16));
+                    rest.extend_from_slice(&self.buf[c..]);
+                    self.buf.truncate(c);
+                    let bytes = std::mem::replace(&mut self.buf, rest);
+                    let first_line = self.line;
+                    self.line += memchr::memchr_iter(b'\n', &bytes).count() as u64;
+                    return Ok(Some(Chunk { bytes, first_line }));
+                }
+                None if want >= MAX_RECORD_BYTES => {
+                    return Err(io::Error::new(
+                        io::ErrorKind::InvalidData,
+                        format!(
+                            "a record at line {} is longer than {} MiB (an unclosed quote?)",
+                            self.line,
+                            MAX_RECORD_BYTES >> 20
+                        ),
+                    ))
+                }
+                None => want *= 2,
+            }
+        }
+    }
+}
+
+/// The hash of a location's (id, stage) key.
+fn key_hash(m: &Measurement) -> u64 {
+    let mut h = std::hash::DefaultHasher::new();
+    (&m.id, &m.stage).hash(&mut h);
+    h.finish()
+}
+
+/// The set of (id, stage) keys seen, as 64-bit SipHash values in an open-addressing table
+/// filled to at most 7/8, sized from the file's length: about 9 bytes a location (two
+/// different keys share a hash with probability about n²/2⁶⁵: 3·10⁻⁸ at a million rows). The
+/// only memory of the pass that grows with the file.
+#[derive(Default)]
+pub struct SeenIds {
+    slots: Vec<u64>,
+    len: usize,
+}
+
+impl SeenIds {
+    /// Record a key's hash; `false` when it was seen before.
+    pub fn insert(&mut self, hash: u64) -> bool {
+        // 0 marks an empty slot: the one hash that is 0 is stored as 1.
+        let h = hash.max(1);
+        if (self.len + 1) * 8 > self.slots.len() * 7 {
+            self.grow((self.len + 1) * 2);
+        }
+        let n = self.slots.len();
+        // Multiply-shift maps the hash onto 0..n without a power-of-two size (Lemire 2019).
+        let mut i = ((u128::from(h) * n as u128) >> 64) as usize;
+        loop {
+            match self.slots[i] {
+                0 => {
+                    self.slots[i] = h;
+                    self.len += 1;
+                    return true;
+                }
+                s if s == h => return false,
+                _ => i = if i + 1 == n { 0 } else { i + 1 },
+            }
+        }
+    }
+
+    /// Make room for `n` more keys.
+    pub fn reserve(&mut self, n: usize) {
+        let want = self.len + n;
+        if want * 8 > self.slots.len() * 7 {
+            self.grow(want);
+        }
+    }
+
+    fn grow(&mut self, keys: usize) {
+        let size = (keys * 8 / 7 + 16).max(self.slots.len());
+        let old = std::mem::replace(&mut self.slots, vec![0; size]);
+        self.len = 0;
+        for h in old.into_iter().filter(|&h| h != 0) {
+            self.insert(h);
+        }
+    }
+}
+
+/// What one chunk gives: its points.csv text, its partial summary, and the key hash and line
+/// of each row it judged (for the check of duplicates, which needs the file's order).
+struct Judged {
+    text: Vec<u8>,
+    summary: Summary,
+    keys: Vec<(u64, u64)>,
+}
+
+/// Parse, judge and format the rows of one chunk, the rows at `duplicates` (lines) rejected as
+/// repeats of an earlier key.
+fn judge_chunk(
+    chunk: &Chunk,
+    pass: &Pass<'_>,
+    like: &Template,
+    duplicates: &[u64],
+) -> Result<Judged> {
+    let header = pass.header;
+    let mut reader = crate::measure::csv_reader(header.dialect, &chunk.bytes[..]);
+    let mut record = csv::StringRecord::new();
+    // Rows of points.csv are about 190 bytes, input rows 30 or more: room enough not to copy.
+    let room = if pass.write { chunk.bytes.len() * 8 } else { 0 };
+    let mut out = Judged {
+        text: Vec::with_capacity(room),
+        summary: like.part(),
+        keys: Vec::with_capacity(chunk.bytes.len() / 24),
+    };
+    let summary = &mut out.summary;
+    loop {
+        match reader.read_record(&mut record) {
+            Ok(false) => return Ok(out),
+            Err(e) => {
+                let err = csv_error(&Location::file(&header.file), e);
+                return Err(err.shift_line(chunk.first_line - 1));
+            }
+            // A blank spreadsheet row carries nothing to drop.
+            Ok(true) if record.iter().all(|f| f.trim().is_empty()) => continue,
+            Ok(true) => {}
+        }
+        let line = chunk.first_line + record.position().map_or(1, |p| p.line()) - 1;
+        let (m, disagree) = match header.row(&record, line) {
+            Ok(r) => r,
+            Err(r) => {
+                summary.rejected.push(r);
+                continue;
+            }
+        };
+        if duplicates.contains(&line) {
+            summary.rejected.push(duplicate(header, &m));
+            continue;
+        }
+        out.keys.push((key_hash(&m), line));
+        if disagree {
+            summary.disagree.push(m.id.clone());
+        }
+        match strain_of(&m, &header.file, &pass.ctx.lengths) {
+            Err(r) => summary.rejected.push(r),
+            Ok((d0, strain)) => {
+                let p = pass.ctx.judge_parts(m, d0, strain);
+                if pass.write {
+                    pass.layout.push_row(&mut out.text, &p);
+                }
+                summary.fold_ref(&p);
+            }
+        }
+    }
+}
+
+/// One streaming pass over a measurement file's body.
+pub struct Pass<'a> {
+    /// The file's header.
+    pub header: &'a Header,
+    /// What every location is judged with.
+    pub ctx: &'a Context,
+    /// The points.csv columns.
+    pub layout: &'a Layout,
+    /// How the pictures bin the locations.
+    pub view: View,
+    /// Whether rows are formatted for a points table.
+    pub write: bool,
+    /// The file's size, when known (to size the set of ids once).
+    pub size_hint: Option<u64>,
+}
+
+/// A batch of chunks read, or the error that stopped reading.
+fn read_batch<R: Read>(
+    chunks: &mut Chunker<R>,
+    n: usize,
+    file: &std::path::Path,
+) -> Result<Vec<Chunk>> {
+    let mut todo = Vec::with_capacity(n);
+    while todo.len() < n {
+        match chunks.next_chunk(CHUNK_BYTES) {
+            Ok(Some(c)) => todo.push(c),
+            Ok(None) => break,
+            Err(e) if e.kind() == io::ErrorKind::InvalidData => {
+                return Err(Error::input(Location::file(file), e.to_string()))
+            }
+            Err(e) => return Err(Error::io(file, e)),
+        }
+    }
+    Ok(todo)
+}
+
+impl Pass<'_> {
+    /// Read, judge and summarise every row of `body` (the input after the header), writing
+    /// the points table's rows to `sink` in file order. `progress` is told the bytes read.
+    ///
+    /// Three things overlap: the next batch of chunks is read while the present one is
+    /// parsed and judged on every core, and the judged text is written by a thread of its own.
+    pub fn run(
+        &self,
+        body: impl Read + Send,
+        sink: Option<&mut (dyn Write + Send)>,
+        progress: &mut dyn FnMut(u64),
+    ) -> Result<Summary> {
+        let h = self.header;
+        let mut chunks = Chunker::new(body, h.lines + 1, h.dialect.delimiter());
+        let mut seen = SeenIds::default();
+        let mut summary = Summary::new(self.view);
+        let batch = 2 * rayon::current_num_threads().max(1);
+        let out_err = |e| Error::io(std::path::Path::new("points.csv"), e);
+        std::thread::scope(|scope| {
+            let (tx, rx) = std::sync::mpsc::sync_channel::<Vec<u8>>(1);
+            let writer = sink.map(|w| {
+                scope.spawn(move || -> io::Result<()> {
+                    for text in rx {
+                        w.write_all(&text)?;
+                    }
+                    Ok(())
+                })
+            });
+            let mut todo = read_batch(&mut chunks, batch, &h.file)?;
+            let mut pending: Vec<Judged> = Vec::new();
+            let mut stopped = false;
+            // While one batch is judged on the workers, the one before it is written and
+            // merged and the next one read.
+            let mut take_in = |pending: Vec<Judged>, summary: &mut Summary| {
+                for j in pending {
+                    if writer.is_some() && !stopped && tx.send(j.text).is_err() {
+                        stopped = true; // the writer failed: its error is reported below
+                    }
+                    summary.merge(j.summary);
+                }
+            };
+            while !todo.is_empty() {
+                let template = summary.template();
+                let first = summary.total == 0 && summary.rejected.total == 0;
+                let (next, judged) = rayon::join(
+                    || {
+                        take_in(std::mem::take(&mut pending), &mut summary);
+                        read_batch(&mut chunks, batch, &h.file)
+                    },
+                    || self.batch(todo, &mut seen, &template, first),
+                );
+                pending = judged?;
+                progress(chunks.bytes_read);
+                todo = next?;
+            }
+            take_in(pending, &mut summary);
+            drop(tx);
+            if let Some(w) = writer {
+                w.join()
+                    .unwrap_or_else(|_| Err(io::Error::other("the writer thread failed")))
+                    .map_err(out_err)?;
+            }
+            Ok(summary)
+        })
+    }
+
+    /// Judge a batch of chunks in parallel, then check their keys in file order: a chunk with a
+    /// key seen before (rare) is judged again with those rows rejected as duplicates.
+    fn batch(
+        &self,
+        todo: Vec<Chunk>,
+        seen: &mut SeenIds,
+        like: &Template,
+        first: bool,
+    ) -> Result<Vec<Judged>> {
+        let judged: Vec<Result<Judged>> = todo
+            .par_iter()
+            .map(|c| judge_chunk(c, self, like, &[]))
+            .collect();
+        let mut judged = judged.into_iter().collect::<Result<Vec<_>>>()?;
+        if first {
+            // Room for the whole file at this batch's bytes per row, so the set of ids is not
+            // rehashed again and again.
+            let rows: usize = judged.iter().map(|j| j.keys.len()).sum();
+            let bytes: usize = todo.iter().map(|c| c.bytes.len()).sum::<usize>().max(1);
+            let size = self.size_hint.unwrap_or(0) as f64;
+            seen.reserve((rows as f64 * (size / bytes as f64).max(1.0)) as usize);
+        }
+        for (j, chunk) in judged.iter_mut().zip(&todo) {
+            let repeats: Vec<u64> = j
+                .keys
+                .iter()
+                .filter(|(hash, _)| !seen.insert(*hash))
+                .map(|(_, line)| *line)
+                .collect();
+            if !repeats.is_empty() {
+                *j = judge_chunk(chunk, self, like, &repeats)?;
+            }
+        }
+        Ok(judged)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A reader that gives at most 3 bytes a call, so that chunks end anywhere.
+    pub(super) struct Trickle<'a>(pub(super) &'a [u8]);
+
+    impl Read for Trickle<'_> {
+        fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
+            let n = buf.len().min(3).min(self.0.len());
+            buf[..n].copy_from_slice(&self.0[..n]);
+            self.0 = &self.0[n..];
+            Ok(n)
+        }
+    }
+
+    fn chunks(text: &str, target: usize) -> Vec<Chunk> {
+        let mut c = Chunker::new(Trickle(text.as_bytes()), 2, b',');
+        let mut v = Vec::new();
+        while let Some(ch) = c.next_chunk(target).unwrap() {
+            v.push(ch);
+        }
+        v
+    }
+
+    #[test]
+    fn chunks_end_at_records_and_keep_every_byte() {
+        let text = "A,1,2\nB,\"two\nlines\",3\nC,4,5\nD,6,7\n";
+        for target in 1..text.len() + 2 {
+            let c = chunks(text, target);
+            let joined: Vec<u8> = c.iter().flat_map(|c| c.bytes.clone()).collect();
+            assert_eq!(joined, text.as_bytes());
+            assert!(c.len() > 1 || target > text.len() / 2, "{target}");
+            for ch in &c {
+                // No chunk starts inside the quoted line break.
+                assert!(!ch.bytes.starts_with(b"lines"), "{target}");
+            }
+            // Line numbers follow the line breaks before each chunk.
+            let mut line = 2;
+            for ch in &c {
+                assert_eq!(ch.first_line, line);
+                line += ch.bytes.iter().filter(|&&b| b == b'\n').count() as u64;
+            }
+        }
+    }
+
+    /// The demo tryouts streamed in small chunks and judged in memory give the same zones,
+    /// margins, worst list and rows.
+    #[test]
+    fn streaming_agrees_with_judging_in_memory() {
+        use crate::analysis::{state_of, Analysis, Context, Lengths};
+        use crate::measure::{read_measurements_from, ColumnMap};
+        use std::path::Path;
+        let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+        let curve = crate::limit::LimitCurve::load(
+            &root.join("../../limits/steel-0.80mm-n0.20-keeler-brazier.toml"),
+        )
+        .unwrap();
+        let lengths = Lengths {
+            unit: Default::default(),
+            d0: Some(2.5),
+            t0: Some(0.8),
+        };
+        let ctx = Context {
+            curve,
+            settings: crate::assess::Settings::default(),
+            lengths,
+            strain_input: false,
+        };
+        for t in ["tryout-1.csv", "tryout-2.csv"] {
+            let path = root.join("../../demo-parts/rear-floor-pan").join(t);
+            let text = std::fs::read_to_string(&path).unwrap();
+            let set =
+                read_measurements_from(text.as_bytes(), &path, &ColumnMap::default()).unwrap();
+            let states = set
+                .points
+                .into_iter()
+                .map(|m| state_of(m, &path, &lengths).unwrap());
+            let (a, all) = Analysis::of_states(
+                path.clone(),
+                Default::default(),
+                ctx.clone(),
+                View::default(),
+                states,
+                set.rejected,
+                &[],
+            );
+            let layout = Layout::default();
+            let table = crate::output::points_csv::table(&layout, &all);
+
+            let mut input = text.as_bytes();
+            let header = Header::read(&mut input, &path, &ColumnMap::default()).unwrap();
+            let pass = Pass {
+                header: &header,
+                ctx: &ctx,
+                layout: &layout,
+                view: View::default(),
+                write: true,
+                size_hint: None,
+            };
+            let mut out = layout.header_line().into_bytes();
+            // Trickled input: many small chunks, so that merging is exercised.
+            let streamed = pass
+                .run(Trickle(input), Some(&mut out), &mut |_| {})
+                .unwrap();
+            assert_eq!(String::from_utf8(out).unwrap(), table, "{t}");
+            assert_eq!(streamed.counts, a.summary.counts, "{t}");
+            let ids = |s: &Summary| {
+                s.worst
+                    .iter()
+                    .map(|p| p.input.id.clone())
+                    .collect::<Vec<_>>()
+            };
+            assert_eq!(ids(&streamed), ids(&a.summary), "{t}");
+            assert_eq!(streamed.margins, a.summary.margins);
+            assert_eq!(streamed.kept, a.summary.kept);
+        }
+    }
+
+    #[test]
+    fn seen_ids_find_every_repeat_and_nothing_else() {
+        let mut s = SeenIds::default();
+        let keys: Vec<u64> = (0..10_000u64)
+            .map(|k| k.wrapping_mul(0x9E37_79B9_7F4A_7C15))
+            .collect();
+        for k in &keys {
+            assert!(s.insert(*k));
+        }
+        for k in &keys {
+            assert!(!s.insert(*k));
+        }
+        let mut z = SeenIds::default();
+        assert!(
+            z.insert(0) && !z.insert(0) && !z.insert(1),
+            "0 is kept as 1"
+        );
+        let mut r = SeenIds::default();
+        r.reserve(100);
+        let size = r.slots.len();
+        for k in 0..100u64 {
+            r.insert(k * 7919 + 3);
+        }
+        assert_eq!(r.slots.len(), size, "sized once from the reserve");
+    }
+
+    #[test]
+    fn escaped_quotes_do_not_confuse_the_cut() {
+        let c = Chunker::new(&b""[..], 1, b',');
+        let text = b"A,\"say \"\"hi\"\"\nthere\",1\nB,2";
+        assert_eq!(c.last_record_end(text), Some(23));
+        assert_eq!(&text[..23], b"A,\"say \"\"hi\"\"\nthere\",1\n");
+        // A quote inside an unquoted field is a character, not the start of quotes.
+        assert_eq!(c.last_record_end(b"A,5\" tape,1\nB"), Some(12));
+    }
+}

@@ -1,0 +1,845 @@
+//! What the outputs need of a whole file, in bounded memory: the [`Summary`] that judged
+//! locations are folded into one at a time, and that merges with the summary of the next part
+//! of the file. Counts, the worst locations, capped lists, and binned densities for the pictures;
+//! every location itself only while the file is small ([`KEEP_ALL`]).
+//!
+//! Folding every location of a file in order, and folding its parts separately then merging
+//! them in order, give the same summary (a test checks it): this is what lets parts of a file be
+//! judged on several threads.
+
+use crate::analysis::PointResult;
+use crate::assess::Zone;
+use crate::measure::RejectedRow;
+use crate::strain::StrainMeasure;
+use rustc_hash::FxHashMap;
+
+/// Up to this many locations, every one is kept and drawn as a marker.
+pub const KEEP_ALL: usize = 5_000;
+/// Beyond [`KEEP_ALL`], failed and marginal locations kept as markers (the rest are drawn as
+/// a density).
+pub const AT_RISK_KEPT: usize = 2_000;
+/// The worst locations kept, worst first.
+pub const WORST_KEPT: usize = 100;
+/// Ids kept per list (per zone, borderline) and rejected rows kept; the totals are counted.
+pub const LIST_CAP: usize = 1_000;
+
+/// The plane of the part map.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum MapPlane {
+    /// x across, y up (a part whose main face lies in x-y).
+    #[default]
+    Xy,
+    /// x across, z up.
+    Xz,
+    /// y across, z up.
+    Yz,
+}
+
+impl MapPlane {
+    /// The two coordinates of `p` in this plane, when it has them.
+    pub fn coords(self, p: &PointResult) -> Option<(f64, f64)> {
+        let m = &p.input;
+        let z = m.z.or_else(|| p.grid.as_ref().and_then(|g| g.z));
+        match self {
+            MapPlane::Xy => Some((m.x?, m.y?)),
+            MapPlane::Xz => Some((m.x?, z?)),
+            MapPlane::Yz => Some((m.y?, z?)),
+        }
+    }
+
+    /// The axis names.
+    pub fn axes(self) -> (&'static str, &'static str) {
+        match self {
+            MapPlane::Xy => ("x", "y"),
+            MapPlane::Xz => ("x", "z"),
+            MapPlane::Yz => ("y", "z"),
+        }
+    }
+}
+
+/// How the pictures will show the locations: decided before the pass, so that densities are
+/// binned in the right coordinates.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct View {
+    /// Strain measure of the diagram's axes.
+    pub measure: StrainMeasure,
+    /// Plane of the part map.
+    pub plane: MapPlane,
+}
+
+/// A value of a cell that absorbs another cell's.
+pub trait Cell: Default + Clone {
+    /// Take `other` into `self`.
+    fn absorb(&mut self, other: &Self);
+}
+
+/// A sparse square binning of the plane whose cells double in size when there are too many:
+/// bounded memory whatever the spread, and two binnings always merge (the finer is coarsened).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Bins<C> {
+    base: f64,
+    pub(crate) level: u32,
+    cap: usize,
+    cells: FxHashMap<(i64, i64), C>,
+    /// The cell added to last, not yet in `cells`: neighbouring locations usually share a
+    /// cell, so most additions touch no hash table.
+    pending: Option<((i64, i64), C)>,
+}
+
+impl<C: Cell> Bins<C> {
+    /// Cells of side `base` at first, at most `cap` of them.
+    pub fn new(base: f64, cap: usize) -> Self {
+        Bins {
+            base,
+            level: 0,
+            cap,
+            cells: FxHashMap::default(),
+            pending: None,
+        }
+    }
+
+    /// The cells by integer key at the current size (call [`Bins::flush`] first after adding).
+    pub fn cells(&self) -> &FxHashMap<(i64, i64), C> {
+        debug_assert!(self.pending.is_none(), "cells read before a flush");
+        &self.cells
+    }
+
+    /// Put the pending cell into the table.
+    pub fn flush(&mut self) {
+        if let Some((k, c)) = self.pending.take() {
+            self.cells.entry(k).or_default().absorb(&c);
+            if self.cells.len() > self.cap {
+                self.coarsen();
+            }
+        }
+    }
+
+    /// The side of a cell now.
+    pub fn size(&self) -> f64 {
+        self.base * f64::from(1u32 << self.level.min(30))
+    }
+
+    /// The key of the cell holding `(x, y)`.
+    pub fn key(&self, x: f64, y: f64) -> (i64, i64) {
+        let k = |v: f64| ((v / self.base).floor() as i64) >> self.level;
+        (k(x), k(y))
+    }
+
+    /// The lower-left corner of the cell `key`.
+    pub fn corner(&self, key: (i64, i64)) -> (f64, f64) {
+        (key.0 as f64 * self.size(), key.1 as f64 * self.size())
+    }
+
+    /// Add to the cell at `(x, y)` (ignored when not finite).
+    pub fn add(&mut self, x: f64, y: f64, f: impl FnOnce(&mut C)) {
+        if !(x.is_finite() && y.is_finite()) {
+            return;
+        }
+        let key = self.key(x, y);
+        match &mut self.pending {
+            Some((k, c)) if *k == key => f(c),
+            _ => {
+                self.flush();
+                let mut c = C::default();
+                f(&mut c);
+                self.pending = Some((key, c));
+            }
+        }
+    }
+
+    /// Double the cell size, merging each 2×2 block of cells.
+    pub fn coarsen(&mut self) {
+        if let Some((k, c)) = self.pending.take() {
+            self.cells.entry(k).or_default().absorb(&c);
+        }
+        self.level += 1;
+        let old = std::mem::take(&mut self.cells);
+        for ((i, j), c) in old {
+            self.cells.entry((i >> 1, j >> 1)).or_default().absorb(&c);
+        }
+    }
+
+    /// Coarsen until no more than `n` cells span `extent` along its longer side.
+    pub fn coarsen_to(&mut self, extent: f64, n: usize) {
+        while extent / self.size() > n as f64 && self.level < 30 {
+            self.coarsen();
+        }
+    }
+
+    /// Take `other`'s cells in.
+    pub fn merge(&mut self, mut other: Bins<C>) {
+        self.flush();
+        other.flush();
+        while self.level < other.level {
+            self.coarsen();
+        }
+        while other.level < self.level {
+            other.coarsen();
+        }
+        for (k, c) in other.cells {
+            self.cells.entry(k).or_default().absorb(&c);
+        }
+        while self.cells.len() > self.cap {
+            self.coarsen();
+        }
+    }
+}
+
+/// Locations per zone in one cell of the diagram.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct ZoneCounts(pub [u32; 6]);
+
+impl Cell for ZoneCounts {
+    fn absorb(&mut self, o: &Self) {
+        for (a, b) in self.0.iter_mut().zip(o.0) {
+            *a += b;
+        }
+    }
+}
+
+/// The worst values of the locations in one cell of the part map.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct MapCell {
+    /// Locations in the cell.
+    pub n: u32,
+    /// Smallest margin, pp (a location failed by thinning counts as below the curve).
+    pub margin: Option<f32>,
+    /// Largest thinning, percent.
+    pub thinning: f32,
+    /// Largest engineering major strain, percent.
+    pub major: f32,
+    /// Worst zone.
+    pub zone: Zone,
+}
+
+impl Default for MapCell {
+    fn default() -> Self {
+        MapCell {
+            n: 0,
+            margin: None,
+            thinning: f32::NEG_INFINITY,
+            major: f32::NEG_INFINITY,
+            zone: Zone::Safe,
+        }
+    }
+}
+
+impl Cell for MapCell {
+    fn absorb(&mut self, o: &Self) {
+        self.n += o.n;
+        self.margin = match (self.margin, o.margin) {
+            (Some(a), Some(b)) => Some(a.min(b)),
+            (a, b) => a.or(b),
+        };
+        self.thinning = self.thinning.max(o.thinning);
+        self.major = self.major.max(o.major);
+        self.zone = self.zone.min(o.zone);
+    }
+}
+
+impl MapCell {
+    /// The cell value of one location.
+    pub fn of(p: &PointResult) -> Self {
+        MapCell {
+            n: 1,
+            margin: map_margin(p).map(|m| m as f32),
+            thinning: (p.strain.thinning * 100.0) as f32,
+            major: p.strain.eng.major.percent() as f32,
+            zone: p.zone(),
+        }
+    }
+}
+
+/// The margin a location is coloured by on the map: a location failed by thinning keeps a
+/// positive margin, so it is shown just below the curve, never as safe.
+pub fn map_margin(p: &PointResult) -> Option<f64> {
+    let m = p.judgement.margin_pct;
+    if p.zone() == Zone::Failed {
+        // Failed by thinning can have no margin at all (minor strain outside the curve).
+        return Some(m.unwrap_or(0.0).min(-0.01));
+    }
+    m
+}
+
+/// The measured-against-computed thickness check over a file.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ThicknessCheck {
+    /// Locations with a measured value (and a computed one).
+    pub measured: usize,
+    /// The location whose measured value differs most from the computed one.
+    pub id: String,
+    /// That difference: percent of the computed thickness, or percentage points of thinning.
+    pub largest_diff: f64,
+}
+
+impl ThicknessCheck {
+    fn fold(this: &mut Option<Self>, id: &str, diff: Option<f64>) {
+        let Some(d) = diff else { return };
+        match this {
+            None => {
+                *this = Some(ThicknessCheck {
+                    measured: 1,
+                    id: id.to_string(),
+                    largest_diff: d,
+                })
+            }
+            Some(t) => {
+                t.measured += 1;
+                if d.abs() > t.largest_diff.abs() {
+                    t.id = id.to_string();
+                    t.largest_diff = d;
+                }
+            }
+        }
+    }
+
+    fn merge(this: &mut Option<Self>, other: Option<Self>) {
+        match (this.as_mut(), other) {
+            (_, None) => {}
+            (None, o) => *this = o,
+            (Some(t), Some(o)) => {
+                t.measured += o.measured;
+                if o.largest_diff.abs() > t.largest_diff.abs() {
+                    t.id = o.id;
+                    t.largest_diff = o.largest_diff;
+                }
+            }
+        }
+    }
+}
+
+/// A list that keeps its first [`LIST_CAP`] items and counts the rest.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Capped<T> {
+    /// The first items, in file order.
+    pub items: Vec<T>,
+    /// How many there were in all.
+    pub total: usize,
+}
+
+impl<T> Default for Capped<T> {
+    fn default() -> Self {
+        Capped {
+            items: Vec::new(),
+            total: 0,
+        }
+    }
+}
+
+impl<T> Capped<T> {
+    /// Add one.
+    pub fn push(&mut self, t: T) {
+        self.push_with(|| t);
+    }
+    /// Add one, made only when there is room for it.
+    pub fn push_with(&mut self, t: impl FnOnce() -> T) {
+        self.total += 1;
+        if self.items.len() < LIST_CAP {
+            self.items.push(t());
+        }
+    }
+    /// Append `other` (which follows in file order).
+    pub fn merge(&mut self, other: Capped<T>) {
+        self.total += other.total;
+        let room = LIST_CAP.saturating_sub(self.items.len());
+        self.items.extend(other.items.into_iter().take(room));
+    }
+}
+
+/// The rank of a location in the worst list: failed before marginal before the rest (a
+/// location failed by thinning can keep a positive margin), then smallest margin first.
+fn worst_key(p: &PointResult) -> (u8, f64) {
+    let rank = match p.zone() {
+        Zone::Failed => 0,
+        Zone::Marginal => 1,
+        _ => 2,
+    };
+    (rank, p.judgement.margin_pct.unwrap_or(f64::INFINITY))
+}
+
+fn at_risk(p: &PointResult) -> bool {
+    matches!(p.zone(), Zone::Failed | Zone::Marginal)
+}
+
+/// Min and max of a running extent `[x0, y0, x1, y1]`.
+fn widen(e: &mut Option<[f64; 4]>, x: f64, y: f64) {
+    if !(x.is_finite() && y.is_finite()) {
+        return;
+    }
+    let v = e.get_or_insert([x, y, x, y]);
+    *v = [v[0].min(x), v[1].min(y), v[2].max(x), v[3].max(y)];
+}
+
+fn widen_by(e: &mut Option<[f64; 4]>, o: Option<[f64; 4]>) {
+    if let Some(o) = o {
+        widen(e, o[0], o[1]);
+        widen(e, o[2], o[3]);
+    }
+}
+
+/// The cell sizes and keeping mode of a summary, for the summaries of the parts that follow it
+/// (any template gives the right merged summary; a recent one saves work).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Template {
+    view: View,
+    density_level: u32,
+    map_level: u32,
+    complete: bool,
+}
+
+impl Template {
+    /// An empty summary to fold the next part of the file into.
+    pub fn part(&self) -> Summary {
+        let mut s = Summary::new(self.view);
+        s.density.level = self.density_level;
+        s.map.level = self.map_level;
+        // Past the size where every location is kept, the parts keep only what a merge keeps.
+        s.complete = self.complete;
+        s
+    }
+}
+
+/// Everything the outputs need of a file's judged locations, in bounded memory.
+#[derive(Debug, Clone)]
+pub struct Summary {
+    /// The coordinates densities are binned in.
+    pub view: View,
+    /// Locations judged.
+    pub total: usize,
+    /// Locations per zone, in [`Zone::ALL`] order.
+    pub counts: [usize; 6],
+    /// Every location while [`Summary::complete`], else the first [`AT_RISK_KEPT`] failed or
+    /// marginal ones; in file order.
+    pub kept: Vec<PointResult>,
+    /// Whether `kept` holds every location.
+    pub complete: bool,
+    /// The worst locations, worst first (at most [`WORST_KEPT`]).
+    pub worst: Vec<PointResult>,
+    /// Ids per zone, in [`Zone::ALL`] order.
+    pub zone_ids: [Capped<String>; 6],
+    /// Rejected rows.
+    pub rejected: Capped<RejectedRow>,
+    /// Ids of locations whose zone could change within the reading error.
+    pub borderline: Capped<String>,
+    /// Measured against computed thickness (percent of the computed one).
+    pub thickness: Option<ThicknessCheck>,
+    /// Measured against computed thinning (percentage points).
+    pub thinning: Option<ThicknessCheck>,
+    /// Smallest and largest d0 used (axes only).
+    pub d0_range: Option<(f64, f64)>,
+    /// Diagram extent of the locations, axis coordinates `[x0, y0, x1, y1]`.
+    pub extent: Option<[f64; 4]>,
+    /// Smallest and largest margin, pp.
+    pub margins: Option<(f64, f64)>,
+    /// Locations per zone binned on the diagram (axis coordinates, percent).
+    pub density: Bins<ZoneCounts>,
+    /// Locations binned on the part map's plane.
+    pub map: Bins<MapCell>,
+    /// Map extent of the placed locations.
+    pub map_extent: Option<[f64; 4]>,
+    /// Locations with coordinates in the map's plane.
+    pub placed: usize,
+    /// Rows whose engineering and true strains disagree beyond rounding, first id.
+    pub disagree: Capped<String>,
+    /// Whether any location came from grid nodes, and any from a 3-D grid.
+    pub grid: (bool, bool),
+    /// Locations judged along a multi-stage path.
+    pub paths: usize,
+    /// Locations the strain curve calls safe or marginal and the path criterion at risk or failed.
+    pub hidden: Capped<String>,
+    /// Locations whose major axis turned between stages beyond the assumption's limit.
+    pub turned: Capped<String>,
+    /// Observed conditions (marked on the part) against the judged zones.
+    pub observed: crate::observed::ObservedTally,
+    /// Locations observed necked or split, kept for drawing (the first [`AT_RISK_KEPT`]).
+    pub observed_failed: Vec<PointResult>,
+}
+
+impl Summary {
+    /// An empty summary binned for `view`.
+    pub fn new(view: View) -> Self {
+        Summary {
+            view,
+            total: 0,
+            counts: [0; 6],
+            kept: Vec::new(),
+            complete: true,
+            worst: Vec::new(),
+            zone_ids: Default::default(),
+            rejected: Capped::default(),
+            borderline: Capped::default(),
+            thickness: None,
+            thinning: None,
+            d0_range: None,
+            extent: None,
+            margins: None,
+            density: Bins::new(0.25, 40_000),
+            map: Bins::new(0.01, 40_000),
+            map_extent: None,
+            placed: 0,
+            disagree: Capped::default(),
+            grid: (false, false),
+            paths: 0,
+            hidden: Capped::default(),
+            turned: Capped::default(),
+            observed: Default::default(),
+            observed_failed: Vec::new(),
+        }
+    }
+
+    /// An empty summary for the locations that follow `self`'s, binned at its cell sizes.
+    pub fn next_part(&self) -> Self {
+        self.template().part()
+    }
+
+    /// What a summary of the locations that follow needs to know of this one.
+    pub fn template(&self) -> Template {
+        Template {
+            view: self.view,
+            density_level: self.density.level,
+            map_level: self.map.level,
+            complete: self.complete,
+        }
+    }
+
+    /// Fold one judged location in (locations come in file order).
+    pub fn fold(&mut self, p: PointResult) {
+        self.fold_ref(&p);
+    }
+
+    /// [`Summary::fold`] by reference: the location is copied only where it is kept.
+    pub fn fold_ref(&mut self, p: &PointResult) {
+        self.count_in(p);
+        if p.input.condition.is_some_and(|c| c.failed())
+            && self.observed_failed.len() < AT_RISK_KEPT
+        {
+            self.observed_failed.push(p.clone());
+        }
+        self.keep(p);
+    }
+
+    fn count_in(&mut self, p: &PointResult) {
+        let z = p.zone() as usize;
+        self.total += 1;
+        self.counts[z] += 1;
+        self.zone_ids[z].push_with(|| p.input.id.clone());
+        if p.judgement.borderline {
+            self.borderline.push_with(|| p.input.id.clone());
+        }
+        ThicknessCheck::fold(&mut self.thickness, &p.input.id, p.thickness_diff_pct());
+        ThicknessCheck::fold(&mut self.thinning, &p.input.id, p.thinning_diff_pp());
+        if let Some(d0) = p.d0 {
+            let r = self.d0_range.get_or_insert((d0, d0));
+            *r = (r.0.min(d0), r.1.max(d0));
+        }
+        if let Some(m) = p.judgement.margin_pct {
+            let r = self.margins.get_or_insert((m, m));
+            *r = (r.0.min(m), r.1.max(m));
+        }
+        let (x, y) = point_xy(p, self.view.measure);
+        widen(&mut self.extent, x, y);
+        self.density.add(x, y, |c| c.0[z] += 1);
+        if let Some((u, v)) = self.view.plane.coords(p) {
+            self.placed += 1;
+            widen(&mut self.map_extent, u, v);
+            let cell = MapCell::of(p);
+            self.map.add(u, v, |c| c.absorb(&cell));
+        }
+        if let Some(g) = &p.grid {
+            self.grid.0 = true;
+            self.grid.1 |= g.normal.is_some();
+        }
+        self.observed.add(&p.input.id, p.zone(), p.input.condition);
+        if let Some(j) = &p.path {
+            self.paths += 1;
+            if j.hidden() {
+                self.hidden.push_with(|| p.input.id.clone());
+            }
+            if j.turned {
+                self.turned.push_with(|| p.input.id.clone());
+            }
+        }
+        if p.judgement.margin_pct.is_some() || p.zone() == Zone::Failed {
+            self.offer_worst(p);
+        }
+    }
+
+    fn offer_worst(&mut self, p: &PointResult) {
+        let k = worst_key(p);
+        if self.worst.len() == WORST_KEPT {
+            let last = worst_key(&self.worst[WORST_KEPT - 1]);
+            if k.0 > last.0 || (k.0 == last.0 && k.1.total_cmp(&last.1).is_ge()) {
+                return;
+            }
+        }
+        let before = |q: &PointResult| {
+            let kq = worst_key(q);
+            kq.0 < k.0 || (kq.0 == k.0 && kq.1.total_cmp(&k.1).is_le())
+        };
+        let at = self.worst.partition_point(before);
+        if at < WORST_KEPT {
+            self.worst.insert(at, p.clone());
+            self.worst.truncate(WORST_KEPT);
+        }
+    }
+
+    fn keep(&mut self, p: &PointResult) {
+        if self.complete && self.kept.len() < KEEP_ALL {
+            self.kept.push(p.clone());
+            return;
+        }
+        if self.complete {
+            self.complete = false;
+            self.kept.retain(at_risk);
+            self.kept.truncate(AT_RISK_KEPT);
+        }
+        if at_risk(p) && self.kept.len() < AT_RISK_KEPT {
+            self.kept.push(p.clone());
+        }
+    }
+
+    /// Merge the summary of the locations that follow this one's in the file.
+    pub fn merge(&mut self, o: Summary) {
+        let total = self.total + o.total;
+        if self.complete && o.complete && total <= KEEP_ALL {
+            self.kept.extend(o.kept);
+        } else {
+            self.kept.retain(at_risk);
+            self.kept.extend(o.kept.into_iter().filter(at_risk));
+            self.kept.truncate(AT_RISK_KEPT);
+            self.complete = false;
+        }
+        self.total = total;
+        for (a, b) in self.counts.iter_mut().zip(o.counts) {
+            *a += b;
+        }
+        for p in &o.worst {
+            self.offer_worst(p);
+        }
+        for (a, b) in self.zone_ids.iter_mut().zip(o.zone_ids) {
+            a.merge(b);
+        }
+        self.rejected.merge(o.rejected);
+        self.borderline.merge(o.borderline);
+        ThicknessCheck::merge(&mut self.thickness, o.thickness);
+        ThicknessCheck::merge(&mut self.thinning, o.thinning);
+        if let Some((lo, hi)) = o.d0_range {
+            let r = self.d0_range.get_or_insert((lo, hi));
+            *r = (r.0.min(lo), r.1.max(hi));
+        }
+        if let Some((lo, hi)) = o.margins {
+            let r = self.margins.get_or_insert((lo, hi));
+            *r = (r.0.min(lo), r.1.max(hi));
+        }
+        widen_by(&mut self.extent, o.extent);
+        widen_by(&mut self.map_extent, o.map_extent);
+        self.density.merge(o.density);
+        self.map.merge(o.map);
+        self.placed += o.placed;
+        self.disagree.merge(o.disagree);
+        self.grid = (self.grid.0 || o.grid.0, self.grid.1 || o.grid.1);
+        self.paths += o.paths;
+        self.hidden.merge(o.hidden);
+        self.turned.merge(o.turned);
+        self.observed.merge(o.observed);
+        let room = AT_RISK_KEPT.saturating_sub(self.observed_failed.len());
+        self.observed_failed
+            .extend(o.observed_failed.into_iter().take(room));
+    }
+
+    /// Put every pending cell into its table (after folding, before drawing).
+    pub fn flush(&mut self) {
+        self.density.flush();
+        self.map.flush();
+    }
+
+    /// Number of locations in `zone`.
+    pub fn count(&self, zone: Zone) -> usize {
+        self.counts[zone as usize]
+    }
+}
+
+/// A location's position on the diagram.
+pub fn point_xy(p: &PointResult, measure: StrainMeasure) -> (f64, f64) {
+    let s = &p.strain;
+    match measure {
+        StrainMeasure::Engineering => (s.eng.minor.percent(), s.eng.major.percent()),
+        StrainMeasure::True => (s.true_strain.minor.percent(), s.true_strain.major.percent()),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::{state_of, Context, Lengths};
+    use crate::assess::Settings;
+    use crate::limit::LimitCurve;
+    use crate::measure::Measurement;
+    use std::path::Path;
+
+    /// `n` judged locations (invented), spread over every zone, some with positions.
+    fn points(n: usize) -> Vec<PointResult> {
+        let curve = LimitCurve::parse(
+            "name = \"t\"\nsource = \"test\"\nstrain = \"engineering\"\npoints = [[-30, 50], [0, 30], [30, 45]]\n",
+            Path::new("c.toml"),
+        )
+        .unwrap();
+        let lengths = Lengths {
+            unit: Default::default(),
+            d0: Some(2.5),
+            t0: Some(0.8),
+        };
+        let ctx = Context {
+            curve,
+            settings: Settings::default(),
+            lengths,
+            strain_input: false,
+        };
+        let mut state = 11u64;
+        let mut next = || {
+            state = state
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        (0..n)
+            .map(|i| {
+                let minor = 2.5 * (0.6 + 0.8 * next());
+                let major = minor.max(2.5 * (0.95 + 0.5 * next()));
+                let mut m = Measurement::axes(&format!("P{i}"), i as u64 + 2, major, minor, None);
+                if i % 3 != 0 {
+                    m.x = Some((i % 97) as f64 * 3.7);
+                    m.y = Some((i / 97) as f64 * 2.9);
+                }
+                ctx.judge(state_of(m, Path::new("t.csv"), &lengths).unwrap())
+            })
+            .collect()
+    }
+
+    fn fold_all(ps: &[PointResult]) -> Summary {
+        let mut s = Summary::new(View::default());
+        for p in ps {
+            s.fold(p.clone());
+        }
+        s
+    }
+
+    /// Everything a summary holds, in a form that compares: maps as sorted lists.
+    fn shape(s: &Summary) -> String {
+        let mut s = s.clone();
+        s.flush();
+        let s = &s;
+        let mut d: Vec<_> = s.density.cells().iter().map(|(k, c)| (*k, c.0)).collect();
+        d.sort();
+        let mut m: Vec<_> = s
+            .map
+            .cells()
+            .iter()
+            .map(|(k, c)| (*k, c.n, c.margin.map(f32::to_bits), c.zone))
+            .collect();
+        m.sort();
+        let ids = |v: &[PointResult]| v.iter().map(|p| p.input.id.clone()).collect::<Vec<_>>();
+        format!(
+            "{} {:?} {} {:?} {:?} {:?} {:?} {:?} {:?} {} {:?} {:?} {} {}",
+            s.total,
+            s.counts,
+            s.complete,
+            ids(&s.kept),
+            ids(&s.worst),
+            s.zone_ids
+                .iter()
+                .map(|c| (&c.items, c.total))
+                .collect::<Vec<_>>(),
+            s.margins,
+            s.extent,
+            s.map_extent,
+            s.placed,
+            d,
+            m,
+            s.density.size(),
+            s.map.size()
+        )
+    }
+
+    // Folding every location in order and merging parts folded separately give one summary:
+    // what lets the stream judge parts of a file on several threads.
+    #[test]
+    fn merging_parts_equals_folding_everything() {
+        for n in [10, KEEP_ALL - 3, KEEP_ALL + 7, 3 * KEEP_ALL] {
+            let ps = points(n);
+            let whole = shape(&fold_all(&ps));
+            for parts in [2, 3, 7] {
+                let size = n.div_ceil(parts);
+                let mut merged = Summary::new(View::default());
+                for chunk in ps.chunks(size) {
+                    let mut part = merged.next_part();
+                    for p in chunk {
+                        part.fold(p.clone());
+                    }
+                    merged.merge(part);
+                }
+                assert_eq!(shape(&merged), whole, "{n} locations in {parts} parts");
+            }
+        }
+    }
+
+    #[test]
+    fn large_files_keep_only_the_at_risk_and_the_worst_in_order() {
+        let ps = points(3 * KEEP_ALL);
+        let mut s = fold_all(&ps);
+        s.flush();
+        assert!(!s.complete);
+        assert!(s.kept.iter().all(at_risk));
+        assert!(s.kept.len() <= AT_RISK_KEPT);
+        assert_eq!(s.worst.len(), WORST_KEPT);
+        // The worst list is the brute-force sort of every location, cut.
+        let mut all: Vec<&PointResult> = ps
+            .iter()
+            .filter(|p| p.judgement.margin_pct.is_some())
+            .collect();
+        all.sort_by(|a, b| {
+            worst_key(a)
+                .0
+                .cmp(&worst_key(b).0)
+                .then(worst_key(a).1.total_cmp(&worst_key(b).1))
+        });
+        let want: Vec<&str> = all
+            .iter()
+            .take(WORST_KEPT)
+            .map(|p| p.input.id.as_str())
+            .collect();
+        let got: Vec<&str> = s.worst.iter().map(|p| p.input.id.as_str()).collect();
+        assert_eq!(got, want);
+        assert_eq!(s.counts.iter().sum::<usize>(), ps.len());
+        let cells: u32 = s
+            .density
+            .cells
+            .values()
+            .map(|c| c.0.iter().sum::<u32>())
+            .sum();
+        assert_eq!(cells as usize, ps.len(), "every location is in the density");
+    }
+
+    #[test]
+    fn bins_coarsen_and_merge_whatever_their_size() {
+        let mut a: Bins<ZoneCounts> = Bins::new(1.0, 4);
+        for i in 0..20 {
+            a.add(i as f64, 0.5, |c| c.0[0] += 1);
+        }
+        a.flush();
+        assert!(a.cells().len() <= 4 && a.size() >= 4.0);
+        let mut b: Bins<ZoneCounts> = Bins::new(1.0, 1000);
+        b.add(3.5, 0.5, |c| c.0[1] += 1);
+        a.merge(b);
+        let total: u32 = a.cells().values().map(|c| c.0.iter().sum::<u32>()).sum();
+        assert_eq!(total, 21);
+        // Negative coordinates floor the same way at every size.
+        let mut n: Bins<ZoneCounts> = Bins::new(1.0, 100);
+        n.add(-0.5, -0.5, |c| c.0[0] += 1);
+        n.flush();
+        assert_eq!(n.cells().keys().next(), Some(&(-1, -1)));
+        n.coarsen();
+        assert_eq!(n.cells().keys().next(), Some(&(-1, -1)));
+        assert_eq!(n.corner((-1, -1)), (-2.0, -2.0));
+    }
+}

@@ -1,0 +1,22 @@
+//! # neckline-render
+//!
+//! Every picture and page neckline draws for people, from the one result of the core crate:
+//! the forming-limit diagram ([`fld`]), the part map ([`map`]), the strain-path diagram
+//! ([`peps`]), the printable report ([`report`], on the layout of [`page`]), the terminal
+//! summary ([`terminal`]) and the comparison of tryouts ([`compare`]). Fonts, palette, zone
+//! markers and label placement live in [`plot`].
+//!
+//! Caution: an aid to judgement. The user's own forming-limit data, local codes and licensed
+//! engineering practice govern.
+#![warn(missing_docs)]
+#![deny(clippy::float_cmp)]
+#![allow(clippy::result_large_err)]
+
+pub mod compare;
+pub mod fld;
+pub mod map;
+pub mod page;
+pub mod peps;
+pub mod plot;
+pub mod report;
+pub mod terminal;

@@ -1,0 +1,729 @@
+//! The part map (`map.svg`, `map.png`): every location with `x, y` (or the coordinates of the
+//! chosen plane) at its place on the part, coloured by its vertical margin on a continuous
+//! scale whose zone boundaries (0 = on the curve, the margin setting = edge of the safety band)
+//! are marked (or by its thinning or major strain), shaped by zone, the worst labelled, axes in
+//! the job's length unit at equal scale. A large file is drawn as a raster of cells, each
+//! coloured by the worst value in it, with the worst locations marked.
+
+use crate::fld::{draw_footer, title_lines, worst_label};
+use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult, Placer, SIZE};
+use neckline_core::analysis::{Analysis, PointResult};
+use neckline_core::assess::Zone;
+use plotters::coord::Shift;
+use plotters::prelude::*;
+use std::io;
+
+/// How many of the worst locations carry their id.
+pub const LABELLED: usize = 6;
+
+/// What the map colours each location (or cell) by.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum MapValue {
+    /// The vertical margin to the limit curve, pp (the worst = the smallest).
+    #[default]
+    Margin,
+    /// The thinning, percent of t0 (the worst = the largest).
+    Thinning,
+    /// The engineering major strain, percent (the worst = the largest).
+    Major,
+}
+
+/// Cells across the map's longer side when a large file is drawn as a raster.
+pub const RASTER_CELLS: usize = 120;
+
+/// Kept locations that have coordinates in the map's plane, with their position.
+pub fn placed(a: &Analysis) -> Vec<(&PointResult, (f64, f64))> {
+    let plane = a.summary.view.plane;
+    a.points()
+        .iter()
+        .filter_map(|p| Some((p, plane.coords(p)?)))
+        .collect()
+}
+
+/// The map as SVG, or `None` when no location has coordinates in the map's plane.
+pub fn map_svg(a: &Analysis, value: MapValue) -> io::Result<Option<String>> {
+    if a.summary.placed == 0 {
+        return Ok(None);
+    }
+    plot::render_svg(SIZE, |root| draw(root, a, value)).map(Some)
+}
+
+/// The map as PNG, or `None` when no location has coordinates in the map's plane.
+pub fn map_png(a: &Analysis, value: MapValue) -> io::Result<Option<Vec<u8>>> {
+    if a.summary.placed == 0 {
+        return Ok(None);
+    }
+    plot::render_png(SIZE, |root| draw(root, a, value)).map(Some)
+}
+
+/// A one-hue scale for thinning or major strain: light (low) to dark (high).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Ramp {
+    /// Low end.
+    pub lo: f64,
+    /// High end.
+    pub hi: f64,
+}
+
+/// Light to dark blue (ColorBrewer "Blues", Brewer, colorbrewer2.org): one hue, and not a zone
+/// colour, so a thinning or major-strain map never reads as zones.
+const RAMP: (Rgb, Rgb) = ((0xde, 0xeb, 0xf7), (0x08, 0x30, 0x6b));
+
+impl Ramp {
+    /// The colour of `v`.
+    pub fn colour(&self, v: f64) -> RGBColor {
+        let t = if self.hi > self.lo {
+            ((v - self.lo) / (self.hi - self.lo)).clamp(0.0, 1.0)
+        } else {
+            1.0
+        };
+        let (a, b) = RAMP;
+        let mix = |x: u8, y: u8| (x as f64 + t * (y as f64 - x as f64)).round() as u8;
+        RGBColor(mix(a.0, b.0), mix(a.1, b.1), mix(a.2, b.2))
+    }
+}
+
+/// The colour of one value on the map's scale.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Scale {
+    /// Margin, pp.
+    Margin(MarginScale),
+    /// Thinning or major strain, percent.
+    Ramp(Ramp),
+}
+
+impl Scale {
+    fn of(a: &Analysis, value: MapValue) -> Self {
+        let hi = |v: f64| ((v.max(5.0)) / 5.0).ceil() * 5.0;
+        match value {
+            MapValue::Margin => Scale::Margin(MarginScale::of(a)),
+            MapValue::Thinning => {
+                let top = a
+                    .summary
+                    .map
+                    .cells()
+                    .values()
+                    .map(|c| c.thinning)
+                    .fold(0f32, f32::max);
+                let top = a
+                    .settings
+                    .max_thinning_pct
+                    .map_or(top as f64, |m| m.max(top as f64));
+                Scale::Ramp(Ramp {
+                    lo: 0.0,
+                    hi: hi(top),
+                })
+            }
+            MapValue::Major => {
+                let top = a
+                    .summary
+                    .map
+                    .cells()
+                    .values()
+                    .map(|c| c.major)
+                    .fold(0f32, f32::max);
+                Scale::Ramp(Ramp {
+                    lo: 0.0,
+                    hi: hi(top as f64),
+                })
+            }
+        }
+    }
+
+    fn colour(&self, v: Option<f64>) -> RGBColor {
+        match (self, v) {
+            (_, None) => plot::palette::GREY,
+            (Scale::Margin(s), Some(v)) => s.colour(v),
+            (Scale::Ramp(r), Some(v)) => r.colour(v),
+        }
+    }
+}
+
+/// The value a location is coloured by.
+fn value_of(p: &PointResult, value: MapValue) -> Option<f64> {
+    match value {
+        MapValue::Margin => neckline_core::summary::map_margin(p),
+        MapValue::Thinning => Some(p.strain.thinning * 100.0),
+        MapValue::Major => Some(p.strain.eng.major.percent()),
+    }
+}
+
+/// The value a cell is coloured by.
+fn cell_value(c: &neckline_core::summary::MapCell, value: MapValue) -> Option<f64> {
+    match value {
+        MapValue::Margin => c.margin.map(f64::from),
+        MapValue::Thinning => Some(f64::from(c.thinning)),
+        MapValue::Major => Some(f64::from(c.major)),
+    }
+}
+
+/// The colour scale: margins from `lo` to `hi` percentage points. Below the band edge the
+/// zone colours themselves: the failed red at and below 0 (on the curve), the marginal yellow
+/// up to the band edge; beyond the edge a single-hue green ramp, light at the edge and dark far
+/// from it (the safe hue: further from the curve is darker). A change of zone shows as a change
+/// of hue.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct MarginScale {
+    /// Low end, pp.
+    pub lo: f64,
+    /// The safety band, pp.
+    pub band: f64,
+    /// High end, pp.
+    pub hi: f64,
+}
+
+type Rgb = (u8, u8, u8);
+/// Light to dark green, ending at the safe zone's green.
+const BEYOND: (Rgb, Rgb) = ((0xd4, 0xec, 0xd6), (0x22, 0x88, 0x33));
+
+impl MarginScale {
+    /// A scale that holds every margin of `a`, at least `−band/2 ..= 3·band`.
+    pub fn of(a: &Analysis) -> Self {
+        let band = a.settings.margin_pct.max(1.0);
+        let (lo, hi) = a
+            .summary
+            .margins
+            .map_or((-band / 2.0, 3.0 * band), |(l, h)| {
+                (l.min(-band / 2.0), h.max(3.0 * band))
+            });
+        MarginScale {
+            lo: (lo / 5.0).floor() * 5.0,
+            band,
+            hi: (hi / 5.0).ceil() * 5.0,
+        }
+    }
+
+    /// The colour of a margin.
+    pub fn colour(&self, m: f64) -> RGBColor {
+        use neckline_core::assess::ROUND_OFF_PP;
+        if m <= ROUND_OFF_PP {
+            return zone_colour(Zone::Failed);
+        }
+        if m < self.band - ROUND_OFF_PP {
+            return zone_colour(Zone::Marginal);
+        }
+        let m = m.clamp(self.band, self.hi);
+        let t = if self.hi > self.band {
+            (m - self.band) / (self.hi - self.band)
+        } else {
+            1.0
+        };
+        let (a, b) = BEYOND;
+        let mix = |x: u8, y: u8| (x as f64 + t * (y as f64 - x as f64)).round() as u8;
+        RGBColor(mix(a.0, b.0), mix(a.1, b.1), mix(a.2, b.2))
+    }
+}
+
+/// Ranges with equal scale on both axes for a plot `w × h` pixels holding `pts`.
+pub fn equal_ranges(pts: &[(f64, f64)], w: f64, h: f64) -> ((f64, f64), (f64, f64)) {
+    let fold = |f: fn(&(f64, f64)) -> f64| {
+        pts.iter()
+            .map(f)
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), v| {
+                (l.min(v), h.max(v))
+            })
+    };
+    let (x0, x1) = fold(|p| p.0);
+    let (y0, y1) = fold(|p| p.1);
+    let pad = 0.06 * (x1 - x0).max(y1 - y0).max(1.0);
+    let (x0, x1, y0, y1) = (x0 - pad, x1 + pad, y0 - pad, y1 + pad);
+    let per_px = ((x1 - x0) / w).max((y1 - y0) / h);
+    let (cx, cy) = ((x0 + x1) / 2.0, (y0 + y1) / 2.0);
+    let (hw, hh) = (per_px * w / 2.0, per_px * h / 2.0);
+    ((cx - hw, cx + hw), (cy - hh, cy + hh))
+}
+
+/// Convex hull (Andrew's monotone chain, Andrew 1979, Inf. Process. Lett. 9(5)), closed.
+pub fn hull(pts: &[(f64, f64)]) -> Vec<(f64, f64)> {
+    let mut p = pts.to_vec();
+    p.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1)));
+    p.dedup_by(|a, b| (a.0 - b.0).abs() < 1e-12 && (a.1 - b.1).abs() < 1e-12);
+    if p.len() < 3 {
+        return p;
+    }
+    let cross = |o: (f64, f64), a: (f64, f64), b: (f64, f64)| {
+        (a.0 - o.0) * (b.1 - o.1) - (a.1 - o.1) * (b.0 - o.0)
+    };
+    let mut h: Vec<(f64, f64)> = Vec::new();
+    for pass in [p.clone(), p.iter().rev().copied().collect()] {
+        let start = h.len();
+        for q in pass {
+            while h.len() >= start + 2 && cross(h[h.len() - 2], h[h.len() - 1], q) <= 0.0 {
+                h.pop();
+            }
+            h.push(q);
+        }
+        h.pop();
+    }
+    h.push(h[0]);
+    h
+}
+
+const TITLE_H: i32 = 92;
+const PLOT_RIGHT: i32 = 870;
+const FOOTER_TOP: i32 = 800;
+const PANEL_LEFT: i32 = 895;
+const MARGIN: i32 = 12;
+const X_LABEL: i32 = 50;
+const Y_LABEL: i32 = 70;
+
+fn draw<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    value: MapValue,
+) -> DrawResult<DB> {
+    root.fill(&WHITE)?;
+    let at = placed(a);
+    let mut pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
+    if let Some(e) = a.summary.map_extent {
+        pts.extend([(e[0], e[1]), (e[2], e[3])]);
+    }
+    let plot_w = (PLOT_RIGHT - 2 * MARGIN - Y_LABEL) as f64;
+    let plot_h = (FOOTER_TOP - TITLE_H - 2 * MARGIN - X_LABEL) as f64;
+    let (xr, yr) = equal_ranges(&pts, plot_w, plot_h);
+    let area = root.clone().shrink(
+        (0, TITLE_H),
+        (PLOT_RIGHT as u32, (FOOTER_TOP - TITLE_H) as u32),
+    );
+    let mut chart = ChartBuilder::on(&area)
+        .margin(MARGIN)
+        .x_label_area_size(X_LABEL)
+        .y_label_area_size(Y_LABEL)
+        .build_cartesian_2d(xr.0..xr.1, yr.0..yr.1)?;
+    let unit = a.lengths.unit.name();
+    let (u, v) = a.summary.view.plane.axes();
+    chart
+        .configure_mesh()
+        .x_desc(format!("{u}, {unit}"))
+        .y_desc(format!("{v}, {unit}"))
+        .axis_desc_style(plot::text(17.0))
+        .label_style(plot::text(14.0))
+        .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
+        .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
+        .light_line_style(RGBColor(244, 244, 244))
+        .bold_line_style(RGBColor(220, 220, 220))
+        .draw()?;
+    let px = |p: (f64, f64)| chart.backend_coord(&p);
+    let scale = Scale::of(a, value);
+    let (xs, ys) = chart.plotting_area().get_pixel_range();
+    let mut placer = Placer::new((xs.start + 2, ys.start + 2, xs.end - 2, ys.end - 2));
+    if a.summary.complete {
+        let hull_pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
+        let outline: Vec<(i32, i32)> = hull(&hull_pts).into_iter().map(px).collect();
+        if outline.len() >= 3 {
+            for d in plot::dashes(&outline, 6.0, 5.0) {
+                root.draw(&PathElement::new(
+                    d,
+                    RGBColor(150, 150, 150).stroke_width(1),
+                ))?;
+            }
+        }
+        let mut order = at.clone();
+        order.sort_by_key(|(p, _)| std::cmp::Reverse(p.zone()));
+        for (p, xy) in &order {
+            draw_marker(root, p, px(*xy), &scale, value, &mut placer)?;
+        }
+    } else {
+        draw_raster(root, a, value, &scale, &px, (xr.1 - xr.0).max(yr.1 - yr.0))?;
+        let plane = a.summary.view.plane;
+        for p in a.worst(MARKED_IN_RASTER).into_iter().rev() {
+            if let Some(xy) = plane.coords(p) {
+                draw_marker(root, p, px(xy), &scale, value, &mut placer)?;
+            }
+        }
+    }
+    let plane = a.summary.view.plane;
+    for p in &a.summary.observed_failed {
+        if let Some(xy) = plane.coords(p) {
+            root.draw(&Circle::new(px(xy), 12, BLACK.stroke_width(2)))?;
+        }
+    }
+    draw_worst(root, a, &px, &mut placer)?;
+    draw_title(root, a, value)?;
+    match scale {
+        Scale::Margin(s) => draw_scale(root, &s)?,
+        Scale::Ramp(r) => draw_ramp(root, &r, value, a.settings.max_thinning_pct)?,
+    }
+    draw_shapes(root, a)?;
+    draw_footer(root, a)
+}
+
+/// The worst locations marked on top of a raster map.
+pub const MARKED_IN_RASTER: usize = 30;
+
+fn draw_marker<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    p: &PointResult,
+    c: (i32, i32),
+    scale: &Scale,
+    value: MapValue,
+    placer: &mut Placer,
+) -> DrawResult<DB> {
+    // A location failed by thinning keeps a positive margin: it is coloured as failed all the
+    // same (see `map_margin`), so that no failed location looks safe on the map.
+    let shape = zone_shape(p.zone());
+    // Hollow (neutral) shapes keep their zone colour: one zone, one colour.
+    let fill = if shape.hollow() {
+        zone_colour(p.zone())
+    } else {
+        scale.colour(value_of(p, value))
+    };
+    marker(root, shape, c, 7, fill, BLACK)?;
+    if p.judgement.borderline {
+        crate::fld::borderline_ring(root, c, 13)?;
+    }
+    placer.obstacles.push((c.0 - 8, c.1 - 8, c.0 + 8, c.1 + 8));
+    Ok(())
+}
+
+/// Cells of the part, each coloured by the worst value of its locations.
+fn draw_raster<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    value: MapValue,
+    scale: &Scale,
+    px: &dyn Fn((f64, f64)) -> (i32, i32),
+    span: f64,
+) -> DrawResult<DB> {
+    let mut bins = a.summary.map.clone();
+    bins.coarsen_to(span, RASTER_CELLS);
+    let size = bins.size();
+    for (k, c) in bins.cells() {
+        let (x0, y0) = bins.corner(*k);
+        let (a0, b0) = px((x0, y0 + size));
+        let (a1, b1) = px((x0 + size, y0));
+        root.draw(&Rectangle::new(
+            [(a0, b0), (a1.max(a0 + 1), b1.max(b0 + 1))],
+            scale.colour(cell_value(c, value)).filled(),
+        ))?;
+    }
+    Ok(())
+}
+
+/// The colour bar of a thinning or major-strain map.
+fn draw_ramp<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    r: &Ramp,
+    value: MapValue,
+    max_thinning: Option<f64>,
+) -> DrawResult<DB> {
+    let (x, top, bottom, w) = (PANEL_LEFT, TITLE_H + 44, TITLE_H + 364, 26);
+    let title = match value {
+        MapValue::Thinning => "Thinning, %",
+        _ => "Major strain, eng. %",
+    };
+    root.draw_text(title, &plot::bold(16.0), (x, TITLE_H + 16))?;
+    let y_of =
+        |v: f64| bottom - ((v - r.lo) / (r.hi - r.lo) * (bottom - top) as f64).round() as i32;
+    for y in top..=bottom {
+        let v = r.lo + (bottom - y) as f64 / (bottom - top) as f64 * (r.hi - r.lo);
+        root.draw(&PathElement::new(
+            vec![(x, y), (x + w, y)],
+            r.colour(v).stroke_width(1),
+        ))?;
+    }
+    root.draw(&Rectangle::new(
+        [(x, top), (x + w, bottom)],
+        BLACK.stroke_width(1),
+    ))?;
+    let step = if r.hi - r.lo > 60.0 { 10.0 } else { 5.0 };
+    let mut v = r.lo;
+    while v <= r.hi + 1e-9 {
+        let y = y_of(v);
+        root.draw(&PathElement::new(
+            vec![(x + w, y), (x + w + 5, y)],
+            BLACK.stroke_width(1),
+        ))?;
+        root.draw_text(&format!("{v:.0}"), &plot::text(13.0), (x + w + 8, y - 7))?;
+        v += step;
+    }
+    if let (MapValue::Thinning, Some(m)) = (value, max_thinning) {
+        let y = y_of(m);
+        root.draw(&PathElement::new(
+            vec![(x - 6, y), (x + w + 40, y)],
+            BLACK.stroke_width(3),
+        ))?;
+        root.draw_text(
+            &format!("{m:.0}: max thinning"),
+            &plot::bold(13.0),
+            (x + w + 46, y - 8),
+        )?;
+    }
+    Ok(())
+}
+
+fn draw_worst<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    px: &dyn Fn((f64, f64)) -> (i32, i32),
+    placer: &mut Placer,
+) -> DrawResult<DB> {
+    let style = plot::bold(15.0);
+    let plane = a.summary.view.plane;
+    let shown = a
+        .worst(neckline_core::summary::WORST_KEPT)
+        .into_iter()
+        .filter_map(|p| Some((p, plane.coords(p)?)))
+        .take(LABELLED);
+    for (p, xy) in shown {
+        let text = worst_label(
+            p,
+            &a.settings,
+            neckline_core::strain::StrainMeasure::Engineering,
+        );
+        plot::label_box(root, placer, px(xy), &text, &style, BLACK)?;
+    }
+    Ok(())
+}
+
+fn draw_title<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    a: &Analysis,
+    value: MapValue,
+) -> DrawResult<DB> {
+    let (part, second, _) = title_lines(a);
+    let width = SIZE.0 - 30;
+    let head = plot::fit_px(root, &format!("Part map: {part}"), &plot::bold(23.0), width);
+    root.draw_text(&head, &plot::bold(23.0), (15, 10))?;
+    let t2 = plot::fit_px(root, &second, &plot::text(16.0), width);
+    root.draw_text(&t2, &plot::text(16.0), (15, 40))?;
+    let missing = a.total() - a.summary.placed;
+    let mut t3 = match value {
+        MapValue::Margin => format!(
+            "Colour: margin to the limit curve \"{}\" (pp of engineering major strain)",
+            a.curve.name
+        ),
+        MapValue::Thinning => "Colour: thinning, percent of t0".to_string(),
+        MapValue::Major => "Colour: major strain, engineering percent".to_string(),
+    };
+    if !a.summary.complete {
+        t3.push_str(&format!(
+            "; cells show the worst of their {} locations",
+            a.summary.placed
+        ));
+    }
+    t3.push_str("; equal scale on both axes");
+    if missing > 0 {
+        let (u, v) = a.summary.view.plane.axes();
+        t3.push_str(&format!(
+            "; {} without {u}, {v} not shown",
+            neckline_core::output::count_of(missing, "location")
+        ));
+    }
+    let t3 = plot::fit_px(root, &t3, &plot::text(14.0), width);
+    root.draw_text(&t3, &plot::text(14.0), (15, 64))
+}
+
+/// The vertical colour bar with its ticks and the zone boundaries.
+fn draw_scale<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    s: &MarginScale,
+) -> DrawResult<DB> {
+    let (x, top, bottom, w) = (PANEL_LEFT, TITLE_H + 44, TITLE_H + 364, 26);
+    root.draw_text("Margin, pp", &plot::bold(16.0), (x, TITLE_H + 16))?;
+    let y_of =
+        |m: f64| bottom - ((m - s.lo) / (s.hi - s.lo) * (bottom - top) as f64).round() as i32;
+    for y in top..=bottom {
+        let m = s.lo + (bottom - y) as f64 / (bottom - top) as f64 * (s.hi - s.lo);
+        root.draw(&PathElement::new(
+            vec![(x, y), (x + w, y)],
+            s.colour(m).stroke_width(1),
+        ))?;
+    }
+    root.draw(&Rectangle::new(
+        [(x, top), (x + w, bottom)],
+        BLACK.stroke_width(1),
+    ))?;
+    let step = if s.hi - s.lo > 60.0 { 10.0 } else { 5.0 };
+    let mut m = (s.lo / step).ceil() * step;
+    while m <= s.hi + 1e-9 {
+        let y = y_of(m);
+        // The boundaries carry their own label below.
+        if (m - 0.0).abs() > 1e-9 && (m - s.band).abs() > 1e-9 {
+            root.draw(&PathElement::new(
+                vec![(x + w, y), (x + w + 5, y)],
+                BLACK.stroke_width(1),
+            ))?;
+            root.draw_text(&format!("{m:.0}"), &plot::text(13.0), (x + w + 8, y - 7))?;
+        }
+        m += step;
+    }
+    for (v, label) in [(0.0, "on the curve"), (s.band, "band edge")] {
+        let y = y_of(v);
+        root.draw(&PathElement::new(
+            vec![(x - 6, y), (x + w + 40, y)],
+            BLACK.stroke_width(3),
+        ))?;
+        let text = format!("{v:.0}: {label}");
+        root.draw_text(&text, &plot::bold(13.0), (x + w + 46, y - 8))?;
+    }
+    let mid = |a: f64, b: f64| y_of((a + b) / 2.0) - 7;
+    let zone_text = plot::text(13.0).color(&RGBColor(70, 70, 70));
+    root.draw_text(
+        "failed",
+        &zone_text,
+        (x + w + 46, mid(s.lo, 0.0).max(y_of(0.0) + 10)),
+    )?;
+    root.draw_text("marginal", &zone_text, (x + w + 46, mid(0.0, s.band)))?;
+    root.draw_text(
+        "beyond the band",
+        &zone_text,
+        (x + w + 46, mid(s.band, s.hi)),
+    )?;
+    Ok(())
+}
+
+fn draw_shapes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> DrawResult<DB> {
+    let x = PANEL_LEFT;
+    let mut y = TITLE_H + 390;
+    root.draw_text("Shape = zone (locations)", &plot::bold(16.0), (x, y))?;
+    y += 26;
+    for (zone, n) in a.counts() {
+        marker(
+            root,
+            zone_shape(zone),
+            (x + 10, y + 8),
+            6,
+            zone_colour(zone),
+            BLACK,
+        )?;
+        root.draw_text(
+            &format!("{}  {n}", zone.name()),
+            &plot::text(14.0),
+            (x + 28, y),
+        )?;
+        y += 22;
+    }
+    y += 8;
+    root.draw_text(
+        "grey fill: no margin (uncovered)",
+        &plot::text(13.0),
+        (x, y),
+    )?;
+    y += 18;
+    if a.borderline().1 > 0 {
+        crate::fld::borderline_ring(root, (x + 6, y + 7), 7)?;
+        root.draw_text("dashed ring: borderline", &plot::text(13.0), (x + 18, y))?;
+        y += 18;
+    }
+    root.draw_text(
+        if a.summary.complete {
+            "dashed: hull of the measured locations"
+        } else {
+            "cells: the worst value of their locations"
+        },
+        &plot::text(13.0),
+        (x, y),
+    )?;
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn equal_ranges_have_equal_scale() {
+        let ((x0, x1), (y0, y1)) = equal_ranges(&[(0.0, 0.0), (1000.0, 200.0)], 700.0, 600.0);
+        let (sx, sy) = ((x1 - x0) / 700.0, (y1 - y0) / 600.0);
+        assert!((sx - sy).abs() < 1e-9 * sx, "{sx} {sy}");
+        assert!(x0 < 0.0 && x1 > 1000.0 && y0 < 0.0 && y1 > 200.0);
+    }
+
+    #[test]
+    fn scale_hits_its_anchors() {
+        let s = MarginScale {
+            lo: -10.0,
+            band: 10.0,
+            hi: 40.0,
+        };
+        // Below the band edge the zone colours themselves; beyond it a green ramp.
+        assert_eq!(s.colour(0.0), zone_colour(Zone::Failed)); // on the curve: failed
+        assert_eq!(s.colour(-8.0), zone_colour(Zone::Failed));
+        assert_eq!(s.colour(0.01), zone_colour(Zone::Marginal)); // just below: marginal
+        assert_eq!(s.colour(9.99), zone_colour(Zone::Marginal));
+        assert_eq!(s.colour(10.0), RGBColor(0xd4, 0xec, 0xd6)); // band edge: light green
+        assert_eq!(s.colour(99.0), zone_colour(Zone::Safe)); // far beyond: the safe green
+    }
+
+    #[test]
+    fn hull_of_square_with_inner_point() {
+        let h = hull(&[(0.0, 0.0), (1.0, 0.0), (1.0, 1.0), (0.0, 1.0), (0.5, 0.5)]);
+        assert_eq!(h.len(), 5); // four corners, closed
+        assert!(!h.contains(&(0.5, 0.5)));
+    }
+}
+
+#[cfg(test)]
+mod render_tests {
+    use super::*;
+    use neckline_core::output::fixture;
+
+    #[test]
+    fn no_positions_no_map() {
+        let a = fixture::analysis(false);
+        assert!(map_svg(&a, MapValue::Margin).unwrap().is_none());
+        assert!(map_png(&a, MapValue::Margin).unwrap().is_none());
+    }
+
+    #[test]
+    fn svg_holds_every_location_and_the_scale() {
+        let a = fixture::analysis(true);
+        let svg = map_svg(&a, MapValue::Margin).unwrap().unwrap();
+        let count = |needle: &str| svg.matches(needle).count();
+        let n = |z: Zone| a.count(z);
+        // Marker primitives at the map's size (r = 7) against the zone counts; the legend's
+        // markers are drawn at r = 6. Failed: a disc of r + 1 = 8 with a white bar.
+        assert_eq!(count("r=\"8\" opacity=\"1\" fill=\"#"), n(Zone::Failed));
+        assert_eq!(
+            count("width=\"12\" height=\"12\" opacity=\"1\" fill=\"#"),
+            n(Zone::Safe)
+        );
+        assert_eq!(
+            count("<polygon"),
+            n(Zone::Marginal) + n(Zone::Uncovered) + 2,
+            "triangles and diamonds, legend included"
+        );
+        // Hollow neutral shapes: rings (low-stretch) and triangles pointing down (thickening).
+        assert_eq!(
+            count("r=\"7\" opacity=\"1\" fill=\"none\" stroke=\"#444444\""),
+            n(Zone::LowStretch)
+        );
+        for text in [
+            "Part map: TP-1 test panel &lt;LH&gt; &amp; co (invented)",
+            "x, mm",
+            "y, mm",
+            "0: on the curve",
+            "10: band edge",
+            "Margin, pp",
+            "Caution: neckline is an aid to judgement.",
+        ] {
+            assert!(svg.contains(text), "missing `{text}`");
+        }
+        for p in a.worst(LABELLED) {
+            assert!(
+                svg.contains(&worst_label(
+                    p,
+                    &a.settings,
+                    neckline_core::strain::StrainMeasure::Engineering
+                )),
+                "worst {} not labelled",
+                p.input.id
+            );
+        }
+    }
+
+    #[test]
+    fn png_has_expected_size_and_text_in_title() {
+        let a = fixture::analysis(true);
+        let img = image::load_from_memory(&map_png(&a, MapValue::Margin).unwrap().unwrap())
+            .unwrap()
+            .to_rgb8();
+        assert_eq!((img.width(), img.height()), SIZE);
+        let dark = (0..TITLE_H as u32)
+            .flat_map(|y| (0..SIZE.0).map(move |x| (x, y)))
+            .filter(|&(x, y)| img.get_pixel(x, y).0.iter().all(|&c| c < 100))
+            .count();
+        assert!(dark > 2000, "only {dark} dark pixels in the title band");
+    }
+}
