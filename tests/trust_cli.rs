@@ -218,7 +218,7 @@ fn grid_messages_name_the_element_and_count_elements() {
 
 // `grid --reading-error`: a 2.5 mm cell stretched 20 % along x on a flat curve. Every corner
 // feeds the centre gradient, so δ = 0.01 mm on each node coordinate moves the major strain by
-// up to 2δ/h = 0.8 % (the derivation in src/grid/reading.rs), not δ/d0 = 0.35 % of a circle of
+// up to 2δ/h = 0.8 % (the derivation in crates/neckline-core/src/grid/uncertainty.rs), not δ/d0 = 0.35 % of a circle of
 // the cell's area.
 #[test]
 fn grid_reading_error_counts_every_corner() {

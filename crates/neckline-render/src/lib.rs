@@ -16,6 +16,7 @@ pub mod compare;
 pub mod fld;
 pub mod map;
 pub mod page;
+pub mod parts;
 pub mod peps;
 pub mod plot;
 pub mod report;

@@ -9,7 +9,7 @@
 pub mod deformation;
 pub mod mesh;
 pub mod read;
-pub mod reading;
+pub mod uncertainty;
 
 use crate::error::Location;
 use crate::kinematics::StrainState;
@@ -36,7 +36,7 @@ pub struct GridExtras {
     pub reference_centre: [f64; 2],
     /// How the stretches move with each deformed node, for the margin's uncertainty under a
     /// reading error ([`reading`]).
-    pub sensitivity: Option<reading::StretchSensitivity>,
+    pub sensitivity: Option<uncertainty::StretchSensitivity>,
 }
 
 pub use crate::analysis::StateInput;
@@ -79,7 +79,7 @@ pub fn element_name(e: &Element, regular_grid: bool) -> String {
 }
 
 /// Replace the circle rule's margin uncertainty of a grid element by the node-error one
-/// ([`reading::margin_uncertainty_pct`]), with `settings.reading_error` on every deformed node
+/// ([`uncertainty::margin_uncertainty_pct`]), with `settings.reading_error` on every deformed node
 /// coordinate, and set the borderline flag from it.
 pub fn node_reading_uncertainty(
     p: &mut crate::analysis::PointResult,
@@ -95,7 +95,7 @@ pub fn node_reading_uncertainty(
     ) else {
         return;
     };
-    let u = reading::margin_uncertainty_pct(&sens, curve, p.strain.eng.minor.value(), dd);
+    let u = uncertainty::margin_uncertainty_pct(&sens, curve, p.strain.eng.minor.value(), dd);
     p.judgement.uncertainty_pct = Some(u);
     p.judgement.borderline = crate::assess::is_borderline(m, u, settings);
 }
@@ -121,7 +121,7 @@ pub fn evaluate(
             Ok(r) => match state_input(e, &r, mesh.three_d) {
                 Some(mut s) => {
                     if let Some(g) = s.grid.as_mut() {
-                        g.sensitivity = reading::sensitivity(mesh, e);
+                        g.sensitivity = uncertainty::sensitivity(mesh, e);
                     }
                     ok.push(s)
                 }

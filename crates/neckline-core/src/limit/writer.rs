@@ -17,6 +17,10 @@ pub const PREDICTION_HEADER: &str =
     "A prediction from material data, not a tested curve: replace it with the\n\
 # material's tested curve as soon as one exists.";
 
+/// The words every press-shop curve carries in its `source`.
+pub const SHOP_CURVE_WORDS: &str = "press-shop curve from parts: holds for this material lot, \
+thickness and process; not a laboratory curve (ISO 12004-2)";
+
 /// The first comment lines of a press-shop curve derived from circles on necked or split parts.
 pub const SHOP_HEADER: &str =
     "A press-shop curve from circles read on necked or split parts: evidence about\n\

@@ -21,6 +21,15 @@ pub fn count_of(n: usize, noun: &str) -> String {
     }
 }
 
+/// How an input path is named to people: `-` is standard input.
+pub fn input_name(path: &Path) -> String {
+    if path.as_os_str() == "-" {
+        "standard input".into()
+    } else {
+        path.display().to_string()
+    }
+}
+
 /// Refuse `target` if it is one of `inputs` (compared after resolving links and `..`).
 pub fn guard_inputs(target: &Path, inputs: &[PathBuf]) -> Result<()> {
     let Ok(t) = fs::canonicalize(target) else {
