@@ -1,7 +1,8 @@
 //! Grid node files: the table reader, the node checks and the cells of a row/col grid.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
-use neckline_core::grid::read::{grid_cells, nodes_from_table, read_table_from};
+use neckline_core::grid::read::{grid_cells, nodes_from_table};
+use neckline_core::table::read_table_from;
 use std::path::Path;
 
 fuzz_target!(|data: &[u8]| {

@@ -1,7 +1,7 @@
 //! Outline point files for `fit`: the table reader, the grouping and the robust fit.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
-use neckline_core::grid::read::read_table_from;
+use neckline_core::table::read_table_from;
 use std::path::Path;
 
 fuzz_target!(|data: &[u8]| {

@@ -4,8 +4,8 @@ use super::Outcome;
 use clap::Args;
 use neckline_core::error::{Error, Result};
 use neckline_core::fit::outlines::{fit_outline, outlines, write_fits};
-use neckline_core::grid::read::read_table;
 use neckline_core::output::write_atomic;
+use neckline_core::table::read_table;
 use std::path::{Path, PathBuf};
 
 /// Arguments of `fit`.

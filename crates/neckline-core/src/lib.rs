@@ -32,6 +32,7 @@ pub mod path;
 pub mod strain;
 pub mod stream;
 pub mod summary;
+pub mod table;
 pub mod units;
 
 pub use analysis::{Analysis, CAUTION};

@@ -4,12 +4,13 @@
 
 use neckline_core::analysis::{Context, Lengths};
 use neckline_core::assess::Settings;
-use neckline_core::grid::read::{elements_from_table, nodes_from_table, read_table_from};
+use neckline_core::grid::read::{elements_from_table, nodes_from_table};
 use neckline_core::job::Job;
 use neckline_core::limit::LimitCurve;
 use neckline_core::measure::{read_measurements_from, screen, ColumnMap, Header, RowRules};
 use neckline_core::output::points_csv::Layout;
 use neckline_core::stream::Pass;
+use neckline_core::table::read_table_from;
 use proptest::prelude::*;
 use std::path::Path;
 

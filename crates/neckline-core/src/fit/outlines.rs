@@ -3,7 +3,7 @@
 
 use super::{fit_robust, RobustFit};
 use crate::error::{Location, Result};
-use crate::grid::read::Table;
+use crate::table::Table;
 use nalgebra::Vector2;
 use std::io::Write;
 use std::path::Path;
