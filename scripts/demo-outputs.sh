@@ -45,7 +45,7 @@ run shop "$bin" limit from-parts $d/rear-floor-pan-shop-curve/parts.csv --job $d
 run t1shop "$bin" check $d/rear-floor-pan/tryout-1.csv --job $d/rear-floor-pan/job-t1.toml --limit "$T/14-shop/shop.toml" --out "$T/15-t1shop"
 run bracket "$bin" check $d/tunnel-bracket-two-stage/bracket.csv --job $d/tunnel-bracket-two-stage/job.toml --out "$T/16-bracket"
 run truestrain "$bin" check $d/rear-floor-pan/tryout-1.csv --job $d/rear-floor-pan/job-t1.toml --plot-strain true --margin 8 --max-thinning 25 --fail-on marginal --reading-error 0.02 --out "$T/17-truestrain"
-run stdout "$bin" check $d/rear-floor-pan/tryout-1.csv --job $d/rear-floor-pan/job-t1.toml --format json --points -
+run stdout "$bin" check $d/rear-floor-pan/tryout-1.csv --job $d/rear-floor-pan/job-t1.toml --format json --points - --out "$T/18-stdout"
 run several "$bin" check $d/rear-floor-pan/tryout-1.csv $d/rear-floor-pan/tryout-2.csv --job $d/rear-floor-pan/job-t1.toml --out "$T/19-several"
 run help "$bin" --help
 for c in check strains compare grid fit limit; do run "help-$c" "$bin" "$c" --help; done
