@@ -61,3 +61,46 @@ pub fn check_name(name: &str) -> std::result::Result<(), String> {
         ))
     }
 }
+
+#[cfg(test)]
+mod tests {
+    //! Expectations from the doc comments of [`ColumnMap`] (`NAME=HEADER`, headers matched
+    //! ignoring case and surrounding spaces, the command line winning over the job file).
+    use super::*;
+
+    #[test]
+    fn an_argument_is_a_name_and_a_header() {
+        assert_eq!(
+            ColumnMap::parse_arg(" Major_True_Pct = Major strain (%) "),
+            Ok(("major_true_pct".to_string(), "Major strain (%)".to_string()))
+        );
+        let e = ColumnMap::parse_arg("major_true_pct").unwrap_err();
+        assert!(e.starts_with("expected NAME=HEADER"), "{e}");
+        let e = ColumnMap::parse_arg("epsilon1=Major").unwrap_err();
+        assert!(
+            e.starts_with("`epsilon1` is not a column neckline reads"),
+            "{e}"
+        );
+        assert!(e.contains("major_true_pct"), "{e}");
+        assert!(check_name("angle_deg").is_ok());
+    }
+
+    #[test]
+    fn a_later_entry_wins_and_headers_match_ignoring_case_and_spaces() {
+        let mut map = ColumnMap::default();
+        map.extend([("major".into(), "Dmax".into())], "job.toml [columns]");
+        map.extend(Vec::new(), "nothing");
+        map.extend(
+            [
+                ("major".into(), "D1 (mm)".into()),
+                ("minor".into(), "Dmax".into()),
+            ],
+            "--column",
+        );
+        assert_eq!(map.origin, "job.toml [columns] and --column");
+        assert_eq!(map.entries.len(), 2);
+        assert_eq!(map.name_of("  d1 (MM) "), Some("major"));
+        assert_eq!(map.name_of("dmax"), Some("minor"));
+        assert_eq!(map.name_of("d2"), None);
+    }
+}

@@ -1,9 +1,9 @@
 //! Which field of a row holds what: neckline's column names, the columns a points.csv written by
 //! `check` adds, and [`Columns`], recognised from a header through a [`ColumnMap`].
 
+use super::recognise::Fields;
 use super::ColumnMap;
-use crate::error::{Error, Location, Result};
-use std::collections::HashSet;
+use crate::error::{Location, Result};
 
 /// neckline's names for the columns it reads.
 pub const NAMES: [&str; 17] = [
@@ -28,7 +28,7 @@ pub const NAMES: [&str; 17] = [
 
 /// Columns of a points.csv written by `check` that are results, not readings: left aside
 /// without a warning when such a file is judged again.
-const OWN_RESULT_COLUMNS: &[&str] = &[
+pub(super) const OWN_RESULT_COLUMNS: &[&str] = &[
     "thickness_true_pct",
     "thickness",
     "thinning_pct",
@@ -109,7 +109,7 @@ pub(super) enum Kind {
 /// The recognised columns of a header.
 #[derive(Debug, Clone)]
 pub struct Columns {
-    /// The header as written, for messages.
+    /// neckline's name of each field (the header through the map), for messages.
     pub(super) names: Vec<String>,
     pub(super) id: Option<usize>,
     pub(super) kind: Kind,
@@ -125,19 +125,6 @@ pub struct Columns {
     pub(super) angle: Option<usize>,
 }
 
-fn canonical(name: &str) -> String {
-    let n = name
-        .trim()
-        .trim_start_matches('\u{feff}')
-        .trim()
-        .to_ascii_lowercase();
-    match n.as_str() {
-        "d1" => "major".into(),
-        "d2" => "minor".into(),
-        _ => n,
-    }
-}
-
 impl Columns {
     /// Recognise the columns of `header`, through `map`. Returns the columns and notes for the
     /// user (ignored columns, strain columns in use).
@@ -146,174 +133,13 @@ impl Columns {
         map: &ColumnMap,
         loc: &Location,
     ) -> Result<(Self, Vec<String>)> {
-        let at = |i: usize, n: &str| loc.clone().at_line(1).at_column(i as u64 + 1, n);
-        for (name, h) in &map.entries {
-            if !header
-                .iter()
-                .any(|f| f.trim().eq_ignore_ascii_case(h.trim()))
-            {
-                return Err(Error::input(
-                    loc.clone().at_line(1),
-                    format!(
-                        "column map ({}): `{name} = \"{h}\"`, but the header has no column \
-                         `{h}` (found: {})",
-                        map.origin,
-                        header.iter().collect::<Vec<_>>().join(", ")
-                    ),
-                ));
-            }
-        }
-        let names: Vec<String> = header
-            .iter()
-            .map(|h| map.name_of(h).map_or_else(|| canonical(h), str::to_string))
-            .collect();
-        let own =
-            names.iter().any(|n| n == "thickness_true_pct") && names.iter().any(|n| n == "zone");
-        let mut seen = HashSet::new();
-        for (i, n) in names.iter().enumerate() {
-            if !n.is_empty() && !seen.insert(n.clone()) {
-                return Err(Error::input(
-                    at(i, n),
-                    format!("column `{n}` appears twice in the header"),
-                ));
-            }
-        }
-        let find = |n: &str| names.iter().position(|c| c == n);
-        let pair = |a: &str, b: &str| -> Result<Option<(usize, usize)>> {
-            match (find(a), find(b)) {
-                (Some(i), Some(j)) => Ok(Some((i, j))),
-                (None, None) => Ok(None),
-                (Some(i), None) | (None, Some(i)) => {
-                    let missing = if names[i] == a { b } else { a };
-                    Err(Error::input(
-                        loc.clone().at_line(1),
-                        format!(
-                            "missing column `{missing}`: `{a}` and `{b}` come as a pair, the \
-                             header has only `{}` (found: {})",
-                            names[i],
-                            header.iter().collect::<Vec<_>>().join(", ")
-                        ),
-                    ))
-                }
-            }
-        };
-        let axes = pair("major", "minor")?;
-        let eng = pair("major_eng_pct", "minor_eng_pct")?;
-        let tru = pair("major_true_pct", "minor_true_pct")?;
+        let fields = Fields::new(header, map, loc)?;
         let mut notes = Vec::new();
-        let kind = match (axes, eng, tru) {
-            (Some(_), None, None) => {
-                let (major, minor) = axes.unwrap_or_default();
-                Kind::Axes { major, minor }
-            }
-            (Some((a, _)), e, t) => {
-                let s = e.or(t).map_or(0, |p| p.0);
-                return Err(Error::input(
-                    loc.clone().at_line(1),
-                    format!(
-                        "the header has both ellipse axes (`{}`) and strains (`{}`): give one \
-                         or the other (remove or rename the columns you do not mean)",
-                        header.get(a).unwrap_or(""),
-                        header.get(s).unwrap_or("")
-                    ),
-                ));
-            }
-            (None, Some((major, minor)), None) => Kind::Eng { major, minor },
-            (None, None, Some((major, minor))) => Kind::True { major, minor },
-            (None, Some(e), Some(t)) => {
-                if !own {
-                    notes.push(
-                        "both engineering and true strain columns: true strain is used, \
-                         engineering is checked against it"
-                            .to_string(),
-                    );
-                }
-                Kind::Both { eng: e, tru: t }
-            }
-            (None, None, None) => {
-                let mut msg = format!(
-                    "missing columns: the header must name id, major and minor (ellipse axes), \
-                     or major_eng_pct/minor_eng_pct or major_true_pct/minor_true_pct (strains, \
-                     percent) (found: {})",
-                    header.iter().collect::<Vec<_>>().join(", ")
-                );
-                if !map.entries.is_empty() {
-                    msg.push_str(&format!(
-                        "; the column map ({}) maps {}",
-                        map.origin,
-                        map.entries
-                            .iter()
-                            .map(|(n, h)| format!("`{h}` to {n}"))
-                            .collect::<Vec<_>>()
-                            .join(", ")
-                    ));
-                } else {
-                    msg.push_str("; map other headers with --column NAME=HEADER or [columns] in the job file");
-                }
-                return Err(Error::input(loc.clone().at_line(1), msg));
-            }
-        };
-        let id = find("id");
-        if id.is_none() {
-            if matches!(kind, Kind::Axes { .. }) {
-                return Err(Error::input(
-                    loc.clone().at_line(1),
-                    format!(
-                        "missing column `id`: the header must name id, major and minor (found: {}){}",
-                        header.iter().collect::<Vec<_>>().join(", "),
-                        if map.entries.is_empty() { String::new() } else { format!("; column map ({})", map.origin) }
-                    ),
-                ));
-            }
-            notes.push("no id column: each location is named by its line in the file".into());
-        }
-        let strains = !matches!(kind, Kind::Axes { .. });
-        if strains && find("d0").is_some() && !own {
-            notes.push("the d0 column is not used: the file gives strains, not axes".into());
-        }
-        // In a points.csv written by `check`, `thickness` and `thinning_pct` are computed: the
-        // measured thickness is `thickness_measured`.
-        let (thickness, thinning) = if own {
-            (find("thickness_measured"), find("thinning_measured_pct"))
-        } else {
-            (find("thickness"), find("thinning_pct"))
-        };
-        let used: Vec<&str> = if own {
-            let mut v = NAMES.to_vec();
-            v.extend(OWN_RESULT_COLUMNS);
-            v.extend(PATH_COLUMNS);
-            v.extend(["thickness_measured", "thinning_measured_pct"]);
-            v.extend(GRID_COLUMNS);
-            v
-        } else {
-            let mut v = NAMES.to_vec();
-            v.push("");
-            v
-        };
-        let ignored: Vec<String> = names
-            .iter()
-            .filter(|n| !used.contains(&n.as_str()))
-            .cloned()
-            .collect();
-        if !ignored.is_empty() {
-            notes.push(format!("ignored columns: {}", ignored.join(", ")));
-        }
-        let cols = Columns {
-            id,
-            kind,
-            d0: if strains { None } else { find("d0") },
-            x: find("x"),
-            y: find("y"),
-            z: find("z"),
-            stage: find("stage"),
-            thickness,
-            thinning,
-            note: find("note"),
-            condition: find("condition"),
-            angle: find("angle_deg"),
-            names,
-        };
-        Ok((cols, notes))
+        let kind = fields.kind(&mut notes)?;
+        let id = fields.id(kind, &mut notes)?;
+        let d0 = fields.d0(kind, &mut notes);
+        notes.extend(fields.ignored());
+        Ok((fields.into_columns(kind, id, d0), notes))
     }
 
     /// Whether rows give strains rather than axes.
@@ -338,5 +164,39 @@ impl Columns {
             "y" => self.y.is_some(),
             _ => self.names.iter().any(|n| n == name),
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    //! Expectations from the module documentation of `measure` (the columns it reads) and the
+    //! doc comments of [`Columns::has`] and [`Columns::index`].
+    use super::*;
+    use std::path::Path;
+
+    #[test]
+    fn every_name_is_accepted_once_and_nothing_else() {
+        for (i, n) in NAMES.iter().enumerate() {
+            assert!(super::super::check_name(n).is_ok(), "{n}");
+            assert!(!NAMES[..i].contains(n), "{n} twice");
+        }
+        assert!(super::super::check_name("major_pct").is_err());
+    }
+
+    #[test]
+    fn a_column_is_found_by_neckline_name() {
+        let header = csv::StringRecord::from(vec![
+            "Stage",
+            "major_true_pct",
+            "minor_true_pct",
+            "thinning_pct",
+        ]);
+        let loc = Location::file(Path::new("m.csv"));
+        let (cols, _) = Columns::from_header(&header, &ColumnMap::default(), &loc).unwrap();
+        assert_eq!(cols.index("stage"), Some(0));
+        assert_eq!(cols.index("minor_true_pct"), Some(2));
+        assert_eq!(cols.index("x"), None);
+        assert!(cols.has("stage") && cols.has("thinning_pct") && cols.has("major_true_pct"));
+        assert!(!cols.has("z") && !cols.has("note") && !cols.has("angle_deg"));
     }
 }

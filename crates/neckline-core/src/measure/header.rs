@@ -113,3 +113,66 @@ impl Header {
         .read()
     }
 }
+
+#[cfg(test)]
+mod tests {
+    //! Expectations from the doc comments of [`Header`] and README.md, "What input is refused,
+    //! and why" (a header of more than 1000 fields rejects the file).
+    use super::super::Reading;
+    use super::*;
+
+    fn read(text: &str) -> (Result<Header>, String) {
+        let mut input = text.as_bytes();
+        let header = Header::read(&mut input, Path::new("m.csv"), &ColumnMap::default());
+        (header, String::from_utf8_lossy(input).into_owned())
+    }
+
+    #[test]
+    fn comments_are_counted_and_the_input_is_left_at_the_first_row() {
+        let (header, rest) = read("# part 4711\n\n# d0 2.5\nid;major;minor\nA1;2,6;2,5\n");
+        let header = header.unwrap();
+        assert_eq!(header.dialect, Dialect::Semicolon);
+        assert_eq!(header.lines, 4);
+        assert_eq!(rest, "A1;2,6;2,5\n");
+        assert!(!header.columns.gives_strains());
+        let (header, _) = read("id\tmajor\tminor");
+        let header = header.unwrap();
+        assert_eq!((header.dialect, header.lines), (Dialect::Tab, 1));
+    }
+
+    #[test]
+    fn a_file_without_a_usable_header_is_refused() {
+        let e = read("# only a comment\n\n").0.unwrap_err().to_string();
+        assert!(e.starts_with("m.csv: the file is empty"), "{e}");
+        let wide = format!("id,major,minor{}\n", ",extra".repeat(MAX_FIELDS - 2));
+        let e = read(&wide).0.unwrap_err().to_string();
+        assert!(
+            e.starts_with("m.csv:1: the header has 1001 fields, more than 1000"),
+            "{e}"
+        );
+        let e = read("id,major\n").0.unwrap_err().to_string();
+        assert!(e.starts_with("m.csv:1: missing column `minor`"), "{e}");
+    }
+
+    #[test]
+    fn a_row_is_read_at_its_line_with_the_rules_in_force() {
+        let (header, _) = read("id,major,minor\n");
+        let header = header.unwrap().with_rules(RowRules {
+            d0: Some(2.5),
+            ..RowRules::default()
+        });
+        let record = csv::StringRecord::from(vec!["A7", "2.50", "2.51"]);
+        let (m, disagree) = header.row(&record, 9).unwrap();
+        assert_eq!((m.id.as_str(), m.line, disagree), ("A7", 9, false));
+        assert!(matches!(m.reading, Reading::Axes { major, .. } if (major - 2.51).abs() < 1e-12));
+        let note = header.swap_note().unwrap();
+        assert!(note.starts_with("1 row read minor a hair above major (within 1 % of d0)"));
+        assert!(note.contains("first at line 9"), "{note}");
+        let bad = csv::StringRecord::from(vec!["A8", "x", "2.5"]);
+        let e = header.row(&bad, 10).unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            "m.csv:10:2 (column `major`): expected a finite number, found `x`"
+        );
+    }
+}

@@ -26,17 +26,19 @@
 //! implausible strain.
 //!
 //! The code is cut by concern, every public item re-exported here: `dialect.rs` (separator,
-//! numbers, the header line, CSV errors), `columns.rs` (which field holds what, and the column
-//! names) with `column_map.rs` (a file's own headers mapped onto them), `header.rs` (a parsed
-//! header), `rules.rs` (the per-row rules: size caps, plausible strains, near-equal axes),
-//! `row.rs` (one row into a measurement), `screen.rs` (the plausibility screen of the first rows)
-//! and `reader.rs` (opening a file and iterating its rows).
+//! numbers, the header line, CSV errors); `columns.rs` (the column names and which field holds
+//! what), `column_map.rs` (a file's own headers mapped onto the names) and `recognise.rs` (a
+//! header's columns found, kind by kind); `header.rs` (a parsed header); `rules.rs` (the per-row
+//! rules: size caps, plausible strains, near-equal axes) and `row.rs` (one row into a
+//! measurement); `screen.rs` (the plausibility screen of the first rows); `reader.rs` (opening a
+//! file and iterating its rows).
 
 mod column_map;
 mod columns;
 mod dialect;
 mod header;
 mod reader;
+mod recognise;
 mod row;
 mod rules;
 mod screen;
@@ -157,4 +159,37 @@ pub struct MeasurementSet {
     pub rejected: Vec<RejectedRow>,
     /// Notes on the header (ignored columns, how the columns were read).
     pub notes: Vec<String>,
+}
+
+#[cfg(test)]
+mod tests {
+    //! Expectations from the doc comments of [`Measurement::axes`] and [`RejectedRow`] (where:
+    //! file, line and column).
+    use super::*;
+    use std::path::Path;
+
+    #[test]
+    fn a_rejected_row_names_file_line_and_column() {
+        let row = RejectedRow {
+            location: Location::file(Path::new("parts/m.csv"))
+                .at_line(12)
+                .at_column(3, "minor"),
+            id: Some("A1".into()),
+            reason: "expected a finite number, found `n/a`".into(),
+        };
+        assert_eq!(
+            row.to_string(),
+            "parts/m.csv:12:3 (column `minor`): expected a finite number, found `n/a`"
+        );
+    }
+
+    #[test]
+    fn a_location_read_as_axes_carries_nothing_else() {
+        let m = Measurement::axes("A1", 4, 2.9, 2.6, Some(2.5));
+        assert_eq!((m.id.as_str(), m.line), ("A1", 4));
+        assert!(
+            matches!(m.reading, Reading::Axes { d0: Some(d0), .. } if (d0 - 2.5).abs() < 1e-12)
+        );
+        assert!(m.x.is_none() && m.stage.is_none() && m.condition.is_none() && m.note.is_none());
+    }
 }

@@ -146,3 +146,66 @@ pub fn duplicate(header: &Header, m: &Measurement) -> RejectedRow {
         reason,
     }
 }
+
+#[cfg(test)]
+mod tests {
+    //! Expectations from the doc comments of [`read_measurements_from`] and
+    //! [`MeasurementReader`] and the module documentation of `measure` (an empty or duplicate
+    //! id rejects the row; a file without data rows is refused).
+    use super::super::Dialect;
+    use super::*;
+
+    fn read(text: &[u8]) -> Result<MeasurementSet> {
+        read_measurements_from(text, Path::new("m.csv"), &ColumnMap::default())
+    }
+
+    #[test]
+    fn rows_are_kept_in_order_with_duplicates_rejected_per_stage() {
+        let text =
+            b"id;major;minor;stage\nA1;2,6;2,5;op10\n\n ; \nA1;2,9;2,6;op20\nA1;3,0;2,6;op20\n";
+        let set = read(text).unwrap();
+        assert_eq!(set.dialect, Dialect::Semicolon);
+        assert_eq!(set.source, Path::new("m.csv"));
+        let lines: Vec<u64> = set.points.iter().map(|m| m.line).collect();
+        assert_eq!(lines, [2, 5]);
+        assert_eq!(set.rejected.len(), 1);
+        assert_eq!(
+            set.rejected[0].to_string(),
+            "m.csv:6:1 (column `id`): duplicate id `A1` in stage `op20`: each location is \
+             measured once per stage"
+        );
+        assert_eq!(set.rejected[0].id.as_deref(), Some("A1"));
+    }
+
+    #[test]
+    fn a_file_without_rows_or_with_broken_text_is_refused() {
+        let e = read(b"# note\nid,major,minor\n\n").unwrap_err().to_string();
+        assert_eq!(e, "m.csv: the file has a header but no measurement rows");
+        // A byte that is not UTF-8 is refused at its line: by the text check of the start of
+        // the file, or, further on, by the reader, which then ends the rows.
+        let e = read(b"id,major,minor\nA1,2.6,2.5\nA2,2.\xff,2.5\nA3,2.6,2.5\n")
+            .unwrap_err()
+            .to_string();
+        assert!(e.starts_with("m.csv:3:") && e.contains("not UTF-8"), "{e}");
+        let header = Header::read(
+            &mut &b"id,major,minor\n"[..],
+            Path::new("m.csv"),
+            &ColumnMap::default(),
+        )
+        .unwrap();
+        let mut rows =
+            MeasurementReader::after(&b"A1,2.6,2.5\nA2,\xff,2\nA3,2.6,2.5\n"[..], header);
+        assert!(matches!(rows.next(), Some(Ok(Ok(_)))));
+        let e = rows.next().unwrap().unwrap_err().to_string();
+        assert!(e.starts_with("m.csv:3: the file is not valid UTF-8"), "{e}");
+        assert!(rows.next().is_none());
+    }
+
+    #[test]
+    fn a_missing_file_is_an_error_naming_it() {
+        let path = Path::new("no-such-dir-for-neckline/m.csv");
+        let e = open_input(path).err().unwrap().to_string();
+        assert!(e.starts_with("no-such-dir-for-neckline/m.csv: "), "{e}");
+        assert!(read_measurements(path).is_err());
+    }
+}

@@ -193,3 +193,100 @@ impl RowReader<'_> {
         ))
     }
 }
+
+#[cfg(test)]
+mod tests {
+    //! Expectations from the module documentation of `measure` ("What rejects one row") and
+    //! README.md, "What input is refused, and why" (trailing empty fields are read as the row).
+    use super::super::{ColumnMap, Header, RowRules};
+    use super::*;
+
+    fn row(header: &str, fields: &[&str]) -> std::result::Result<Measurement, RejectedRow> {
+        let header = Header::read(
+            &mut header.as_bytes(),
+            Path::new("m.csv"),
+            &ColumnMap::default(),
+        )
+        .unwrap()
+        .with_rules(RowRules {
+            d0: Some(2.5),
+            ..RowRules::default()
+        });
+        let record = csv::StringRecord::from(fields.to_vec());
+        header.row(&record, 2).map(|(m, _)| m)
+    }
+
+    fn refused(header: &str, fields: &[&str]) -> String {
+        row(header, fields).unwrap_err().to_string()
+    }
+
+    #[test]
+    fn a_missing_or_empty_cell_rejects_the_row_where_it_is() {
+        let h = "id,major,minor\n";
+        assert_eq!(
+            refused(h, &["A1", "2.6"]),
+            "m.csv:2: expected 3 fields as in the header, found 2"
+        );
+        assert_eq!(
+            refused(h, &["A1", "", "2.5"]),
+            "m.csv:2:2 (column `major`): expected a number, found an empty field"
+        );
+        assert_eq!(
+            refused(h, &[" ", "2.6", "2.5"]),
+            "m.csv:2:1 (column `id`): empty id"
+        );
+        let e = row(h, &["A1", "2.6"]).unwrap_err();
+        assert_eq!((e.location.line, e.location.column), (Some(2), None));
+        // Empty fields after the last column, as spreadsheets write them, are not fields.
+        assert!(row(h, &["A1", "2.6", "2.5", "", " "]).is_ok());
+        assert!(row(h, &["A1", "2.6", "2.5", "", "x"]).is_err());
+    }
+
+    #[test]
+    fn axes_and_lengths_must_be_positive_and_finite() {
+        let h = "id,major,minor,d0,thickness\n";
+        let e = refused(h, &["A1", "-12", "-20", "", ""]);
+        assert!(
+            e.starts_with(
+                "m.csv:2:2 (column `major`): the major axis must be greater than zero, found -12"
+            ),
+            "{e}"
+        );
+        assert!(e.contains("looks like a strain in percent"), "{e}");
+        let e = refused(h, &["A1", "2.6", "2.5", "0", ""]);
+        assert!(e.ends_with("d0 must be greater than zero, found 0"), "{e}");
+        let e = refused(h, &["A1", "2.6", "2.5", "", "nan"]);
+        assert!(
+            e.ends_with("(column `thickness`): expected a finite number, found `nan`"),
+            "{e}"
+        );
+        let e = refused("id,major,minor,x\n", &["A1", "2.6", "2.5", "-2e9"]);
+        assert!(
+            e.contains("is beyond ±1e9: not a position or length"),
+            "{e}"
+        );
+    }
+
+    #[test]
+    fn every_optional_column_is_read() {
+        let h = "id;major;minor;x;y;z;stage;thickness;thinning_pct;note;condition;angle_deg\n";
+        let fields = [
+            "A1", "2,6", "2,5", "1", "-2", "3,5", "op20", "0,71", "11", " wall ", "necked", "45",
+        ];
+        let m = row(h, &fields).unwrap();
+        let close = |a: Option<f64>, b: f64| a.is_some_and(|a| (a - b).abs() < 1e-12);
+        assert!(close(m.x, 1.0) && close(m.y, -2.0) && close(m.z, 3.5));
+        assert!(close(m.thickness, 0.71) && close(m.thinning, 0.11) && close(m.angle_deg, 45.0));
+        assert_eq!(m.stage.as_deref(), Some("op20"));
+        assert_eq!(m.note.as_deref(), Some("wall"));
+        assert_eq!(m.condition, Some(Condition::Necked));
+        let e = refused(
+            h,
+            &["A1", "2,6", "2,5", "", "", "", "", "", "100", "", "", ""],
+        );
+        assert!(
+            e.ends_with("(column `thinning_pct`): thinning 100 % is not below 100 %"),
+            "{e}"
+        );
+    }
+}

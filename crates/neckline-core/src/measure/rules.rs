@@ -26,7 +26,11 @@ pub const MAX_FIELD_BYTES: usize = 4096;
 /// Largest position or thickness read (in the file's unit): 1e9 (a thousand km in mm), so
 /// that sums and squares of positions stay finite.
 pub const MAX_LENGTH: f64 = 1e9;
-/// Longest row, bytes of its fields: 64 KiB.
+/// Longest row, bytes of its fields: 64 KiB (16 fields of [`MAX_FIELD_BYTES`]). A longer row is
+/// rejected alone, with its line, and the rows after it are read. This is a rule for one row,
+/// read in memory and in the streaming pass alike; the pass's own cap,
+/// [`crate::stream::MAX_RECORD_BYTES`] (1024 times this), only bounds how much it holds while it
+/// looks for a record's end.
 pub const MAX_ROW_BYTES: usize = 64 << 10;
 
 /// Near-equal axes: the default tolerance when no reading error is given, a fraction of d0
@@ -267,5 +271,155 @@ impl RowReader<'_> {
                 ))
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    //! Expectations from the doc comments of the constants above and README.md, "What input is
+    //! refused, and why" (near-equal axes; size; positions beyond ±1e9).
+    use super::super::{ColumnMap, Header, Measurement, MeasurementReader, Row};
+    use super::*;
+    use crate::units::LengthUnit;
+    use std::path::Path;
+
+    /// The rows of `text` read with `rules`, and the header (with its swap log). The header is
+    /// read on its own, so that the text check of a file's start does not see the rows.
+    fn read(text: &str, rules: RowRules) -> (Vec<Row>, Header) {
+        let (first, body) = text.split_at(text.find('\n').unwrap() + 1);
+        let header = Header::read(
+            &mut first.as_bytes(),
+            Path::new("m.csv"),
+            &ColumnMap::default(),
+        )
+        .unwrap()
+        .with_rules(rules);
+        let mut reader = MeasurementReader::after(body.as_bytes(), header);
+        let rows = (&mut reader).map(|r| r.unwrap()).collect();
+        (rows, reader.header)
+    }
+
+    fn with_d0(d0: f64) -> RowRules {
+        RowRules {
+            d0: Some(d0),
+            reading_error: None,
+            unit: LengthUnit::Mm,
+        }
+    }
+
+    fn axes(row: &Row) -> (f64, f64) {
+        match row {
+            Ok(Measurement {
+                reading: Reading::Axes { major, minor, .. },
+                ..
+            }) => (*major, *minor),
+            other => panic!("expected axes, found {other:?}"),
+        }
+    }
+
+    fn reason(row: &Row) -> String {
+        row.as_ref().unwrap_err().to_string()
+    }
+
+    #[test]
+    fn near_equal_axes_are_swapped_within_one_percent_of_d0() {
+        // d0 2.5: 1 % is 0.025 (SWAP_TOLERANCE_OF_D0).
+        let (rows, header) = read("id,major,minor\nA1,2.51,2.53\nA2,2.50,2.60\n", with_d0(2.5));
+        let (major, minor) = axes(&rows[0]);
+        assert!((major - 2.53).abs() < 1e-12 && (minor - 2.51).abs() < 1e-12);
+        let note = rows[0].as_ref().unwrap().note.clone().unwrap();
+        assert!(
+            note.starts_with("near-equal axes swapped: minor 2.53"),
+            "{note}"
+        );
+        assert!(note.ends_with("within 1 % of d0 2.5"), "{note}");
+        let e = reason(&rows[1]);
+        assert!(
+            e.starts_with("m.csv:3:3 (column `minor`): major axis 2.5 is smaller"),
+            "{e}"
+        );
+        assert!(
+            e.contains("more than 1 % of d0 2.5: columns swapped?"),
+            "{e}"
+        );
+        assert_eq!(header.swaps.get(), (1, 2));
+    }
+
+    #[test]
+    fn the_reading_error_or_the_row_d0_sets_the_tolerance_and_without_either_none() {
+        let text = "id,major,minor\nA1,2.50,2.54\n";
+        let (rows, _) = read(text, RowRules::default());
+        assert!(reason(&rows[0]).contains("no reading error or d0 to judge it by"));
+        let rules = RowRules {
+            reading_error: Some(0.05),
+            ..RowRules::default()
+        };
+        let (rows, _) = read(text, rules);
+        let (major, _) = axes(&rows[0]);
+        assert!((major - 2.54).abs() < 1e-12);
+        // A row's own d0 (5: 1 % is 0.05) serves as well.
+        let (rows, _) = read("id,major,minor,d0\nA1,2.50,2.54,5\n", RowRules::default());
+        assert!(rows[0].is_ok());
+    }
+
+    #[test]
+    fn near_equal_strains_are_swapped_within_a_tenth_of_a_point() {
+        let text = "major_eng_pct,minor_eng_pct\n10.0,10.08\n10.0,10.2\n";
+        let (rows, header) = read(text, RowRules::default());
+        let m = rows[0].as_ref().unwrap();
+        let Reading::Strains(p) = m.reading else {
+            panic!("expected strains")
+        };
+        // True strain ln(1 + e) (Marciniak, Duncan and Hu, Mechanics of Sheet Metal Forming,
+        // 2002, section 1.2): the major is now the larger, 10.08 %.
+        assert!((p.major.value() - 1.1008f64.ln()).abs() < 1e-12);
+        assert!((p.minor.value() - 1.1f64.ln()).abs() < 1e-12);
+        assert!(m.note.as_deref().unwrap().contains("within 0.1 pp"));
+        assert!(reason(&rows[1]).contains("by 0.200 pp, more than 0.1 pp: columns swapped?"));
+        assert!(header.swap_note().unwrap().contains("(within 0.1 pp)"));
+    }
+
+    #[test]
+    fn strains_outside_minus_80_to_400_percent_are_rejected() {
+        let text = "major_eng_pct,minor_eng_pct\n399,-79\n401,0\n10,-81\n";
+        let (rows, _) = read(text, RowRules::default());
+        assert!(rows[0].is_ok());
+        for (row, col) in [(&rows[1], "major_eng_pct"), (&rows[2], "minor_eng_pct")] {
+            let e = reason(row);
+            assert!(e.contains(&format!("(column `{col}`)")), "{e}");
+            assert!(
+                e.contains("is not a plausible strain: expected -80 % to 400 %"),
+                "{e}"
+            );
+        }
+        // True strain: ln 5 = 160.9 % is the top of the range.
+        let (rows, _) = read(
+            "major_true_pct,minor_true_pct\n160,0\n162,0\n",
+            RowRules::default(),
+        );
+        assert!(rows[0].is_ok() && rows[1].is_err());
+    }
+
+    #[test]
+    fn an_oversized_row_is_rejected_alone_and_the_next_is_read() {
+        let field = "x".repeat(MAX_FIELD_BYTES + 1);
+        let long = vec!["y".repeat(4000); 17].join(",");
+        let many = ",".repeat(MAX_FIELDS);
+        let text = format!(
+            "id,major,minor,note\nA1,2.6,2.5,{field}\nA2,{long}\nA3{many}\nA4,2.6,2\u{0}.5,\nA5,2.6,2.5,\n"
+        );
+        let (rows, _) = read(&text, with_d0(2.5));
+        let e = reason(&rows[0]);
+        assert!(
+            e.starts_with("m.csv:2:4 (column `note`): a field of 4097 bytes"),
+            "{e}"
+        );
+        assert!(reason(&rows[1]).starts_with("m.csv:3: a row of 68002 bytes, more than 64 KiB"));
+        assert!(reason(&rows[2]).starts_with("m.csv:4: 1001 fields on one row, more than 1000"));
+        assert!(reason(&rows[3]).starts_with("m.csv:5:3 (column `minor`): a NUL byte"));
+        assert!(rows[..4]
+            .iter()
+            .all(|r| r.as_ref().unwrap_err().id.is_none()));
+        assert_eq!(rows[4].as_ref().unwrap().id, "A5");
     }
 }

@@ -191,3 +191,128 @@ fn looks_like_percent(rows: &[Sample], median: Option<f64>) -> bool {
                 .iter()
                 .all(|r| range(r.major) && range(r.minor) && r.major >= r.minor))
 }
+
+#[cfg(test)]
+mod tests {
+    //! Expectations from the doc comments of [`screen`] and [`SCREEN_STRETCH`] and README.md,
+    //! "What input is refused, and why" ("Axes that cannot be axes").
+    use super::super::{ColumnMap, RowRules};
+    use super::*;
+    use crate::units::LengthUnit;
+    use std::path::Path;
+
+    /// Screen `rows` (CSV lines of id, major, minor) under d0 `d0` in `unit`; the error text,
+    /// or the body as the pass would read it.
+    fn run(header: &str, rows: &[String], d0: Option<f64>, unit: LengthUnit) -> Result<String> {
+        let header = Header::read(
+            &mut header.as_bytes(),
+            Path::new("m.csv"),
+            &ColumnMap::default(),
+        )
+        .unwrap()
+        .with_rules(RowRules {
+            d0,
+            reading_error: None,
+            unit,
+        });
+        let body = rows.concat();
+        let mut back = String::new();
+        screen(body.as_bytes(), &header)?
+            .read_to_string(&mut back)
+            .unwrap();
+        assert_eq!(back, body);
+        Ok(back)
+    }
+
+    fn rows(n: usize, major: f64, minor: f64) -> Vec<String> {
+        (0..n).map(|i| format!("P{i},{major},{minor}\n")).collect()
+    }
+
+    fn both(a: Vec<String>, b: Vec<String>) -> Vec<String> {
+        a.into_iter().chain(b).collect()
+    }
+
+    const AXES: &str = "id,major,minor\n";
+
+    #[test]
+    fn inches_read_as_millimetres_are_refused_when_more_than_half_are_out() {
+        // 2.8 mm and 2.6 mm written in inches, d0 2.5 mm.
+        let inch = || rows(3, 0.110, 0.102);
+        let e = run(
+            AXES,
+            &both(inch(), rows(2, 2.8, 2.6)),
+            Some(2.5),
+            LengthUnit::Mm,
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(
+            e.starts_with("m.csv:2: 3 of the first 5 rows cannot be the axes"),
+            "{e}"
+        );
+        assert!(e.contains("not 0.5 to 2.5 times d0 2.5"), "{e}");
+        assert!(e.contains("Give --unit in"), "{e}");
+        // Half is not more than half: the rows are judged one by one.
+        assert!(run(
+            AXES,
+            &both(rows(2, 0.110, 0.102), rows(2, 2.8, 2.6)),
+            Some(2.5),
+            LengthUnit::Mm
+        )
+        .is_ok());
+    }
+
+    #[test]
+    fn millimetres_read_as_inches_are_refused() {
+        // d0 0.1 in (2.54 mm), axes in mm.
+        let e = run(AXES, &rows(4, 2.8, 2.6), Some(0.1), LengthUnit::In)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("Give --unit mm"), "{e}");
+    }
+
+    #[test]
+    fn strains_in_percent_pasted_as_axes_are_refused() {
+        let e = run(AXES, &rows(3, 25.0, -5.0), None, LengthUnit::Mm)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("strains in percent pasted as axes"), "{e}");
+        // Larger than d0 allows but plausible percentages: 6.5 and 5.5 with d0 2 (README).
+        let e = run(AXES, &rows(3, 6.5, 5.5), Some(2.0), LengthUnit::Mm)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("would be 225 % and 175 % strain"), "{e}");
+        assert!(e.contains("--column major_eng_pct=HEADER"), "{e}");
+    }
+
+    #[test]
+    fn a_wrong_d0_is_questioned_only_when_nine_rows_in_ten_are_out() {
+        // 500 and 450 are neither a unit away from d0 2.5 nor percentages (above 400).
+        let far = |n| rows(n, 500.0, 450.0);
+        let e = run(
+            AXES,
+            &both(far(9), rows(1, 2.8, 2.6)),
+            Some(2.5),
+            LengthUnit::Mm,
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(e.contains("9 of the first 10 rows"), "{e}");
+        assert!(e.contains("is d0 the initial circle diameter"), "{e}");
+        assert!(run(
+            AXES,
+            &both(far(8), rows(2, 2.8, 2.6)),
+            Some(2.5),
+            LengthUnit::Mm
+        )
+        .is_ok());
+    }
+
+    #[test]
+    fn strain_files_and_unreadable_rows_are_not_screened() {
+        let strains = "id,major_eng_pct,minor_eng_pct\n";
+        assert!(run(strains, &rows(5, 500.0, 450.0), Some(2.5), LengthUnit::Mm).is_ok());
+        let words: Vec<String> = (0..5).map(|i| format!("P{i},big,small\n")).collect();
+        assert!(run(AXES, &words, Some(2.5), LengthUnit::Mm).is_ok());
+    }
+}
