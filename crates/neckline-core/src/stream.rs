@@ -10,7 +10,7 @@
 
 use crate::analysis::{strain_of, Context};
 use crate::error::{Error, Location, Result};
-use crate::measure::{csv_error, duplicate, Header, Measurement};
+use crate::measure::{csv_error, duplicate, Header, Measurement, MAX_ROW_BYTES};
 use crate::output::points_csv::Layout;
 use crate::summary::{Summary, Template, View};
 use rayon::prelude::*;
@@ -22,8 +22,14 @@ use std::io::{self, Read, Write};
 /// file is cut into many chunks and their merging is tested).
 pub const CHUNK_BYTES: usize = if cfg!(test) { 1 << 10 } else { 1 << 18 };
 
-/// The longest record read (64 MiB): a longer one is an error, not a reason to hold the file.
-pub const MAX_RECORD_BYTES: usize = 64 << 20;
+/// The longest record the chunker holds while it looks for the record's end: 64 MiB, 1024 times
+/// [`MAX_ROW_BYTES`]. A record that has not ended by then ends the pass with an error for the
+/// whole file (holding more would let memory grow with the file). It is not a rule for rows:
+/// any record over [`MAX_ROW_BYTES`] (64 KiB) is rejected as a row anyway, alone and with its
+/// line. This cap is far larger so that a row that is too long but does end (a pasted document,
+/// a quote closed some lines later) is still cut out whole and rejected alone while the rows
+/// after it are judged; only a record too long to hold refuses the file.
+pub const MAX_RECORD_BYTES: usize = 1024 * MAX_ROW_BYTES;
 
 /// A piece of the file's body that ends at a record boundary.
 #[derive(Debug, Clone, PartialEq)]

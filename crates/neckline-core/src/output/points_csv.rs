@@ -8,6 +8,7 @@
 //! 4 decimals in mm and 5 in inches (0.1 µm, 0.01 thou), positions 3 decimals, d0 4 decimals.
 
 use crate::analysis::PointResult;
+pub use crate::measure::{GRID_COLUMNS, PATH_COLUMNS};
 use crate::output::push_fixed_bytes;
 use crate::units::LengthUnit;
 
@@ -55,41 +56,9 @@ pub const CARRIED_COLUMNS: [&str; 7] = [
 /// difference from the computed one (percentage points).
 pub const OPTIONAL_COLUMNS: [&str; 3] = ["z", "thinning_measured_pct", "thinning_diff_pp"];
 
-/// Columns added for a multi-stage file: the stage count, the path criterion's accumulated
-/// effective strain, the direction of the last increment (degrees: 90 plane strain, 45
-/// equibiaxial), its limit and the use of it, the bend of the path (degrees between the first
-/// and the last increment), the zone by the strain curve alone and by the path criterion, and
-/// `yes` where the major axis turned between stages (the criterion's fixed-axes assumption fails).
-pub const PATH_COLUMNS: [&str; 9] = [
-    "stages",
-    "peps_effective_pct",
-    "peps_angle_deg",
-    "peps_limit_pct",
-    "peps_use_pct",
-    "path_bend_deg",
-    "strain_zone",
-    "peps_zone",
-    "path_turned",
-];
-
 /// Columns added when a reading error is set: the margin's uncertainty (percentage points) and
 /// `yes` where the zone could change within it.
 pub const READING_COLUMNS: [&str; 2] = ["margin_uncertainty_pct", "borderline"];
-
-/// Columns added at the end when the locations were computed from grid nodes: major direction
-/// in the blank (degrees from +X), in-plane rotation (2-D), formed-surface normal and centre
-/// height (3-D), element centre in the blank, node count.
-pub const GRID_COLUMNS: [&str; 9] = [
-    "major_dir_deg",
-    "rotation_deg",
-    "normal_x",
-    "normal_y",
-    "normal_z",
-    "z",
-    "ref_x",
-    "ref_y",
-    "nodes",
-];
 
 /// Which columns a points table has: decided from the input's header and the settings before
 /// the first row.
