@@ -25,9 +25,9 @@
 //! that is not a finite number, an axis or d0 that is zero or negative, `major < minor`, an
 //! implausible strain.
 
+use crate::condition::Condition;
 use crate::error::{Error, Location, Result};
 use crate::kinematics::Principal;
-use crate::observed::Condition;
 use crate::strain::{EngStrain, TrueStrain};
 use std::collections::HashSet;
 use std::fs::File;
@@ -592,7 +592,7 @@ pub struct RowRules {
 
 impl RowRules {
     /// The rules of a run: its lengths and its reading error.
-    pub fn new(lengths: &crate::analysis::Lengths, reading_error: Option<f64>) -> Self {
+    pub fn new(lengths: &crate::units::Lengths, reading_error: Option<f64>) -> Self {
         RowRules {
             d0: lengths.d0,
             reading_error,

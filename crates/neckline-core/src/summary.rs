@@ -7,9 +7,9 @@
 //! them in order, give the same summary (a test checks it): this is what lets parts of a file be
 //! judged on several threads.
 
-use crate::analysis::PointResult;
 use crate::assess::Zone;
 use crate::measure::RejectedRow;
+use crate::point::PointResult;
 use crate::strain::StrainMeasure;
 use rustc_hash::FxHashMap;
 
@@ -20,8 +20,7 @@ pub const KEEP_ALL: usize = 5_000;
 pub const AT_RISK_KEPT: usize = 2_000;
 /// The worst locations kept, worst first.
 pub const WORST_KEPT: usize = 100;
-/// Ids kept per list (per zone, borderline) and rejected rows kept; the totals are counted.
-pub const LIST_CAP: usize = 1_000;
+pub use crate::capped::{Capped, LIST_CAP};
 
 /// The plane of the part map.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -305,44 +304,6 @@ impl ThicknessCheck {
                 }
             }
         }
-    }
-}
-
-/// A list that keeps its first [`LIST_CAP`] items and counts the rest.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Capped<T> {
-    /// The first items, in file order.
-    pub items: Vec<T>,
-    /// How many there were in all.
-    pub total: usize,
-}
-
-impl<T> Default for Capped<T> {
-    fn default() -> Self {
-        Capped {
-            items: Vec::new(),
-            total: 0,
-        }
-    }
-}
-
-impl<T> Capped<T> {
-    /// Add one.
-    pub fn push(&mut self, t: T) {
-        self.push_with(|| t);
-    }
-    /// Add one, made only when there is room for it.
-    pub fn push_with(&mut self, t: impl FnOnce() -> T) {
-        self.total += 1;
-        if self.items.len() < LIST_CAP {
-            self.items.push(t());
-        }
-    }
-    /// Append `other` (which follows in file order).
-    pub fn merge(&mut self, other: Capped<T>) {
-        self.total += other.total;
-        let room = LIST_CAP.saturating_sub(self.items.len());
-        self.items.extend(other.items.into_iter().take(room));
     }
 }
 
@@ -671,10 +632,11 @@ pub fn point_xy(p: &PointResult, measure: StrainMeasure) -> (f64, f64) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::{state_of, Context, Lengths};
     use crate::assess::Settings;
     use crate::limit::LimitCurve;
     use crate::measure::Measurement;
+    use crate::point::{state_of, Context};
+    use crate::units::Lengths;
     use std::path::Path;
 
     /// `n` judged locations (invented), spread over every zone, some with positions.
