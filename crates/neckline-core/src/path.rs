@@ -59,6 +59,34 @@ fn angle(d: [f64; 2]) -> f64 {
 /// strain. `strain_zone` is the strain curve's zone at the last stage: where the path criterion
 /// finds no risk, it keeps that zone's finer reading (thickening, low stretch, safe).
 /// `axes_deg` are the measured major-axis directions per stage, when known.
+///
+/// The worked example (the criterion as published, Stoughton & Yoon 2012; the numbers follow
+/// from the 0.80 mm Keeler-Brazier curve, FLC0 32.96 %): equibiaxial to true strains (0.10,
+/// 0.10), then plane strain to (0.10, 0.25). Accumulated ε̄ = 0.2000 + 0.1732 = 0.3732; the last
+/// increment is plane strain, where the curve is ε1 = ln 1.3296 = 0.2849, ε̄* = 0.3290; use
+/// 113.5 %: failed, although the strain curve alone finds a margin of 10.86 pp (safe).
+///
+/// ```
+/// use neckline_core::assess::Zone;
+/// use neckline_core::limit::LimitCurve;
+/// use neckline_core::path::judge_path;
+/// use std::path::Path;
+///
+/// let curve = LimitCurve::parse(
+///     "name = \"kb\"\nsource = \"Keeler & Brazier 1977\"\nstrain = \"engineering\"\n\
+///      [keeler_brazier]\nn = 0.20\nthickness_mm = 0.8\n",
+///     Path::new("kb.toml"),
+/// )?;
+/// // Stages as true strains [ε2, ε1].
+/// let j = judge_path(&[[0.10, 0.10], [0.10, 0.25]], &curve, 10.0, Zone::Safe, &[]);
+/// assert!((j.effective - 0.3732).abs() < 1e-4);
+/// assert!((j.angle_deg.unwrap() - 90.0).abs() < 1e-9); // plane strain
+/// assert!((j.limit.unwrap() - 0.3290).abs() < 1e-4);
+/// assert!((j.use_pct.unwrap() - 113.5).abs() < 0.1);
+/// assert_eq!(j.zone, Zone::Failed);
+/// assert!(j.hidden()); // a risk the strain curve does not show
+/// # Ok::<(), neckline_core::Error>(())
+/// ```
 pub fn judge_path(
     stages: &[[f64; 2]],
     curve: &LimitCurve,

@@ -131,6 +131,27 @@ impl Context {
 }
 
 /// The strains of one measured location, or why the row cannot give them.
+///
+/// ```
+/// use neckline_core::measure::Measurement;
+/// use neckline_core::point::state_of;
+/// use neckline_core::units::Lengths;
+/// use std::path::Path;
+///
+/// let lengths = Lengths { unit: Default::default(), d0: Some(2.5), t0: None };
+/// // A 2.5 mm circle read as a 3.25 × 2.40 mm ellipse: e = d/d0 − 1 = 30 % and −4 %
+/// // (any continuum mechanics text).
+/// let m = Measurement::axes("A1", 2, 3.25, 2.40, None);
+/// let s = state_of(m, Path::new("part.csv"), &lengths).unwrap();
+/// assert!((s.strain.eng.major.percent() - 30.0).abs() < 1e-9);
+/// assert!((s.strain.eng.minor.percent() + 4.0).abs() < 1e-9);
+///
+/// // Without any d0 the row is rejected, naming the file and line.
+/// let none = Lengths { d0: None, ..lengths };
+/// let m = Measurement::axes("A2", 3, 3.25, 2.40, None);
+/// let r = state_of(m, Path::new("part.csv"), &none).unwrap_err();
+/// assert!(r.to_string().starts_with("part.csv:3"), "{r}");
+/// ```
 pub fn state_of(m: Measurement, file: &Path, lengths: &Lengths) -> Result<StateInput, RejectedRow> {
     let (d0, strain) = strain_of(&m, file, lengths)?;
     Ok(StateInput {
