@@ -2,7 +2,8 @@
 //! turned into strains.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
-use neckline_core::analysis::{state_of, Lengths};
+use neckline_core::point::state_of;
+use neckline_core::units::Lengths;
 use neckline_core::measure::{read_measurements_from, ColumnMap};
 use std::path::Path;
 

@@ -2,7 +2,8 @@
 //! judged in parallel, points.csv text and the summary.
 #![no_main]
 use libfuzzer_sys::fuzz_target;
-use neckline_core::analysis::{Context, Lengths};
+use neckline_core::point::Context;
+use neckline_core::units::Lengths;
 use neckline_core::assess::Settings;
 use neckline_core::limit::LimitCurve;
 use neckline_core::measure::{screen, ColumnMap, Header, RowRules};

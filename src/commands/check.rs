@@ -7,12 +7,13 @@ use super::progress::Progress;
 use super::{require_points, Outcome, Prepared};
 use crate::args::{JudgeArgs, LengthArgs};
 use clap::Args;
-use neckline_core::analysis::{Analysis, Context};
+use neckline_core::analysis::Analysis;
 use neckline_core::digest::FileDigest;
 use neckline_core::error::{Error, Result};
 use neckline_core::measure::{open_input, Header, RowRules};
 use neckline_core::output::points_csv::Layout;
 use neckline_core::output::{push_fixed, write_atomic, AtomicFile};
+use neckline_core::point::Context;
 use neckline_core::stream::Pass;
 use rayon::prelude::*;
 use std::io::Write;
@@ -137,7 +138,7 @@ pub fn judge_file(
     if header.columns.has("stage") {
         let order = prep.job.stages.as_deref();
         let rows = neckline_core::measure::MeasurementReader::after(&mut input, header);
-        let staged = neckline_core::path::judge_staged(rows, &ctx, order)?;
+        let staged = neckline_core::point::staged::judge_staged(rows, &ctx, order)?;
         layout.path = staged.stages.len() >= 2;
         let files = input_digests(path, input.into_inner().1.hex(), prep);
         return judged_in_memory(
@@ -202,7 +203,7 @@ fn judged_in_memory(
     inputs: &[PathBuf],
     ctx: Context,
     layout: Layout,
-    staged: neckline_core::path::Staged,
+    staged: neckline_core::point::staged::Staged,
     notes: &[String],
     files: Vec<FileDigest>,
 ) -> Result<(Analysis, Option<AtomicFile>)> {
@@ -302,7 +303,7 @@ fn run_many(args: &CheckArgs) -> Result<Outcome> {
     })?;
     print!("{text}");
     println!("Wrote {}", index.display());
-    println!("{}", neckline_core::analysis::CAUTION);
+    println!("{}", neckline_core::CAUTION);
     if failed > 0 {
         return Err(Error::Usage(format!(
             "{failed} of {} files could not be judged (see above)",

@@ -4,11 +4,13 @@ use super::outputs::{emit, OutputArgs, Plan};
 use super::{limit_path, load_job, resolve_lengths, resolve_settings, Outcome};
 use crate::args::{JudgeArgs, LengthArgs};
 use clap::Args;
-use neckline_core::analysis::{Analysis, Context, PointResult};
+use neckline_core::analysis::Analysis;
 use neckline_core::error::{Error, Result};
-use neckline_core::grid::{evaluate, read::read_mesh};
+use neckline_core::grid::read::read_mesh;
 use neckline_core::limit::LimitCurve;
 use neckline_core::output::points_csv::{self, Layout};
+use neckline_core::point::elements::evaluate;
+use neckline_core::point::{Context, PointResult};
 use neckline_core::units::LengthUnit;
 use std::path::PathBuf;
 

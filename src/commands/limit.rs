@@ -4,7 +4,7 @@
 
 use super::Outcome;
 use clap::{Args, Subcommand};
-use neckline_core::analysis::{Analysis, Lengths, CAUTION};
+use neckline_core::analysis::Analysis;
 use neckline_core::assess::Settings;
 use neckline_core::digest::sha256_hex;
 use neckline_core::error::{Error, Result};
@@ -20,7 +20,9 @@ use neckline_core::limit::LimitCurve;
 use neckline_core::output::input_name;
 use neckline_core::output::write_atomic;
 use neckline_core::strain::{EngStrain, StrainMeasure};
+use neckline_core::units::Lengths;
 use neckline_core::units::{LengthUnit, MM_PER_INCH};
+use neckline_core::CAUTION;
 use neckline_render::fld::{self, FldOptions};
 use neckline_render::parts;
 use std::io::{Read, Write};
@@ -446,7 +448,7 @@ fn plot_curve(curve: &LimitCurve, path: &Path, svg: bool) -> Result<()> {
         material: curve.material.clone(),
         ..Job::default()
     };
-    let ctx = neckline_core::analysis::Context {
+    let ctx = neckline_core::point::Context {
         curve: curve.clone(),
         settings: Settings::default(),
         lengths: Lengths {
@@ -647,7 +649,7 @@ fn part_circle(
         return Ok(None);
     };
     // The same strains, from axes or strain columns, with the same refusals as `check`.
-    let s = neckline_core::analysis::state_of(m.clone(), file, l)?.strain;
+    let s = neckline_core::point::state_of(m.clone(), file, l)?.strain;
     Ok(Some(PartCircle {
         id: m.id.clone(),
         minor: s.true_strain.minor.value(),

@@ -10,12 +10,13 @@ pub mod progress;
 pub mod strains;
 
 use crate::args::{JudgeArgs, LengthArgs};
-use neckline_core::analysis::{Analysis, Lengths};
+use neckline_core::analysis::Analysis;
 use neckline_core::assess::Settings;
 use neckline_core::error::{Error, Result};
 use neckline_core::job::Job;
 use neckline_core::limit::LimitCurve;
 use neckline_core::measure::ColumnMap;
+use neckline_core::units::Lengths;
 use neckline_core::units::{Length, LengthUnit};
 use std::path::{Path, PathBuf};
 

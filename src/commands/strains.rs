@@ -3,13 +3,15 @@
 use super::Outcome;
 use crate::args::LengthArgs;
 use clap::Args;
-use neckline_core::analysis::{Analysis, Context, Lengths};
+use neckline_core::analysis::Analysis;
 use neckline_core::assess::Settings;
 use neckline_core::error::{Error, Result};
 use neckline_core::limit::LimitCurve;
 use neckline_core::measure::{open_input, Header};
 use neckline_core::output::points_csv::Layout;
+use neckline_core::point::Context;
 use neckline_core::stream::Pass;
+use neckline_core::units::Lengths;
 use std::io::Write;
 use std::path::PathBuf;
 

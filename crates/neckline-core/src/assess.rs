@@ -239,6 +239,31 @@ pub struct Judgement {
 }
 
 /// Judge one location's strains against `curve` with `settings`.
+///
+/// The worked example of the path criterion (Stoughton & Yoon 2012; the numbers follow from
+/// the 0.80 mm Keeler-Brazier curve): true strains ε1 = 0.25, ε2 = 0.10 are 28.40 % and 10.52 %
+/// engineering; the curve there is 32.96 + 0.6 × 10.52 = 39.27 %, so the vertical margin is
+/// 10.86 pp, just outside the 10-point band (common practice for steel): safe.
+///
+/// ```
+/// use neckline_core::assess::{judge, Settings, Zone};
+/// use neckline_core::kinematics::StrainState;
+/// use neckline_core::limit::LimitCurve;
+/// use neckline_core::strain::TrueStrain;
+/// use std::path::Path;
+///
+/// let curve = LimitCurve::parse(
+///     "name = \"kb\"\nsource = \"Keeler & Brazier 1977\"\nstrain = \"engineering\"\n\
+///      [keeler_brazier]\nn = 0.20\nthickness_mm = 0.8\n",
+///     Path::new("kb.toml"),
+/// )?;
+/// let state = StrainState::from_stretches(TrueStrain(0.25).stretch(), TrueStrain(0.10).stretch());
+/// let j = judge(&state, &curve, &Settings::default());
+/// assert!((j.limit_major.unwrap().percent() - 39.27).abs() < 0.01);
+/// assert!((j.margin_pct.unwrap() - 10.86).abs() < 0.01);
+/// assert_eq!(j.zone, Zone::Safe);
+/// # Ok::<(), neckline_core::Error>(())
+/// ```
 pub fn judge(state: &StrainState, curve: &LimitCurve, settings: &Settings) -> Judgement {
     let limit_major = curve.limit_major_eng_of(state.true_strain.minor, state.eng.minor);
     let margin_pct = limit_major.map(|l| l.percent() - state.eng.major.percent());

@@ -13,7 +13,7 @@ pub mod json_out;
 pub mod pairing;
 pub mod read;
 
-pub use read::{read_results, read_tryout, ResultRow, Summary, Tryout};
+pub use read::{read_results, read_tryout, RecordedSummary, ResultRow, Tryout};
 
 use crate::assess::Zone;
 use crate::error::{Error, Result};

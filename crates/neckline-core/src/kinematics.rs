@@ -78,6 +78,27 @@ pub struct StrainState {
 
 impl StrainState {
     /// Strains from two principal stretches, in either order (they are sorted here).
+    ///
+    /// A 2.5 mm circle read as a 3.25 × 2.40 mm ellipse: λ = 1.30 and 0.96. Check values from
+    /// the textbook formulas (any continuum mechanics text; e.g. Marciniak, Duncan & Hu 2002):
+    ///
+    /// ```
+    /// use neckline_core::kinematics::StrainState;
+    /// use neckline_core::strain::Stretch;
+    ///
+    /// let s = StrainState::from_stretches(Stretch::new(0.96).unwrap(), Stretch::new(1.30).unwrap());
+    /// let near = |a: f64, b: f64| (a - b).abs() < 5e-6;
+    /// assert!(near(s.eng.major.value(), 0.30) && near(s.eng.minor.value(), -0.04)); // λ − 1
+    /// assert!(near(s.true_strain.major.value(), 0.26236)); // ln 1.30
+    /// assert!(near(s.true_strain.minor.value(), -0.04082)); // ln 0.96
+    /// assert!(near(s.thickness_strain.value(), -0.22154)); // ε3 = −(ε1 + ε2)
+    /// assert!(near(s.thickness(1.0), 0.80128)); // t/t0 = 1/(λ1 λ2)
+    /// assert!(near(s.almansi.major.value(), 0.20414)); // (1 − λ⁻²)/2
+    /// // Von Mises effective strain (Hill 1950): (2/√3) √(ε1² + ε1 ε2 + ε2²).
+    /// let (e1, e2) = (1.30f64.ln(), 0.96f64.ln());
+    /// let eff = 2.0 / 3f64.sqrt() * (e1 * e1 + e1 * e2 + e2 * e2).sqrt();
+    /// assert!(near(s.effective.value(), eff));
+    /// ```
     pub fn from_stretches(a: Stretch, b: Stretch) -> Self {
         let (l1, l2) = if a.value() >= b.value() {
             (a, b)

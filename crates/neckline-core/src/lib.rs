@@ -4,9 +4,15 @@
 //! line. The modules follow the data:
 //!
 //! measurements ([`measure`], [`grid`], [`fit`]) → strains ([`strain`], [`kinematics`]) → limit
-//! curve ([`limit`]) → judgement ([`assess`], [`path`], [`observed`]) → one result
-//! ([`analysis`], folded into a bounded [`summary`] by the streaming pass [`stream`]) → machine
-//! outputs ([`output`]: points.csv, summary.json) and tryout comparison ([`compare`]).
+//! curve ([`limit`]) → judgement ([`assess`], [`path`]) → one judged location ([`point`]) →
+//! a bounded [`summary`] with the [`observed`] tally → the whole run ([`analysis`]), folded by
+//! the streaming pass [`stream`] → machine outputs ([`output`]: points.csv, summary.json) and
+//! tryout comparison ([`compare`]).
+//!
+//! The modules form layers: each uses only those below it. Bottom to top: [`units`],
+//! [`strain`], [`error`], [`digest`], [`capped`], [`condition`] → [`kinematics`] → [`limit`] →
+//! [`measure`] → [`assess`] → [`path`], [`grid`] → [`point`] → [`observed`], [`summary`] →
+//! [`job`], [`analysis`] → [`stream`], [`output`] → [`compare`]; [`fit`] beside [`grid`].
 //!
 //! Caution: an aid to judgement. The user's own forming-limit data, local codes and licensed
 //! engineering practice govern.
@@ -17,7 +23,9 @@
 
 pub mod analysis;
 pub mod assess;
+pub mod capped;
 pub mod compare;
+pub mod condition;
 pub mod digest;
 pub mod error;
 pub mod fit;
@@ -29,11 +37,16 @@ pub mod measure;
 pub mod observed;
 pub mod output;
 pub mod path;
+pub mod point;
 pub mod strain;
 pub mod stream;
 pub mod summary;
 pub mod table;
 pub mod units;
 
-pub use analysis::{Analysis, CAUTION};
+pub use analysis::Analysis;
 pub use error::{Error, Result};
+
+/// The caution carried by every output.
+pub const CAUTION: &str = "Caution: neckline is an aid to judgement. The user's own forming-limit \
+data, local codes and licensed engineering practice govern every decision on parts and tools.";

@@ -14,78 +14,8 @@
 //! fits a streaming data path as well as a whole file.
 
 use crate::assess::Zone;
-use serde::{Deserialize, Serialize};
-use std::fmt;
-use std::str::FromStr;
-
-/// The condition observed on the part at a circle.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum Condition {
-    /// No neck.
-    Safe,
-    /// A visible or felt neck through the circle.
-    Necked,
-    /// A crack through the circle.
-    Split,
-}
-
-impl Condition {
-    /// All conditions, from no failure to the worst.
-    pub const ALL: [Condition; 3] = [Condition::Safe, Condition::Necked, Condition::Split];
-
-    /// Name as written in files.
-    pub fn name(self) -> &'static str {
-        match self {
-            Condition::Safe => "safe",
-            Condition::Necked => "necked",
-            Condition::Split => "split",
-        }
-    }
-
-    /// Whether the circle is at or above the limit (necked or split).
-    pub fn failed(self) -> bool {
-        self != Condition::Safe
-    }
-
-    /// Read an optional field: empty (or blanks) means not observed (`Ok(None)`); otherwise one
-    /// of `safe`, `necked`, `split` in any letter case.
-    pub fn parse_optional(text: &str) -> Result<Option<Condition>, String> {
-        let t = text.trim();
-        if t.is_empty() {
-            Ok(None)
-        } else {
-            t.parse().map(Some)
-        }
-    }
-
-    fn index(self) -> usize {
-        self as usize
-    }
-}
-
-impl fmt::Display for Condition {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(self.name())
-    }
-}
-
-impl FromStr for Condition {
-    type Err = String;
-    /// One of `safe`, `necked`, `split`, in any letter case, surrounding blanks ignored.
-    fn from_str(s: &str) -> Result<Self, String> {
-        let t = s.trim();
-        Condition::ALL
-            .into_iter()
-            .find(|c| c.name().eq_ignore_ascii_case(t))
-            .ok_or_else(|| {
-                format!(
-                    "expected a condition `safe`, `necked` or `split` (or an empty field: not \
-                     observed), found `{t}`"
-                )
-            })
-    }
-}
+use crate::capped::LIST_CAP;
+pub use crate::condition::Condition;
 
 /// Whether a judged zone, held against an observed necked or split circle, shows the curve not
 /// conservative: the curve passed (safe, marginal, thickening, low-stretch) what the part failed.
@@ -105,7 +35,7 @@ pub struct ObservedTally {
     pub table: [[usize; 6]; 3],
     /// Ids observed necked or split but judged safe, marginal, thickening or low-stretch: where
     /// the curve is not conservative for this part. In the order they were added; the first
-    /// [`crate::summary::LIST_CAP`] of them.
+    /// [`LIST_CAP`] of them.
     pub non_conservative: Vec<String>,
     /// How many locations are not conservative in all.
     pub non_conservative_total: usize,
@@ -126,7 +56,7 @@ impl ObservedTally {
         self.table[c.index()][z] += 1;
         if c.failed() && passes(zone) {
             self.non_conservative_total += 1;
-            if self.non_conservative.len() < crate::summary::LIST_CAP {
+            if self.non_conservative.len() < LIST_CAP {
                 self.non_conservative.push(id.to_string());
             }
         } else if c == Condition::Safe && zone == Zone::Failed {
@@ -142,7 +72,7 @@ impl ObservedTally {
             }
         }
         self.non_conservative_total += other.non_conservative_total;
-        let room = crate::summary::LIST_CAP.saturating_sub(self.non_conservative.len());
+        let room = LIST_CAP.saturating_sub(self.non_conservative.len());
         self.non_conservative
             .extend(other.non_conservative.into_iter().take(room));
         self.conservative += other.conservative;
@@ -185,16 +115,6 @@ mod tests {
     use crate::kinematics::StrainState;
     use crate::limit::LimitCurve;
     use std::path::Path;
-
-    #[test]
-    fn conditions_parse_in_any_case_and_empty_is_not_observed() {
-        assert_eq!("Necked".parse::<Condition>(), Ok(Condition::Necked));
-        assert_eq!(" SPLIT ".parse::<Condition>(), Ok(Condition::Split));
-        assert_eq!(Condition::parse_optional("safe"), Ok(Some(Condition::Safe)));
-        assert_eq!(Condition::parse_optional("  "), Ok(None));
-        let e = Condition::parse_optional("cracked").unwrap_err();
-        assert!(e.contains("`cracked`") && e.contains("necked"), "{e}");
-    }
 
     /// A flat curve at `level` percent engineering major strain from -20 % to +20 % minor.
     fn flat_curve(level: f64) -> LimitCurve {
@@ -278,44 +198,5 @@ mod tests {
         first.merge(observed_against_judged(rows[2..].to_vec()));
         assert_eq!(first, whole);
         assert_eq!(whole.non_conservative, vec!["a", "d"]);
-    }
-}
-
-#[cfg(test)]
-mod reading_tests {
-    use super::Condition;
-    use crate::measure::read_measurements_from;
-    use std::path::Path;
-
-    // The optional `condition` column of a measurement file: any case, empty = not observed,
-    // and an unknown word rejects the row naming its line and column.
-    #[test]
-    fn condition_column_is_read_and_bad_words_reject_the_row() {
-        let text = "id,major,minor,Condition\nA,3.4,2.5,Necked\nB,3.0,2.5,\nC,3.1,2.5,cracked\nD,3.5,2.5,SPLIT\n";
-        let s = read_measurements_from(
-            text.as_bytes(),
-            Path::new("parts.csv"),
-            &crate::measure::ColumnMap::default(),
-        )
-        .unwrap();
-        let got: Vec<_> = s
-            .points
-            .iter()
-            .map(|m| (m.id.as_str(), m.condition))
-            .collect();
-        assert_eq!(
-            got,
-            vec![
-                ("A", Some(Condition::Necked)),
-                ("B", None),
-                ("D", Some(Condition::Split))
-            ]
-        );
-        assert!(s.notes.is_empty(), "{:?}", s.notes);
-        let r = s.rejected[0].to_string();
-        assert!(
-            r.starts_with("parts.csv:4:4 (column `condition`)") && r.contains("`cracked`"),
-            "{r}"
-        );
     }
 }

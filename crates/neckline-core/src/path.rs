@@ -59,6 +59,34 @@ fn angle(d: [f64; 2]) -> f64 {
 /// strain. `strain_zone` is the strain curve's zone at the last stage: where the path criterion
 /// finds no risk, it keeps that zone's finer reading (thickening, low stretch, safe).
 /// `axes_deg` are the measured major-axis directions per stage, when known.
+///
+/// The worked example (the criterion as published, Stoughton & Yoon 2012; the numbers follow
+/// from the 0.80 mm Keeler-Brazier curve, FLC0 32.96 %): equibiaxial to true strains (0.10,
+/// 0.10), then plane strain to (0.10, 0.25). Accumulated ε̄ = 0.2000 + 0.1732 = 0.3732; the last
+/// increment is plane strain, where the curve is ε1 = ln 1.3296 = 0.2849, ε̄* = 0.3290; use
+/// 113.5 %: failed, although the strain curve alone finds a margin of 10.86 pp (safe).
+///
+/// ```
+/// use neckline_core::assess::Zone;
+/// use neckline_core::limit::LimitCurve;
+/// use neckline_core::path::judge_path;
+/// use std::path::Path;
+///
+/// let curve = LimitCurve::parse(
+///     "name = \"kb\"\nsource = \"Keeler & Brazier 1977\"\nstrain = \"engineering\"\n\
+///      [keeler_brazier]\nn = 0.20\nthickness_mm = 0.8\n",
+///     Path::new("kb.toml"),
+/// )?;
+/// // Stages as true strains [ε2, ε1].
+/// let j = judge_path(&[[0.10, 0.10], [0.10, 0.25]], &curve, 10.0, Zone::Safe, &[]);
+/// assert!((j.effective - 0.3732).abs() < 1e-4);
+/// assert!((j.angle_deg.unwrap() - 90.0).abs() < 1e-9); // plane strain
+/// assert!((j.limit.unwrap() - 0.3290).abs() < 1e-4);
+/// assert!((j.use_pct.unwrap() - 113.5).abs() < 0.1);
+/// assert_eq!(j.zone, Zone::Failed);
+/// assert!(j.hidden()); // a risk the strain curve does not show
+/// # Ok::<(), neckline_core::Error>(())
+/// ```
 pub fn judge_path(
     stages: &[[f64; 2]],
     curve: &LimitCurve,
@@ -130,109 +158,6 @@ impl PathJudgement {
     pub fn hidden(&self) -> bool {
         matches!(self.zone, Zone::Failed | Zone::Marginal) && self.zone < self.strain_zone
     }
-}
-
-/// The locations of a multi-stage file, each judged at its last stage by the strain curve and
-/// along its path, in the order their ids first appear; with the rows that were rejected and
-/// the stage names in order.
-pub struct Staged {
-    /// The judged locations.
-    pub points: Vec<crate::analysis::PointResult>,
-    /// Rejected rows, in file order.
-    pub rejected: Vec<crate::measure::RejectedRow>,
-    /// The stages, in order.
-    pub stages: Vec<String>,
-}
-
-/// Read every row of a file with a `stage` column (held in memory: a location's stages may be
-/// anywhere in the file), then judge each location. The stage order is `order` (the job
-/// file's `stages`; a stage not in it is an error naming the row) or the order of first
-/// appearance. A location with one stage is judged by the strain curve alone.
-pub fn judge_staged<B: std::io::BufRead>(
-    rows: crate::measure::MeasurementReader<B>,
-    ctx: &crate::analysis::Context,
-    order: Option<&[String]>,
-) -> crate::error::Result<Staged> {
-    use crate::error::{Error, Location};
-    let file = rows.header.file.clone();
-    let stage_col = rows.header.columns.index("stage");
-    let mut stages: Vec<String> = order.map(<[String]>::to_vec).unwrap_or_default();
-    let mut ids: Vec<String> = Vec::new();
-    let mut by_id: std::collections::HashMap<String, Vec<(usize, crate::analysis::StateInput)>> =
-        std::collections::HashMap::new();
-    let mut out = Staged {
-        points: Vec::new(),
-        rejected: Vec::new(),
-        stages: Vec::new(),
-    };
-    for row in rows {
-        let m = match row? {
-            Ok(m) => m,
-            Err(r) => {
-                out.rejected.push(r);
-                continue;
-            }
-        };
-        let name = m.stage.clone().unwrap_or_default();
-        let k = match stages.iter().position(|s| *s == name) {
-            Some(k) => k,
-            None if order.is_some() => {
-                let mut loc = Location::file(&file).at_line(m.line);
-                if let Some(c) = stage_col {
-                    loc = loc.at_column(c as u64 + 1, "stage");
-                }
-                return Err(Error::input(
-                    loc,
-                    format!(
-                        "stage `{name}` is not in the job file's stages ({})",
-                        stages.join(", ")
-                    ),
-                ));
-            }
-            None => {
-                stages.push(name);
-                stages.len() - 1
-            }
-        };
-        match crate::analysis::state_of(m, &file, &ctx.lengths) {
-            Err(r) => out.rejected.push(r),
-            Ok(s) => {
-                let list = by_id.entry(s.input.id.clone()).or_default();
-                if list.is_empty() {
-                    ids.push(s.input.id.clone());
-                }
-                list.push((k, s));
-            }
-        }
-    }
-    let staged = stages.len() >= 2;
-    for id in ids {
-        let mut list = by_id.remove(&id).unwrap_or_default();
-        list.sort_by_key(|(k, _)| *k);
-        let path: Vec<[f64; 2]> = list
-            .iter()
-            .map(|(_, s)| {
-                let t = s.strain.true_strain;
-                [t.minor.value(), t.major.value()]
-            })
-            .collect();
-        let axes: Vec<Option<f64>> = list.iter().map(|(_, s)| s.input.angle_deg).collect();
-        let Some((_, last)) = list.pop() else {
-            continue;
-        };
-        let mut p = ctx.judge(last);
-        if staged {
-            let j = judge_path(&path, &ctx.curve, ctx.settings.margin_pct, p.zone(), &axes);
-            if j.zone < p.judgement.zone {
-                p.judgement.zone = j.zone;
-                p.judgement.reason = crate::assess::Reason::Path;
-            }
-            p.path = Some(Box::new(j));
-        }
-        out.points.push(p);
-    }
-    out.stages = stages;
-    Ok(out)
 }
 
 #[cfg(test)]

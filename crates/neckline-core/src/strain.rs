@@ -9,6 +9,17 @@
 //! | true (log)       | ε = ln λ                  | any continuum mechanics text        |
 //! | Green-Lagrange   | E = (λ² − 1) / 2          | any continuum mechanics text        |
 //! | Almansi          | a = (1 − λ⁻²) / 2         | any continuum mechanics text        |
+//!
+//! ```
+//! use neckline_core::strain::{AlmansiStrain, EngStrain, GreenStrain, Stretch, TrueStrain};
+//!
+//! // A 2.5 mm circle stretched to 3.25 mm: λ = 1.30 (check values from the formulas above).
+//! let l = Stretch::from_lengths(3.25, 2.5).unwrap();
+//! assert!((EngStrain::from(l).percent() - 30.0).abs() < 1e-9);
+//! assert!((TrueStrain::from(l).value() - 0.26236).abs() < 5e-6);
+//! assert!((GreenStrain::from(l).value() - 0.3450).abs() < 5e-5);
+//! assert!((AlmansiStrain::from(l).value() - 0.20414).abs() < 5e-6);
+//! ```
 
 use serde::{Deserialize, Serialize};
 use std::fmt;
@@ -119,6 +130,19 @@ impl EngStrain {
         Stretch::new(1.0 + self.0)
     }
     /// `ε = ln(1 + e)`; `None` when e ≤ −1.
+    ///
+    /// ```
+    /// use neckline_core::strain::EngStrain;
+    ///
+    /// // A 20 % stretch is ln 1.2 = 0.18232 true strain (any continuum mechanics text).
+    /// let t = EngStrain(0.20).to_true().unwrap();
+    /// assert!((t.value() - 1.2f64.ln()).abs() < 1e-12);
+    /// assert!((t.value() - 0.18232).abs() < 5e-6);
+    /// // And back: e = exp ε − 1.
+    /// assert!((t.to_eng().value() - 0.20).abs() < 1e-12);
+    /// // A length cannot vanish: −100 % engineering strain has no true strain.
+    /// assert!(EngStrain(-1.0).to_true().is_none());
+    /// ```
     pub fn to_true(self) -> Option<TrueStrain> {
         self.stretch().map(TrueStrain::from)
     }

@@ -8,10 +8,10 @@
 //! and formats them, each chunk into its own text and partial summary; the main thread writes
 //! the texts and merges the summaries in order.
 
-use crate::analysis::{strain_of, Context};
 use crate::error::{Error, Location, Result};
 use crate::measure::{csv_error, duplicate, Header, Measurement, MAX_ROW_BYTES};
 use crate::output::points_csv::Layout;
+use crate::point::{strain_of, Context};
 use crate::summary::{Summary, Template, View};
 use rayon::prelude::*;
 use std::hash::{Hash, Hasher};
@@ -469,8 +469,10 @@ mod tests {
     /// margins, worst list and rows.
     #[test]
     fn streaming_agrees_with_judging_in_memory() {
-        use crate::analysis::{state_of, Analysis, Context, Lengths};
+        use crate::analysis::Analysis;
         use crate::measure::{read_measurements_from, ColumnMap};
+        use crate::point::{state_of, Context};
+        use crate::units::Lengths;
         use std::path::Path;
         let root = Path::new(env!("CARGO_MANIFEST_DIR"));
         let curve = crate::limit::LimitCurve::load(

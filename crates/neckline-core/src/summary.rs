@@ -7,9 +7,9 @@
 //! them in order, give the same summary (a test checks it): this is what lets parts of a file be
 //! judged on several threads.
 
-use crate::analysis::PointResult;
 use crate::assess::Zone;
 use crate::measure::RejectedRow;
+use crate::point::PointResult;
 use crate::strain::StrainMeasure;
 use rustc_hash::FxHashMap;
 
@@ -20,8 +20,7 @@ pub const KEEP_ALL: usize = 5_000;
 pub const AT_RISK_KEPT: usize = 2_000;
 /// The worst locations kept, worst first.
 pub const WORST_KEPT: usize = 100;
-/// Ids kept per list (per zone, borderline) and rejected rows kept; the totals are counted.
-pub const LIST_CAP: usize = 1_000;
+pub use crate::capped::{Capped, LIST_CAP};
 
 /// The plane of the part map.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -308,44 +307,6 @@ impl ThicknessCheck {
     }
 }
 
-/// A list that keeps its first [`LIST_CAP`] items and counts the rest.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Capped<T> {
-    /// The first items, in file order.
-    pub items: Vec<T>,
-    /// How many there were in all.
-    pub total: usize,
-}
-
-impl<T> Default for Capped<T> {
-    fn default() -> Self {
-        Capped {
-            items: Vec::new(),
-            total: 0,
-        }
-    }
-}
-
-impl<T> Capped<T> {
-    /// Add one.
-    pub fn push(&mut self, t: T) {
-        self.push_with(|| t);
-    }
-    /// Add one, made only when there is room for it.
-    pub fn push_with(&mut self, t: impl FnOnce() -> T) {
-        self.total += 1;
-        if self.items.len() < LIST_CAP {
-            self.items.push(t());
-        }
-    }
-    /// Append `other` (which follows in file order).
-    pub fn merge(&mut self, other: Capped<T>) {
-        self.total += other.total;
-        let room = LIST_CAP.saturating_sub(self.items.len());
-        self.items.extend(other.items.into_iter().take(room));
-    }
-}
-
 /// The rank of a location in the worst list: failed before marginal before the rest (a
 /// location failed by thinning can keep a positive margin), then smallest margin first.
 fn worst_key(p: &PointResult) -> (u8, f64) {
@@ -502,7 +463,8 @@ impl Summary {
         }
     }
 
-    /// Fold one judged location in (locations come in file order).
+    /// Fold one judged location in (locations come in file order). See [`Summary::merge`] for
+    /// an example of both.
     pub fn fold(&mut self, p: PointResult) {
         self.fold_ref(&p);
     }
@@ -599,6 +561,59 @@ impl Summary {
     }
 
     /// Merge the summary of the locations that follow this one's in the file.
+    ///
+    /// Folding a file's locations in one pass, or folding its parts apart and merging them in
+    /// order, gives the same summary. Three invented circles (d0 = 2.5 mm, plane strain) against
+    /// the 0.80 mm Keeler-Brazier curve, FLC0 = (23.3 + 14.13 × 0.8) × 0.20 / 0.21 = 32.96 %
+    /// (Keeler & Brazier 1977), with the 10-point band (common practice): 36 % is failed, 30 %
+    /// marginal, 10 % safe.
+    ///
+    /// ```
+    /// use neckline_core::assess::{Settings, Zone};
+    /// use neckline_core::limit::LimitCurve;
+    /// use neckline_core::measure::Measurement;
+    /// use neckline_core::point::{state_of, Context};
+    /// use neckline_core::summary::{Summary, View};
+    /// use neckline_core::units::Lengths;
+    /// use std::path::Path;
+    ///
+    /// let curve = LimitCurve::parse(
+    ///     "name = \"kb\"\nsource = \"Keeler & Brazier 1977\"\nstrain = \"engineering\"\n\
+    ///      [keeler_brazier]\nn = 0.20\nthickness_mm = 0.8\n",
+    ///     Path::new("kb.toml"),
+    /// )?;
+    /// let lengths = Lengths { unit: Default::default(), d0: Some(2.5), t0: None };
+    /// let ctx = Context { curve, settings: Settings::default(), lengths, strain_input: false };
+    /// let judged: Vec<_> = [("A", 3.40), ("B", 3.25), ("C", 2.75)]
+    ///     .into_iter()
+    ///     .enumerate()
+    ///     .map(|(i, (id, d1))| {
+    ///         let m = Measurement::axes(id, i as u64 + 2, d1, 2.5, None);
+    ///         ctx.judge(state_of(m, Path::new("part.csv"), &lengths).unwrap())
+    ///     })
+    ///     .collect();
+    ///
+    /// let mut whole = Summary::new(View::default());
+    /// for p in judged.clone() {
+    ///     whole.fold(p);
+    /// }
+    /// let mut first = Summary::new(View::default());
+    /// first.fold(judged[0].clone());
+    /// let mut rest = first.next_part();
+    /// for p in judged[1..].iter().cloned() {
+    ///     rest.fold(p);
+    /// }
+    /// first.merge(rest);
+    ///
+    /// for s in [&whole, &first] {
+    ///     assert_eq!(s.total, 3);
+    ///     assert_eq!(s.zone_ids[Zone::Failed as usize].items, ["A"]);
+    ///     assert_eq!(s.zone_ids[Zone::Marginal as usize].items, ["B"]);
+    ///     assert_eq!(s.count(Zone::Safe), 1);
+    ///     assert_eq!(s.worst[0].input.id, "A"); // failed first
+    /// }
+    /// # Ok::<(), neckline_core::Error>(())
+    /// ```
     pub fn merge(&mut self, o: Summary) {
         let total = self.total + o.total;
         if self.complete && o.complete && total <= KEEP_ALL {
@@ -671,10 +686,11 @@ pub fn point_xy(p: &PointResult, measure: StrainMeasure) -> (f64, f64) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::{state_of, Context, Lengths};
     use crate::assess::Settings;
     use crate::limit::LimitCurve;
     use crate::measure::Measurement;
+    use crate::point::{state_of, Context};
+    use crate::units::Lengths;
     use std::path::Path;
 
     /// `n` judged locations (invented), spread over every zone, some with positions.

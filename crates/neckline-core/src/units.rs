@@ -93,6 +93,17 @@ impl fmt::Display for Length {
     }
 }
 
+/// Lengths that apply to every row unless a row says otherwise.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Lengths {
+    /// Unit of all lengths in the measurement file.
+    pub unit: LengthUnit,
+    /// Initial circle diameter (a per-row `d0` overrides it).
+    pub d0: Option<f64>,
+    /// Initial sheet thickness.
+    pub t0: Option<f64>,
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -2,15 +2,16 @@
 //! files read into memory and streamed through `check`'s pass, points.csv as `compare` reads
 //! it) takes arbitrary bytes or text and answers with a value or an error, never a panic.
 
-use neckline_core::analysis::{Context, Lengths};
 use neckline_core::assess::Settings;
 use neckline_core::grid::read::{elements_from_table, nodes_from_table};
 use neckline_core::job::Job;
 use neckline_core::limit::LimitCurve;
 use neckline_core::measure::{read_measurements_from, screen, ColumnMap, Header, RowRules};
 use neckline_core::output::points_csv::Layout;
+use neckline_core::point::Context;
 use neckline_core::stream::Pass;
 use neckline_core::table::read_table_from;
+use neckline_core::units::Lengths;
 use proptest::prelude::*;
 use std::path::Path;
 
@@ -239,7 +240,7 @@ proptest! {
         if let Ok(set) = read_measurements_from(&bytes[..], file, &ColumnMap::default()) {
             let lengths = Lengths { unit: Default::default(), d0: Some(2.5), t0: None };
             for m in set.points {
-                let _ = neckline_core::analysis::state_of(m, file, &lengths);
+                let _ = neckline_core::point::state_of(m, file, &lengths);
             }
         }
     }

@@ -137,8 +137,9 @@ proptest! {
 
 /// Judge a one-row measurement CSV read through neckline's own reader: (zone, margin).
 fn judge_csv(text: &str) -> (Zone, Option<f64>) {
-    use neckline_core::analysis::{state_of, Context, Lengths};
     use neckline_core::measure::{read_measurements_from, ColumnMap};
+    use neckline_core::point::{state_of, Context};
+    use neckline_core::units::Lengths;
     let file = Path::new("p.csv");
     let set = read_measurements_from(text.as_bytes(), file, &ColumnMap::default()).unwrap();
     let lengths = Lengths {

@@ -11,10 +11,12 @@
 //! - the safety band: the curve's engineering major strain minus the margin setting.
 
 use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult, Placer, Rect, SIZE};
-use neckline_core::analysis::{Analysis, PointResult, CAUTION};
+use neckline_core::analysis::Analysis;
 use neckline_core::assess::Zone;
+use neckline_core::point::PointResult;
 use neckline_core::strain::StrainMeasure;
 use neckline_core::summary::point_xy;
+use neckline_core::CAUTION;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;

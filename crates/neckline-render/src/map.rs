@@ -7,8 +7,9 @@
 
 use crate::fld::{draw_footer, title_lines, worst_label};
 use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult, Placer, SIZE};
-use neckline_core::analysis::{Analysis, PointResult};
+use neckline_core::analysis::Analysis;
 use neckline_core::assess::Zone;
+use neckline_core::point::PointResult;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;

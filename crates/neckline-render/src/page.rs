@@ -167,7 +167,7 @@ impl Badges {
 
 /// The caution box.
 pub fn caution() -> Markup {
-    html! { p.caution { (neckline_core::analysis::CAUTION) } }
+    html! { p.caution { (neckline_core::CAUTION) } }
 }
 
 #[cfg(test)]

@@ -4,13 +4,13 @@
 
 use crate::fld;
 use crate::plot;
-use neckline_core::analysis::CAUTION;
+use neckline_core::condition::Condition;
 use neckline_core::limit::from_parts::{Band, PartCircle, PartsFit};
 use neckline_core::limit::writer::{SHOP_CURVE_WORDS, TOOL_VERSION};
 use neckline_core::limit::LimitCurve;
-use neckline_core::observed::Condition;
 use neckline_core::output::input_name;
 use neckline_core::strain::StrainMeasure;
+use neckline_core::CAUTION;
 use plotters::prelude::*;
 use std::io;
 use std::path::Path;

@@ -8,9 +8,10 @@ use crate::fld::{self, FldOptions};
 use crate::map;
 use crate::page::{self, Badges};
 use maud::{html, Markup};
-use neckline_core::analysis::{Analysis, PointResult, Verdict};
+use neckline_core::analysis::{Analysis, Verdict};
 use neckline_core::assess::Zone;
 use neckline_core::output::{fmt_length, fmt_margin_opt, fmt_opt, fmt_setting, reason_text};
+use neckline_core::point::PointResult;
 use std::io::{self, Write};
 
 /// Rows in the worst-locations table.
@@ -625,7 +626,7 @@ mod render_tests {
             2,
             "diagram and map inline"
         );
-        assert!(html.contains(neckline_core::analysis::CAUTION));
+        assert!(html.contains(neckline_core::CAUTION));
     }
 
     #[test]

@@ -1,9 +1,10 @@
 //! The short summary for people, fitted to 80 columns. Colour (plain ANSI SGR codes) only when
 //! the stream is a terminal and `NO_COLOR` is unset or empty (no-color.org convention).
 
-use neckline_core::analysis::{Analysis, Verdict, CAUTION};
+use neckline_core::analysis::{Analysis, Verdict};
 use neckline_core::assess::Zone;
 use neckline_core::output::{count_of, fmt_length, fmt_setting, reason_text};
+use neckline_core::CAUTION;
 use std::fmt::Write as _;
 
 /// Width the summary fits in, columns.

@@ -1,8 +1,8 @@
 //! `compare.json`: the counts and lists of a comparison, for scripts.
 
 use super::{Change, Comparison, Matching, Status, Track};
-use crate::analysis::CAUTION;
 use crate::assess::Zone;
+use crate::CAUTION;
 use serde_json::{json, Map, Value};
 use std::io::{self, Write};
 

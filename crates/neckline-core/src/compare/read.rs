@@ -39,7 +39,7 @@ impl ResultRow {
 
 /// What the `summary.json` beside a result says about how it was made.
 #[derive(Debug, Clone, Default, PartialEq)]
-pub struct Summary {
+pub struct RecordedSummary {
     /// Part name.
     pub part: Option<String>,
     /// Die.
@@ -72,7 +72,7 @@ pub struct Tryout {
     /// Its locations, in file order.
     pub rows: Vec<ResultRow>,
     /// The summary beside it, if any.
-    pub summary: Option<Summary>,
+    pub summary: Option<RecordedSummary>,
 }
 
 const NEEDED: [&str; 5] = ["id", "major_eng_pct", "minor_eng_pct", "margin_pct", "zone"];
@@ -260,12 +260,12 @@ fn check_size(rec: &csv::StringRecord, at: &Location) -> Result<()> {
 }
 
 /// The `summary.json` that `check` wrote beside `points` (when there is one and it parses).
-pub fn read_summary(points: &Path) -> Option<Summary> {
+pub fn read_summary(points: &Path) -> Option<RecordedSummary> {
     let path = points.with_file_name("summary.json");
     let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(path).ok()?).ok()?;
     let text = |x: &serde_json::Value| x.as_str().map(str::to_string);
     let job = &v["job"];
-    Some(Summary {
+    Some(RecordedSummary {
         part: text(&job["part"]),
         die: text(&job["die"]),
         tryout: text(&job["tryout"]),

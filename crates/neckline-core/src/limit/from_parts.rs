@@ -1,7 +1,7 @@
 //! A press-shop forming-limit curve from circles read on necked or split parts.
 //!
 //! The circles across and beside a neck are marked `safe`, `necked` or `split` (see
-//! [`crate::observed`]). The press-shop curve is the boundary between the safe circles and the
+//! [`crate::condition`]). The press-shop curve is the boundary between the safe circles and the
 //! necked-or-split ones (a necked or split circle counts as at or above the limit); ISO 12004-1
 //! describes such curves (from memory). It holds for one material lot, thickness and process.
 //!
@@ -49,7 +49,7 @@
 //! measured from the curve and placed at the knot. When the highest safe circle is below the
 //! lowest necked one they do not mix, and the band is the gap in which the curve could lie.
 
-use crate::observed::Condition;
+use crate::condition::Condition;
 use nalgebra::{DMatrix, DVector};
 
 /// At least this many safe circles, and as many necked-or-split ones, are needed for a fit.

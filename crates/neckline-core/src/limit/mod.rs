@@ -95,12 +95,57 @@ pub use crate::error::line_col;
 
 impl LimitCurve {
     /// Load and validate a curve file.
+    ///
+    /// ```
+    /// use neckline_core::limit::LimitCurve;
+    /// use std::path::Path;
+    ///
+    /// # let limits = Path::new(env!("CARGO_MANIFEST_DIR")).join("../../limits");
+    /// let curve = LimitCurve::load(&limits.join("steel-1.50mm-n0.18-keeler-brazier.toml"))?;
+    /// // Keeler-Brazier (Keeler & Brazier 1977, NADDRG form): FLC0 = (23.3 + 14.13 t) n / 0.21
+    /// // = (23.3 + 14.13 × 1.5) × 0.18 / 0.21 = 38.14 % engineering major strain.
+    /// assert!((curve.major_at(0.0).unwrap() - 0.3814).abs() < 1e-4);
+    /// assert_eq!(curve.thickness_mm, Some(1.5));
+    /// # Ok::<(), neckline_core::Error>(())
+    /// ```
     pub fn load(path: &Path) -> Result<Self> {
         let text = crate::error::read_text(path)?;
         Self::parse(&text, path)
     }
 
     /// Parse and validate curve TOML; `path` is used in messages.
+    ///
+    /// A tabulated curve is read as written; a `[keeler_brazier]` table generates the empirical
+    /// steel curve:
+    ///
+    /// ```
+    /// use neckline_core::limit::LimitCurve;
+    /// use neckline_core::strain::StrainMeasure;
+    /// use std::path::Path;
+    ///
+    /// let text = r#"
+    /// name = "Keeler-Brazier, steel 0.80 mm, n 0.20"
+    /// source = "Keeler & Brazier 1977, NADDRG form"
+    /// strain = "engineering"
+    ///
+    /// [keeler_brazier]
+    /// n = 0.20
+    /// thickness_mm = 0.8
+    /// "#;
+    /// let curve = LimitCurve::parse(text, Path::new("kb.toml"))?;
+    /// assert_eq!(curve.measure, StrainMeasure::Engineering);
+    /// // FLC0 = (23.3 + 14.13 t) n / 0.21 = (23.3 + 14.13 × 0.8) × 0.20 / 0.21 = 32.96 %
+    /// // (Keeler & Brazier 1977); right of plane strain the major strain rises by 0.6 of the
+    /// // minor (common practice): 32.96 + 0.6 × 10 = 38.96 % at 10 % minor.
+    /// assert!((curve.major_at(0.0).unwrap() - 0.3296).abs() < 1e-4);
+    /// assert!((curve.major_at(0.10).unwrap() - 0.3896).abs() < 1e-4);
+    ///
+    /// // A curve without its strain measure is refused, naming the file.
+    /// let err = LimitCurve::parse("name = \"x\"\nsource = \"y\"\npoints = [[0, 30], [10, 35]]\n",
+    ///     Path::new("bare.toml")).unwrap_err();
+    /// assert!(err.to_string().contains("bare.toml") && err.to_string().contains("`strain`"));
+    /// # Ok::<(), neckline_core::Error>(())
+    /// ```
     pub fn parse(text: &str, path: &Path) -> Result<Self> {
         let at = |offset: usize| {
             let (l, c) = line_col(text, offset);

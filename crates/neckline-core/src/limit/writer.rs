@@ -3,9 +3,9 @@
 //! `material` and `thickness_mm`, `strain`, and `points = [[minor, major], ...]` in percent.
 
 use super::LimitCurve;
-use crate::analysis::CAUTION;
 use crate::error::Result;
 use crate::strain::StrainMeasure;
+use crate::CAUTION;
 use std::fmt::Write as _;
 use std::path::Path;
 

@@ -58,9 +58,9 @@ pub use rules::{
 };
 pub use screen::{screen, SCREEN_BYTES, SCREEN_ROWS, SCREEN_STRETCH};
 
+use crate::condition::Condition;
 use crate::error::Location;
 use crate::kinematics::Principal;
-use crate::observed::Condition;
 use crate::strain::TrueStrain;
 use std::path::PathBuf;
 

@@ -57,7 +57,7 @@ pub struct RowRules {
 
 impl RowRules {
     /// The rules of a run: its lengths and its reading error.
-    pub fn new(lengths: &crate::analysis::Lengths, reading_error: Option<f64>) -> Self {
+    pub fn new(lengths: &crate::units::Lengths, reading_error: Option<f64>) -> Self {
         RowRules {
             d0: lengths.d0,
             reading_error,

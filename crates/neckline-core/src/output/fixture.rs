@@ -2,12 +2,14 @@
 //! test, and 24 locations chosen to land in every zone. Deterministic: no dates from the clock,
 //! no absolute paths.
 
-use crate::analysis::{state_of, Analysis, Context, Lengths};
+use crate::analysis::Analysis;
 use crate::assess::Settings;
 use crate::job::Job;
 use crate::limit::LimitCurve;
 use crate::measure::{read_measurements_from, ColumnMap};
+use crate::point::{state_of, Context};
 use crate::units::LengthUnit;
+use crate::units::Lengths;
 use std::path::Path;
 
 /// The curve file of the fixture (engineering percent).

@@ -294,7 +294,7 @@ pub fn notes(a: &crate::analysis::Analysis) -> Vec<Note> {
     }
     let ob = &a.summary.observed;
     if ob.observed() > 0 {
-        let row = |c: crate::observed::Condition| {
+        let row = |c: crate::condition::Condition| {
             let cells: Vec<String> = crate::assess::Zone::ALL
                 .iter()
                 .filter(|z| ob.count(c, **z) > 0)
@@ -307,7 +307,7 @@ pub fn notes(a: &crate::analysis::Analysis) -> Vec<Note> {
             };
             format!("{}: {cells}", c.name())
         };
-        let rows: Vec<String> = crate::observed::Condition::ALL
+        let rows: Vec<String> = crate::condition::Condition::ALL
             .iter()
             .map(|c| row(*c))
             .collect();
@@ -437,7 +437,7 @@ pub fn fmt_length(v: f64, unit: crate::units::LengthUnit) -> String {
 
 /// Why a location is in its zone, in words with the numbers that decided it:
 /// "thinning 27.7 % (max 25)", "margin 4.2 pp < band 10", "thicker 3.3 % (from 2)".
-pub fn reason_text(p: &crate::analysis::PointResult, st: &crate::assess::Settings) -> String {
+pub fn reason_text(p: &crate::point::PointResult, st: &crate::assess::Settings) -> String {
     use crate::assess::Reason;
     let j = &p.judgement;
     let band = st.margin_pct;

@@ -7,9 +7,9 @@
 //! is read from, 4), limit use 2 decimals, `beta` 3 decimals, thickness
 //! 4 decimals in mm and 5 in inches (0.1 µm, 0.01 thou), positions 3 decimals, d0 4 decimals.
 
-use crate::analysis::PointResult;
 pub use crate::measure::{GRID_COLUMNS, PATH_COLUMNS};
 use crate::output::push_fixed_bytes;
+use crate::point::PointResult;
 use crate::units::LengthUnit;
 
 /// The strain columns, in order (shared by `check` and `strains`).

@@ -3,8 +3,9 @@
 //! input file, the neckline version, the run time (UTC, ISO 8601) and the caution: a filed
 //! summary proves what it judged.
 
-use crate::analysis::{Analysis, CAUTION};
+use crate::analysis::Analysis;
 use crate::summary::Capped;
+use crate::CAUTION;
 use serde_json::{json, Map, Value};
 use std::io::{self, Write};
 
@@ -27,7 +28,7 @@ pub fn summary(a: &Analysis) -> Value {
         .zip(&a.summary.zone_ids)
         .map(|(z, c)| (z.name().to_string(), capped_ids(c)))
         .collect();
-    let point = |p: &crate::analysis::PointResult| {
+    let point = |p: &crate::point::PointResult| {
         json!({ "id": p.input.id, "margin_pct": p.judgement.margin_pct,
                 "limit_use_pct": p.judgement.limit_use_pct, "zone": p.zone().name(),
                 "reason": p.judgement.reason.name(),
@@ -104,7 +105,7 @@ pub fn summary(a: &Analysis) -> Value {
         })),
         "observed": (a.summary.observed.observed() > 0).then(|| {
             let ob = &a.summary.observed;
-            let table: Map<String, Value> = crate::observed::Condition::ALL
+            let table: Map<String, Value> = crate::condition::Condition::ALL
                 .iter()
                 .map(|c| {
                     let row: Map<String, Value> = crate::assess::Zone::ALL

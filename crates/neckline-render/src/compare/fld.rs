@@ -8,9 +8,9 @@
 //! straight between them. The safety band is that line minus the band of the last summary.
 
 use crate::plot::{self, marker, palette, zone_colour, zone_shape, DrawResult, Placer};
-use neckline_core::analysis::CAUTION;
 use neckline_core::compare::csv_out::latest;
 use neckline_core::compare::{count, Change, Comparison, Track};
+use neckline_core::CAUTION;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;

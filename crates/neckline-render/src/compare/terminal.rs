@@ -2,10 +2,10 @@
 //! risk now, which locations were measured in one tryout only.
 
 use crate::terminal::{wrap, WIDTH};
-use neckline_core::analysis::CAUTION;
 use neckline_core::assess::Zone;
 use neckline_core::compare::{count, Change, Comparison, Matching, Status, Track};
 use neckline_core::output::fmt_opt;
+use neckline_core::CAUTION;
 use std::fmt::Write as _;
 
 /// The whole text; lists hold at most `show` entries.
