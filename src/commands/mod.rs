@@ -19,6 +19,12 @@ use neckline_core::measure::ColumnMap;
 use neckline_core::units::{Length, LengthUnit};
 use std::path::{Path, PathBuf};
 
+/// `text` as a paragraph for the terminal: wrapped at word boundaries to
+/// [`neckline_render::terminal::WIDTH`] columns, without indent, each line ending in a newline.
+pub fn paragraph(text: &str) -> String {
+    neckline_render::terminal::wrap(text, neckline_render::terminal::WIDTH, "")
+}
+
 /// What a command asks `main` to exit with.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Outcome {

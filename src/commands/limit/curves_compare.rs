@@ -1,7 +1,7 @@
 //! `neckline limit compare`: two curves' engineering major strain side by side at a set of minor
 //! strains, and their difference. (Not the `compare` command, which compares tryouts.)
 
-use crate::commands::Outcome;
+use crate::commands::{paragraph, Outcome};
 use clap::Args;
 use neckline_core::analysis::CAUTION;
 use neckline_core::error::{Error, Result};
@@ -92,6 +92,6 @@ fn compare_table(
         ));
     }
     s.push('\n');
-    s.push_str(&neckline_render::terminal::wrap(CAUTION, 80, ""));
+    s.push_str(&paragraph(CAUTION));
     s
 }

@@ -5,7 +5,7 @@
 
 use super::emit::{emit_curve, CurveOutArgs, CurveWrite, PictureFormat};
 use crate::args::LengthArgs;
-use crate::commands::Outcome;
+use crate::commands::{paragraph, Outcome};
 use clap::Args;
 use neckline_core::analysis::{Lengths, CAUTION};
 use neckline_core::digest::sha256_hex;
@@ -344,8 +344,8 @@ fn parts_summary(c: &LimitCurve, path: Option<&Path>, fit: &PartsFit, data: &Par
         n.safe + n.failed()
     ));
     let words = format!("A {SHOP_CURVE_WORDS}.");
-    s.push_str(&neckline_render::terminal::wrap(&words, 80, ""));
-    s.push_str(&neckline_render::terminal::wrap(CAUTION, 80, ""));
+    s.push_str(&paragraph(&words));
+    s.push_str(&paragraph(CAUTION));
     s
 }
 

@@ -3,7 +3,7 @@
 //! parameter and setting and the version), written through [`emit_curve`].
 
 use super::emit::{emit_curve, CurveOutArgs, CurveWrite, PictureFormat};
-use crate::commands::Outcome;
+use crate::commands::{paragraph, Outcome};
 use clap::Args;
 use neckline_core::analysis::{Analysis, Context, Lengths, CAUTION};
 use neckline_core::assess::Settings;
@@ -302,7 +302,7 @@ pub fn emit(curve: &GeneratedCurve, out: &CurveOutArgs) -> Result<Outcome> {
             picture: curve_picture,
             summary: |c: &LimitCurve, written: Option<&Path>| match written {
                 Some(path) => summary(c, path),
-                None => neckline_render::terminal::wrap(CAUTION, 80, ""),
+                None => paragraph(CAUTION),
             },
         },
     )
@@ -355,6 +355,6 @@ fn summary(c: &LimitCurve, path: &Path) -> String {
         c.points.len(),
         c.measure,
         c.name,
-        neckline_render::terminal::wrap(CAUTION, 80, "")
+        paragraph(CAUTION)
     )
 }
