@@ -34,4 +34,9 @@ pub enum Command {
     /// necking, Marciniak-Kuczynski) or from circles read on necked and split parts, or
     /// compare two curves.
     Limit(crate::commands::limit::LimitArgs),
+    /// Print a shell completion script to standard output (bash, zsh, fish, powershell,
+    /// elvish).
+    Completions(crate::commands::completions::CompletionsArgs),
+    /// Write the manual pages (roff): neckline.1 and one per subcommand, e.g. neckline-check.1.
+    Manual(crate::commands::manual::ManualArgs),
 }

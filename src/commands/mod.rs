@@ -2,9 +2,11 @@
 
 pub mod check;
 pub mod compare;
+pub mod completions;
 pub mod fit;
 pub mod grid;
 pub mod limit;
+pub mod manual;
 pub mod outputs;
 pub mod progress;
 pub mod strains;
