@@ -30,7 +30,13 @@ pub enum Command {
     Grid(crate::commands::grid::GridArgs),
     /// Fit ellipses to outline points; write a measurement CSV that `check` reads.
     Fit(crate::commands::fit::FitArgs),
-    /// Build a forming-limit curve from material data (Keeler-Brazier, analytic necking,
-    /// Marciniak-Kuczynski) as curve TOML, or compare two curves.
+    /// Build a forming-limit curve as curve TOML from material data (Keeler-Brazier, analytic
+    /// necking, Marciniak-Kuczynski) or from circles read on necked and split parts, or
+    /// compare two curves.
     Limit(crate::commands::limit::LimitArgs),
+    /// Print a shell completion script to standard output (bash, zsh, fish, powershell,
+    /// elvish).
+    Completions(crate::commands::completions::CompletionsArgs),
+    /// Write the manual pages (roff): neckline.1 and one per subcommand, e.g. neckline-check.1.
+    Manual(crate::commands::manual::ManualArgs),
 }

@@ -14,6 +14,8 @@ fn main() -> ExitCode {
         Command::Grid(args) => commands::grid::run(args),
         Command::Fit(args) => commands::fit::run(args),
         Command::Limit(args) => commands::limit::run(args),
+        Command::Completions(args) => commands::completions::run(args),
+        Command::Manual(args) => commands::manual::run(args),
     };
     match result {
         Ok(Outcome::Done) => ExitCode::SUCCESS,

@@ -2,8 +2,8 @@
 //! One file streams through [`neckline_core::stream`]; several files are judged side by side, each into
 //! its own folder, with an index.
 
-use super::outputs::{emit, OutputArgs, Plan};
-use super::progress::Progress;
+use super::outputs::{emit, OutputArgs, Plan, Summary};
+use super::progress::{Bar, Progress};
 use super::{require_points, Outcome, Prepared};
 use crate::args::{JudgeArgs, LengthArgs};
 use clap::Args;
@@ -47,7 +47,7 @@ pub fn run(args: &CheckArgs) -> Result<Outcome> {
         let plan = Plan::of(&args.output);
         plan.prepare(&direct_inputs(args, one))?;
         let prep = Prepared::resolve(&args.lengths, &args.judge)?;
-        let a = check_one(one, args, &args.output, &plan, &prep, true, "")?;
+        let a = check_one(one, args, &args.output, &plan, &prep, Batch::Alone)?;
         return Ok(outcome(args, &a));
     }
     run_many(args)
@@ -74,20 +74,31 @@ fn direct_inputs(args: &CheckArgs, measurements: &Path) -> Vec<PathBuf> {
     v
 }
 
-/// Judge one file and write its outputs; `single` = the only file of the run (progress bar,
-/// summary printed in full).
+/// Whether a file is the only one of its run or one of several judged side by side.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Batch {
+    /// The only file: a progress bar when slow, the summary printed in full.
+    Alone,
+    /// One of several: no bar, no summary (the run prints one line per file).
+    OneOfSeveral,
+}
+
+/// Judge one file and write its outputs, reported as `batch` says.
 fn check_one(
     path: &Path,
     args: &CheckArgs,
     output: &OutputArgs,
     plan: &Plan,
     prep: &Prepared,
-    single: bool,
-    preface: &str,
+    batch: Batch,
 ) -> Result<Analysis> {
+    let (bar, summary) = match batch {
+        Batch::Alone => (Bar::WhenSlow, Summary::Print),
+        Batch::OneOfSeveral => (Bar::Hidden, Summary::Silent),
+    };
     let mut inputs = direct_inputs(args, path);
     inputs.extend(prep.job.limit.clone());
-    let (a, points) = judge_file(path, prep, output, plan, &inputs, single)?;
+    let (a, points) = judge_file(path, prep, output, plan, &inputs, bar)?;
     if args.strict && a.rejected_total() > 0 {
         return Err(Error::Usage(format!(
             "--strict: {} rows rejected, first: {}",
@@ -95,7 +106,7 @@ fn check_one(
             a.rejected()[0]
         )));
     }
-    emit(&a, output, plan, &inputs, preface, points, single)?;
+    emit(&a, output, plan, &inputs, points, summary)?;
     Ok(a)
 }
 
@@ -107,7 +118,7 @@ pub fn judge_file(
     output: &OutputArgs,
     plan: &Plan,
     inputs: &[PathBuf],
-    progress: bool,
+    bar: Bar,
 ) -> Result<(Analysis, Option<AtomicFile>)> {
     // The measurement file is hashed as it streams past (standard input too), never held;
     // its first rows are screened for a file that cannot be meant as it reads.
@@ -161,7 +172,7 @@ pub fn judge_file(
             .map_err(io_err)?;
     }
     let size = std::fs::metadata(path).ok().map(|m| m.len());
-    let mut bar = Progress::new(&path.display().to_string(), size, progress);
+    let mut progress = Progress::new(&path.display().to_string(), size, bar);
     let pass = Pass {
         header: &header,
         ctx: &ctx,
@@ -170,8 +181,8 @@ pub fn judge_file(
         write: sink.is_some(),
         size_hint: size,
     };
-    let summary = pass.run(&mut input, sink, &mut |b| bar.set(b));
-    bar.finish();
+    let summary = pass.run(&mut input, sink, &mut |b| progress.set(b));
+    progress.finish();
     let summary = summary?;
     notes.extend(header.swap_note());
     match out.flush() {
@@ -268,7 +279,7 @@ fn run_many(args: &CheckArgs) -> Result<Outcome> {
             output.out = dir.clone();
             let plan = Plan::of(&output);
             plan.prepare(&direct_inputs(args, path))?;
-            check_one(path, args, &output, &plan, &prep, false, "")
+            check_one(path, args, &output, &plan, &prep, Batch::OneOfSeveral)
         })
         .collect();
     let mut text = String::new();

@@ -1,12 +1,11 @@
 //! `neckline compare`: one tryout against the next, location by location, and the review pack.
 
-use super::Outcome;
+use super::{paragraph, Outcome};
 use clap::{Args, ValueEnum};
 use neckline_core::compare::{self, csv_out, json_out, read_tryout, Comparison, Matching};
 use neckline_core::error::{Error, Result};
 use neckline_core::output::{guard_inputs, write_atomic};
 use neckline_render::compare::{fld, map, page, terminal};
-use neckline_render::terminal::{wrap, WIDTH};
 use std::path::{Path, PathBuf};
 
 /// How locations are paired between tryouts.
@@ -138,7 +137,7 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
         .collect::<Result<Vec<_>>>()?;
     let c = compare::compare(tryouts, how, args.tolerance)?;
     for w in &c.warnings {
-        eprint!("{}", wrap(&format!("warning: {w}"), WIDTH, ""));
+        eprint!("{}", paragraph(&format!("warning: {w}")));
     }
     let written = match &args.out {
         Some(out) => write_pack(&c, out, &args.inputs)?,
@@ -151,14 +150,10 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
             if p.is_file() && !written.contains(&p) {
                 print!(
                     "{}",
-                    wrap(
-                        &format!(
-                            "note: {} is from an earlier run and was not written by this one",
-                            p.display()
-                        ),
-                        WIDTH,
-                        ""
-                    )
+                    paragraph(&format!(
+                        "note: {} is from an earlier run and was not written by this one",
+                        p.display()
+                    ))
                 );
             }
         }
@@ -166,10 +161,7 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
             println!("note: no location has x, y: the map of margin change was not drawn");
         }
         let names: Vec<String> = written.iter().map(|p| p.display().to_string()).collect();
-        print!(
-            "{}",
-            wrap(&format!("Wrote {}", names.join(", ")), WIDTH, "")
-        );
+        print!("{}", paragraph(&format!("Wrote {}", names.join(", "))));
     }
     Ok(gate(&c, args.fail_on))
 }
@@ -236,15 +228,11 @@ fn gate(c: &Comparison, fail_on: Option<Gate>) -> Outcome {
     let more = if hits.len() > 12 { ", ..." } else { "" };
     print!(
         "{}",
-        wrap(
-            &format!(
-                "--fail-on {name}: tripped by {} ({}{more}): exit status 1",
-                compare::count(hits.len(), "location"),
-                ids.join(", ")
-            ),
-            WIDTH,
-            ""
-        )
+        paragraph(&format!(
+            "--fail-on {name}: tripped by {} ({}{more}): exit status 1",
+            compare::count(hits.len(), "location"),
+            ids.join(", ")
+        ))
     );
     Outcome::Tripped
 }

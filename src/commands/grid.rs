@@ -1,6 +1,6 @@
 //! `neckline grid`: strains from grid nodes (flat blank and formed part), judged like `check`.
 
-use super::outputs::{emit, OutputArgs, Plan};
+use super::outputs::{emit, OutputArgs, Plan, Summary};
 use super::{limit_path, load_job, resolve_lengths, resolve_settings, Outcome};
 use crate::args::{JudgeArgs, LengthArgs};
 use clap::Args;
@@ -162,7 +162,14 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
     let text = points_csv::table(&layout, &all);
     drop(all);
     let points = super::outputs::points_out(&plan, &inputs, text.as_bytes())?;
-    emit(&a, &args.output, &plan, &inputs, &preface, points, true)?;
+    emit(
+        &a,
+        &args.output,
+        &plan,
+        &inputs,
+        points,
+        Summary::PrintAfter(&preface),
+    )?;
     let tripped = args
         .judge
         .fail_on

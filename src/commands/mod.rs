@@ -2,9 +2,11 @@
 
 pub mod check;
 pub mod compare;
+pub mod completions;
 pub mod fit;
 pub mod grid;
 pub mod limit;
+pub mod manual;
 pub mod outputs;
 pub mod progress;
 pub mod strains;
@@ -19,6 +21,12 @@ use neckline_core::measure::ColumnMap;
 use neckline_core::units::Lengths;
 use neckline_core::units::{Length, LengthUnit};
 use std::path::{Path, PathBuf};
+
+/// `text` as a paragraph for the terminal: wrapped at word boundaries to
+/// [`neckline_render::terminal::WIDTH`] columns, without indent, each line ending in a newline.
+pub fn paragraph(text: &str) -> String {
+    neckline_render::terminal::wrap(text, neckline_render::terminal::WIDTH, "")
+}
 
 /// What a command asks `main` to exit with.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

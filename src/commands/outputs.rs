@@ -1,6 +1,7 @@
 //! Output selection shared by the commands that judge locations (`check`, `grid`): which files,
 //! where, checked before the work starts, and the summary printed after.
 
+use super::paragraph;
 use crate::args::{MapPlaneArg, MapValueArg};
 use clap::{Args, ValueEnum};
 use neckline_core::analysis::Analysis;
@@ -156,22 +157,34 @@ impl Plan {
     }
 }
 
-/// Write the planned outputs of `a`, then print the summary for people (preceded by
-/// `preface`) on standard output, or on standard error when the points CSV goes to standard
-/// output. `inputs` are never written over.
+/// Whether [`emit`] prints the summary for people, and what goes before it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Summary<'a> {
+    /// Print the summary.
+    Print,
+    /// Print these lines, then the summary.
+    PrintAfter(&'a str),
+    /// Print nothing (one of several files: the run reports them together).
+    Silent,
+}
+
+/// Write the planned outputs of `a`, then print the summary for people as `summary` says, on
+/// standard output, or on standard error when the points CSV goes to standard output.
+/// `inputs` are never written over.
 pub fn emit(
     a: &Analysis,
     args: &OutputArgs,
     plan: &Plan,
     inputs: &[PathBuf],
-    preface: &str,
     points: Option<AtomicFile>,
-    print: bool,
+    summary: Summary<'_>,
 ) -> Result<()> {
     let written = write_outputs(a, args, plan, inputs, points)?;
-    if !print {
-        return Ok(());
-    }
+    let preface = match summary {
+        Summary::Silent => return Ok(()),
+        Summary::Print => "",
+        Summary::PrintAfter(lines) => lines,
+    };
     let mut text = String::new();
     if a.summary.placed == 0 && (plan.svg.is_some() || plan.png.is_some()) {
         let (u, v) = MapPlane::from(args.map_plane).axes();
@@ -180,22 +193,14 @@ pub fn emit(
         ));
     }
     for stale in stale_outputs(&args.out, &written) {
-        text.push_str(&terminal::wrap(
-            &format!(
-                "note: {} is from an earlier run and was not written by this one",
-                stale.display()
-            ),
-            terminal::WIDTH,
-            "",
-        ));
+        text.push_str(&paragraph(&format!(
+            "note: {} is from an earlier run and was not written by this one",
+            stale.display()
+        )));
     }
     if !written.is_empty() {
         let names: Vec<String> = written.iter().map(|p| p.display().to_string()).collect();
-        text.push_str(&terminal::wrap(
-            &format!("Wrote {}", names.join(", ")),
-            terminal::WIDTH,
-            "",
-        ));
+        text.push_str(&paragraph(&format!("Wrote {}", names.join(", "))));
     }
     if plan.points_to_stdout() {
         let colour = terminal::use_colour(std::io::stderr().is_terminal());

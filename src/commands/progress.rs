@@ -5,6 +5,15 @@ use indicatif::{ProgressBar, ProgressStyle};
 use std::io::IsTerminal;
 use std::time::{Duration, Instant};
 
+/// Whether a run may show a progress bar.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Bar {
+    /// Once the run has taken more than a second, if standard error is a terminal and not CI.
+    WhenSlow,
+    /// Never (several files judged at once: their bars would fight over one line).
+    Hidden,
+}
+
 /// Progress of reading one file, in bytes.
 pub struct Progress {
     start: Instant,
@@ -15,11 +24,11 @@ pub struct Progress {
 }
 
 impl Progress {
-    /// Progress over `total` bytes (when known), labelled `label`; `allowed` = false shows
-    /// nothing (several files at once).
-    pub fn new(label: &str, total: Option<u64>, allowed: bool) -> Self {
-        let enabled =
-            allowed && std::io::stderr().is_terminal() && std::env::var_os("CI").is_none();
+    /// Progress over `total` bytes (when known), labelled `label`, shown as `bar` allows.
+    pub fn new(label: &str, total: Option<u64>, bar: Bar) -> Self {
+        let enabled = bar == Bar::WhenSlow
+            && std::io::stderr().is_terminal()
+            && std::env::var_os("CI").is_none();
         Progress {
             start: Instant::now(),
             total,

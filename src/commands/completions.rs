@@ -1,0 +1,34 @@
+//! `neckline completions SHELL`: a shell completion script, made from the clap definitions.
+
+use super::outputs::write_stdout;
+use super::Outcome;
+use crate::cli::Cli;
+use clap::{Args, CommandFactory};
+use clap_complete::Shell;
+use neckline_core::error::Result;
+
+/// Arguments of `completions`.
+#[derive(Debug, Clone, Args)]
+#[command(after_help = "Install, for example:\n  \
+bash: neckline completions bash > ~/.local/share/bash-completion/completions/neckline\n  \
+zsh:  neckline completions zsh > DIR/_neckline   (DIR one of the folders in $fpath)\n  \
+fish: neckline completions fish > ~/.config/fish/completions/neckline.fish")]
+pub struct CompletionsArgs {
+    /// The shell to complete in.
+    #[arg(value_name = "SHELL")]
+    pub shell: Shell,
+}
+
+/// The completion script of `neckline` for `shell`.
+pub fn script(shell: Shell) -> Vec<u8> {
+    let mut cmd = Cli::command();
+    let mut script = Vec::new();
+    clap_complete::generate(shell, &mut cmd, "neckline", &mut script);
+    script
+}
+
+/// Run `completions`: the script to standard output (a closed pipe is not an error).
+pub fn run(args: &CompletionsArgs) -> Result<Outcome> {
+    write_stdout(&script(args.shell))?;
+    Ok(Outcome::Done)
+}

@@ -1,0 +1,64 @@
+//! `neckline manual --out DIR`: the manual pages (roff, section 1), made from the clap
+//! definitions: `neckline.1` and one page per subcommand, nested ones included
+//! (`neckline-check.1`, `neckline-limit-mk.1`, ...).
+
+use super::{paragraph, Outcome};
+use crate::cli::Cli;
+use clap::{Args, CommandFactory};
+use neckline_core::error::{Error, Result};
+use neckline_core::output::write_atomic;
+use std::path::{Path, PathBuf};
+
+/// Arguments of `manual`.
+#[derive(Debug, Clone, Args)]
+pub struct ManualArgs {
+    /// Folder for the pages (created if missing); each page is written atomically, over a page
+    /// of the same name.
+    #[arg(long, value_name = "DIR")]
+    pub out: PathBuf,
+}
+
+/// Every manual page as (file name, roff text): the top-level page first, then each
+/// subcommand's after its parent's, in the order of `--help`.
+pub fn pages() -> std::io::Result<Vec<(String, Vec<u8>)>> {
+    let mut cmd = Cli::command().disable_help_subcommand(true);
+    // Built once, so that each subcommand carries its full name (`neckline-limit-mk`).
+    cmd.build();
+    let mut pages = Vec::new();
+    add_pages(&cmd, &mut pages)?;
+    Ok(pages)
+}
+
+fn add_pages(cmd: &clap::Command, pages: &mut Vec<(String, Vec<u8>)>) -> std::io::Result<()> {
+    let man = clap_mangen::Man::new(cmd.clone())
+        .source(format!("neckline {}", env!("CARGO_PKG_VERSION")));
+    let mut text = Vec::new();
+    man.render(&mut text)?;
+    pages.push((man.get_filename(), text));
+    for sub in cmd.get_subcommands().filter(|s| !s.is_hide_set()) {
+        add_pages(sub, pages)?;
+    }
+    Ok(())
+}
+
+/// Run `manual`: every page made in memory first, then the folder created and each page
+/// written atomically.
+pub fn run(args: &ManualArgs) -> Result<Outcome> {
+    let dir = &args.out;
+    let pages = pages().map_err(|e| Error::io(Path::new("(manual page)"), e))?;
+    if dir.exists() && !dir.is_dir() {
+        return Err(Error::Usage(format!(
+            "--out {}: is a file, not a folder",
+            dir.display()
+        )));
+    }
+    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+    let mut names = Vec::with_capacity(pages.len());
+    for (name, text) in &pages {
+        let path = dir.join(name);
+        write_atomic(&path, &[], |w| w.write_all(text))?;
+        names.push(path.display().to_string());
+    }
+    print!("{}", paragraph(&format!("Wrote {}", names.join(", "))));
+    Ok(Outcome::Done)
+}
