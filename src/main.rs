@@ -1,6 +1,6 @@
 //! The `neckline` command: parse arguments, run the library, report errors, set the exit status.
 
-use clap::Parser;
+use clap::{CommandFactory, Parser};
 use neckline::cli::{Cli, Command};
 use neckline::commands::{self, Outcome};
 use std::process::ExitCode;
@@ -14,8 +14,8 @@ fn main() -> ExitCode {
         Command::Grid(args) => commands::grid::run(args),
         Command::Fit(args) => commands::fit::run(args),
         Command::Limit(args) => commands::limit::run(args),
-        Command::Completions(args) => commands::completions::run(args),
-        Command::Manual(args) => commands::manual::run(args),
+        Command::Completions(args) => commands::completions::run(args, Cli::command()),
+        Command::Manual(args) => commands::manual::run(args, Cli::command()),
     };
     match result {
         Ok(Outcome::Done) => ExitCode::SUCCESS,

@@ -2,8 +2,7 @@
 
 use super::outputs::write_stdout;
 use super::Outcome;
-use crate::cli::Cli;
-use clap::{Args, CommandFactory};
+use clap::Args;
 use clap_complete::Shell;
 use neckline_core::error::Result;
 
@@ -19,16 +18,16 @@ pub struct CompletionsArgs {
     pub shell: Shell,
 }
 
-/// The completion script of `neckline` for `shell`.
-pub fn script(shell: Shell) -> Vec<u8> {
-    let mut cmd = Cli::command();
+/// The completion script of `neckline` for `shell`, from the whole command line's definition
+/// (`Cli::command()`).
+pub fn script(shell: Shell, mut cmd: clap::Command) -> Vec<u8> {
     let mut script = Vec::new();
     clap_complete::generate(shell, &mut cmd, "neckline", &mut script);
     script
 }
 
 /// Run `completions`: the script to standard output (a closed pipe is not an error).
-pub fn run(args: &CompletionsArgs) -> Result<Outcome> {
-    write_stdout(&script(args.shell))?;
+pub fn run(args: &CompletionsArgs, cli: clap::Command) -> Result<Outcome> {
+    write_stdout(&script(args.shell, cli))?;
     Ok(Outcome::Done)
 }

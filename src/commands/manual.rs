@@ -3,8 +3,7 @@
 //! (`neckline-check.1`, `neckline-limit-mk.1`, ...).
 
 use super::{paragraph, Outcome};
-use crate::cli::Cli;
-use clap::{Args, CommandFactory};
+use clap::Args;
 use neckline_core::error::{Error, Result};
 use neckline_core::output::write_atomic;
 use std::path::{Path, PathBuf};
@@ -19,9 +18,10 @@ pub struct ManualArgs {
 }
 
 /// Every manual page as (file name, roff text): the top-level page first, then each
-/// subcommand's after its parent's, in the order of `--help`.
-pub fn pages() -> std::io::Result<Vec<(String, Vec<u8>)>> {
-    let mut cmd = Cli::command().disable_help_subcommand(true);
+/// subcommand's after its parent's, in the order of `--help`. `cli` is the whole command
+/// line's definition (`Cli::command()`), passed down so that commands do not reach up to it.
+pub fn pages(cli: clap::Command) -> std::io::Result<Vec<(String, Vec<u8>)>> {
+    let mut cmd = cli.disable_help_subcommand(true);
     // Built once, so that each subcommand carries its full name (`neckline-limit-mk`).
     cmd.build();
     let mut pages = Vec::new();
@@ -43,9 +43,9 @@ fn add_pages(cmd: &clap::Command, pages: &mut Vec<(String, Vec<u8>)>) -> std::io
 
 /// Run `manual`: every page made in memory first, then the folder created and each page
 /// written atomically.
-pub fn run(args: &ManualArgs) -> Result<Outcome> {
+pub fn run(args: &ManualArgs, cli: clap::Command) -> Result<Outcome> {
     let dir = &args.out;
-    let pages = pages().map_err(|e| Error::io(Path::new("(manual page)"), e))?;
+    let pages = pages(cli).map_err(|e| Error::io(Path::new("(manual page)"), e))?;
     if dir.exists() && !dir.is_dir() {
         return Err(Error::Usage(format!(
             "--out {}: is a file, not a folder",
