@@ -13,8 +13,9 @@ pub const SCREEN_ROWS: usize = 1000;
 /// The stretches (axis / d0) a measured circle's axes lie between in practice: 0.5 to 2.5,
 /// i.e. −50 % to +150 % engineering strain (sheet-metal forming limits reach about 100 %
 /// major strain at most, and minor strains below −50 % are beyond any drawing; common
-/// practice). A row outside it is not refused for that alone (see [`STRETCH_RANGE`](crate::measure::STRETCH_RANGE)); a file
-/// with most of its first rows outside it is.
+/// practice). A row outside it is not refused for that alone (see
+/// [`STRETCH_RANGE`](crate::measure::STRETCH_RANGE)); a file with most of its first rows
+/// outside it is.
 pub const SCREEN_STRETCH: (f64, f64) = (0.5, 2.5);
 
 /// One sampled row of the screen: its line, axes and d0.
