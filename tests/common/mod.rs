@@ -75,6 +75,14 @@ impl Invocation {
         self
     }
 
+    /// [`Invocation::file`] for each `(name, bytes)`.
+    pub fn files<B: AsRef<[u8]>>(mut self, files: &[(&str, B)]) -> Self {
+        for (name, bytes) in files {
+            self = self.file(name, bytes.as_ref());
+        }
+        self
+    }
+
     /// Run without the environment variable `key` (e.g. `NO_COLOR`, set by default).
     pub fn env_remove(mut self, key: &str) -> Self {
         self.env_remove.push(key.to_string());
