@@ -117,10 +117,9 @@ fn derived_curve_reads_back_and_records_the_input_hash() {
         let y = c.major_at(own).unwrap();
         assert!(
             (y - truth(x)).abs() < 0.01,
-            "at {k} %: {:.2} vs {:.2}\n{}",
+            "at {k} %: {:.2} vs {:.2}\n{r}",
             100.0 * y,
             100.0 * truth(x),
-            r
         );
     }
     assert!(r
@@ -164,15 +163,14 @@ fn too_little_evidence_is_refused_and_nothing_is_written() {
             "c.svg",
         ],
     );
-    assert_eq!(r.code, 2, "{}", r);
+    assert_eq!(r.code, 2, "{r}");
     assert!(
         r.stderr
             .contains("few.csv: too little evidence for a press-shop curve")
             && r.stderr
                 .contains("2 necked-or-split circles (at least 10 needed)")
             && r.stderr.contains("on only 1 range of minor strain"),
-        "{}",
-        r
+        "{r}"
     );
     assert!(!dir.path().join("c.toml").exists() && !dir.path().join("c.svg").exists());
 }
@@ -219,8 +217,8 @@ fn wrong_arguments_are_refused() {
     ];
     for (args, expected) in cases {
         let r = run_in(dir.path(), args);
-        assert_eq!(r.code, 2, "{args:?}\n{}", r);
-        assert!(r.stderr.contains(expected), "{args:?}\n{}", r);
+        assert_eq!(r.code, 2, "{args:?}\n{r}");
+        assert!(r.stderr.contains(expected), "{args:?}\n{r}");
     }
     assert_eq!(
         std::fs::read_to_string(dir.path().join("parts.csv")).unwrap(),

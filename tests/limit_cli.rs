@@ -3,7 +3,7 @@
 
 use approx::assert_abs_diff_eq;
 mod common;
-use common::run_in;
+use common::{read_json, run_in};
 use neckline_core::limit::LimitCurve;
 use std::path::Path;
 use tempfile::TempDir;
@@ -45,8 +45,7 @@ fn keeler_brazier_curve_feeds_check() {
     .ok();
     assert!(
         r.stdout.contains("32.96 %") && r.stdout.contains("Caution"),
-        "{}",
-        r
+        "{r}"
     );
     let c = load(&dir, "kb.toml");
     assert_abs_diff_eq!(major_eng_pct(&c, 0.0), 32.96, epsilon = 0.01);
@@ -64,7 +63,7 @@ fn keeler_brazier_curve_feeds_check() {
         let line = pts
             .lines()
             .find(|l| l.starts_with(&format!("{id},")))
-            .unwrap_or_else(|| panic!("no row {id}\n{pts}\n{}", r));
+            .unwrap_or_else(|| panic!("no row {id}\n{pts}\n{r}"));
         ["failed", "marginal", "safe"]
             .into_iter()
             .find(|z| line.split(',').any(|f| f == *z))
@@ -129,7 +128,7 @@ fn clamps_warn_and_stdout_is_a_curve() {
         &["limit", "keeler-brazier", "--n", "0.25", "--thickness", "4"],
     )
     .ok();
-    assert_eq!(r.stderr.matches("clamped").count(), 2, "{}", r);
+    assert_eq!(r.stderr.matches("clamped").count(), 2, "{r}");
     let c = LimitCurve::parse(&r.stdout, Path::new("<stdout>")).unwrap();
     assert_abs_diff_eq!(major_eng_pct(&c, 0.0), 65.69, epsilon = 0.01);
 }
@@ -156,7 +155,7 @@ fn necking_curve_in_true_strain() {
         &["limit", "necking", "--n", "0.22", "--right", "storen-rice"],
     )
     .ok();
-    assert!(r.stdout.contains("Storen-Rice 1975"), "{}", r);
+    assert!(r.stdout.contains("Storen-Rice 1975"), "{r}");
 }
 
 // An isotropic M-K curve: its plane-strain limit matches the closed form
@@ -195,11 +194,8 @@ fn mk_curve_feeds_check() {
         ],
     )
     .ok();
-    let json: serde_json::Value = serde_json::from_str(
-        &std::fs::read_to_string(dir.path().join("out/summary.json")).unwrap(),
-    )
-    .unwrap();
-    assert_eq!(json["limit"]["strain"], "true", "{}", r);
+    let json = read_json(&dir.path().join("out/summary.json"));
+    assert_eq!(json["limit"]["strain"], "true", "{r}");
     assert_eq!(json["points"], 3);
 }
 
@@ -243,9 +239,9 @@ fn compare_prints_both_curves_and_the_difference() {
         .stdout
         .lines()
         .find(|l| l.trim_start().starts_with("0.00"))
-        .unwrap_or_else(|| panic!("{}", r));
+        .unwrap_or_else(|| panic!("{r}"));
     let cells: Vec<&str> = row.split_whitespace().collect();
-    assert_eq!(cells, ["0.00", "32.96", "22.14", "-10.82"], "{}", r);
+    assert_eq!(cells, ["0.00", "32.96", "22.14", "-10.82"], "{r}");
     let left = r
         .stdout
         .lines()
@@ -267,26 +263,25 @@ fn bad_inputs_exit_2_with_a_clear_message() {
             "limit", "mk", "--n", "0.2", "--r0", "1", "--r45", "1", "--r90", "1", "--f0", "1.2",
         ],
     );
-    assert_eq!(r.code, 2, "{}", r);
+    assert_eq!(r.code, 2, "{r}");
     assert!(
         r.stderr.contains("f0 = 1.2") && r.stderr.contains("0.9 ..= 0.9999"),
-        "{}",
-        r
+        "{r}"
     );
     let r = run_in(
         dir.path(),
         &["limit", "compare", "missing.toml", "also.toml"],
     );
-    assert_eq!(r.code, 2, "{}", r);
-    assert!(r.stderr.contains("missing.toml"), "{}", r);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("missing.toml"), "{r}");
     let r = run_in(dir.path(), &["limit", "necking", "--n", "0.9"]);
-    assert_eq!(r.code, 2, "{}", r);
-    assert!(r.stderr.contains("0.01 <= n <= 0.6"), "{}", r);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("0.01 <= n <= 0.6"), "{r}");
     let r = run_in(
         dir.path(),
         &["limit", "necking", "--n", "0.2", "--right", "vertex"],
     );
-    assert_eq!(r.code, 2, "{}", r);
-    assert!(r.stderr.contains("storen-rice"), "{}", r);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("storen-rice"), "{r}");
     assert!(!dir.path().join("mk.toml").exists());
 }

@@ -211,11 +211,14 @@ pub fn write(dir: &Path, name: &str, bytes: impl AsRef<[u8]>) {
     std::fs::write(p, bytes).unwrap();
 }
 
+/// The text of a file (its path named if it cannot be read).
+pub fn read_text(p: &Path) -> String {
+    std::fs::read_to_string(p).unwrap_or_else(|e| panic!("reading {}: {e}", p.display()))
+}
+
 /// Parse a JSON file.
 pub fn read_json(p: &Path) -> serde_json::Value {
-    let text =
-        std::fs::read_to_string(p).unwrap_or_else(|e| panic!("reading {}: {e}", p.display()));
-    serde_json::from_str(&text).unwrap_or_else(|e| panic!("{}: {e}", p.display()))
+    serde_json::from_str(&read_text(p)).unwrap_or_else(|e| panic!("{}: {e}", p.display()))
 }
 
 /// A CSV row: column name to field.
@@ -238,9 +241,7 @@ pub fn rows(text: &str) -> Vec<Row> {
 
 /// The rows of a CSV file as maps from column name to field.
 pub fn read_rows(p: &Path) -> Vec<Row> {
-    let text =
-        std::fs::read_to_string(p).unwrap_or_else(|e| panic!("reading {}: {e}", p.display()));
-    rows(&text)
+    rows(&read_text(p))
 }
 
 /// The field `col` of `row` as a number (the row printed if it is not one).
