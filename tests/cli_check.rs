@@ -1,7 +1,7 @@
 //! Integration tests: run the real `neckline` binary on good and bad files.
 
 mod common;
-use common::{demo_tryout as demo, neckline, read_json, repo, run, run_in};
+use common::{demo_tryout as demo, neckline, read_json, repo, repo_arg, run, run_in};
 
 #[test]
 fn check_on_demo_writes_points_and_summary() {
@@ -89,7 +89,7 @@ fn fail_on_sets_exit_status() {
 fn strains_command_gives_reference_values() {
     let r = run(&[
         "strains",
-        &repo("tests/data/good.csv").display().to_string(),
+        &repo_arg("tests/data/good.csv"),
         "--d0",
         "2.5",
         "--t0",
@@ -118,15 +118,10 @@ fn strains_command_gives_reference_values() {
 
 #[test]
 fn semicolon_file_gives_the_same_strains() {
-    let comma = run(&[
-        "strains",
-        &repo("tests/data/good.csv").display().to_string(),
-        "--d0",
-        "2.5",
-    ]);
+    let comma = run(&["strains", &repo_arg("tests/data/good.csv"), "--d0", "2.5"]);
     let semi = run(&[
         "strains",
-        &repo("tests/data/good-semicolon.csv").display().to_string(),
+        &repo_arg("tests/data/good-semicolon.csv"),
         "--d0",
         "2.5",
     ]);
@@ -136,8 +131,8 @@ fn semicolon_file_gives_the_same_strains() {
 
 #[test]
 fn bad_rows_are_listed_not_dropped() {
-    let csv = repo("tests/data/bad-rows.csv").display().to_string();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let csv = repo_arg("tests/data/bad-rows.csv");
+    let lim = repo_arg("tests/data/flat-30.toml");
     let r = run(&["check", &csv, "--limit", &lim, "--d0", "2.5", "--out", "o"]);
     assert_eq!(r.code, 0, "{r}");
     assert!(
@@ -167,7 +162,7 @@ fn bad_rows_are_listed_not_dropped() {
 
 #[test]
 fn whole_file_errors_exit_2_with_location() {
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let cases = [
         (
             "missing-column.csv",
@@ -176,7 +171,7 @@ fn whole_file_errors_exit_2_with_location() {
         ("empty.csv", "empty.csv: the file is empty"),
     ];
     for (file, needle) in cases {
-        let csv = repo(&format!("tests/data/{file}")).display().to_string();
+        let csv = repo_arg(&format!("tests/data/{file}"));
         let r = run(&["check", &csv, "--limit", &lim, "--d0", "2.5"]);
         assert_eq!(r.code, 2, "{r}");
         assert!(
@@ -188,8 +183,8 @@ fn whole_file_errors_exit_2_with_location() {
 
 #[test]
 fn usage_errors_exit_2() {
-    let csv = repo("tests/data/good.csv").display().to_string();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let csv = repo_arg("tests/data/good.csv");
+    let lim = repo_arg("tests/data/flat-30.toml");
     let r = run(&[
         "check", &csv, "--limit", &lim, "--d0", "2.5", "--unit", "cm",
     ]);
@@ -236,7 +231,7 @@ fn usage_errors_exit_2() {
         "safe",
     ]);
     assert_eq!(r.code, 2, "{r}");
-    let unsorted = repo("tests/data/unsorted.toml").display().to_string();
+    let unsorted = repo_arg("tests/data/unsorted.toml");
     let r = run(&["check", &csv, "--limit", &unsorted, "--d0", "2.5"]);
     assert_eq!(r.code, 2, "{r}");
     assert!(
@@ -249,7 +244,7 @@ fn usage_errors_exit_2() {
 fn never_writes_over_an_input() {
     let dir = tempfile::tempdir().unwrap();
     std::fs::copy(repo("tests/data/good.csv"), dir.path().join("points.csv")).unwrap();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let r = run_in(
         dir.path(),
         &[
@@ -275,7 +270,7 @@ fn never_writes_over_an_input() {
 #[test]
 fn reads_measurements_from_stdin() {
     let dir = tempfile::tempdir().unwrap();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let input = std::fs::read_to_string(repo("tests/data/good.csv")).unwrap();
     let r = neckline(&["check", "-", "--limit", &lim, "--d0", "2.5", "--out", "o"])
         .stdin(input)
@@ -341,12 +336,8 @@ fn inch_files_give_the_same_strains() {
 // `grid` and `check` share one output path: the same files come out of both.
 #[test]
 fn grid_writes_the_same_outputs_as_check() {
-    let nodes = repo("demo-parts/rear-floor-pan-grid/nodes.csv")
-        .display()
-        .to_string();
-    let job = repo("demo-parts/rear-floor-pan-grid/job.toml")
-        .display()
-        .to_string();
+    let nodes = repo_arg("demo-parts/rear-floor-pan-grid/nodes.csv");
+    let job = repo_arg("demo-parts/rear-floor-pan-grid/job.toml");
     let r = run(&["grid", &nodes, "--job", &job, "--out", "g"]);
     assert_eq!(r.code, 0, "{r}");
     for f in [
@@ -404,7 +395,7 @@ fn measured_thickness_is_cross_checked() {
         "id,major,minor,thickness\nP1,3.25,2.40,0.78\nP2,2.6,2.55,\n",
     )
     .unwrap();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let r = run_in(
         dir.path(),
         &[
@@ -509,7 +500,7 @@ fn rejected_rows_make_the_verdict_incomplete_and_trip_fail_on() {
         "id,major,minor\nP1,2.60,2.55\nP2,3x,2.5\n",
     )
     .unwrap();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let args = [
         "check", "m.csv", "--limit", &lim, "--d0", "2.5", "--out", "o", "--format", "json",
     ];
@@ -534,7 +525,7 @@ fn implausible_axes_are_rejected_not_judged() {
         "id,major,minor\nP1,1e308,2.5\nP2,2.6,1e-300\nP3,2.6,2.5\n",
     )
     .unwrap();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let r = run_in(
         dir.path(),
         &[

@@ -1,7 +1,7 @@
 //! `compare`: the real binary on the demo's two tryouts and on small hand-made results.
 
 mod common;
-use common::{demo_tryout, read_json, read_rows, repo, run_in, write, Run};
+use common::{demo_tryout, read_json, read_rows, repo_arg, run_in, write, Run};
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::Path;
 
@@ -265,13 +265,13 @@ fn position_matching_pairs_a_shuffled_jittered_copy_back_to_its_ids() {
 fn position_matching_takes_the_nearer_and_nothing_beyond_reach() {
     let dir = tempfile::tempdir().unwrap();
     let d = dir.path();
-    write(d, "b.csv", &format!("{HEAD}P1,20,0,5,marginal,0,0\n"));
+    write(d, "b.csv", format!("{HEAD}P1,20,0,5,marginal,0,0\n"));
     // Two candidates within reach of P1: Q1 at 3 and Q2 at 1 (a 3-4-5 triangle would do too;
     // distances here are plain).
     write(
         d,
         "a.csv",
-        &format!("{HEAD}Q1,20,0,5,marginal,3,0\nQ2,20,0,6,marginal,0,1\n"),
+        format!("{HEAD}Q1,20,0,5,marginal,3,0\nQ2,20,0,6,marginal,0,1\n"),
     );
     let r = run_in(
         d,
@@ -291,7 +291,7 @@ fn position_matching_takes_the_nearer_and_nothing_beyond_reach() {
     assert_eq!(left["id_after"], "Q1");
     assert!(r.stdout.contains("Only in a (1 location): Q1"), "{r}");
     // A location 6 away with --within 5: nothing paired, nothing to compare.
-    write(d, "far.csv", &format!("{HEAD}Q9,20,0,5,marginal,6,0\n"));
+    write(d, "far.csv", format!("{HEAD}Q9,20,0,5,marginal,6,0\n"));
     let r = run_in(
         d,
         &[
@@ -443,7 +443,7 @@ fn refusals_and_warnings() {
         "{r}"
     );
     // A measurement file is not a result of `check`.
-    let good = repo("tests/data/good.csv").display().to_string();
+    let good = repo_arg("tests/data/good.csv");
     let r = run_in(d, &["compare", &good, "t2/points.csv"]);
     assert_eq!(r.code, 2, "{r}");
     assert!(

@@ -2,7 +2,7 @@
 //! each test prints the directory, the exit status, stdout and stderr.
 
 mod common;
-use common::run_in;
+use common::{repo_arg, run_in};
 use neckline_core::limit::LimitCurve;
 use neckline_core::strain::{StrainMeasure, TrueStrain};
 use std::path::Path;
@@ -286,11 +286,10 @@ fn plot_shows_circles_by_condition_curve_and_band() {
 // `check`; the corners that split are failed against it, as against the model curve.
 #[test]
 fn demo_curve_judges_the_demo_tryout() {
-    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
     let dir = TempDir::new().unwrap();
     let shop = dir.path().join("shop.toml");
     let out = dir.path().join("t1");
-    let demo = |p: &str| root.join(p).display().to_string();
+    let demo = repo_arg;
     run_in(
         dir.path(),
         &[

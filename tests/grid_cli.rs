@@ -183,7 +183,7 @@ fn grid_input_errors_name_file_and_line() {
     let out = neckline(&["grid", "ids.csv", "--limit", "limit.toml"])
         .run_in(d)
         .expect(2);
-    assert!(&out.stderr.contains("--elements"));
+    assert!(out.stderr.contains("--elements"), "{out}");
 }
 
 #[test]
