@@ -35,7 +35,7 @@ pub struct GridExtras {
     /// Centre in the blank.
     pub reference_centre: [f64; 2],
     /// How the stretches move with each deformed node, for the margin's uncertainty under a
-    /// reading error ([`reading`]).
+    /// reading error ([`uncertainty`]).
     pub sensitivity: Option<uncertainty::StretchSensitivity>,
 }
 
