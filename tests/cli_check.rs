@@ -1,78 +1,17 @@
 //! Integration tests: run the real `neckline` binary on good and bad files.
 
-use assert_cmd::Command;
-use std::path::{Path, PathBuf};
-
-fn repo(p: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join(p)
-}
-
-/// The outcome of one run, printed in full when an assertion fails.
-struct Run {
-    dir: PathBuf,
-    code: i32,
-    stdout: String,
-    stderr: String,
-}
-
-impl std::fmt::Display for Run {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(
-            f,
-            "dir: {}\nexit: {}\n--- stdout\n{}\n--- stderr\n{}",
-            self.dir.display(),
-            self.code,
-            self.stdout,
-            self.stderr
-        )
-    }
-}
-
-fn run_in(dir: &Path, args: &[&str], stdin: Option<&str>) -> Run {
-    let mut cmd = Command::cargo_bin("neckline").unwrap();
-    cmd.current_dir(dir).args(args).env("NO_COLOR", "1");
-    if let Some(s) = stdin {
-        cmd.write_stdin(s);
-    }
-    let out = cmd.output().unwrap();
-    Run {
-        dir: dir.to_path_buf(),
-        code: out.status.code().unwrap_or(-1),
-        stdout: String::from_utf8_lossy(&out.stdout).into_owned(),
-        stderr: String::from_utf8_lossy(&out.stderr).into_owned(),
-    }
-}
-
-fn run(args: &[&str]) -> (tempfile::TempDir, Run) {
-    let dir = tempfile::tempdir().unwrap();
-    let r = run_in(dir.path(), args, None);
-    (dir, r)
-}
-
-fn demo(t: u8) -> [String; 2] {
-    [
-        repo(&format!("demo-parts/rear-floor-pan/tryout-{t}.csv"))
-            .display()
-            .to_string(),
-        repo(&format!("demo-parts/rear-floor-pan/job-t{t}.toml"))
-            .display()
-            .to_string(),
-    ]
-}
-
-fn read_json(p: &Path) -> serde_json::Value {
-    serde_json::from_str(&std::fs::read_to_string(p).unwrap()).unwrap()
-}
+mod common;
+use common::{demo_tryout as demo, neckline, read_json, repo, repo_arg, run, run_in};
 
 #[test]
 fn check_on_demo_writes_points_and_summary() {
     let [csv, job] = demo(1);
-    let (dir, r) = run(&["check", &csv, "--job", &job, "--out", "res"]);
+    let r = run(&["check", &csv, "--job", &job, "--out", "res"]);
     assert_eq!(r.code, 0, "{r}");
     assert!(r.stdout.contains("Verdict: FAIL"), "{r}");
     assert!(r.stdout.contains("Keeler-Brazier"), "{r}");
     assert!(r.stdout.contains("aid to judgement"), "{r}");
-    let points = std::fs::read_to_string(dir.path().join("res/points.csv")).unwrap();
+    let points = std::fs::read_to_string(r.path("res/points.csv")).unwrap();
     let header = points.lines().next().unwrap();
     assert!(header.starts_with(
         "id,major_eng_pct,minor_eng_pct,major_true_pct,minor_true_pct,thickness_true_pct,\
@@ -81,7 +20,7 @@ fn check_on_demo_writes_points_and_summary() {
          limit_use_pct,zone"
     ));
     assert_eq!(points.lines().count(), 121);
-    let s = read_json(&dir.path().join("res/summary.json"));
+    let s = read_json(&r.path("res/summary.json"));
     assert_eq!(s["points"], 120);
     assert_eq!(s["verdict"], "fail");
     let zone_total: u64 = s["zones"]
@@ -97,7 +36,7 @@ fn check_on_demo_writes_points_and_summary() {
     assert!(s["worst"]["margin_pct"].as_f64().unwrap() < 0.0);
     assert!(s["limit"]["source"].as_str().unwrap().contains("Keeler"));
     // Nothing half-written is left behind.
-    let leftovers: Vec<_> = std::fs::read_dir(dir.path().join("res"))
+    let leftovers: Vec<_> = std::fs::read_dir(r.path("res"))
         .unwrap()
         .filter_map(|e| e.ok())
         .filter(|e| e.file_name().to_string_lossy().ends_with(".tmp"))
@@ -109,7 +48,7 @@ fn check_on_demo_writes_points_and_summary() {
 fn fail_on_sets_exit_status() {
     let [csv1, job1] = demo(1);
     let [csv2, job2] = demo(2);
-    let (_d, r) = run(&[
+    let r = run(&[
         "check",
         &csv1,
         "--job",
@@ -120,7 +59,7 @@ fn fail_on_sets_exit_status() {
         "failed",
     ]);
     assert_eq!(r.code, 1, "{r}");
-    let (_d, r) = run(&[
+    let r = run(&[
         "check",
         &csv2,
         "--job",
@@ -131,7 +70,7 @@ fn fail_on_sets_exit_status() {
         "failed",
     ]);
     assert_eq!(r.code, 0, "{r}");
-    let (_d, r) = run(&[
+    let r = run(&[
         "check",
         &csv2,
         "--job",
@@ -148,9 +87,9 @@ fn fail_on_sets_exit_status() {
 // formulas): d0 = 2.5, d1 = 3.25, d2 = 2.40 -> e = 30 %, -4 %; eps = 26.236 %, -4.082 %.
 #[test]
 fn strains_command_gives_reference_values() {
-    let (_d, r) = run(&[
+    let r = run(&[
         "strains",
-        &repo("tests/data/good.csv").display().to_string(),
+        &repo_arg("tests/data/good.csv"),
         "--d0",
         "2.5",
         "--t0",
@@ -179,29 +118,22 @@ fn strains_command_gives_reference_values() {
 
 #[test]
 fn semicolon_file_gives_the_same_strains() {
-    let comma = run(&[
-        "strains",
-        &repo("tests/data/good.csv").display().to_string(),
-        "--d0",
-        "2.5",
-    ])
-    .1;
+    let comma = run(&["strains", &repo_arg("tests/data/good.csv"), "--d0", "2.5"]);
     let semi = run(&[
         "strains",
-        &repo("tests/data/good-semicolon.csv").display().to_string(),
+        &repo_arg("tests/data/good-semicolon.csv"),
         "--d0",
         "2.5",
-    ])
-    .1;
+    ]);
     assert_eq!(comma.code, 0, "{comma}");
     assert_eq!(comma.stdout, semi.stdout, "{semi}");
 }
 
 #[test]
 fn bad_rows_are_listed_not_dropped() {
-    let csv = repo("tests/data/bad-rows.csv").display().to_string();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
-    let (dir, r) = run(&["check", &csv, "--limit", &lim, "--d0", "2.5", "--out", "o"]);
+    let csv = repo_arg("tests/data/bad-rows.csv");
+    let lim = repo_arg("tests/data/flat-30.toml");
+    let r = run(&["check", &csv, "--limit", &lim, "--d0", "2.5", "--out", "o"]);
     assert_eq!(r.code, 0, "{r}");
     assert!(
         r.stdout.contains("1 location judged, 5 rows rejected"),
@@ -216,21 +148,21 @@ fn bad_rows_are_listed_not_dropped() {
     ] {
         assert!(r.stdout.contains(needle), "missing `{needle}`\n{r}");
     }
-    let s = read_json(&dir.path().join("o/summary.json"));
+    let s = read_json(&r.path("o/summary.json"));
     assert_eq!(s["rejected_rows"], 5);
     assert_eq!(s["rejected"][0]["line"], 3);
     // --strict refuses the whole file and writes nothing.
-    let (dir, r) = run(&[
+    let r = run(&[
         "check", &csv, "--limit", &lim, "--d0", "2.5", "--out", "o", "--strict",
     ]);
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("--strict: 5 rows rejected"), "{r}");
-    assert!(!dir.path().join("o/points.csv").exists());
+    assert!(!r.path("o/points.csv").exists());
 }
 
 #[test]
 fn whole_file_errors_exit_2_with_location() {
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let cases = [
         (
             "missing-column.csv",
@@ -239,8 +171,8 @@ fn whole_file_errors_exit_2_with_location() {
         ("empty.csv", "empty.csv: the file is empty"),
     ];
     for (file, needle) in cases {
-        let csv = repo(&format!("tests/data/{file}")).display().to_string();
-        let (_d, r) = run(&["check", &csv, "--limit", &lim, "--d0", "2.5"]);
+        let csv = repo_arg(&format!("tests/data/{file}"));
+        let r = run(&["check", &csv, "--limit", &lim, "--d0", "2.5"]);
         assert_eq!(r.code, 2, "{r}");
         assert!(
             r.stderr.starts_with("error: ") && r.stderr.contains(needle),
@@ -251,27 +183,27 @@ fn whole_file_errors_exit_2_with_location() {
 
 #[test]
 fn usage_errors_exit_2() {
-    let csv = repo("tests/data/good.csv").display().to_string();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
-    let (_d, r) = run(&[
+    let csv = repo_arg("tests/data/good.csv");
+    let lim = repo_arg("tests/data/flat-30.toml");
+    let r = run(&[
         "check", &csv, "--limit", &lim, "--d0", "2.5", "--unit", "cm",
     ]);
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("expected `mm` or `in`"), "{r}");
-    let (_d, r) = run(&["check", &csv, "--d0", "2.5"]);
+    let r = run(&["check", &csv, "--d0", "2.5"]);
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("no limit curve"), "{r}");
     // A missing file is named once, with the system's reason once.
-    let (_d, r) = run(&["check", "no-such.csv", "--limit", &lim, "--d0", "2.5"]);
+    let r = run(&["check", "no-such.csv", "--limit", &lim, "--d0", "2.5"]);
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.starts_with("error: no-such.csv: "), "{r}");
     assert_eq!(r.stderr.lines().count(), 1, "{r}");
-    let (_d, r) = run(&["check", &csv, "--limit", &lim]);
+    let r = run(&["check", &csv, "--limit", &lim]);
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("no initial circle diameter"), "{r}");
-    let (_d, r) = run(&["check", &csv, "--limit", &lim, "--d0", "-1"]);
+    let r = run(&["check", &csv, "--limit", &lim, "--d0", "-1"]);
     assert_eq!(r.code, 2, "{r}");
-    let (_d, r) = run(&[
+    let r = run(&[
         "check",
         &csv,
         "--limit",
@@ -288,7 +220,7 @@ fn usage_errors_exit_2() {
         "{r}"
     );
     // Only the two zones that stop a qualification are accepted.
-    let (_d, r) = run(&[
+    let r = run(&[
         "check",
         &csv,
         "--limit",
@@ -299,8 +231,8 @@ fn usage_errors_exit_2() {
         "safe",
     ]);
     assert_eq!(r.code, 2, "{r}");
-    let unsorted = repo("tests/data/unsorted.toml").display().to_string();
-    let (_d, r) = run(&["check", &csv, "--limit", &unsorted, "--d0", "2.5"]);
+    let unsorted = repo_arg("tests/data/unsorted.toml");
+    let r = run(&["check", &csv, "--limit", &unsorted, "--d0", "2.5"]);
     assert_eq!(r.code, 2, "{r}");
     assert!(
         r.stderr.contains("unsorted.toml:6:") && r.stderr.contains("does not increase"),
@@ -312,7 +244,7 @@ fn usage_errors_exit_2() {
 fn never_writes_over_an_input() {
     let dir = tempfile::tempdir().unwrap();
     std::fs::copy(repo("tests/data/good.csv"), dir.path().join("points.csv")).unwrap();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let r = run_in(
         dir.path(),
         &[
@@ -325,7 +257,6 @@ fn never_writes_over_an_input() {
             "--out",
             ".",
         ],
-        None,
     );
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("refusing to write"), "{r}");
@@ -339,13 +270,11 @@ fn never_writes_over_an_input() {
 #[test]
 fn reads_measurements_from_stdin() {
     let dir = tempfile::tempdir().unwrap();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let input = std::fs::read_to_string(repo("tests/data/good.csv")).unwrap();
-    let r = run_in(
-        dir.path(),
-        &["check", "-", "--limit", &lim, "--d0", "2.5", "--out", "o"],
-        Some(&input),
-    );
+    let r = neckline(&["check", "-", "--limit", &lim, "--d0", "2.5", "--out", "o"])
+        .stdin(input)
+        .run_in(dir.path());
     assert_eq!(r.code, 0, "{r}");
     // P1: e1 = 30 % on a flat 30 % curve is on the curve: failed (on or above counts).
     let points = std::fs::read_to_string(dir.path().join("o/points.csv")).unwrap();
@@ -357,14 +286,14 @@ fn reads_measurements_from_stdin() {
 
 #[test]
 fn help_lists_commands_and_exit_codes() {
-    let (_d, r) = run(&["--help"]);
+    let r = run(&["--help"]);
     assert_eq!(r.code, 0);
     assert!(
         r.stdout.contains("check") && r.stdout.contains("strains"),
         "{r}"
     );
     assert!(r.stdout.contains("Exit status"), "{r}");
-    let (_d, r) = run(&["check"]);
+    let r = run(&["check"]);
     assert_eq!(r.code, 2, "{r}");
 }
 
@@ -383,11 +312,7 @@ fn inch_files_give_the_same_strains() {
         "unit = \"in\"\nd0 = 0.1\nt0 = 0.0315\n",
     )
     .unwrap();
-    let r = run_in(
-        dir.path(),
-        &["strains", "in.csv", "--job", "job.toml"],
-        None,
-    );
+    let r = run_in(dir.path(), &["strains", "in.csv", "--job", "job.toml"]);
     assert_eq!(r.code, 0, "{r}");
     let row: Vec<String> = r
         .stdout
@@ -403,11 +328,7 @@ fn inch_files_give_the_same_strains() {
     assert!((t - 0.0315 * 0.80128).abs() < 1e-4, "{r}");
     // A unit the tool does not know is refused with the file and line.
     std::fs::write(dir.path().join("bad.toml"), "unit = \"cm\"\n").unwrap();
-    let r = run_in(
-        dir.path(),
-        &["strains", "in.csv", "--job", "bad.toml"],
-        None,
-    );
+    let r = run_in(dir.path(), &["strains", "in.csv", "--job", "bad.toml"]);
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("bad.toml:1:8"), "{r}");
 }
@@ -415,13 +336,9 @@ fn inch_files_give_the_same_strains() {
 // `grid` and `check` share one output path: the same files come out of both.
 #[test]
 fn grid_writes_the_same_outputs_as_check() {
-    let nodes = repo("demo-parts/rear-floor-pan-grid/nodes.csv")
-        .display()
-        .to_string();
-    let job = repo("demo-parts/rear-floor-pan-grid/job.toml")
-        .display()
-        .to_string();
-    let (dir, r) = run(&["grid", &nodes, "--job", &job, "--out", "g"]);
+    let nodes = repo_arg("demo-parts/rear-floor-pan-grid/nodes.csv");
+    let job = repo_arg("demo-parts/rear-floor-pan-grid/job.toml");
+    let r = run(&["grid", &nodes, "--job", &job, "--out", "g"]);
     assert_eq!(r.code, 0, "{r}");
     for f in [
         "points.csv",
@@ -432,14 +349,14 @@ fn grid_writes_the_same_outputs_as_check() {
         "map.png",
         "report.html",
     ] {
-        assert!(dir.path().join("g").join(f).is_file(), "missing {f}\n{r}");
+        assert!(r.path("g").join(f).is_file(), "missing {f}\n{r}");
     }
     assert!(r.stdout.starts_with("Grid: 384 elements"), "{r}");
 }
 
 #[test]
 fn generated_curve_can_be_drawn() {
-    let (dir, r) = run(&[
+    let r = run(&[
         "limit",
         "keeler-brazier",
         "--n",
@@ -452,9 +369,9 @@ fn generated_curve_can_be_drawn() {
         "kb.png",
     ]);
     assert_eq!(r.code, 0, "{r}");
-    let img = image::open(dir.path().join("kb.png")).unwrap();
+    let img = image::open(r.path("kb.png")).unwrap();
     assert!(img.width() > 600 && img.height() > 400);
-    let (_d, r) = run(&[
+    let r = run(&[
         "limit",
         "keeler-brazier",
         "--n",
@@ -478,14 +395,13 @@ fn measured_thickness_is_cross_checked() {
         "id,major,minor,thickness\nP1,3.25,2.40,0.78\nP2,2.6,2.55,\n",
     )
     .unwrap();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let r = run_in(
         dir.path(),
         &[
             "check", "t.csv", "--limit", &lim, "--d0", "2.5", "--t0", "1.0", "--out", "o",
             "--format", "csv,json",
         ],
-        None,
     );
     assert_eq!(r.code, 0, "{r}");
     // (0.78 − 0.80128) / 0.80128 = −2.66 %
@@ -508,7 +424,7 @@ fn measured_thickness_is_cross_checked() {
 #[test]
 fn reading_error_flags_borderline_locations() {
     let [csv, job] = demo(2);
-    let (dir, r) = run(&[
+    let r = run(&[
         "check",
         &csv,
         "--job",
@@ -526,9 +442,9 @@ fn reading_error_flags_borderline_locations() {
             .contains("Borderline (zone could change within a reading error of 0.02 mm)"),
         "{r}"
     );
-    let s = read_json(&dir.path().join("o/summary.json"));
+    let s = read_json(&r.path("o/summary.json"));
     let n = s["borderline"]["count"].as_u64().unwrap();
-    let points = std::fs::read_to_string(dir.path().join("o/points.csv")).unwrap();
+    let points = std::fs::read_to_string(r.path("o/points.csv")).unwrap();
     let mut rdr = csv::Reader::from_reader(points.as_bytes());
     let h = rdr.headers().unwrap().clone();
     let (mi, bi, ui) = (
@@ -554,10 +470,10 @@ fn reading_error_flags_borderline_locations() {
     assert_eq!(yes as u64, n);
     assert!(n > 0);
     // Without the flag, the columns are not written.
-    let (dir, _r) = run(&[
+    let r = run(&[
         "check", &csv, "--job", &job, "--out", "o", "--format", "csv",
     ]);
-    let points = std::fs::read_to_string(dir.path().join("o/points.csv")).unwrap();
+    let points = std::fs::read_to_string(r.path("o/points.csv")).unwrap();
     assert!(!points.lines().next().unwrap().contains("borderline"));
 }
 
@@ -570,7 +486,6 @@ fn job_lengths_are_converted_to_the_unit_in_use() {
     let r = run_in(
         dir.path(),
         &["strains", "mm.csv", "--job", "job.toml", "--unit", "mm"],
-        None,
     );
     assert_eq!(r.code, 0, "{r}");
     let row: Vec<&str> = r.stdout.lines().nth(1).unwrap().split(',').collect();
@@ -585,11 +500,11 @@ fn rejected_rows_make_the_verdict_incomplete_and_trip_fail_on() {
         "id,major,minor\nP1,2.60,2.55\nP2,3x,2.5\n",
     )
     .unwrap();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let args = [
         "check", "m.csv", "--limit", &lim, "--d0", "2.5", "--out", "o", "--format", "json",
     ];
-    let r = run_in(dir.path(), &args, None);
+    let r = run_in(dir.path(), &args);
     assert_eq!(r.code, 0, "{r}");
     assert!(r.stdout.contains("Verdict: INCOMPLETE"), "{r}");
     assert_eq!(
@@ -598,7 +513,7 @@ fn rejected_rows_make_the_verdict_incomplete_and_trip_fail_on() {
     );
     let mut with_fail_on = args.to_vec();
     with_fail_on.extend(["--fail-on", "failed"]);
-    let r = run_in(dir.path(), &with_fail_on, None);
+    let r = run_in(dir.path(), &with_fail_on);
     assert_eq!(r.code, 1, "{r}");
 }
 
@@ -610,13 +525,12 @@ fn implausible_axes_are_rejected_not_judged() {
         "id,major,minor\nP1,1e308,2.5\nP2,2.6,1e-300\nP3,2.6,2.5\n",
     )
     .unwrap();
-    let lim = repo("tests/data/flat-30.toml").display().to_string();
+    let lim = repo_arg("tests/data/flat-30.toml");
     let r = run_in(
         dir.path(),
         &[
             "check", "m.csv", "--limit", &lim, "--d0", "2.5", "--out", "o", "--format", "csv",
         ],
-        None,
     );
     assert_eq!(r.code, 0, "{r}");
     assert!(
@@ -636,7 +550,7 @@ fn implausible_axes_are_rejected_not_judged() {
 fn strains_with_no_usable_row_exits_2() {
     let dir = tempfile::tempdir().unwrap();
     std::fs::write(dir.path().join("m.csv"), "id,major,minor\nP1,2.4,2.5\n").unwrap();
-    let r = run_in(dir.path(), &["strains", "m.csv", "--d0", "2.5"], None);
+    let r = run_in(dir.path(), &["strains", "m.csv", "--d0", "2.5"]);
     assert_eq!(r.code, 2, "{r}");
     assert!(
         r.stderr.contains("smaller than minor")
@@ -648,14 +562,13 @@ fn strains_with_no_usable_row_exits_2() {
 #[test]
 fn outputs_left_from_an_earlier_run_are_pointed_out() {
     let [csv, job] = demo(1);
-    let (dir, r) = run(&["check", &csv, "--job", &job, "--out", "o"]);
+    let r = run(&["check", &csv, "--job", &job, "--out", "o"]);
     assert_eq!(r.code, 0, "{r}");
     let r = run_in(
-        dir.path(),
+        &r.dir,
         &[
             "check", &csv, "--job", &job, "--out", "o", "--format", "csv",
         ],
-        None,
     );
     assert_eq!(r.code, 0, "{r}");
     assert!(
@@ -669,7 +582,7 @@ fn outputs_left_from_an_earlier_run_are_pointed_out() {
 #[test]
 fn a_curve_for_other_sheet_is_warned_about() {
     let [csv, job] = demo(1);
-    let (dir, r) = run(&[
+    let r = run(&[
         "check", &csv, "--job", &job, "--out", "o", "--format", "json", "--t0", "1.5",
     ]);
     assert_eq!(r.code, 0, "{r}");
@@ -678,9 +591,9 @@ fn a_curve_for_other_sheet_is_warned_about() {
             .contains("warning: the limit curve is for 0.8 mm sheet, but t0 is 1.500 mm"),
         "{r}"
     );
-    let s = read_json(&dir.path().join("o/summary.json"));
+    let s = read_json(&r.path("o/summary.json"));
     assert!(s["warnings"][0].as_str().unwrap().contains("0.8 mm sheet"));
-    let (_d, r) = run(&[
+    let r = run(&[
         "check", &csv, "--job", &job, "--out", "o", "--format", "json",
     ]);
     assert!(!r.stdout.contains("warning:"), "{r}");

@@ -7,51 +7,34 @@
 //! fails (`.ci/run` installs Debian's `chromium`).
 
 mod common;
-use assert_cmd::Command;
 use common::browser::{chromium, page_requests, pdf_pages, run_chromium};
+use common::{demo_tryout, read_json, run_in};
 use std::path::{Path, PathBuf};
-
-fn repo(p: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join(p)
-}
 
 /// The demo's review pack, as the README makes it: returns compare.html.
 fn demo_pack(dir: &Path) -> PathBuf {
     for t in [1, 2] {
-        let st = Command::cargo_bin("neckline")
-            .unwrap()
-            .current_dir(dir)
-            .arg("check")
-            .arg(repo(&format!("demo-parts/rear-floor-pan/tryout-{t}.csv")))
-            .arg("--job")
-            .arg(repo(&format!("demo-parts/rear-floor-pan/job-t{t}.toml")))
-            .args(["--out", &format!("out/t{t}"), "--format", "csv,json"])
-            .output()
-            .unwrap();
-        assert!(
-            st.status.success(),
-            "{}",
-            String::from_utf8_lossy(&st.stderr)
+        let [csv, job] = demo_tryout(t);
+        let out = format!("out/t{t}");
+        let r = run_in(
+            dir,
+            &[
+                "check", &csv, "--job", &job, "--out", &out, "--format", "csv,json",
+            ],
         );
+        assert_eq!(r.code, 0, "{r}");
     }
-    let st = Command::cargo_bin("neckline")
-        .unwrap()
-        .current_dir(dir)
-        .args([
+    let r = run_in(
+        dir,
+        &[
             "compare",
             "out/t1/points.csv",
             "out/t2/points.csv",
             "--out",
             "out/review",
-        ])
-        .env("NO_COLOR", "1")
-        .output()
-        .unwrap();
-    assert!(
-        st.status.success(),
-        "{}",
-        String::from_utf8_lossy(&st.stderr)
+        ],
     );
+    assert_eq!(r.code, 0, "{r}");
     dir.join("out/review/compare.html")
 }
 
@@ -70,10 +53,7 @@ fn review_page_is_self_contained_printable_and_names_the_newly_at_risk() {
     }
     // The newly failed or marginal locations of the demo (J02 and K04 went from safe to
     // marginal, by compare.json) are in the page's at-risk section.
-    let json: serde_json::Value = serde_json::from_str(
-        &std::fs::read_to_string(dir.path().join("out/review/compare.json")).unwrap(),
-    )
-    .unwrap();
+    let json = read_json(&dir.path().join("out/review/compare.json"));
     let newly: Vec<&str> = json["newly_at_risk"]
         .as_array()
         .unwrap()

@@ -1,64 +1,16 @@
 //! `compare`: the real binary on the demo's two tryouts and on small hand-made results.
 
-use assert_cmd::Command;
+mod common;
+use common::{demo_tryout, read_json, read_rows, repo_arg, run_in, write, Run};
 use std::collections::{BTreeMap, BTreeSet};
-use std::path::{Path, PathBuf};
-
-fn repo(p: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join(p)
-}
-
-/// The outcome of one run, printed in full when an assertion fails.
-struct Run {
-    dir: PathBuf,
-    code: i32,
-    stdout: String,
-    stderr: String,
-}
-
-impl std::fmt::Display for Run {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(
-            f,
-            "dir: {}\nexit: {}\n--- stdout\n{}\n--- stderr\n{}",
-            self.dir.display(),
-            self.code,
-            self.stdout,
-            self.stderr
-        )
-    }
-}
-
-fn run_in(dir: &Path, args: &[&str]) -> Run {
-    let out = Command::cargo_bin("neckline")
-        .unwrap()
-        .current_dir(dir)
-        .args(args)
-        .env("NO_COLOR", "1")
-        .output()
-        .unwrap();
-    Run {
-        dir: dir.to_path_buf(),
-        code: out.status.code().unwrap_or(-1),
-        stdout: String::from_utf8_lossy(&out.stdout).into_owned(),
-        stderr: String::from_utf8_lossy(&out.stderr).into_owned(),
-    }
-}
+use std::path::Path;
 
 /// `check` the demo's tryout `t` into `dir/t<t>` (points.csv and summary.json only).
 fn check_demo(dir: &Path, t: u8, extra: &[&str]) -> Run {
-    let csv = repo(&format!("demo-parts/rear-floor-pan/tryout-{t}.csv"));
-    let job = repo(&format!("demo-parts/rear-floor-pan/job-t{t}.toml"));
+    let [csv, job] = demo_tryout(t);
     let out = format!("t{t}");
     let mut args = vec![
-        "check",
-        csv.to_str().unwrap(),
-        "--job",
-        job.to_str().unwrap(),
-        "--out",
-        &out,
-        "--format",
-        "csv,json",
+        "check", &csv, "--job", &job, "--out", &out, "--format", "csv,json",
     ];
     args.extend_from_slice(extra);
     let r = run_in(dir, &args);
@@ -71,33 +23,6 @@ fn both_demo_tryouts() -> tempfile::TempDir {
     check_demo(dir.path(), 1, &[]);
     check_demo(dir.path(), 2, &[]);
     dir
-}
-
-/// compare.csv as a list of column-name → value maps.
-fn read_rows(p: &Path) -> Vec<BTreeMap<String, String>> {
-    let mut r = csv::Reader::from_path(p).unwrap();
-    let head = r.headers().unwrap().clone();
-    r.records()
-        .map(|rec| {
-            let rec = rec.unwrap();
-            head.iter()
-                .zip(rec.iter())
-                .map(|(h, v)| (h.to_string(), v.to_string()))
-                .collect()
-        })
-        .collect()
-}
-
-fn write(dir: &Path, name: &str, text: &str) {
-    let p = dir.join(name);
-    if let Some(parent) = p.parent() {
-        std::fs::create_dir_all(parent).unwrap();
-    }
-    std::fs::write(p, text).unwrap();
-}
-
-fn json(p: &Path) -> serde_json::Value {
-    serde_json::from_str(&std::fs::read_to_string(p).unwrap()).unwrap()
 }
 
 #[test]
@@ -162,7 +87,7 @@ fn every_id_appears_once_with_its_status_and_one_sided_ids_are_named() {
         "{r}"
     );
     assert!(r.stdout.contains("Only in T2 (1 location): M01"), "{r}");
-    let j = json(&d.join("pack/compare.json"));
+    let j = read_json(&d.join("pack/compare.json"));
     assert_eq!(j["only_before"], serde_json::json!(["A01", "L10"]));
     assert_eq!(j["only_after"], serde_json::json!(["M01"]));
     let page = std::fs::read_to_string(d.join("pack/compare.html")).unwrap();
@@ -195,7 +120,7 @@ fn margin_change_is_after_minus_before_from_the_inputs() {
         }
     }
     // The demo's four corners that failed in T1 are marginal after the rework (invented data).
-    let j = json(&d.join("pack/compare.json"));
+    let j = read_json(&d.join("pack/compare.json"));
     assert_eq!(j["transitions"]["failed"]["marginal"], 4);
     assert_eq!(j["tryouts"][0]["verdict"], "fail");
     assert_eq!(j["tryouts"][1]["verdict"], "marginal");
@@ -340,13 +265,13 @@ fn position_matching_pairs_a_shuffled_jittered_copy_back_to_its_ids() {
 fn position_matching_takes_the_nearer_and_nothing_beyond_reach() {
     let dir = tempfile::tempdir().unwrap();
     let d = dir.path();
-    write(d, "b.csv", &format!("{HEAD}P1,20,0,5,marginal,0,0\n"));
+    write(d, "b.csv", format!("{HEAD}P1,20,0,5,marginal,0,0\n"));
     // Two candidates within reach of P1: Q1 at 3 and Q2 at 1 (a 3-4-5 triangle would do too;
     // distances here are plain).
     write(
         d,
         "a.csv",
-        &format!("{HEAD}Q1,20,0,5,marginal,3,0\nQ2,20,0,6,marginal,0,1\n"),
+        format!("{HEAD}Q1,20,0,5,marginal,3,0\nQ2,20,0,6,marginal,0,1\n"),
     );
     let r = run_in(
         d,
@@ -366,7 +291,7 @@ fn position_matching_takes_the_nearer_and_nothing_beyond_reach() {
     assert_eq!(left["id_after"], "Q1");
     assert!(r.stdout.contains("Only in a (1 location): Q1"), "{r}");
     // A location 6 away with --within 5: nothing paired, nothing to compare.
-    write(d, "far.csv", &format!("{HEAD}Q9,20,0,5,marginal,6,0\n"));
+    write(d, "far.csv", format!("{HEAD}Q9,20,0,5,marginal,6,0\n"));
     let r = run_in(
         d,
         &[
@@ -518,7 +443,7 @@ fn refusals_and_warnings() {
         "{r}"
     );
     // A measurement file is not a result of `check`.
-    let good = repo("tests/data/good.csv").display().to_string();
+    let good = repo_arg("tests/data/good.csv");
     let r = run_in(d, &["compare", &good, "t2/points.csv"]);
     assert_eq!(r.code, 2, "{r}");
     assert!(

@@ -1,46 +1,12 @@
 //! `neckline limit from-parts`: the real binary, run in a fresh temporary directory. On failure
 //! each test prints the directory, the exit status, stdout and stderr.
 
-use assert_cmd::Command;
+mod common;
+use common::{repo_arg, run_in};
 use neckline_core::limit::LimitCurve;
 use neckline_core::strain::{StrainMeasure, TrueStrain};
 use std::path::Path;
 use tempfile::TempDir;
-
-struct Run {
-    status: i32,
-    stdout: String,
-    stderr: String,
-    dir: String,
-}
-
-impl Run {
-    fn context(&self) -> String {
-        format!(
-            "dir: {}\nstatus: {}\nstdout:\n{}\nstderr:\n{}",
-            self.dir, self.status, self.stdout, self.stderr
-        )
-    }
-    fn ok(self) -> Self {
-        assert_eq!(self.status, 0, "{}", self.context());
-        self
-    }
-}
-
-fn run(dir: &Path, args: &[&str]) -> Run {
-    let out = Command::cargo_bin("neckline")
-        .unwrap()
-        .current_dir(dir)
-        .args(args)
-        .output()
-        .unwrap();
-    Run {
-        status: out.status.code().unwrap_or(-1),
-        stdout: String::from_utf8_lossy(&out.stdout).into_owned(),
-        stderr: String::from_utf8_lossy(&out.stderr).into_owned(),
-        dir: dir.display().to_string(),
-    }
-}
 
 /// The generating curve of the synthetic parts, true strain: Hill's localized neck
 /// ε1 = n − ε2 on the left (Hill 1952, J. Mech. Phys. Solids 1) with n = 0.25, and a straight
@@ -105,7 +71,7 @@ fn sha256sum(path: &Path) -> Option<String> {
 #[test]
 fn derived_curve_reads_back_and_records_the_input_hash() {
     let dir = setup();
-    let r = run(
+    let r = run_in(
         dir.path(),
         &[
             "limit",
@@ -151,10 +117,9 @@ fn derived_curve_reads_back_and_records_the_input_hash() {
         let y = c.major_at(own).unwrap();
         assert!(
             (y - truth(x)).abs() < 0.01,
-            "at {k} %: {:.2} vs {:.2}\n{}",
+            "at {k} %: {:.2} vs {:.2}\n{r}",
             100.0 * y,
             100.0 * truth(x),
-            r.context()
         );
     }
     assert!(r
@@ -184,7 +149,7 @@ fn too_little_evidence_is_refused_and_nothing_is_written() {
         .map(|l| format!("{l}\n"))
         .collect();
     std::fs::write(dir.path().join("few.csv"), few).unwrap();
-    let r = run(
+    let r = run_in(
         dir.path(),
         &[
             "limit",
@@ -198,15 +163,14 @@ fn too_little_evidence_is_refused_and_nothing_is_written() {
             "c.svg",
         ],
     );
-    assert_eq!(r.status, 2, "{}", r.context());
+    assert_eq!(r.code, 2, "{r}");
     assert!(
         r.stderr
             .contains("few.csv: too little evidence for a press-shop curve")
             && r.stderr
                 .contains("2 necked-or-split circles (at least 10 needed)")
             && r.stderr.contains("on only 1 range of minor strain"),
-        "{}",
-        r.context()
+        "{r}"
     );
     assert!(!dir.path().join("c.toml").exists() && !dir.path().join("c.svg").exists());
 }
@@ -252,9 +216,9 @@ fn wrong_arguments_are_refused() {
         ),
     ];
     for (args, expected) in cases {
-        let r = run(dir.path(), args);
-        assert_eq!(r.status, 2, "{args:?}\n{}", r.context());
-        assert!(r.stderr.contains(expected), "{args:?}\n{}", r.context());
+        let r = run_in(dir.path(), args);
+        assert_eq!(r.code, 2, "{args:?}\n{r}");
+        assert!(r.stderr.contains(expected), "{args:?}\n{r}");
     }
     assert_eq!(
         std::fs::read_to_string(dir.path().join("parts.csv")).unwrap(),
@@ -267,7 +231,7 @@ fn wrong_arguments_are_refused() {
 #[test]
 fn plot_shows_circles_by_condition_curve_and_band() {
     let dir = setup();
-    run(
+    run_in(
         dir.path(),
         &[
             "limit",
@@ -299,7 +263,7 @@ fn plot_shows_circles_by_condition_curve_and_band() {
             "legend lacks count {n}"
         );
     }
-    run(
+    run_in(
         dir.path(),
         &[
             "limit",
@@ -322,12 +286,11 @@ fn plot_shows_circles_by_condition_curve_and_band() {
 // `check`; the corners that split are failed against it, as against the model curve.
 #[test]
 fn demo_curve_judges_the_demo_tryout() {
-    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
     let dir = TempDir::new().unwrap();
     let shop = dir.path().join("shop.toml");
     let out = dir.path().join("t1");
-    let demo = |p: &str| root.join(p).display().to_string();
-    run(
+    let demo = repo_arg;
+    run_in(
         dir.path(),
         &[
             "limit",
@@ -343,7 +306,7 @@ fn demo_curve_judges_the_demo_tryout() {
     let c = LimitCurve::load(&shop).unwrap();
     assert_eq!(c.thickness_mm, Some(0.8));
     assert!(c.material.as_deref().unwrap_or("").contains("K-4417"));
-    run(
+    run_in(
         dir.path(),
         &[
             "check",

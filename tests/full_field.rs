@@ -6,13 +6,13 @@
 //! engineering percent and as true percent must be judged alike.
 
 mod common;
-use common::{read_json, read_rows, repo, run_in};
+use common::{read_json, read_rows, repo, repo_arg, run_in};
 use std::path::Path;
 
 const CURVE: &str = "limits/steel-0.80mm-n0.20-keeler-brazier.toml";
 
 fn limit() -> String {
-    repo(CURVE).display().to_string()
+    repo_arg(CURVE)
 }
 
 /// The demo's hand-read tryout written three ways: axes, engineering percent, true percent (to
@@ -101,9 +101,7 @@ fn axes_and_strains_give_the_same_judgement() {
 fn points_csv_judged_again_gives_itself_back() {
     let dir = tempfile::tempdir().unwrap();
     let lim = limit();
-    let t1 = repo("demo-parts/rear-floor-pan/tryout-1.csv")
-        .display()
-        .to_string();
+    let t1 = repo_arg("demo-parts/rear-floor-pan/tryout-1.csv");
     let r = run_in(
         dir.path(),
         &[
@@ -304,12 +302,8 @@ fn axes_with_strains_is_refused_and_disagreeing_strains_warn() {
 fn several_files_each_get_a_folder_and_an_index() {
     let dir = tempfile::tempdir().unwrap();
     let lim = limit();
-    let t1 = repo("demo-parts/rear-floor-pan/tryout-1.csv")
-        .display()
-        .to_string();
-    let t2 = repo("demo-parts/rear-floor-pan/tryout-2.csv")
-        .display()
-        .to_string();
+    let t1 = repo_arg("demo-parts/rear-floor-pan/tryout-1.csv");
+    let t2 = repo_arg("demo-parts/rear-floor-pan/tryout-2.csv");
     let r = run_in(
         dir.path(),
         &[

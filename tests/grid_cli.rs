@@ -5,104 +5,48 @@
 //! e = λ − 1 (project field notes, sections 2-3). The 3-D file is the field notes' section 3
 //! check: stretches 1.281413, 0.920858, major direction 18.15° in the blank.
 
-use assert_cmd::Command;
-use std::path::{Path, PathBuf};
-use std::process::Output;
+mod common;
+use common::{neckline, num, read_json, read_text, repo, rows};
+use std::path::PathBuf;
+use tempfile::TempDir;
 
 const CURVE: &str = "name = \"test curve\"\nsource = \"test only\"\nstrain = \"engineering\"\n\
                      points = [[-40, 60], [0, 30], [20, 42]]\n";
 
 fn data(name: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/grid-data")
-        .join(name)
+    repo("tests/grid-data").join(name)
 }
 
-struct Run {
-    dir: tempfile::TempDir,
-}
-
-impl Run {
-    fn new() -> Self {
-        let dir = tempfile::tempdir().unwrap();
-        std::fs::write(dir.path().join("limit.toml"), CURVE).unwrap();
-        Run { dir }
-    }
-    fn path(&self, name: &str) -> PathBuf {
-        self.dir.path().join(name)
-    }
-    fn cmd(&self, args: &[&str]) -> Command {
-        let mut c = Command::cargo_bin("neckline").unwrap();
-        c.current_dir(self.dir.path()).args(args);
-        c
-    }
-    /// Run and check the exit status; on a mismatch show everything.
-    fn run(&self, args: &[&str], stdin: Option<Vec<u8>>, status: i32) -> Output {
-        let mut c = self.cmd(args);
-        if let Some(s) = stdin {
-            c.write_stdin(s);
-        }
-        let out = c.output().unwrap();
-        assert_eq!(
-            out.status.code(),
-            Some(status),
-            "dir {}\nargs {args:?}\nstdout:\n{}\nstderr:\n{}",
-            self.dir.path().display(),
-            String::from_utf8_lossy(&out.stdout),
-            String::from_utf8_lossy(&out.stderr)
-        );
-        out
-    }
-    fn read(&self, name: &str) -> String {
-        std::fs::read_to_string(self.path(name)).unwrap()
-    }
-}
-
-/// The rows of a CSV as maps from column name to field.
-fn rows(text: &str) -> Vec<std::collections::HashMap<String, String>> {
-    let mut r = csv::Reader::from_reader(text.as_bytes());
-    let h = r.headers().unwrap().clone();
-    r.records()
-        .map(|rec| {
-            let rec = rec.unwrap();
-            h.iter()
-                .zip(rec.iter())
-                .map(|(a, b)| (a.to_string(), b.to_string()))
-                .collect()
-        })
-        .collect()
-}
-
-fn num(row: &std::collections::HashMap<String, String>, col: &str) -> f64 {
-    row[col]
-        .parse()
-        .unwrap_or_else(|_| panic!("{col} = `{}`", row[col]))
+/// A fresh folder holding the test curve as limit.toml.
+fn folder() -> TempDir {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("limit.toml"), CURVE).unwrap();
+    dir
 }
 
 #[test]
 fn grid_2d_homogeneous_stretch() {
-    let r = Run::new();
+    let dir = folder();
+    let d = dir.path();
     let nodes = data("nodes-2d.csv");
-    let out = r.run(
-        &[
-            "grid",
-            nodes.to_str().unwrap(),
-            "--limit",
-            "limit.toml",
-            "--out",
-            "o",
-            "--t0",
-            "0.8",
-        ],
-        None,
-        0,
-    );
-    let stdout = String::from_utf8_lossy(&out.stdout);
+    let out = neckline(&[
+        "grid",
+        nodes.to_str().unwrap(),
+        "--limit",
+        "limit.toml",
+        "--out",
+        "o",
+        "--t0",
+        "0.8",
+    ])
+    .run_in(d)
+    .expect(0);
+    let stdout = &out.stdout;
     assert!(
         stdout.contains("9 locations judged") && stdout.contains("Caution"),
         "{stdout}"
     );
-    let points = rows(&r.read("o/points.csv"));
+    let points = rows(&read_text(&d.join("o/points.csv")));
     assert_eq!(points.len(), 9);
     // F = R(10°) diag(1.2, 0.95): e = 20 %, −5 %, major along X, rotation 10°.
     for p in &points {
@@ -115,7 +59,7 @@ fn grid_2d_homogeneous_stretch() {
         assert_eq!(p["normal_z"], "");
     }
     assert_eq!(points[4]["id"], "r1c1");
-    let summary: serde_json::Value = serde_json::from_str(&r.read("o/summary.json")).unwrap();
+    let summary: serde_json::Value = read_json(&d.join("o/summary.json"));
     assert_eq!(summary["points"], 9);
     assert_eq!(summary["verdict"], "pass");
     assert!(summary["caution"]
@@ -126,21 +70,20 @@ fn grid_2d_homogeneous_stretch() {
 
 #[test]
 fn grid_3d_field_notes_check() {
-    let r = Run::new();
+    let dir = folder();
+    let d = dir.path();
     let nodes = data("nodes-3d.csv");
-    r.run(
-        &[
-            "grid",
-            nodes.to_str().unwrap(),
-            "--limit",
-            "limit.toml",
-            "--out",
-            "o",
-        ],
-        None,
-        0,
-    );
-    let points = rows(&r.read("o/points.csv"));
+    neckline(&[
+        "grid",
+        nodes.to_str().unwrap(),
+        "--limit",
+        "limit.toml",
+        "--out",
+        "o",
+    ])
+    .run_in(d)
+    .expect(0);
+    let points = rows(&read_text(&d.join("o/points.csv")));
     assert_eq!(points.len(), 4);
     let (s20, c20) = 20f64.to_radians().sin_cos();
     for p in &points {
@@ -166,7 +109,8 @@ fn grid_3d_field_notes_check() {
 
 #[test]
 fn grid_elements_with_bad_rows_and_degenerate_elements() {
-    let r = Run::new();
+    let dir = folder();
+    let d = dir.path();
     let (nodes, elements) = (data("nodes-id.csv"), data("elements.csv"));
     let args = [
         "grid",
@@ -178,8 +122,8 @@ fn grid_elements_with_bad_rows_and_degenerate_elements() {
         "--out",
         "o",
     ];
-    let out = r.run(&args, None, 0);
-    let stdout = String::from_utf8_lossy(&out.stdout);
+    let out = neckline(&args).run_in(d).expect(0);
+    let stdout = &out.stdout;
     assert!(
         stdout.contains("4 locations judged, 5 rows rejected"),
         "{stdout}"
@@ -193,7 +137,7 @@ fn grid_elements_with_bad_rows_and_degenerate_elements() {
         stdout.contains("nodes-id.csv:10:5 (column `y`)"),
         "{stdout}"
     );
-    let text = r.read("o/points.csv");
+    let text = read_text(&d.join("o/points.csv"));
     assert!(!text.to_lowercase().contains("nan"), "{text}");
     let points = rows(&text);
     let ids: Vec<&str> = points.iter().map(|p| p["id"].as_str()).collect();
@@ -204,7 +148,7 @@ fn grid_elements_with_bad_rows_and_degenerate_elements() {
     }
     assert_eq!(points[0]["nodes"], "4");
     assert_eq!(points[1]["nodes"], "3");
-    let summary: serde_json::Value = serde_json::from_str(&r.read("o/summary.json")).unwrap();
+    let summary: serde_json::Value = read_json(&d.join("o/summary.json"));
     let rejected = summary["rejected"].as_array().unwrap();
     let ids: Vec<&str> = rejected.iter().filter_map(|v| v["id"].as_str()).collect();
     assert_eq!(ids, ["T3", "T5", "T6", "T7", "K"]);
@@ -213,47 +157,51 @@ fn grid_elements_with_bad_rows_and_degenerate_elements() {
     let mut strict = args.to_vec();
     strict[7] = "o2";
     strict.push("--strict");
-    let out = r.run(&strict, None, 2);
-    let err = String::from_utf8_lossy(&out.stderr);
+    let out = neckline(&strict).run_in(d).expect(2);
+    let err = &out.stderr;
     assert!(
         err.contains("--strict: 1 node row and 4 elements rejected"),
         "{err}"
     );
-    assert!(!r.path("o2/points.csv").exists() && !r.path("o2/summary.json").exists());
+    assert!(!d.join("o2/points.csv").exists() && !d.join("o2/summary.json").exists());
 }
 
 #[test]
 fn grid_input_errors_name_file_and_line() {
-    let r = Run::new();
-    std::fs::write(r.path("bad.csv"), "row,col,X,Y,x\n0,0,0,0,0\n").unwrap();
-    let out = r.run(&["grid", "bad.csv", "--limit", "limit.toml"], None, 2);
-    let err = String::from_utf8_lossy(&out.stderr);
+    let dir = folder();
+    let d = dir.path();
+    std::fs::write(d.join("bad.csv"), "row,col,X,Y,x\n0,0,0,0,0\n").unwrap();
+    let out = neckline(&["grid", "bad.csv", "--limit", "limit.toml"])
+        .run_in(d)
+        .expect(2);
+    let err = &out.stderr;
     assert!(
         err.contains("bad.csv:1") && err.contains("missing column `y`"),
         "{err}"
     );
-    std::fs::write(r.path("ids.csv"), "id,X,Y,x,y\nA,0,0,0,0\n").unwrap();
-    let out = r.run(&["grid", "ids.csv", "--limit", "limit.toml"], None, 2);
-    assert!(String::from_utf8_lossy(&out.stderr).contains("--elements"));
+    std::fs::write(d.join("ids.csv"), "id,X,Y,x,y\nA,0,0,0,0\n").unwrap();
+    let out = neckline(&["grid", "ids.csv", "--limit", "limit.toml"])
+        .run_in(d)
+        .expect(2);
+    assert!(out.stderr.contains("--elements"), "{out}");
 }
 
 #[test]
 fn fit_then_check_agrees_with_the_mapping() {
-    let r = Run::new();
+    let dir = folder();
+    let d = dir.path();
     let outlines = data("outlines.csv");
-    let out = r.run(
-        &["fit", outlines.to_str().unwrap(), "--out", "fitted.csv"],
-        None,
-        0,
-    );
-    let err = String::from_utf8_lossy(&out.stderr);
+    let out = neckline(&["fit", outlines.to_str().unwrap(), "--out", "fitted.csv"])
+        .run_in(d)
+        .expect(0);
+    let err = &out.stderr;
     assert!(err.contains("outline `E4`: 5 points, at least 6"), "{err}");
     assert!(
         err.contains("outline `E5`: the points lie on a straight line"),
         "{err}"
     );
     assert!(err.contains("fitted 3 of 5"), "{err}");
-    let fitted = rows(&r.read("fitted.csv"));
+    let fitted = rows(&read_text(&d.join("fitted.csv")));
     assert_eq!(fitted.len(), 3);
     // d0 = 2.5 mapped by R(10°) diag(1.2, 0.95): axes 3.0 and 2.375, major axis at 10°.
     assert!(
@@ -285,21 +233,19 @@ fn fit_then_check_agrees_with_the_mapping() {
         fitted[2]
     );
 
-    r.run(
-        &[
-            "check",
-            "fitted.csv",
-            "--d0",
-            "2.5",
-            "--limit",
-            "limit.toml",
-            "--out",
-            "c",
-        ],
-        None,
-        0,
-    );
-    let points = rows(&r.read("c/points.csv"));
+    neckline(&[
+        "check",
+        "fitted.csv",
+        "--d0",
+        "2.5",
+        "--limit",
+        "limit.toml",
+        "--out",
+        "c",
+    ])
+    .run_in(d)
+    .expect(0);
+    let points = rows(&read_text(&d.join("c/points.csv")));
     // The same F in nodes-2d.csv gives 20 % and −5 % through `grid`: the two paths agree.
     assert!(
         (num(&points[0], "major_eng_pct") - 20.0).abs() < 1e-3,
@@ -314,34 +260,38 @@ fn fit_then_check_agrees_with_the_mapping() {
     assert_eq!(points[0]["x"], "10.000");
 
     // fit | check -: the fitted CSV on stdout read by check from stdin.
-    let piped = r.run(&["fit", outlines.to_str().unwrap()], None, 0).stdout;
-    r.run(
-        &[
-            "check",
-            "-",
-            "--d0",
-            "2.5",
-            "--limit",
-            "limit.toml",
-            "--out",
-            "p",
-        ],
-        Some(piped),
-        0,
-    );
-    assert_eq!(rows(&r.read("p/points.csv")).len(), 3);
+    let piped = neckline(&["fit", outlines.to_str().unwrap()])
+        .run_in(d)
+        .expect(0)
+        .stdout
+        .clone();
+    neckline(&[
+        "check",
+        "-",
+        "--d0",
+        "2.5",
+        "--limit",
+        "limit.toml",
+        "--out",
+        "p",
+    ])
+    .stdin(piped)
+    .run_in(d)
+    .expect(0);
+    assert_eq!(rows(&read_text(&d.join("p/points.csv"))).len(), 3);
 }
 
 #[test]
 fn fit_with_nothing_fitted_exits_2() {
-    let r = Run::new();
+    let dir = folder();
+    let d = dir.path();
     std::fs::write(
-        r.path("o.csv"),
+        d.join("o.csv"),
         "id,x,y\nA,0,0\nA,1,1\nA,2,2\nA,3,3\nA,4,4\nA,5,5\nB,1,x\n",
     )
     .unwrap();
-    let out = r.run(&["fit", "o.csv"], None, 2);
-    let err = String::from_utf8_lossy(&out.stderr);
+    let out = neckline(&["fit", "o.csv"]).run_in(d).expect(2);
+    let err = &out.stderr;
     assert!(
         err.contains("`A`") && err.contains("straight line"),
         "{err}"

@@ -9,9 +9,13 @@
 //! given to `compare`). tests/hostile/recovered/ holds inputs that are read with a documented
 //! recovery (README, "What input is refused, and why") rather than refused.
 
-use assert_cmd::Command;
+mod common;
+use common::{neckline, repo, write};
 use std::path::{Path, PathBuf};
-use std::time::{Duration, Instant};
+use std::time::Duration;
+
+/// A hung parser fails its test instead of hanging it.
+const TIMEOUT: Duration = Duration::from_secs(20);
 
 const CURVE: &str =
     "name = \"c\"\nsource = \"test only\"\nstrain = \"engineering\"\npoints = [[-40, 60], [0, 30], [20, 42]]\n";
@@ -21,7 +25,7 @@ const POINTS: &str = "id,major_eng_pct,minor_eng_pct,margin_pct,zone,x,y\n\
                       A1,18,3,7,marginal,1,2\nA2,10,1,15,safe,2,2\n";
 
 fn corpus() -> Vec<PathBuf> {
-    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/hostile");
+    let dir = repo("tests/hostile");
     let mut v: Vec<PathBuf> = std::fs::read_dir(dir)
         .unwrap()
         .map(|e| e.unwrap().path())
@@ -78,26 +82,13 @@ fn refused(files: &[(&str, &[u8])], args: &[String], hostile: &str, line: Option
         ("good-points.csv", POINTS.as_bytes()),
     ];
     for (name, bytes) in good.iter().chain(files) {
-        std::fs::write(dir.path().join(name), bytes).unwrap();
+        write(dir.path(), name, bytes);
     }
     let before = snapshot(dir.path());
-    let start = Instant::now();
-    let out = Command::cargo_bin("neckline")
-        .unwrap()
-        .current_dir(dir.path())
-        .args(args)
-        .env("NO_COLOR", "1")
-        .timeout(Duration::from_secs(20))
-        .output()
-        .unwrap();
-    let took = start.elapsed();
-    let stderr = String::from_utf8_lossy(&out.stderr);
-    let context = format!(
-        "{hostile}: {args:?}\nexit {:?} in {took:?}\nstdout:\n{}\nstderr:\n{stderr}",
-        out.status.code(),
-        String::from_utf8_lossy(&out.stdout)
-    );
-    assert_eq!(out.status.code(), Some(2), "{context}");
+    let r = neckline(args).timeout(TIMEOUT).run_in(dir.path());
+    let (took, stderr) = (r.took, &r.stderr);
+    let context = format!("{hostile}:\n{r}");
+    assert_eq!(r.code, 2, "{context}");
     assert!(!stderr.contains("panicked"), "{context}");
     assert!(took < Duration::from_secs(5), "{context}");
     let error = stderr
@@ -288,26 +279,13 @@ fn recovered(files: &[(&str, &[u8])], args: &[&str]) -> (String, String, tempfil
         ("good-points.csv", POINTS.as_bytes()),
     ];
     for (name, bytes) in good.iter().chain(files) {
-        std::fs::write(dir.path().join(name), bytes).unwrap();
+        write(dir.path(), name, bytes);
     }
     let before = snapshot(dir.path());
-    let start = Instant::now();
-    let out = Command::cargo_bin("neckline")
-        .unwrap()
-        .current_dir(dir.path())
-        .args(args)
-        .env("NO_COLOR", "1")
-        .timeout(Duration::from_secs(20))
-        .output()
-        .unwrap();
-    let took = start.elapsed();
-    let stdout = String::from_utf8_lossy(&out.stdout).into_owned();
-    let stderr = String::from_utf8_lossy(&out.stderr).into_owned();
-    let context = format!(
-        "{args:?}\nexit {:?} in {took:?}\nstdout:\n{stdout}\nstderr:\n{stderr}",
-        out.status.code()
-    );
-    assert_eq!(out.status.code(), Some(0), "{context}");
+    let r = neckline(args).timeout(TIMEOUT).run_in(dir.path());
+    let (took, stdout, stderr) = (r.took, r.stdout.clone(), r.stderr.clone());
+    let context = r.to_string();
+    assert_eq!(r.code, 0, "{context}");
     assert!(!stderr.contains("panicked"), "{context}");
     assert!(took < Duration::from_secs(5), "{context}");
     let after: Vec<_> = snapshot(dir.path())
@@ -319,10 +297,7 @@ fn recovered(files: &[(&str, &[u8])], args: &[&str]) -> (String, String, tempfil
 }
 
 fn recovered_file(name: &str) -> Vec<u8> {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("tests/hostile/recovered")
-        .join(name);
-    std::fs::read(path).unwrap()
+    std::fs::read(repo("tests/hostile/recovered").join(name)).unwrap()
 }
 
 fn check_args(name: &str) -> Vec<&str> {
@@ -441,12 +416,7 @@ fn implausible_files_name_the_cause_and_the_fix() {
         ("measure-inches.csv", &["--d0", "0.1", "--unit", "in"], ""),
     ];
     for (name, extra, wanted) in cases {
-        let bytes = std::fs::read(
-            Path::new(env!("CARGO_MANIFEST_DIR"))
-                .join("tests/hostile")
-                .join(name),
-        )
-        .unwrap();
+        let bytes = std::fs::read(repo("tests/hostile").join(name)).unwrap();
         let mut args = vec!["check", name, "--limit", "good.toml", "--out", "out"];
         if extra.is_empty() {
             args.extend(["--d0", "2.5"]);
@@ -458,47 +428,38 @@ fn implausible_files_name_the_cause_and_the_fix() {
             assert!(stdout.contains("3 locations judged"), "{stdout}");
             continue;
         }
-        let out = Command::cargo_bin("neckline")
-            .unwrap()
-            .current_dir(tempdir_with(&[(name, &bytes), ("good.toml", CURVE.as_bytes())]).path())
-            .args(&args)
-            .timeout(Duration::from_secs(20))
-            .output()
-            .unwrap();
-        let stderr = String::from_utf8_lossy(&out.stderr);
-        assert_eq!(out.status.code(), Some(2), "{stderr}");
+        let r = neckline(&args)
+            .files(&[(name, bytes.as_slice()), ("good.toml", CURVE.as_bytes())])
+            .timeout(TIMEOUT)
+            .run();
+        let stderr = &r.stderr;
+        assert_eq!(r.code, 2, "{r}");
         assert!(stderr.contains(wanted), "{name}: {stderr}");
         assert!(stderr.contains("nothing was written"), "{stderr}");
     }
     // Millimetres read as inches: 25.4 times too large against a job's d0 of 2.5 mm.
     let mm = "id,major,minor\nA1,3.0,2.6\nA2,2.9,2.5\n";
     let job = "d0 = 2.5\nunit = \"mm\"\n";
-    let dir = tempdir_with(&[
-        ("mm.csv", mm.as_bytes()),
-        ("job.toml", job.as_bytes()),
-        ("good.toml", CURVE.as_bytes()),
-    ]);
-    let out = Command::cargo_bin("neckline")
-        .unwrap()
-        .current_dir(dir.path())
-        .args(["check", "mm.csv", "--job", "job.toml", "--unit", "in"])
-        .args(["--limit", "good.toml", "--out", "out"])
-        .timeout(Duration::from_secs(20))
-        .output()
-        .unwrap();
-    let stderr = String::from_utf8_lossy(&out.stderr);
-    assert_eq!(out.status.code(), Some(2), "{stderr}");
-    assert!(stderr.contains("--unit mm"), "{stderr}");
-    let written = std::fs::read_dir(dir.path().join("out")).map_or(0, |d| d.count());
-    assert_eq!(written, 0, "{stderr}");
-}
-
-fn tempdir_with(files: &[(&str, &[u8])]) -> tempfile::TempDir {
-    let dir = tempfile::tempdir().unwrap();
-    for (name, bytes) in files {
-        std::fs::write(dir.path().join(name), bytes).unwrap();
-    }
-    dir
+    let r = neckline(&[
+        "check",
+        "mm.csv",
+        "--job",
+        "job.toml",
+        "--unit",
+        "in",
+        "--limit",
+        "good.toml",
+        "--out",
+        "out",
+    ])
+    .files(&[("mm.csv", mm), ("job.toml", job), ("good.toml", CURVE)])
+    .timeout(TIMEOUT)
+    .run();
+    let stderr = &r.stderr;
+    assert_eq!(r.code, 2, "{r}");
+    assert!(stderr.contains("--unit mm"), "{r}");
+    let written = std::fs::read_dir(r.path("out")).map_or(0, |d| d.count());
+    assert_eq!(written, 0, "{r}");
 }
 
 // Too big to commit: the measurement and points.csv cases made here.

@@ -8,6 +8,8 @@
 //! into the same folder at the same time cannot be told from a dead one portably. Temporaries
 //! are hidden (a leading dot), never read by neckline, and the next run writes its own.
 
+mod common;
+use common::run_in;
 use std::path::{Path, PathBuf};
 use std::process::{Child, Command, Stdio};
 use std::time::{Duration, Instant};
@@ -27,13 +29,19 @@ fn measurements(shift: f64) -> String {
     s
 }
 
+/// The command line of every run here: `input` judged into out/points.csv.
+fn check_args(input: &str) -> [&str; 10] {
+    [
+        "check", input, "--d0", "2.5", "--limit", "c.toml", "--out", "out", "--format", "csv",
+    ]
+}
+
+/// Start `neckline` on `input` in `dir` without waiting, to be killed while it writes (a run
+/// to its end goes through `common::run_in`).
 fn start(dir: &Path, input: &str) -> Child {
     Command::new(env!("CARGO_BIN_EXE_neckline"))
         .current_dir(dir)
-        .args([
-            "check", input, "--d0", "2.5", "--limit", "c.toml", "--out", "out",
-        ])
-        .args(["--format", "csv"])
+        .args(check_args(input))
         .env("NO_COLOR", "1")
         .stdout(Stdio::null())
         .stderr(Stdio::null())
@@ -126,8 +134,8 @@ fn a_killed_run_keeps_the_previous_outputs_and_the_next_run_completes() {
     std::fs::write(dir.path().join("b.csv"), measurements(0.05)).unwrap();
     let out = dir.path().join("out");
     // A complete first run.
-    let first = start(dir.path(), "a.csv").wait_with_output().unwrap();
-    assert!(first.status.success());
+    let first = run_in(dir.path(), &check_args("a.csv"));
+    assert_eq!(first.code, 0, "{first}");
     let (before, temps) = outputs(&out);
     assert!(temps.is_empty(), "{temps:?}");
     let points = &before
@@ -148,8 +156,8 @@ fn a_killed_run_keeps_the_previous_outputs_and_the_next_run_completes() {
     let stale_bytes = std::fs::read(&stale).unwrap();
 
     // The next run completes beside the stale temporary, which it leaves alone.
-    let third = start(dir.path(), "b.csv").wait_with_output().unwrap();
-    assert!(third.status.success());
+    let third = run_in(dir.path(), &check_args("b.csv"));
+    assert_eq!(third.code, 0, "{third}");
     let (last, temps) = outputs(&out);
     assert_eq!(temps, vec![stale.clone()]);
     assert_eq!(std::fs::read(&stale).unwrap(), stale_bytes);

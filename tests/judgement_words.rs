@@ -3,37 +3,13 @@
 //! SHA-256 of every input in summary.json (file and standard input) and printed margins that
 //! keep their side of the zone edges.
 
-use assert_cmd::Command;
+mod common;
+use common::{neckline, read_json, read_text, repo, run_in};
 use sha2::{Digest, Sha256};
-use std::path::{Path, PathBuf};
-
-fn repo(p: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join(p)
-}
 
 /// A curve from −10 % to +10 % minor strain, flat at 40 % engineering major strain.
 const NARROW: &str = "name = \"narrow\"\nsource = \"test only\"\nstrain = \"engineering\"\n\
                       points = [[-10, 40], [10, 40]]\n";
-
-struct Out {
-    code: i32,
-    stdout: String,
-    stderr: String,
-}
-
-fn run(dir: &Path, args: &[&str], stdin: Option<&[u8]>) -> Out {
-    let mut cmd = Command::cargo_bin("neckline").unwrap();
-    cmd.current_dir(dir).args(args).env("NO_COLOR", "1");
-    if let Some(s) = stdin {
-        cmd.write_stdin(s.to_vec());
-    }
-    let o = cmd.output().unwrap();
-    Out {
-        code: o.status.code().unwrap_or(-1),
-        stdout: String::from_utf8_lossy(&o.stdout).into_owned(),
-        stderr: String::from_utf8_lossy(&o.stderr).into_owned(),
-    }
-}
 
 fn sha256(bytes: &[u8]) -> String {
     Sha256::digest(bytes)
@@ -72,14 +48,10 @@ fn reasons_thinning_beyond_the_range_and_checksums() {
     let job = "part = \"test panel (invented)\"\nlimit = \"narrow.toml\"\nd0 = 2.5\n\
                max_thinning = 25\nfail_on = \"failed\"\nrevision = \"A\"\n";
     std::fs::write(d.join("job.toml"), job).unwrap();
-    let r = run(
-        d,
-        &["check", "m.csv", "--job", "job.toml", "--out", "o"],
-        None,
-    );
+    let r = run_in(d, &["check", "m.csv", "--job", "job.toml", "--out", "o"]);
     // fail_on from the job file: a failed location exits 1.
     assert_eq!(r.code, 1, "{}\n{}", r.stdout, r.stderr);
-    let points = std::fs::read_to_string(d.join("o/points.csv")).unwrap();
+    let points = read_text(&d.join("o/points.csv"));
     let z = zones(&points);
     let expect = [
         ("T", "failed", "thinning"),
@@ -102,12 +74,11 @@ fn reasons_thinning_beyond_the_range_and_checksums() {
         r.stdout
     );
     assert!(r.stdout.contains("Verdict: FAIL"), "{}", r.stdout);
-    let html = std::fs::read_to_string(d.join("o/report.html")).unwrap();
+    let html = read_text(&d.join("o/report.html"));
     assert!(html.contains("neck visible at corner radius"));
     assert!(html.contains("thinning 47.1 % (max 25)"));
     // summary.json: the SHA-256 of each input file, as a general-purpose library computes it.
-    let s: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(d.join("o/summary.json")).unwrap()).unwrap();
+    let s = read_json(&d.join("o/summary.json"));
     let files = s["files"].as_array().unwrap();
     for (role, name) in [
         ("measurements", "m.csv"),
@@ -136,25 +107,22 @@ fn standard_input_is_hashed_as_it_streams() {
     for i in 0..20_000 {
         text.push_str(&format!("P{i},2.{:03},2.5\n", 500 + i % 300));
     }
-    let r = run(
-        d,
-        &[
-            "check",
-            "-",
-            "--limit",
-            "narrow.toml",
-            "--d0",
-            "2.5",
-            "--out",
-            "o",
-            "--format",
-            "json",
-        ],
-        Some(text.as_bytes()),
-    );
+    let r = neckline(&[
+        "check",
+        "-",
+        "--limit",
+        "narrow.toml",
+        "--d0",
+        "2.5",
+        "--out",
+        "o",
+        "--format",
+        "json",
+    ])
+    .stdin(text.as_bytes())
+    .run_in(d);
     assert_eq!(r.code, 0, "{}", r.stderr);
-    let s: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(d.join("o/summary.json")).unwrap()).unwrap();
+    let s = read_json(&d.join("o/summary.json"));
     assert_eq!(s["files"][0]["path"], "-");
     assert_eq!(s["files"][0]["sha256"], sha256(text.as_bytes()));
 }
@@ -178,11 +146,9 @@ fn thickening_threshold_is_a_setting() {
             "o",
         ];
         args.extend(extra);
-        let r = run(d, &args, None);
+        let r = run_in(d, &args);
         assert_eq!(r.code, 0, "{}", r.stderr);
-        zones(&std::fs::read_to_string(d.join("o/points.csv")).unwrap())[0]
-            .1
-            .clone()
+        zones(&read_text(&d.join("o/points.csv")))[0].1.clone()
     };
     assert_eq!(zone(&[]), "thickening");
     assert_eq!(zone(&["--thickening", "5"]), "safe");
@@ -198,13 +164,12 @@ fn printed_margins_keep_their_side_at_the_edges() {
     std::fs::write(d.join("narrow.toml"), NARROW).unwrap();
     let csv = "id,major_eng_pct,minor_eng_pct\nA,39.96,0\nB,40.04,0\nC,30.04,0\nD,29.96,0\n";
     std::fs::write(d.join("s.csv"), csv).unwrap();
-    let r = run(
+    let r = run_in(
         d,
         &["check", "s.csv", "--limit", "narrow.toml", "--out", "o"],
-        None,
     );
     assert_eq!(r.code, 0, "{}", r.stderr);
-    let html = std::fs::read_to_string(d.join("o/report.html")).unwrap();
+    let html = read_text(&d.join("o/report.html"));
     for (id, zone, shown) in [
         ("A", "marginal", "margin 0.04 pp < band 10"),
         ("B", "failed", "margin 0.0 pp, over curve"),
@@ -229,7 +194,7 @@ fn printed_margins_keep_their_side_at_the_edges() {
 fn demo_jobs_load_and_curves_need_their_measure() {
     let dir = tempfile::tempdir().unwrap();
     let d = dir.path();
-    let r = run(
+    let r = run_in(
         d,
         &[
             "check",
@@ -245,7 +210,6 @@ fn demo_jobs_load_and_curves_need_their_measure() {
             "--format",
             "json",
         ],
-        None,
     );
     assert!(r.code == 0 || r.code == 1, "{}", r.stderr);
     std::fs::write(
@@ -254,11 +218,7 @@ fn demo_jobs_load_and_curves_need_their_measure() {
     )
     .unwrap();
     std::fs::write(d.join("m.csv"), "id,major,minor\nA,3,2.5\n").unwrap();
-    let r = run(
-        d,
-        &["check", "m.csv", "--limit", "c.toml", "--d0", "2.5"],
-        None,
-    );
+    let r = run_in(d, &["check", "m.csv", "--limit", "c.toml", "--d0", "2.5"]);
     assert_eq!(r.code, 2);
     assert!(
         r.stderr.contains("c.toml") && r.stderr.contains("strain = \"true\""),

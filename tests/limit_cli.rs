@@ -2,45 +2,11 @@
 //! prints the directory, the exit status, stdout and stderr.
 
 use approx::assert_abs_diff_eq;
-use assert_cmd::Command;
+mod common;
+use common::{read_json, run_in};
 use neckline_core::limit::LimitCurve;
 use std::path::Path;
 use tempfile::TempDir;
-
-struct Run {
-    status: i32,
-    stdout: String,
-    stderr: String,
-    dir: String,
-}
-
-impl Run {
-    fn context(&self) -> String {
-        format!(
-            "dir: {}\nstatus: {}\nstdout:\n{}\nstderr:\n{}",
-            self.dir, self.status, self.stdout, self.stderr
-        )
-    }
-    fn ok(self) -> Self {
-        assert_eq!(self.status, 0, "{}", self.context());
-        self
-    }
-}
-
-fn run(dir: &TempDir, args: &[&str]) -> Run {
-    let out = Command::cargo_bin("neckline")
-        .unwrap()
-        .current_dir(dir.path())
-        .args(args)
-        .output()
-        .unwrap();
-    Run {
-        status: out.status.code().unwrap_or(-1),
-        stdout: String::from_utf8_lossy(&out.stdout).into_owned(),
-        stderr: String::from_utf8_lossy(&out.stderr).into_owned(),
-        dir: dir.path().display().to_string(),
-    }
-}
 
 fn load(dir: &TempDir, name: &str) -> LimitCurve {
     LimitCurve::load(&dir.path().join(name)).unwrap()
@@ -63,8 +29,8 @@ const CIRCLES: &str = "id,major,minor\nA,3.5,2.5\nB,3.2,2.5\nC,2.625,2.5\n";
 #[test]
 fn keeler_brazier_curve_feeds_check() {
     let dir = TempDir::new().unwrap();
-    let r = run(
-        &dir,
+    let r = run_in(
+        dir.path(),
         &[
             "limit",
             "keeler-brazier",
@@ -79,15 +45,14 @@ fn keeler_brazier_curve_feeds_check() {
     .ok();
     assert!(
         r.stdout.contains("32.96 %") && r.stdout.contains("Caution"),
-        "{}",
-        r.context()
+        "{r}"
     );
     let c = load(&dir, "kb.toml");
     assert_abs_diff_eq!(major_eng_pct(&c, 0.0), 32.96, epsilon = 0.01);
     assert!(c.source.contains("n = 0.2") && c.source.contains(env!("CARGO_PKG_VERSION")));
     std::fs::write(dir.path().join("m.csv"), CIRCLES).unwrap();
-    let r = run(
-        &dir,
+    let r = run_in(
+        dir.path(),
         &[
             "check", "m.csv", "--limit", "kb.toml", "--d0", "2.5", "--out", "out",
         ],
@@ -98,7 +63,7 @@ fn keeler_brazier_curve_feeds_check() {
         let line = pts
             .lines()
             .find(|l| l.starts_with(&format!("{id},")))
-            .unwrap_or_else(|| panic!("no row {id}\n{pts}\n{}", r.context()));
+            .unwrap_or_else(|| panic!("no row {id}\n{pts}\n{r}"));
         ["failed", "marginal", "safe"]
             .into_iter()
             .find(|z| line.split(',').any(|f| f == *z))
@@ -116,8 +81,8 @@ fn keeler_brazier_curve_feeds_check() {
 #[test]
 fn inch_and_mm_thickness_give_the_same_curve() {
     let dir = TempDir::new().unwrap();
-    run(
-        &dir,
+    run_in(
+        dir.path(),
         &[
             "limit",
             "keeler-brazier",
@@ -132,8 +97,8 @@ fn inch_and_mm_thickness_give_the_same_curve() {
         ],
     )
     .ok();
-    run(
-        &dir,
+    run_in(
+        dir.path(),
         &[
             "limit",
             "keeler-brazier",
@@ -158,12 +123,12 @@ fn inch_and_mm_thickness_give_the_same_curve() {
 #[test]
 fn clamps_warn_and_stdout_is_a_curve() {
     let dir = TempDir::new().unwrap();
-    let r = run(
-        &dir,
+    let r = run_in(
+        dir.path(),
         &["limit", "keeler-brazier", "--n", "0.25", "--thickness", "4"],
     )
     .ok();
-    assert_eq!(r.stderr.matches("clamped").count(), 2, "{}", r.context());
+    assert_eq!(r.stderr.matches("clamped").count(), 2, "{r}");
     let c = LimitCurve::parse(&r.stdout, Path::new("<stdout>")).unwrap();
     assert_abs_diff_eq!(major_eng_pct(&c, 0.0), 65.69, epsilon = 0.01);
 }
@@ -173,8 +138,8 @@ fn clamps_warn_and_stdout_is_a_curve() {
 #[test]
 fn necking_curve_in_true_strain() {
     let dir = TempDir::new().unwrap();
-    let r = run(
-        &dir,
+    let r = run_in(
+        dir.path(),
         &["limit", "necking", "--n", "0.22", "--name", "analytic"],
     )
     .ok();
@@ -185,12 +150,12 @@ fn necking_curve_in_true_strain() {
         assert_abs_diff_eq!(c.major_at(minor).unwrap() + minor, 0.22, epsilon = 2e-6);
     }
     assert_abs_diff_eq!(c.major_at(0.0).unwrap(), 0.22, epsilon = 2e-6);
-    let r = run(
-        &dir,
+    let r = run_in(
+        dir.path(),
         &["limit", "necking", "--n", "0.22", "--right", "storen-rice"],
     )
     .ok();
-    assert!(r.stdout.contains("Storen-Rice 1975"), "{}", r.context());
+    assert!(r.stdout.contains("Storen-Rice 1975"), "{r}");
 }
 
 // An isotropic M-K curve: its plane-strain limit matches the closed form
@@ -199,8 +164,8 @@ fn necking_curve_in_true_strain() {
 #[test]
 fn mk_curve_feeds_check() {
     let dir = TempDir::new().unwrap();
-    run(
-        &dir,
+    run_in(
+        dir.path(),
         &[
             "limit", "mk", "--n", "0.2", "--r0", "1", "--r45", "1", "--r90", "1", "--f0", "0.99",
             "--k", "520", "--out", "mk.toml",
@@ -222,18 +187,15 @@ fn mk_curve_feeds_check() {
         assert!(c.source.contains(p), "{p} missing in {}", c.source);
     }
     std::fs::write(dir.path().join("m.csv"), CIRCLES).unwrap();
-    let r = run(
-        &dir,
+    let r = run_in(
+        dir.path(),
         &[
             "check", "m.csv", "--limit", "mk.toml", "--d0", "2.5", "--out", "out",
         ],
     )
     .ok();
-    let json: serde_json::Value = serde_json::from_str(
-        &std::fs::read_to_string(dir.path().join("out/summary.json")).unwrap(),
-    )
-    .unwrap();
-    assert_eq!(json["limit"]["strain"], "true", "{}", r.context());
+    let json = read_json(&dir.path().join("out/summary.json"));
+    assert_eq!(json["limit"]["strain"], "true", "{r}");
     assert_eq!(json["points"], 3);
 }
 
@@ -242,8 +204,8 @@ fn mk_curve_feeds_check() {
 #[test]
 fn compare_prints_both_curves_and_the_difference() {
     let dir = TempDir::new().unwrap();
-    run(
-        &dir,
+    run_in(
+        dir.path(),
         &[
             "limit",
             "keeler-brazier",
@@ -256,9 +218,13 @@ fn compare_prints_both_curves_and_the_difference() {
         ],
     )
     .ok();
-    run(&dir, &["limit", "necking", "--n", "0.2", "--out", "b.toml"]).ok();
-    let r = run(
-        &dir,
+    run_in(
+        dir.path(),
+        &["limit", "necking", "--n", "0.2", "--out", "b.toml"],
+    )
+    .ok();
+    let r = run_in(
+        dir.path(),
         &[
             "limit",
             "compare",
@@ -273,14 +239,9 @@ fn compare_prints_both_curves_and_the_difference() {
         .stdout
         .lines()
         .find(|l| l.trim_start().starts_with("0.00"))
-        .unwrap_or_else(|| panic!("{}", r.context()));
+        .unwrap_or_else(|| panic!("{r}"));
     let cells: Vec<&str> = row.split_whitespace().collect();
-    assert_eq!(
-        cells,
-        ["0.00", "32.96", "22.14", "-10.82"],
-        "{}",
-        r.context()
-    );
+    assert_eq!(cells, ["0.00", "32.96", "22.14", "-10.82"], "{r}");
     let left = r
         .stdout
         .lines()
@@ -296,29 +257,31 @@ fn compare_prints_both_curves_and_the_difference() {
 #[test]
 fn bad_inputs_exit_2_with_a_clear_message() {
     let dir = TempDir::new().unwrap();
-    let r = run(
-        &dir,
+    let r = run_in(
+        dir.path(),
         &[
             "limit", "mk", "--n", "0.2", "--r0", "1", "--r45", "1", "--r90", "1", "--f0", "1.2",
         ],
     );
-    assert_eq!(r.status, 2, "{}", r.context());
+    assert_eq!(r.code, 2, "{r}");
     assert!(
         r.stderr.contains("f0 = 1.2") && r.stderr.contains("0.9 ..= 0.9999"),
-        "{}",
-        r.context()
+        "{r}"
     );
-    let r = run(&dir, &["limit", "compare", "missing.toml", "also.toml"]);
-    assert_eq!(r.status, 2, "{}", r.context());
-    assert!(r.stderr.contains("missing.toml"), "{}", r.context());
-    let r = run(&dir, &["limit", "necking", "--n", "0.9"]);
-    assert_eq!(r.status, 2, "{}", r.context());
-    assert!(r.stderr.contains("0.01 <= n <= 0.6"), "{}", r.context());
-    let r = run(
-        &dir,
+    let r = run_in(
+        dir.path(),
+        &["limit", "compare", "missing.toml", "also.toml"],
+    );
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("missing.toml"), "{r}");
+    let r = run_in(dir.path(), &["limit", "necking", "--n", "0.9"]);
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("0.01 <= n <= 0.6"), "{r}");
+    let r = run_in(
+        dir.path(),
         &["limit", "necking", "--n", "0.2", "--right", "vertex"],
     );
-    assert_eq!(r.status, 2, "{}", r.context());
-    assert!(r.stderr.contains("storen-rice"), "{}", r.context());
+    assert_eq!(r.code, 2, "{r}");
+    assert!(r.stderr.contains("storen-rice"), "{r}");
     assert!(!dir.path().join("mk.toml").exists());
 }

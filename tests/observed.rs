@@ -4,7 +4,7 @@
 //! circles are the invented demo set of demo-parts/rear-floor-pan-shop-curve.
 
 mod common;
-use common::{read_json, repo, run_in};
+use common::{read_json, repo_arg, run_in};
 
 fn curve(dir: &std::path::Path, name: &str, level: f64) -> String {
     let text = format!(
@@ -19,9 +19,7 @@ fn curve(dir: &std::path::Path, name: &str, level: f64) -> String {
 #[test]
 fn necked_circles_judged_safe_name_the_curve_not_conservative() {
     let dir = tempfile::tempdir().unwrap();
-    let parts = repo("demo-parts/rear-floor-pan-shop-curve/parts.csv")
-        .display()
-        .to_string();
+    let parts = repo_arg("demo-parts/rear-floor-pan-shop-curve/parts.csv");
     // Too high: at 80 % engineering major strain every circle of the demo passes.
     let high = curve(dir.path(), "high.toml", 80.0);
     let r = run_in(

@@ -3,16 +3,12 @@
 //! 2012, Int. J. Solids Struct. 49); the numbers follow from the curve file.
 
 mod common;
-use common::{read_json, read_rows, repo, run_in};
+use common::{read_json, read_rows, repo, repo_arg, run_in};
 
 fn bracket() -> (String, String) {
     (
-        repo("demo-parts/tunnel-bracket-two-stage/bracket.csv")
-            .display()
-            .to_string(),
-        repo("demo-parts/tunnel-bracket-two-stage/job.toml")
-            .display()
-            .to_string(),
+        repo_arg("demo-parts/tunnel-bracket-two-stage/bracket.csv"),
+        repo_arg("demo-parts/tunnel-bracket-two-stage/job.toml"),
     )
 }
 
@@ -51,9 +47,7 @@ fn the_demo_corner_is_safe_on_the_strain_curve_and_failed_by_path() {
 fn the_job_files_stage_order_wins_and_an_unknown_stage_is_an_error() {
     let dir = tempfile::tempdir().unwrap();
     let (csv, job) = bracket();
-    let lim = repo("limits/steel-0.80mm-n0.20-keeler-brazier.toml")
-        .display()
-        .to_string();
+    let lim = repo_arg("limits/steel-0.80mm-n0.20-keeler-brazier.toml");
     // Without the job file's order, the file's order (restrike rows first) is taken: the path
     // then runs backwards and A1's last increment is no longer plane strain.
     let r = run_in(
@@ -135,9 +129,7 @@ fn one_stage_files_give_the_same_outputs_as_before() {
         })
         .collect();
     std::fs::write(dir.path().join("nostage.csv"), without).unwrap();
-    let job = repo("demo-parts/rear-floor-pan/job-t1.toml")
-        .display()
-        .to_string();
+    let job = repo_arg("demo-parts/rear-floor-pan/job-t1.toml");
     let t1 = t1.display().to_string();
     for (f, out) in [(t1.as_str(), "a"), ("nostage.csv", "b")] {
         let r = run_in(

@@ -8,13 +8,9 @@
 //! fails (`.ci/run` installs Debian's `chromium`).
 
 mod common;
-use assert_cmd::Command;
 use common::browser::{chromium, page_requests, pdf_pages, run_chromium};
+use common::{neckline, repo};
 use std::path::{Path, PathBuf};
-
-fn repo(p: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join(p)
-}
 
 /// Width and height of the first page's MediaBox, points.
 fn media_box(pdf: &[u8]) -> (f64, f64) {
@@ -49,21 +45,17 @@ fn pdf_text_pages(pdf: &Path) -> Vec<String> {
 
 fn check(dir: &Path, csv: &Path, extra: &[&str]) -> PathBuf {
     let out = dir.join("out");
-    let st = Command::cargo_bin("neckline")
-        .unwrap()
-        .current_dir(dir)
-        .arg("check")
-        .arg(csv)
-        .args(["--out", out.to_str().unwrap(), "--format", "html"])
-        .args(extra)
-        .env("NO_COLOR", "1")
-        .output()
-        .unwrap();
-    assert!(
-        st.status.success(),
-        "{}",
-        String::from_utf8_lossy(&st.stderr)
-    );
+    let mut args = vec![
+        "check".to_string(),
+        csv.display().to_string(),
+        "--out".to_string(),
+        out.display().to_string(),
+        "--format".to_string(),
+        "html".to_string(),
+    ];
+    args.extend(extra.iter().map(|a| a.to_string()));
+    let r = neckline(&args).run_in(dir);
+    assert_eq!(r.code, 0, "{r}");
     out.join("report.html")
 }
 

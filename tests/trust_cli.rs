@@ -1,76 +1,8 @@
 //! Faults found by re-computing neckline's results independently, each reproduced from its
 //! description and run through the real binary in a fresh temporary directory.
 
-use assert_cmd::Command;
-use std::path::{Path, PathBuf};
-
-fn repo(p: &str) -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join(p)
-}
-
-/// One run: the folder, exit status and both streams, printed whole when an assertion fails.
-struct Run {
-    dir: tempfile::TempDir,
-    code: i32,
-    stdout: String,
-    stderr: String,
-}
-
-impl std::fmt::Display for Run {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(
-            f,
-            "dir: {}\nexit: {}\n--- stdout\n{}\n--- stderr\n{}",
-            self.dir.path().display(),
-            self.code,
-            self.stdout,
-            self.stderr
-        )
-    }
-}
-
-/// Write `files` into a fresh folder and run the binary there.
-fn run(files: &[(&str, &str)], args: &[&str]) -> Run {
-    let dir = tempfile::tempdir().unwrap();
-    for (name, text) in files {
-        std::fs::write(dir.path().join(name), text).unwrap();
-    }
-    let out = Command::cargo_bin("neckline")
-        .unwrap()
-        .current_dir(dir.path())
-        .args(args)
-        .env("NO_COLOR", "1")
-        .output()
-        .unwrap();
-    Run {
-        dir,
-        code: out.status.code().unwrap_or(-1),
-        stdout: String::from_utf8_lossy(&out.stdout).into_owned(),
-        stderr: String::from_utf8_lossy(&out.stderr).into_owned(),
-    }
-}
-
-/// The rows of a CSV file as maps from column name to text.
-fn csv_rows(path: &Path) -> Vec<std::collections::HashMap<String, String>> {
-    let text = std::fs::read_to_string(path).unwrap();
-    let mut r = csv::Reader::from_reader(text.as_bytes());
-    let h = r.headers().unwrap().clone();
-    r.records()
-        .map(|rec| {
-            let rec = rec.unwrap();
-            h.iter()
-                .zip(rec.iter())
-                .map(|(k, v)| (k.to_string(), v.to_string()))
-                .collect()
-        })
-        .collect()
-}
-
-fn num(row: &std::collections::HashMap<String, String>, col: &str) -> f64 {
-    row[col]
-        .parse()
-        .unwrap_or_else(|_| panic!("{col}: {row:?}"))
-}
+mod common;
+use common::{neckline, num, read_rows, repo};
 
 const FLAT: &str = "name = \"flat\"\nsource = \"test only\"\nstrain = \"engineering\"\npoints = [[-30, 30], [30, 30]]\n";
 
@@ -82,14 +14,13 @@ fn job_reading_error_is_converted_to_the_unit_in_use() {
     let job = "unit = \"mm\"\nd0 = 2.5\nreading_error = 0.025\nlimit = \"flat.toml\"\n";
     // 2.9 mm and 2.6 mm in inches: 16 % and 4 % on d0 2.5 mm, margin 14 pp.
     let csv = format!("id,major,minor\nP1,{},{}\n", 2.9 / 25.4, 2.6 / 25.4);
-    let r = run(
-        &[("job.toml", job), ("flat.toml", FLAT), ("in.csv", &csv)],
-        &[
-            "check", "in.csv", "--job", "job.toml", "--unit", "in", "--out", "o", "--format", "csv",
-        ],
-    );
+    let r = neckline(&[
+        "check", "in.csv", "--job", "job.toml", "--unit", "in", "--out", "o", "--format", "csv",
+    ])
+    .files(&[("job.toml", job), ("flat.toml", FLAT), ("in.csv", &csv)])
+    .run();
     assert_eq!(r.code, 0, "{r}");
-    let rows = csv_rows(&r.dir.path().join("o/points.csv"));
+    let rows = read_rows(&r.path("o/points.csv"));
     assert!((num(&rows[0], "major_eng_pct") - 16.0).abs() < 1e-3, "{r}");
     assert!(
         (num(&rows[0], "margin_uncertainty_pct") - 1.0).abs() < 0.01,
@@ -102,29 +33,28 @@ fn job_reading_error_is_converted_to_the_unit_in_use() {
 #[test]
 fn job_out_of_range_names_the_job_file_and_key() {
     let job = "part = \"x\"\nd0 = -2.5\n";
-    let r = run(
-        &[
-            ("job.toml", job),
-            ("flat.toml", FLAT),
-            ("m.csv", "id,major,minor\nA,3,2.6\n"),
-        ],
-        &[
-            "check",
-            "m.csv",
-            "--job",
-            "job.toml",
-            "--limit",
-            "flat.toml",
-            "--out",
-            "o",
-        ],
-    );
+    let r = neckline(&[
+        "check",
+        "m.csv",
+        "--job",
+        "job.toml",
+        "--limit",
+        "flat.toml",
+        "--out",
+        "o",
+    ])
+    .files(&[
+        ("job.toml", job),
+        ("flat.toml", FLAT),
+        ("m.csv", "id,major,minor\nA,3,2.6\n"),
+    ])
+    .run();
     assert_eq!(r.code, 2, "{r}");
     assert!(
         r.stderr.contains("job.toml:2:6") && r.stderr.contains("`d0` = -2.5"),
         "{r}"
     );
-    assert!(!r.dir.path().join("o/points.csv").exists(), "{r}");
+    assert!(!r.path("o/points.csv").exists(), "{r}");
 }
 
 // A curve from -30 % to +10 % and d0 2.5: minor axes 1.75 mm and 2.75 mm are -30 % and +10 %
@@ -133,14 +63,13 @@ fn job_out_of_range_names_the_job_file_and_key() {
 fn readings_at_the_curve_ends_are_covered() {
     let curve = "name = \"c\"\nsource = \"test only\"\nstrain = \"engineering\"\npoints = [[-30, 60], [0, 30], [10, 36]]\n";
     let csv = "id,major,minor\nLEFT,3.0,1.75\nRIGHT,3.0,2.75\n";
-    let r = run(
-        &[("c.toml", curve), ("m.csv", csv)],
-        &[
-            "check", "m.csv", "--d0", "2.5", "--limit", "c.toml", "--out", "o", "--format", "csv",
-        ],
-    );
+    let r = neckline(&[
+        "check", "m.csv", "--d0", "2.5", "--limit", "c.toml", "--out", "o", "--format", "csv",
+    ])
+    .files(&[("c.toml", curve), ("m.csv", csv)])
+    .run();
     assert_eq!(r.code, 0, "{r}");
-    let rows = csv_rows(&r.dir.path().join("o/points.csv"));
+    let rows = read_rows(&r.path("o/points.csv"));
     for (row, limit) in rows.iter().zip([60.0, 36.0]) {
         assert_ne!(row["zone"], "uncovered", "{row:?}");
         assert!(
@@ -156,7 +85,7 @@ fn readings_at_the_curve_ends_are_covered() {
 fn limit_compare_at_a_curves_own_last_point() {
     let c = repo("limits/demo-tabulated-invented.toml");
     let c = c.to_str().unwrap();
-    let r = run(&[], &["limit", "compare", c, c, "--at", "-35,30"]);
+    let r = neckline(&["limit", "compare", c, c, "--at", "-35,30"]).run();
     assert_eq!(r.code, 0, "{r}");
     let row = |m: &str| {
         r.stdout
@@ -175,22 +104,20 @@ fn limit_compare_at_a_curves_own_last_point() {
 // Hill 1952: ε1 = n at β = 0, so for n = 0.2 the plane-strain limit is e^0.2 − 1 = 22.14 %.
 #[test]
 fn necking_curve_always_holds_plane_strain() {
-    let r = run(
-        &[],
-        &[
-            "limit", "necking", "--n", "0.2", "--paths", "30", "--out", "n.toml",
-        ],
-    );
+    let r = neckline(&[
+        "limit", "necking", "--n", "0.2", "--paths", "30", "--out", "n.toml",
+    ])
+    .run();
     assert_eq!(r.code, 0, "{r}");
     assert!(
         r.stdout.contains("Plane-strain limit (FLC0): 22.14 %"),
         "{r}"
     );
-    let curve = neckline_core::limit::LimitCurve::load(&r.dir.path().join("n.toml")).unwrap();
+    let curve = neckline_core::limit::LimitCurve::load(&r.path("n.toml")).unwrap();
     assert_eq!(curve.points.len(), 30);
     assert!(curve.points.iter().any(|p| p[0].abs() < 1e-12), "{r}");
     // Two paths cannot hold both ends and plane strain: refused with the range.
-    let r = run(&[], &["limit", "necking", "--n", "0.2", "--paths", "2"]);
+    let r = neckline(&["limit", "necking", "--n", "0.2", "--paths", "2"]).run();
     assert_eq!(r.code, 2, "{r}");
     assert!(r.stderr.contains("3 ..= 301"), "{r}");
 }
@@ -202,10 +129,9 @@ fn grid_messages_name_the_element_and_count_elements() {
     // Cell r0c0 with its deformed corners mirrored in x: turned over (det F < 0).
     let nodes = "row,col,X,Y,x,y\n0,0,0,0,0,0\n0,1,2.5,0,-2.5,0\n1,1,2.5,2.5,-2.5,2.5\n\
                  1,0,0,2.5,0,2.5\n";
-    let r = run(
-        &[("nodes.csv", nodes), ("flat.toml", FLAT)],
-        &["grid", "nodes.csv", "--limit", "flat.toml", "--out", "o"],
-    );
+    let r = neckline(&["grid", "nodes.csv", "--limit", "flat.toml", "--out", "o"])
+        .files(&[("nodes.csv", nodes), ("flat.toml", FLAT)])
+        .run();
     assert_eq!(r.code, 2, "{r}");
     assert!(
         r.stderr
@@ -223,23 +149,22 @@ fn grid_messages_name_the_element_and_count_elements() {
 #[test]
 fn grid_reading_error_counts_every_corner() {
     let nodes = "row,col,X,Y,x,y\n0,0,0,0,0,0\n0,1,2.5,0,3,0\n1,1,2.5,2.5,3,2.5\n1,0,0,2.5,0,2.5\n";
-    let r = run(
-        &[("nodes.csv", nodes), ("flat.toml", FLAT)],
-        &[
-            "grid",
-            "nodes.csv",
-            "--limit",
-            "flat.toml",
-            "--out",
-            "o",
-            "--format",
-            "csv",
-            "--reading-error",
-            "0.01",
-        ],
-    );
+    let r = neckline(&[
+        "grid",
+        "nodes.csv",
+        "--limit",
+        "flat.toml",
+        "--out",
+        "o",
+        "--format",
+        "csv",
+        "--reading-error",
+        "0.01",
+    ])
+    .files(&[("nodes.csv", nodes), ("flat.toml", FLAT)])
+    .run();
     assert_eq!(r.code, 0, "{r}");
-    let rows = csv_rows(&r.dir.path().join("o/points.csv"));
+    let rows = read_rows(&r.path("o/points.csv"));
     assert!(
         (num(&rows[0], "major_eng_pct") - 20.0).abs() < 1e-6,
         "{rows:?}"
@@ -280,9 +205,11 @@ fn fit_sets_aside_outliers_and_flags_suspect_fits() {
         let noise = 0.01 * (5.1 * f64::from(i)).sin();
         csv += &format!("ARC,{},{}\n", 20.0 + (1.4 + noise) * t.cos(), 1.3 * t.sin());
     }
-    let r = run(&[("o.csv", &csv)], &["fit", "o.csv", "--out", "f.csv"]);
+    let r = neckline(&["fit", "o.csv", "--out", "f.csv"])
+        .files(&[("o.csv", &csv)])
+        .run();
     assert_eq!(r.code, 0, "{r}");
-    let rows = csv_rows(&r.dir.path().join("f.csv"));
+    let rows = read_rows(&r.path("f.csv"));
     assert_eq!(rows.len(), 3, "{rows:?}");
     assert!((num(&rows[0], "major") - 2.8).abs() < 1e-5, "{rows:?}");
     assert_eq!(rows[0]["discarded"], "1");
