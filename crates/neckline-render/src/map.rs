@@ -11,7 +11,7 @@ use crate::chart::label::{label_box, Placer};
 use crate::chart::legend::{Key, Legend, Row};
 use crate::chart::scale::ColourBar;
 use crate::chart::title::{draw_title, job_lines};
-use crate::chart::{MAP_PANEL_LEFT as PANEL_LEFT, SIZE, TITLE_H};
+use crate::chart::{Stroke, MAP_PANEL_LEFT as PANEL_LEFT, SIZE, TITLE_H};
 use crate::fld::worst_label;
 use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult};
 use neckline_core::analysis::{Analysis, PointResult};
@@ -251,12 +251,7 @@ fn draw<DB: DrawingBackend>(
         let hull_pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
         let outline: Vec<(i32, i32)> = plot::hull(&hull_pts).into_iter().map(px).collect();
         if outline.len() >= 3 {
-            for d in plot::dashes(&outline, 6.0, 5.0) {
-                root.draw(&PathElement::new(
-                    d,
-                    RGBColor(150, 150, 150).stroke_width(1),
-                ))?;
-            }
+            HULL.draw(root, &outline)?;
         }
         let mut order = at.clone();
         order.sort_by_key(|(p, _)| std::cmp::Reverse(p.zone()));
@@ -287,6 +282,9 @@ fn draw<DB: DrawingBackend>(
     shapes_legend(a).draw(root)?;
     draw_analysis_footer(root, a)
 }
+
+/// The outline round the measured locations.
+const HULL: Stroke = Stroke::dashed(RGBColor(150, 150, 150), 1, 6.0, 5.0);
 
 /// The worst locations marked on top of a raster map.
 pub const MARKED_IN_RASTER: usize = 30;
