@@ -3,8 +3,12 @@
 //! Every picture and page neckline draws for people, from the one result of the core crate:
 //! the forming-limit diagram ([`fld`]), the part map ([`map`]), the strain-path diagram
 //! ([`peps`]), the printable report ([`report`], on the layout of [`page`]), the terminal
-//! summary ([`terminal`]) and the comparison of tryouts ([`compare`]). Fonts, palette, zone
-//! markers and label placement live in [`plot`].
+//! summary ([`terminal`]), the comparison of tryouts ([`compare`]) and the press-shop curve's
+//! picture ([`parts`]).
+//!
+//! Layers, each using only those below it: [`plot`] (fonts, palette, markers, encoders), then
+//! [`chart`] (the one chart style: frame, title, legend, footer, label placement), then the
+//! pictures, then the pages ([`page`], [`report`], [`compare::page`]).
 //!
 //! Caution: an aid to judgement. The user's own forming-limit data, local codes and licensed
 //! engineering practice govern.
@@ -12,6 +16,7 @@
 #![deny(clippy::float_cmp)]
 #![allow(clippy::result_large_err)]
 
+pub mod chart;
 pub mod compare;
 pub mod fld;
 pub mod map;

@@ -5,8 +5,15 @@
 //! the job's length unit at equal scale. A large file is drawn as a raster of cells, each
 //! coloured by the worst value in it, with the worst locations marked.
 
-use crate::fld::{draw_footer, title_lines, worst_label};
-use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult, Placer, SIZE};
+use crate::chart::footer::draw_analysis_footer;
+use crate::chart::frame::{equal_ranges, Frame, Look};
+use crate::chart::label::{label_box, Placer};
+use crate::chart::legend::{Key, Legend, Row};
+use crate::chart::scale::ColourBar;
+use crate::chart::title::{draw_title, job_lines};
+use crate::chart::{Stroke, MAP_PANEL_LEFT as PANEL_LEFT, SIZE, TITLE_H};
+use crate::fld::worst_label;
+use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult};
 use neckline_core::analysis::Analysis;
 use neckline_core::assess::Zone;
 use neckline_core::point::PointResult;
@@ -215,59 +222,6 @@ impl MarginScale {
     }
 }
 
-/// Ranges with equal scale on both axes for a plot `w × h` pixels holding `pts`.
-pub fn equal_ranges(pts: &[(f64, f64)], w: f64, h: f64) -> ((f64, f64), (f64, f64)) {
-    let fold = |f: fn(&(f64, f64)) -> f64| {
-        pts.iter()
-            .map(f)
-            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), v| {
-                (l.min(v), h.max(v))
-            })
-    };
-    let (x0, x1) = fold(|p| p.0);
-    let (y0, y1) = fold(|p| p.1);
-    let pad = 0.06 * (x1 - x0).max(y1 - y0).max(1.0);
-    let (x0, x1, y0, y1) = (x0 - pad, x1 + pad, y0 - pad, y1 + pad);
-    let per_px = ((x1 - x0) / w).max((y1 - y0) / h);
-    let (cx, cy) = ((x0 + x1) / 2.0, (y0 + y1) / 2.0);
-    let (hw, hh) = (per_px * w / 2.0, per_px * h / 2.0);
-    ((cx - hw, cx + hw), (cy - hh, cy + hh))
-}
-
-/// Convex hull (Andrew's monotone chain, Andrew 1979, Inf. Process. Lett. 9(5)), closed.
-pub fn hull(pts: &[(f64, f64)]) -> Vec<(f64, f64)> {
-    let mut p = pts.to_vec();
-    p.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1)));
-    p.dedup_by(|a, b| (a.0 - b.0).abs() < 1e-12 && (a.1 - b.1).abs() < 1e-12);
-    if p.len() < 3 {
-        return p;
-    }
-    let cross = |o: (f64, f64), a: (f64, f64), b: (f64, f64)| {
-        (a.0 - o.0) * (b.1 - o.1) - (a.1 - o.1) * (b.0 - o.0)
-    };
-    let mut h: Vec<(f64, f64)> = Vec::new();
-    for pass in [p.clone(), p.iter().rev().copied().collect()] {
-        let start = h.len();
-        for q in pass {
-            while h.len() >= start + 2 && cross(h[h.len() - 2], h[h.len() - 1], q) <= 0.0 {
-                h.pop();
-            }
-            h.push(q);
-        }
-        h.pop();
-    }
-    h.push(h[0]);
-    h
-}
-
-const TITLE_H: i32 = 92;
-const PLOT_RIGHT: i32 = 870;
-const FOOTER_TOP: i32 = 800;
-const PANEL_LEFT: i32 = 895;
-const MARGIN: i32 = 12;
-const X_LABEL: i32 = 50;
-const Y_LABEL: i32 = 70;
-
 fn draw<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     a: &Analysis,
@@ -279,45 +233,26 @@ fn draw<DB: DrawingBackend>(
     if let Some(e) = a.summary.map_extent {
         pts.extend([(e[0], e[1]), (e[2], e[3])]);
     }
-    let plot_w = (PLOT_RIGHT - 2 * MARGIN - Y_LABEL) as f64;
-    let plot_h = (FOOTER_TOP - TITLE_H - 2 * MARGIN - X_LABEL) as f64;
+    let (plot_w, plot_h) = Look::Map.plot_size();
     let (xr, yr) = equal_ranges(&pts, plot_w, plot_h);
-    let area = root.clone().shrink(
-        (0, TITLE_H),
-        (PLOT_RIGHT as u32, (FOOTER_TOP - TITLE_H) as u32),
-    );
-    let mut chart = ChartBuilder::on(&area)
-        .margin(MARGIN)
-        .x_label_area_size(X_LABEL)
-        .y_label_area_size(Y_LABEL)
-        .build_cartesian_2d(xr.0..xr.1, yr.0..yr.1)?;
     let unit = a.lengths.unit.name();
     let (u, v) = a.summary.view.plane.axes();
-    chart
-        .configure_mesh()
-        .x_desc(format!("{u}, {unit}"))
-        .y_desc(format!("{v}, {unit}"))
-        .axis_desc_style(plot::text(17.0))
-        .label_style(plot::text(14.0))
-        .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
-        .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
-        .light_line_style(RGBColor(244, 244, 244))
-        .bold_line_style(RGBColor(220, 220, 220))
-        .draw()?;
-    let px = |p: (f64, f64)| chart.backend_coord(&p);
+    let plot = Frame {
+        x: xr,
+        y: yr,
+        x_desc: format!("{u}, {unit}"),
+        y_desc: format!("{v}, {unit}"),
+        look: Look::Map,
+    }
+    .draw(root)?;
+    let px = |p: (f64, f64)| plot.px(p);
     let scale = Scale::of(a, value);
-    let (xs, ys) = chart.plotting_area().get_pixel_range();
-    let mut placer = Placer::new((xs.start + 2, ys.start + 2, xs.end - 2, ys.end - 2));
+    let mut placer = plot.placer();
     if a.summary.complete {
         let hull_pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
-        let outline: Vec<(i32, i32)> = hull(&hull_pts).into_iter().map(px).collect();
+        let outline: Vec<(i32, i32)> = plot::hull(&hull_pts).into_iter().map(px).collect();
         if outline.len() >= 3 {
-            for d in plot::dashes(&outline, 6.0, 5.0) {
-                root.draw(&PathElement::new(
-                    d,
-                    RGBColor(150, 150, 150).stroke_width(1),
-                ))?;
-            }
+            HULL.draw(root, &outline)?;
         }
         let mut order = at.clone();
         order.sort_by_key(|(p, _)| std::cmp::Reverse(p.zone()));
@@ -340,14 +275,17 @@ fn draw<DB: DrawingBackend>(
         }
     }
     draw_worst(root, a, &px, &mut placer)?;
-    draw_title(root, a, value)?;
+    draw_map_title(root, a, value)?;
     match scale {
         Scale::Margin(s) => draw_scale(root, &s)?,
         Scale::Ramp(r) => draw_ramp(root, &r, value, a.settings.max_thinning_pct)?,
     }
-    draw_shapes(root, a)?;
-    draw_footer(root, a)
+    shapes_legend(a).draw(root)?;
+    draw_analysis_footer(root, a)
 }
+
+/// The outline round the measured locations.
+const HULL: Stroke = Stroke::dashed(RGBColor(150, 150, 150), 1, 6.0, 5.0);
 
 /// The worst locations marked on top of a raster map.
 pub const MARKED_IN_RASTER: usize = 30;
@@ -371,9 +309,9 @@ fn draw_marker<DB: DrawingBackend>(
     };
     marker(root, shape, c, 7, fill, BLACK)?;
     if p.judgement.borderline {
-        crate::fld::borderline_ring(root, c, 13)?;
+        plot::borderline_ring(root, c, 13)?;
     }
-    placer.obstacles.push((c.0 - 8, c.1 - 8, c.0 + 8, c.1 + 8));
+    placer.avoid(c, 8);
     Ok(())
 }
 
@@ -408,47 +346,19 @@ fn draw_ramp<DB: DrawingBackend>(
     value: MapValue,
     max_thinning: Option<f64>,
 ) -> DrawResult<DB> {
-    let (x, top, bottom, w) = (PANEL_LEFT, TITLE_H + 44, TITLE_H + 364, 26);
+    let bar = ColourBar::map(r.lo, r.hi);
     let title = match value {
         MapValue::Thinning => "Thinning, %",
         _ => "Major strain, eng. %",
     };
-    root.draw_text(title, &plot::bold(16.0), (x, TITLE_H + 16))?;
-    let y_of =
-        |v: f64| bottom - ((v - r.lo) / (r.hi - r.lo) * (bottom - top) as f64).round() as i32;
-    for y in top..=bottom {
-        let v = r.lo + (bottom - y) as f64 / (bottom - top) as f64 * (r.hi - r.lo);
-        root.draw(&PathElement::new(
-            vec![(x, y), (x + w, y)],
-            r.colour(v).stroke_width(1),
-        ))?;
-    }
-    root.draw(&Rectangle::new(
-        [(x, top), (x + w, bottom)],
-        BLACK.stroke_width(1),
-    ))?;
-    let step = if r.hi - r.lo > 60.0 { 10.0 } else { 5.0 };
+    bar.draw(root, title, |v| r.colour(v))?;
     let mut v = r.lo;
     while v <= r.hi + 1e-9 {
-        let y = y_of(v);
-        root.draw(&PathElement::new(
-            vec![(x + w, y), (x + w + 5, y)],
-            BLACK.stroke_width(1),
-        ))?;
-        root.draw_text(&format!("{v:.0}"), &plot::text(13.0), (x + w + 8, y - 7))?;
-        v += step;
+        bar.tick(root, v)?;
+        v += bar.step();
     }
     if let (MapValue::Thinning, Some(m)) = (value, max_thinning) {
-        let y = y_of(m);
-        root.draw(&PathElement::new(
-            vec![(x - 6, y), (x + w + 40, y)],
-            BLACK.stroke_width(3),
-        ))?;
-        root.draw_text(
-            &format!("{m:.0}: max thinning"),
-            &plot::bold(13.0),
-            (x + w + 46, y - 8),
-        )?;
+        bar.mark(root, m, &format!("{m:.0}: max thinning"))?;
     }
     Ok(())
 }
@@ -472,22 +382,17 @@ fn draw_worst<DB: DrawingBackend>(
             &a.settings,
             neckline_core::strain::StrainMeasure::Engineering,
         );
-        plot::label_box(root, placer, px(xy), &text, &style, BLACK)?;
+        label_box(root, placer, px(xy), &text, &style, BLACK)?;
     }
     Ok(())
 }
 
-fn draw_title<DB: DrawingBackend>(
+fn draw_map_title<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     a: &Analysis,
     value: MapValue,
 ) -> DrawResult<DB> {
-    let (part, second, _) = title_lines(a);
-    let width = SIZE.0 - 30;
-    let head = plot::fit_px(root, &format!("Part map: {part}"), &plot::bold(23.0), width);
-    root.draw_text(&head, &plot::bold(23.0), (15, 10))?;
-    let t2 = plot::fit_px(root, &second, &plot::text(16.0), width);
-    root.draw_text(&t2, &plot::text(16.0), (15, 40))?;
+    let (part, second, _) = job_lines(a);
     let missing = a.total() - a.summary.placed;
     let mut t3 = match value {
         MapValue::Margin => format!(
@@ -511,8 +416,7 @@ fn draw_title<DB: DrawingBackend>(
             neckline_core::output::count_of(missing, "location")
         ));
     }
-    let t3 = plot::fit_px(root, &t3, &plot::text(14.0), width);
-    root.draw_text(&t3, &plot::text(14.0), (15, 64))
+    draw_title(root, [&format!("Part map: {part}"), &second, &t3])
 }
 
 /// The vertical colour bar with its ticks and the zone boundaries.
@@ -520,116 +424,68 @@ fn draw_scale<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     s: &MarginScale,
 ) -> DrawResult<DB> {
-    let (x, top, bottom, w) = (PANEL_LEFT, TITLE_H + 44, TITLE_H + 364, 26);
-    root.draw_text("Margin, pp", &plot::bold(16.0), (x, TITLE_H + 16))?;
-    let y_of =
-        |m: f64| bottom - ((m - s.lo) / (s.hi - s.lo) * (bottom - top) as f64).round() as i32;
-    for y in top..=bottom {
-        let m = s.lo + (bottom - y) as f64 / (bottom - top) as f64 * (s.hi - s.lo);
-        root.draw(&PathElement::new(
-            vec![(x, y), (x + w, y)],
-            s.colour(m).stroke_width(1),
-        ))?;
-    }
-    root.draw(&Rectangle::new(
-        [(x, top), (x + w, bottom)],
-        BLACK.stroke_width(1),
-    ))?;
-    let step = if s.hi - s.lo > 60.0 { 10.0 } else { 5.0 };
+    let bar = ColourBar::map(s.lo, s.hi);
+    bar.draw(root, "Margin, pp", |m| s.colour(m))?;
+    let step = bar.step();
     let mut m = (s.lo / step).ceil() * step;
     while m <= s.hi + 1e-9 {
-        let y = y_of(m);
         // The boundaries carry their own label below.
         if (m - 0.0).abs() > 1e-9 && (m - s.band).abs() > 1e-9 {
-            root.draw(&PathElement::new(
-                vec![(x + w, y), (x + w + 5, y)],
-                BLACK.stroke_width(1),
-            ))?;
-            root.draw_text(&format!("{m:.0}"), &plot::text(13.0), (x + w + 8, y - 7))?;
+            bar.tick(root, m)?;
         }
         m += step;
     }
     for (v, label) in [(0.0, "on the curve"), (s.band, "band edge")] {
-        let y = y_of(v);
-        root.draw(&PathElement::new(
-            vec![(x - 6, y), (x + w + 40, y)],
-            BLACK.stroke_width(3),
-        ))?;
-        let text = format!("{v:.0}: {label}");
-        root.draw_text(&text, &plot::bold(13.0), (x + w + 46, y - 8))?;
+        bar.mark(root, v, &format!("{v:.0}: {label}"))?;
     }
-    let mid = |a: f64, b: f64| y_of((a + b) / 2.0) - 7;
+    let mid = |a: f64, b: f64| bar.y_of((a + b) / 2.0) - 7;
     let zone_text = plot::text(13.0).color(&RGBColor(70, 70, 70));
-    root.draw_text(
-        "failed",
-        &zone_text,
-        (x + w + 46, mid(s.lo, 0.0).max(y_of(0.0) + 10)),
-    )?;
-    root.draw_text("marginal", &zone_text, (x + w + 46, mid(0.0, s.band)))?;
-    root.draw_text(
-        "beyond the band",
-        &zone_text,
-        (x + w + 46, mid(s.band, s.hi)),
-    )?;
+    let x = bar.text_left();
+    let failed = mid(s.lo, 0.0).max(bar.y_of(0.0) + 10);
+    root.draw_text("failed", &zone_text, (x, failed))?;
+    root.draw_text("marginal", &zone_text, (x, mid(0.0, s.band)))?;
+    root.draw_text("beyond the band", &zone_text, (x, mid(s.band, s.hi)))?;
     Ok(())
 }
 
-fn draw_shapes<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> DrawResult<DB> {
-    let x = PANEL_LEFT;
-    let mut y = TITLE_H + 390;
-    root.draw_text("Shape = zone (locations)", &plot::bold(16.0), (x, y))?;
-    y += 26;
+/// The legend below the colour bar: shape = zone, with the counts, and the other marks.
+fn shapes_legend(a: &Analysis) -> Legend {
+    let mut l = Legend::new(PANEL_LEFT, TITLE_H + 390);
+    l.heading("Shape = zone (locations)", 16.0, 26);
     for (zone, n) in a.counts() {
-        marker(
-            root,
-            zone_shape(zone),
-            (x + 10, y + 8),
-            6,
-            zone_colour(zone),
-            BLACK,
-        )?;
-        root.draw_text(
-            &format!("{}  {n}", zone.name()),
-            &plot::text(14.0),
-            (x + 28, y),
-        )?;
-        y += 22;
+        let text = format!("{}  {n}", zone.name());
+        l.push(
+            Row::new(22)
+                .key(Key::zone(zone))
+                .left(text, plot::text(14.0), 28),
+        );
     }
-    y += 8;
-    root.draw_text(
-        "grey fill: no margin (uncovered)",
-        &plot::text(13.0),
-        (x, y),
-    )?;
-    y += 18;
+    l.gap(8);
+    let small = || plot::text(13.0);
+    l.push(Row::text("grey fill: no margin (uncovered)", small(), 18));
     if a.borderline().1 > 0 {
-        crate::fld::borderline_ring(root, (x + 6, y + 7), 7)?;
-        root.draw_text("dashed ring: borderline", &plot::text(13.0), (x + 18, y))?;
-        y += 18;
+        let ring = Key::Borderline { at: (6, 7), r: 7 };
+        l.push(
+            Row::new(18)
+                .key(ring)
+                .left("dashed ring: borderline", small(), 18),
+        );
     }
-    root.draw_text(
+    l.push(Row::text(
         if a.summary.complete {
             "dashed: hull of the measured locations"
         } else {
             "cells: the worst value of their locations"
         },
-        &plot::text(13.0),
-        (x, y),
-    )?;
-    Ok(())
+        small(),
+        18,
+    ));
+    l
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn equal_ranges_have_equal_scale() {
-        let ((x0, x1), (y0, y1)) = equal_ranges(&[(0.0, 0.0), (1000.0, 200.0)], 700.0, 600.0);
-        let (sx, sy) = ((x1 - x0) / 700.0, (y1 - y0) / 600.0);
-        assert!((sx - sy).abs() < 1e-9 * sx, "{sx} {sy}");
-        assert!(x0 < 0.0 && x1 > 1000.0 && y0 < 0.0 && y1 > 200.0);
-    }
 
     #[test]
     fn scale_hits_its_anchors() {
@@ -645,13 +501,6 @@ mod tests {
         assert_eq!(s.colour(9.99), zone_colour(Zone::Marginal));
         assert_eq!(s.colour(10.0), RGBColor(0xd4, 0xec, 0xd6)); // band edge: light green
         assert_eq!(s.colour(99.0), zone_colour(Zone::Safe)); // far beyond: the safe green
-    }
-
-    #[test]
-    fn hull_of_square_with_inner_point() {
-        let h = hull(&[(0.0, 0.0), (1.0, 0.0), (1.0, 1.0), (0.0, 1.0), (0.5, 0.5)]);
-        assert_eq!(h.len(), 5); // four corners, closed
-        assert!(!h.contains(&(0.5, 0.5)));
     }
 }
 

@@ -2,15 +2,19 @@
 //! with the circles by observed condition, the overlap band at each knot and the reference
 //! strain paths, in the plotting style of the forming-limit diagram.
 
+use crate::chart::footer::draw_footer;
+use crate::chart::frame::{Frame, Look};
+use crate::chart::legend::{Entries, Key, Legend, Row, COUNTED, LINES};
+use crate::chart::title::draw_title;
+use crate::chart::{self, Stroke, PANEL_LEFT, TITLE_H};
 use crate::fld;
 use crate::plot;
 use neckline_core::condition::Condition;
 use neckline_core::limit::from_parts::{Band, PartCircle, PartsFit};
-use neckline_core::limit::writer::{SHOP_CURVE_WORDS, TOOL_VERSION};
+use neckline_core::limit::writer::SHOP_CURVE_WORDS;
 use neckline_core::limit::LimitCurve;
 use neckline_core::output::input_name;
 use neckline_core::strain::StrainMeasure;
-use neckline_core::CAUTION;
 use plotters::prelude::*;
 use std::io;
 use std::path::Path;
@@ -58,6 +62,9 @@ fn condition_style(c: Condition) -> (plot::Shape, RGBColor) {
     }
 }
 
+/// The curve where a knot has one kind of circle only.
+const ONE_SIDED: Stroke = Stroke::dashed(BLACK, 3, 8.0, 5.0);
+
 struct PartsPlot<'a> {
     curve: &'a LimitCurve,
     fit: &'a PartsFit,
@@ -88,31 +95,18 @@ impl PartsPlot<'_> {
     ) -> plot::DrawResult<DB> {
         root.fill(&WHITE)?;
         let (xr, yr) = self.ranges();
-        let area = root.clone().shrink((0, 92), (870, 708));
-        let mut chart = ChartBuilder::on(&area)
-            .margin(12)
-            .x_label_area_size(50)
-            .y_label_area_size(62)
-            .build_cartesian_2d(xr.0..xr.1, yr.0..yr.1)?;
-        chart
-            .configure_mesh()
-            .x_desc("minor strain ε2, true %")
-            .y_desc("major strain ε1, true %")
-            .axis_desc_style(plot::text(17.0))
-            .label_style(plot::text(14.0))
-            .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
-            .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
-            .light_line_style(RGBColor(240, 240, 240))
-            .bold_line_style(RGBColor(215, 215, 215))
-            .draw()?;
-        let px = |p: (f64, f64)| chart.backend_coord(&p);
-        let grey = RGBColor(120, 120, 120);
+        let plot = Frame {
+            x: xr,
+            y: yr,
+            x_desc: "minor strain ε2, true %".into(),
+            y_desc: "major strain ε1, true %".into(),
+            look: Look::Diagram,
+        }
+        .draw(root)?;
+        let px = |p: (f64, f64)| plot.px(p);
         for (_, line) in fld::reference_paths(StrainMeasure::True) {
-            for run in plot::clip_polyline(&line, xr, yr) {
-                let run: Vec<_> = run.iter().map(|p| px(*p)).collect();
-                for d in plot::dashes(&run, 10.0, 4.0) {
-                    root.draw(&PathElement::new(d, grey.stroke_width(1)))?;
-                }
+            for run in plot.runs(&line) {
+                chart::REFERENCE.draw(root, &run)?;
             }
         }
         self.draw_bands(root, &px)?;
@@ -128,8 +122,15 @@ impl PartsPlot<'_> {
             }
         }
         self.draw_title(root)?;
-        self.draw_legend(root)?;
-        self.draw_footer(root)
+        self.legend().draw(root)?;
+        let input = format!("input {}", input_name(self.input));
+        draw_footer(
+            root,
+            &[
+                &input,
+                "band and wrong side per knot: circles nearest that knot",
+            ],
+        )
     }
 
     /// Whether a circle lies on the wrong side of the fitted curve.
@@ -159,15 +160,10 @@ impl PartsPlot<'_> {
                 (100.0 * w[1].minor, 100.0 * w[1].major),
             ];
             let bracketed = w.iter().all(|r| r.band != Band::OneSided);
+            let stroke = if bracketed { chart::CURVE } else { ONE_SIDED };
             for run in plot::clip_polyline(&piece, xr, yr) {
                 let run: Vec<_> = run.iter().map(|p| px(*p)).collect();
-                if bracketed {
-                    root.draw(&PathElement::new(run, BLACK.stroke_width(3)))?;
-                } else {
-                    for d in plot::dashes(&run, 8.0, 5.0) {
-                        root.draw(&PathElement::new(d, BLACK.stroke_width(3)))?;
-                    }
-                }
+                stroke.draw(root, &run)?;
             }
         }
         Ok(())
@@ -218,7 +214,6 @@ impl PartsPlot<'_> {
         root: &DrawingArea<DB, plotters::coord::Shift>,
     ) -> plot::DrawResult<DB> {
         let n = self.fit.counts;
-        let width = plot::SIZE.0 - 30;
         let head = format!("Forming-limit diagram: {}", self.curve.name);
         let second = format!(
             "{} circles: {} safe, {} necked, {} split  ·  {} on the wrong side  ·  boundary \
@@ -236,125 +231,71 @@ impl PartsPlot<'_> {
                 .unwrap_or_default()
         );
         let third = format!("{SHOP_CURVE_WORDS}  (true strain axes)");
-        for (text, style, y) in [
-            (head, plot::bold(23.0), 10),
-            (second, plot::text(16.0), 40),
-            (third, plot::text(14.0), 64),
-        ] {
-            let t = plot::fit_px(root, &text, &style, width);
-            root.draw_text(&t, &style, (15, y))?;
-        }
-        Ok(())
+        draw_title(root, [&head, &second, &third])
     }
 
-    fn draw_legend<DB: DrawingBackend>(
-        &self,
-        root: &DrawingArea<DB, plotters::coord::Shift>,
-    ) -> plot::DrawResult<DB> {
-        let x = 885;
-        let mut y = 108;
-        root.draw_text("Circles (condition)", &plot::bold(16.0), (x, y))?;
-        y += 28;
+    /// The legend: circles by condition, the curve and its overlap bars, the knots.
+    fn legend(&self) -> Legend {
+        let mut l = Legend::new(PANEL_LEFT, TITLE_H + 16);
+        l.heading("Circles (condition)", 16.0, 28);
         let n = self.fit.counts;
         for (c, count) in [
             (Condition::Safe, n.safe),
             (Condition::Necked, n.necked),
             (Condition::Split, n.split),
         ] {
-            let (shape, colour) = condition_style(c);
-            plot::marker(root, shape, (x + 10, y + 8), 6, colour, BLACK)?;
-            root.draw_text(c.name(), &plot::text(15.0), (x + 28, y))?;
-            let count = count.to_string();
-            let (w, _) = root.estimate_text_size(&count, &plot::bold(15.0))?;
-            root.draw_text(&count, &plot::bold(15.0), (x + 200 - w as i32, y))?;
-            y += 25;
+            let (shape, fill) = condition_style(c);
+            let key = Key::Marker {
+                shape,
+                fill,
+                r: 6,
+                dx: 10,
+            };
+            l.push(Row::counted(key, c.name(), count, &COUNTED));
         }
-        y += 12;
-        root.draw_text("Curve and overlap", &plot::bold(16.0), (x, y))?;
-        y += 26;
-        let sample = |y: i32| vec![(x, y + 8), (x + 40, y + 8)];
-        root.draw(&PathElement::new(sample(y), BLACK.stroke_width(3)))?;
-        root.draw_text("fitted curve, □ knots", &plot::text(14.0), (x + 50, y))?;
-        y += 22;
-        for d in plot::dashes(&sample(y), 8.0, 5.0) {
-            root.draw(&PathElement::new(d, BLACK.stroke_width(3)))?;
-        }
-        root.draw_text("one kind of circle only", &plot::text(14.0), (x + 50, y))?;
-        y += 24;
-        root.draw(&Circle::new((x + 20, y + 8), 10, BLACK.stroke_width(2)))?;
-        root.draw_text("circle on the wrong side", &plot::text(14.0), (x + 50, y))?;
-        y += 26;
+        l.gap(12);
+        l.heading("Curve and overlap", 16.0, 26);
         let mix = plot::okabe_ito::PURPLE;
-        root.draw(&Rectangle::new(
-            [(x + 11, y), (x + 29, y + 16)],
-            mix.mix(0.45).filled(),
-        ))?;
-        root.draw_text(
-            "overlap: safe and necked mix",
-            &plot::text(14.0),
-            (x + 50, y),
-        )?;
-        y += 24;
-        root.draw(&Rectangle::new(
-            [(x + 11, y), (x + 29, y + 16)],
-            mix.stroke_width(2),
-        ))?;
-        root.draw_text("gap: they do not mix", &plot::text(14.0), (x + 50, y))?;
-        y += 24;
-        for d in plot::dashes(&sample(y), 10.0, 4.0) {
-            root.draw(&PathElement::new(
-                d,
-                RGBColor(120, 120, 120).stroke_width(1),
-            ))?;
-        }
-        root.draw_text("strain paths", &plot::text(14.0), (x + 50, y))?;
-        y += 36;
-        root.draw_text("Knots (true %)", &plot::bold(16.0), (x, y))?;
-        y += 24;
-        let right = |root: &DrawingArea<DB, plotters::coord::Shift>, text: &str, at: (i32, i32)| {
-            let (w, _) = root.estimate_text_size(text, &plot::text(13.0))?;
-            root.draw_text(text, &plot::text(13.0), (at.0 - w as i32, at.1))
+        let line = |stroke| Key::Line { stroke, len: 40 };
+        let ring = Key::Circle {
+            dx: 20,
+            r: 10,
+            style: BLACK.stroke_width(2),
         };
-        let columns = [x + 45, x + 110, x + 200];
-        for (text, at) in ["minor", "curve", "wrong side"].iter().zip(columns) {
-            right(root, text, (at, y))?;
+        for (key, text, step) in [
+            (line(chart::CURVE), "fitted curve, □ knots", 22),
+            (line(ONE_SIDED), "one kind of circle only", 24),
+            (ring, "circle on the wrong side", 26),
+            (
+                Key::Patch(mix.mix(0.45).filled()),
+                "overlap: safe and necked mix",
+                24,
+            ),
+            (Key::Patch(mix.stroke_width(2)), "gap: they do not mix", 24),
+            (line(chart::REFERENCE), "strain paths", 24),
+        ] {
+            l.push(Row::entry(key, text, &Entries { step, ..LINES }));
         }
-        y += 19;
+        l.gap(12);
+        l.heading("Knots (true %)", 16.0, 24);
+        let columns = [45, 110, 200];
+        let row = |cells: [String; 3], step| {
+            cells
+                .into_iter()
+                .zip(columns)
+                .fold(Row::new(step), |r, (text, at)| {
+                    r.right(text, plot::text(13.0), at)
+                })
+        };
+        l.push(row(["minor", "curve", "wrong side"].map(String::from), 19));
         for r in &self.fit.overlap {
             let cells = [
                 format!("{:.1}", 100.0 * r.minor),
                 format!("{:.1}", 100.0 * r.major),
                 r.wrong_side().to_string(),
             ];
-            for (text, at) in cells.iter().zip(columns) {
-                right(root, text, (at, y))?;
-            }
-            y += 18;
+            l.push(row(cells, 18));
         }
-        Ok(())
-    }
-
-    fn draw_footer<DB: DrawingBackend>(
-        &self,
-        root: &DrawingArea<DB, plotters::coord::Shift>,
-    ) -> plot::DrawResult<DB> {
-        let top = 800;
-        let style = plot::text(13.0).color(&RGBColor(60, 60, 60));
-        root.draw(&PathElement::new(
-            vec![(15, top), (plot::SIZE.0 as i32 - 15, top)],
-            RGBColor(200, 200, 200).stroke_width(1),
-        ))?;
-        let mut y = top + 8;
-        for line in plot::wrap_px(root, CAUTION, &style, plot::SIZE.0 - 30) {
-            root.draw_text(&line, &style, (15, y))?;
-            y += 17;
-        }
-        let prov = format!(
-            "neckline {TOOL_VERSION}  ·  input {}  ·  band and wrong side per knot: circles \
-             nearest that knot",
-            input_name(self.input)
-        );
-        let prov = plot::fit_px(root, &prov, &style, plot::SIZE.0 - 30);
-        root.draw_text(&prov, &style, (15, y))
+        l
     }
 }

@@ -5,8 +5,12 @@
 //! (ε2, ε1) of the curve, reached on a straight path, sits at its effective strain along
 //! θ = atan2(ε1, ε2)); the safety band mapped the same way.
 
-use crate::fld::draw_footer;
-use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult, SIZE};
+use crate::chart::footer::draw_analysis_footer;
+use crate::chart::frame::{Frame, Look};
+use crate::chart::legend::{Key, Legend, Row, COUNTED};
+use crate::chart::title::PATH_TITLE;
+use crate::chart::{self, PANEL_LEFT, SIZE};
+use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult};
 use neckline_core::analysis::Analysis;
 use neckline_core::assess::Zone;
 use neckline_core::path::increment_effective;
@@ -81,25 +85,15 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
         }
     }
     let (xr, yr) = ((x0 - 5.0, x1 + 5.0), (-5.0, y1 * 1.1 + 5.0));
-    let area = root.clone().shrink((0, 92), (870, 708));
-    let mut chart = ChartBuilder::on(&area)
-        .margin(12)
-        .x_label_area_size(50)
-        .y_label_area_size(62)
-        .build_cartesian_2d(xr.0..xr.1, yr.0..yr.1)?;
-    chart
-        .configure_mesh()
-        .x_desc("effective strain × cos θ, %  (θ: direction of the last strain increment)")
-        .y_desc("effective strain × sin θ, %")
-        .axis_desc_style(plot::text(17.0))
-        .label_style(plot::text(14.0))
-        .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
-        .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
-        .light_line_style(RGBColor(240, 240, 240))
-        .bold_line_style(RGBColor(215, 215, 215))
-        .draw()?;
-    let px = |p: (f64, f64)| chart.backend_coord(&p);
-    let grey = RGBColor(120, 120, 120);
+    let plot = Frame {
+        x: xr,
+        y: yr,
+        x_desc: "effective strain × cos θ, %  (θ: direction of the last strain increment)".into(),
+        y_desc: "effective strain × sin θ, %".into(),
+        look: Look::Diagram,
+    }
+    .draw(root)?;
+    let px = |p: (f64, f64)| plot.px(p);
     for (name, deg) in [
         ("equibiaxial θ = 45°", 45.0f64),
         ("plane strain θ = 90°", 90.0),
@@ -112,22 +106,18 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
                 (r * t.cos(), r * t.sin())
             })
             .collect();
-        for run in plot::clip_polyline(&ray, xr, yr) {
-            let run: Vec<(i32, i32)> = run.into_iter().map(px).collect();
-            for d in plot::dashes(&run, 10.0, 4.0) {
-                root.draw(&PathElement::new(d, grey.stroke_width(1)))?;
-            }
+        for run in plot.runs(&ray) {
+            chart::REFERENCE.draw(root, &run)?;
             if let Some(end) = run.last() {
-                root.draw_text(name, &plot::text(13.0).color(&grey), (end.0 + 4, end.1))?;
+                let style = plot::text(13.0).color(&chart::GREY);
+                root.draw_text(name, &style, (end.0 + 4, end.1))?;
             }
         }
     }
     let band: Vec<(i32, i32)> = band_line(a).into_iter().map(px).collect();
-    for d in plot::dashes(&band, 9.0, 6.0) {
-        root.draw(&PathElement::new(d, BLACK.stroke_width(2)))?;
-    }
+    chart::BAND.draw(root, &band)?;
     let line: Vec<(i32, i32)> = curve.iter().map(|p| px(*p)).collect();
-    root.draw(&PathElement::new(line, BLACK.stroke_width(3)))?;
+    chart::CURVE.draw(root, &line)?;
     for zone in Zone::ALL.iter().rev() {
         for (_, xy, _) in pts.iter().filter(|p| p.0 == *zone) {
             marker(
@@ -147,64 +137,40 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
         }
     }
     let part = a.job.part.as_deref().unwrap_or("(part not named)");
-    root.draw_text(
-        &format!("Polar effective plastic strain diagram: {part}"),
-        &plot::bold(23.0),
-        (15, 10),
+    let second = format!(
+        "stages {}  ·  {} judged along their paths  ·  limit curve \"{}\" and its safety band, mapped",
+        a.stages.join(" → "),
+        neckline_core::output::count_of(a.summary.paths, "location"),
+        a.curve.name
+    );
+    PATH_TITLE.draw(
+        root,
+        [
+            &format!("Polar effective plastic strain diagram: {part}"),
+            &second,
+            "Each location: its accumulated effective strain (von Mises) along the direction of its last increment",
+        ],
     )?;
-    root.draw_text(
-        &format!(
-            "stages {}  ·  {} judged along their paths  ·  limit curve \"{}\" and its safety band, mapped",
-            a.stages.join(" → "),
-            neckline_core::output::count_of(a.summary.paths, "location"),
-            a.curve.name
-        ),
-        &plot::text(15.0),
-        (15, 42),
-    )?;
-    root.draw_text(
-        "Each location: its accumulated effective strain (von Mises) along the direction of its last increment",
-        &plot::text(14.0),
-        (15, 66),
-    )?;
-    let x = 885;
-    let mut y = 110;
-    root.draw_text("Zones (locations)", &plot::bold(16.0), (x, y))?;
-    y += 28;
+    let mut l = Legend::new(PANEL_LEFT, 110);
+    l.heading("Zones (locations)", 16.0, 28);
     for (zone, n) in a.counts() {
-        marker(
-            root,
-            zone_shape(zone),
-            (x + 10, y + 8),
-            6,
-            zone_colour(zone),
-            BLACK,
-        )?;
-        root.draw_text(
-            &format!("{}  {n}", zone.name()),
-            &plot::text(15.0),
-            (x + 28, y),
-        )?;
-        y += 25;
+        let text = format!("{}  {n}", zone.name());
+        l.push(Row::entry(Key::zone(zone), text, &COUNTED));
     }
-    y += 12;
-    root.draw_text("solid: limit curve, mapped", &plot::text(14.0), (x, y))?;
-    y += 20;
-    root.draw_text(
-        &format!(
-            "dashed: safety band −{:.0} pp, mapped",
-            a.settings.margin_pct
-        ),
-        &plot::text(14.0),
-        (x, y),
-    )?;
-    y += 20;
-    root.draw_text(
+    l.gap(12);
+    let band = format!(
+        "dashed: safety band −{:.0} pp, mapped",
+        a.settings.margin_pct
+    );
+    for text in [
+        "solid: limit curve, mapped",
+        &band,
         "labelled: hidden by the strain curve",
-        &plot::text(14.0),
-        (x, y),
-    )?;
-    draw_footer(root, a)
+    ] {
+        l.push(Row::text(text, plot::text(14.0), 20));
+    }
+    l.draw(root)?;
+    draw_analysis_footer(root, a)
 }
 
 #[cfg(test)]

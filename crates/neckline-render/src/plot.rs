@@ -1,6 +1,8 @@
-//! What the pictures share: the embedded font, the zone palette and marker shapes, the strain
-//! axes, line clipping and dashing, a label placer that keeps labels apart, and the SVG / PNG
-//! encoders. The diagrams themselves are in [`crate::fld`] and [`crate::map`].
+//! The drawing primitives under every picture: the embedded font, the zone palette and marker
+//! shapes (with the borderline ring, the arrowhead and the plus), strain-axis values and tick
+//! labels, line clipping and dashing, text wrapping and fitting, and the SVG / PNG encoders.
+//! The chart style built on them (frame, title, legend, footer, labels) is in the `chart`
+//! module.
 
 use neckline_core::assess::Zone;
 use neckline_core::strain::{StrainMeasure, TrueStrain};
@@ -191,6 +193,72 @@ fn closed(mut pts: Vec<(i32, i32)>) -> Vec<(i32, i32)> {
     pts
 }
 
+/// A dashed black ring of radius `r` round a borderline location's marker (its zone could
+/// change within the reading error).
+pub fn borderline_ring<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    c: (i32, i32),
+    r: i32,
+) -> DrawResult<DB> {
+    let pts: Vec<(i32, i32)> = (0..=48)
+        .map(|k| {
+            let t = k as f64 / 48.0 * std::f64::consts::TAU;
+            (
+                c.0 + (r as f64 * t.cos()).round() as i32,
+                c.1 + (r as f64 * t.sin()).round() as i32,
+            )
+        })
+        .collect();
+    for d in dashes(&pts, 4.0, 3.0) {
+        root.draw(&PathElement::new(d, BLACK.stroke_width(1)))?;
+    }
+    Ok(())
+}
+
+/// An arrowhead at `to`, pointing away from `from`.
+pub fn arrowhead<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    from: (i32, i32),
+    to: (i32, i32),
+    colour: RGBColor,
+) -> DrawResult<DB> {
+    let (dx, dy) = ((to.0 - from.0) as f64, (to.1 - from.1) as f64);
+    let len = dx.hypot(dy);
+    if len < 6.0 {
+        return Ok(());
+    }
+    let (ux, uy) = (dx / len, dy / len);
+    let back = (to.0 as f64 - 10.0 * ux, to.1 as f64 - 10.0 * uy);
+    let side = |s: f64| {
+        (
+            (back.0 - 4.5 * s * uy).round() as i32,
+            (back.1 + 4.5 * s * ux).round() as i32,
+        )
+    };
+    root.draw(&Polygon::new(
+        vec![to, side(1.0), side(-1.0)],
+        colour.filled(),
+    ))
+}
+
+/// A plus centred at `c` with arms `arm` pixels long: the mark of a location with no zone
+/// (measured in one tryout only), a shape no zone uses.
+pub fn plus<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    c: (i32, i32),
+    arm: i32,
+    style: ShapeStyle,
+) -> DrawResult<DB> {
+    root.draw(&PathElement::new(
+        vec![(c.0 - arm, c.1), (c.0 + arm, c.1)],
+        style,
+    ))?;
+    root.draw(&PathElement::new(
+        vec![(c.0, c.1 - arm), (c.0, c.1 + arm)],
+        style,
+    ))
+}
+
 /// A true strain (fraction) as a diagram coordinate: percent in the axis `measure`.
 pub fn axis_value(measure: StrainMeasure, true_strain: f64) -> f64 {
     measure.from_true(TrueStrain(true_strain)) * 100.0
@@ -296,6 +364,32 @@ fn dist(a: (f64, f64), b: (f64, f64)) -> f64 {
     (a.0 - b.0).hypot(a.1 - b.1)
 }
 
+/// Convex hull (Andrew's monotone chain, Andrew 1979, Inf. Process. Lett. 9(5)), closed.
+pub fn hull(pts: &[(f64, f64)]) -> Vec<(f64, f64)> {
+    let mut p = pts.to_vec();
+    p.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1)));
+    p.dedup_by(|a, b| (a.0 - b.0).abs() < 1e-12 && (a.1 - b.1).abs() < 1e-12);
+    if p.len() < 3 {
+        return p;
+    }
+    let cross = |o: (f64, f64), a: (f64, f64), b: (f64, f64)| {
+        (a.0 - o.0) * (b.1 - o.1) - (a.1 - o.1) * (b.0 - o.0)
+    };
+    let mut h: Vec<(f64, f64)> = Vec::new();
+    for pass in [p.clone(), p.iter().rev().copied().collect()] {
+        let start = h.len();
+        for q in pass {
+            while h.len() >= start + 2 && cross(h[h.len() - 2], h[h.len() - 1], q) <= 0.0 {
+                h.pop();
+            }
+            h.push(q);
+        }
+        h.pop();
+    }
+    h.push(h[0]);
+    h
+}
+
 /// Cut a pixel polyline into dashes `on` pixels long with `off` pixel gaps.
 pub fn dashes(path: &[(i32, i32)], on: f64, off: f64) -> Vec<Vec<(i32, i32)>> {
     let mut out = Vec::new();
@@ -344,80 +438,6 @@ pub fn dashes(path: &[(i32, i32)], on: f64, off: f64) -> Vec<Vec<(i32, i32)>> {
 
 /// A rectangle in pixels: left, top, right, bottom.
 pub type Rect = (i32, i32, i32, i32);
-
-fn overlaps(a: Rect, b: Rect) -> bool {
-    a.0 < b.2 && b.0 < a.2 && a.1 < b.3 && b.1 < a.3
-}
-
-/// Places text labels near anchors so that they overlap neither each other nor the obstacles.
-#[derive(Debug, Default)]
-pub struct Placer {
-    /// Rectangles that hold a label.
-    pub labels: Vec<Rect>,
-    /// Rectangles to avoid if possible (markers, legend).
-    pub obstacles: Vec<Rect>,
-    /// Where labels may go.
-    pub bounds: Rect,
-}
-
-impl Placer {
-    /// A placer for labels inside `bounds`.
-    pub fn new(bounds: Rect) -> Self {
-        Placer {
-            bounds,
-            ..Default::default()
-        }
-    }
-
-    /// Find the top-left corner for a `w × h` label near `anchor`: candidate positions around it
-    /// at growing distances; first free of labels and obstacles, else free of labels, else the
-    /// first candidate. The chosen box is remembered.
-    pub fn place(&mut self, anchor: (i32, i32), w: i32, h: i32) -> (i32, i32) {
-        let candidates = candidates(anchor, w, h);
-        let inside = |r: Rect| {
-            r.0 >= self.bounds.0
-                && r.1 >= self.bounds.1
-                && r.2 <= self.bounds.2
-                && r.3 <= self.bounds.3
-        };
-        let free = |r: Rect, list: &[Rect]| list.iter().all(|o| !overlaps(r, *o));
-        let boxed = |c: (i32, i32)| (c.0, c.1, c.0 + w, c.1 + h);
-        let pick = candidates
-            .iter()
-            .copied()
-            .find(|c| {
-                let r = boxed(*c);
-                inside(r) && free(r, &self.labels) && free(r, &self.obstacles)
-            })
-            .or_else(|| {
-                candidates.iter().copied().find(|c| {
-                    let r = boxed(*c);
-                    inside(r) && free(r, &self.labels)
-                })
-            })
-            .unwrap_or(candidates[0]);
-        self.labels.push(boxed(pick));
-        pick
-    }
-}
-
-fn candidates(anchor: (i32, i32), w: i32, h: i32) -> Vec<(i32, i32)> {
-    let (x, y) = anchor;
-    let mut out = Vec::new();
-    for d in [8, 18, 32, 50, 75, 105] {
-        out.extend([
-            (x + d, y - h - d / 2),
-            (x + d, y + d / 2),
-            (x - w - d, y - h - d / 2),
-            (x - w - d, y + d / 2),
-            (x - w / 2, y - h - d),
-            (x - w / 2, y + d),
-            (x + d, y - h / 2),
-            (x - w - d, y - h / 2),
-        ]);
-    }
-    out
-}
 
 /// Encode an RGB buffer as PNG.
 pub fn write_png(rgb: &[u8], size: (u32, u32), out: &mut dyn Write) -> io::Result<()> {
@@ -542,35 +562,6 @@ pub fn fit_px<DB: DrawingBackend>(
     "…".into()
 }
 
-/// A label for the marker at `anchor`: a white box with a `border`-coloured frame, placed by
-/// `placer` where it hides nothing, and a thin line from the marker to the box.
-pub fn label_box<DB: DrawingBackend>(
-    root: &DrawingArea<DB, plotters::coord::Shift>,
-    placer: &mut Placer,
-    anchor: (i32, i32),
-    text: &str,
-    style: &TextStyle<'_>,
-    border: RGBColor,
-) -> DrawResult<DB> {
-    let (w, h) = root.estimate_text_size(text, style)?;
-    let (w, h) = (w as i32 + 6, h as i32 + 4);
-    let at = placer.place(anchor, w, h);
-    let to = (
-        anchor.0.clamp(at.0, at.0 + w),
-        anchor.1.clamp(at.1, at.1 + h),
-    );
-    root.draw(&PathElement::new(vec![anchor, to], BLACK.stroke_width(1)))?;
-    root.draw(&Rectangle::new(
-        [at, (at.0 + w, at.1 + h)],
-        WHITE.mix(0.85).filled(),
-    ))?;
-    root.draw(&Rectangle::new(
-        [at, (at.0 + w, at.1 + h)],
-        border.stroke_width(1),
-    ))?;
-    root.draw_text(text, style, (at.0 + 3, at.1 + 2))
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -622,12 +613,12 @@ mod tests {
             assert_eq!(zone_colour(z), palette::NEUTRAL);
         }
         assert_eq!(zone_colour(Zone::Uncovered), palette::GREY);
-        let mut shapes: Vec<String> = Zone::ALL
+        // Six zones, six different shapes: a set holds each shape once.
+        let shapes: std::collections::HashSet<String> = Zone::ALL
             .iter()
             .map(|z| format!("{:?}", zone_shape(*z)))
             .collect();
-        shapes.dedup();
-        assert_eq!(shapes.len(), 6);
+        assert_eq!(shapes.len(), 6, "{shapes:?}");
     }
 
     #[test]
@@ -637,6 +628,12 @@ mod tests {
         assert!(clip_segment((-1.0, 2.0), (2.0, 2.0), (0.0, 1.0), (0.0, 1.0)).is_none());
     }
 
+    #[test]
+    fn hull_of_square_with_inner_point() {
+        let h = hull(&[(0.0, 0.0), (1.0, 0.0), (1.0, 1.0), (0.0, 1.0), (0.5, 0.5)]);
+        assert_eq!(h.len(), 5); // four corners, closed
+        assert!(!h.contains(&(0.5, 0.5)));
+    }
     #[test]
     fn dashes_alternate() {
         let d = dashes(&[(0, 0), (100, 0)], 10.0, 5.0);
@@ -649,15 +646,5 @@ mod tests {
     fn font_sizes_are_scaled() {
         let s = scale_font_sizes("<text font-size=\"10\" x=\"1\">a</text>", 1.5);
         assert_eq!(s, "<text font-size=\"15.00\" x=\"1\">a</text>");
-    }
-
-    #[test]
-    fn placer_avoids_taken_boxes() {
-        let mut p = Placer::new((0, 0, 1000, 1000));
-        let a = p.place((500, 500), 60, 14);
-        let b = p.place((500, 500), 60, 14);
-        let ra = (a.0, a.1, a.0 + 60, a.1 + 14);
-        let rb = (b.0, b.1, b.0 + 60, b.1 + 14);
-        assert!(!overlaps(ra, rb));
     }
 }

@@ -7,24 +7,18 @@
 //! the last tryout (`limit_major_eng_pct` against `minor_eng_pct`): exact at every location,
 //! straight between them. The safety band is that line minus the band of the last summary.
 
-use crate::plot::{self, marker, palette, zone_colour, zone_shape, DrawResult, Placer};
+use crate::chart::footer;
+use crate::chart::frame::{Frame, Look};
+use crate::chart::label::{label_box, Placer};
+use crate::chart::legend::{Entries, Key, Legend, Row, LINES};
+use crate::chart::{self, PANEL_LEFT, SIZE, TITLE_H};
+use crate::plot::{self, marker, palette, zone_colour, zone_shape, DrawResult};
 use neckline_core::compare::csv_out::latest;
 use neckline_core::compare::{count, Change, Comparison, Track};
-use neckline_core::CAUTION;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;
 
-/// Size of both pictures, pixels.
-pub const SIZE: (u32, u32) = plot::SIZE;
-/// Bottom of the title band.
-pub const TITLE_H: i32 = 92;
-/// Right edge of the plot.
-pub const PLOT_RIGHT: i32 = 870;
-/// Top of the footer.
-pub const FOOTER_TOP: i32 = 800;
-/// Left edge of the legend panel.
-pub const PANEL_LEFT: i32 = 885;
 /// How many of the largest losses carry their id.
 pub const LABELLED: usize = 6;
 
@@ -114,21 +108,12 @@ pub fn title_lines(c: &Comparison, what: &str) -> (String, String, String) {
     )
 }
 
-/// Draw the three title lines.
+/// The title lines, drawn.
 pub fn draw_title<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     lines: &(String, String, String),
 ) -> DrawResult<DB> {
-    let width = SIZE.0 - 30;
-    for (text, style, y) in [
-        (&lines.0, plot::bold(23.0), 10),
-        (&lines.1, plot::text(16.0), 40),
-        (&lines.2, plot::text(14.0), 64),
-    ] {
-        let t = plot::fit_px(root, text, &style, width);
-        root.draw_text(&t, &style, (15, y))?;
-    }
-    Ok(())
+    chart::title::draw_title(root, [&lines.0, &lines.1, &lines.2])
 }
 
 /// The caution and what the picture compares, at the bottom.
@@ -136,104 +121,45 @@ pub fn draw_footer<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     c: &Comparison,
 ) -> DrawResult<DB> {
-    let style = plot::text(13.0).color(&RGBColor(60, 60, 60));
-    root.draw(&PathElement::new(
-        vec![(15, FOOTER_TOP), (SIZE.0 as i32 - 15, FOOTER_TOP)],
-        RGBColor(200, 200, 200).stroke_width(1),
-    ))?;
-    let mut y = FOOTER_TOP + 8;
-    for line in plot::wrap_px(root, CAUTION, &style, SIZE.0 - 30) {
-        root.draw_text(&line, &style, (15, y))?;
-        y += 17;
-    }
     let (b, a) = c.labels();
-    let prov = format!(
-        "neckline {}  ·  change = margin in {a} minus margin in {b}, percentage points of \
-         engineering major strain; beyond ±{} pp it counts",
-        env!("CARGO_PKG_VERSION"),
+    let change = format!(
+        "change = margin in {a} minus margin in {b}, percentage points of engineering major \
+         strain; beyond ±{} pp it counts",
         c.tolerance
     );
-    let prov = plot::fit_px(root, &prov, &style, SIZE.0 - 30);
-    root.draw_text(&prov, &style, (15, y))
-}
-
-/// An arrowhead at `to`, pointing away from `from`.
-pub fn arrowhead<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    from: (i32, i32),
-    to: (i32, i32),
-    colour: RGBColor,
-) -> DrawResult<DB> {
-    let (dx, dy) = ((to.0 - from.0) as f64, (to.1 - from.1) as f64);
-    let len = dx.hypot(dy);
-    if len < 6.0 {
-        return Ok(());
-    }
-    let (ux, uy) = (dx / len, dy / len);
-    let back = (to.0 as f64 - 10.0 * ux, to.1 as f64 - 10.0 * uy);
-    let side = |s: f64| {
-        (
-            (back.0 - 4.5 * s * uy).round() as i32,
-            (back.1 + 4.5 * s * ux).round() as i32,
-        )
-    };
-    root.draw(&Polygon::new(
-        vec![to, side(1.0), side(-1.0)],
-        colour.filled(),
-    ))
+    footer::draw_footer(root, &[&change])
 }
 
 fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &Comparison) -> DrawResult<DB> {
     root.fill(&WHITE)?;
     let (xr, yr) = ranges(c);
-    let area = root.clone().shrink(
-        (0, TITLE_H),
-        (PLOT_RIGHT as u32, (FOOTER_TOP - TITLE_H) as u32),
-    );
-    let mut chart = ChartBuilder::on(&area)
-        .margin(12)
-        .x_label_area_size(50)
-        .y_label_area_size(62)
-        .build_cartesian_2d(xr.0..xr.1, yr.0..yr.1)?;
-    chart
-        .configure_mesh()
-        .x_desc("minor strain ε2, engineering %")
-        .y_desc("major strain ε1, engineering %")
-        .axis_desc_style(plot::text(17.0))
-        .label_style(plot::text(14.0))
-        .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
-        .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
-        .light_line_style(RGBColor(240, 240, 240))
-        .bold_line_style(RGBColor(215, 215, 215))
-        .draw()?;
-    let px = |p: (f64, f64)| chart.backend_coord(&p);
-    let line_px = |line: &[(f64, f64)]| -> Vec<Vec<(i32, i32)>> {
-        plot::clip_polyline(line, xr, yr)
-            .iter()
-            .map(|run| run.iter().map(|p| px(*p)).collect())
-            .collect()
-    };
+    let plot = Frame {
+        x: xr,
+        y: yr,
+        x_desc: "minor strain ε2, engineering %".into(),
+        y_desc: "major strain ε1, engineering %".into(),
+        look: Look::Diagram,
+    }
+    .draw(root)?;
+    let px = |p: (f64, f64)| plot.px(p);
     let curve = limit_samples(c);
     if let Some(m) = band(c) {
         let b: Vec<(f64, f64)> = curve.iter().map(|p| (p.0, p.1 - m)).collect();
-        for run in line_px(&b) {
-            for d in plot::dashes(&run, 9.0, 6.0) {
-                root.draw(&PathElement::new(d, BLACK.stroke_width(2)))?;
-            }
+        for run in plot.runs(&b) {
+            chart::BAND.draw(root, &run)?;
         }
     }
-    for run in line_px(&curve) {
-        root.draw(&PathElement::new(run, BLACK.stroke_width(3)))?;
+    for run in plot.runs(&curve) {
+        chart::CURVE.draw(root, &run)?;
     }
-    let (xs, ys) = chart.plotting_area().get_pixel_range();
-    let mut placer = Placer::new((xs.start + 2, ys.start + 2, xs.end - 2, ys.end - 2));
+    let mut placer = plot.placer();
     draw_tracks(root, c, &px, &mut placer)?;
     draw_loss_labels(root, c, &px, &mut placer)?;
     draw_title(
         root,
         &title_lines(c, "Tryout comparison on the forming-limit diagram"),
     )?;
-    draw_legend(root, c, !curve.is_empty(), band(c))?;
+    legend(c, !curve.is_empty(), band(c)).draw(root)?;
     draw_footer(root, c)
 }
 
@@ -261,7 +187,7 @@ fn draw_tracks<DB: DrawingBackend>(
                     2
                 };
                 root.draw(&PathElement::new(pts.clone(), colour.stroke_width(width)))?;
-                arrowhead(root, pts[pts.len() - 2], pts[pts.len() - 1], colour)?;
+                plot::arrowhead(root, pts[pts.len() - 2], pts[pts.len() - 1], colour)?;
                 for p in &pts[..pts.len() - 1] {
                     root.draw(&Circle::new(*p, 2, earlier.filled()))?;
                 }
@@ -280,19 +206,9 @@ fn draw_tracks<DB: DrawingBackend>(
             } else {
                 // Not measured in the last tryout: a grey plus (no zone's shape) where it was
                 // last seen.
-                let g = earlier.stroke_width(1);
-                root.draw(&PathElement::new(
-                    vec![(now.0 - 4, now.1), (now.0 + 4, now.1)],
-                    g,
-                ))?;
-                root.draw(&PathElement::new(
-                    vec![(now.0, now.1 - 4), (now.0, now.1 + 4)],
-                    g,
-                ))?;
+                plot::plus(root, *now, 4, earlier.stroke_width(1))?;
             }
-            placer
-                .obstacles
-                .push((now.0 - 5, now.1 - 5, now.0 + 5, now.1 + 5));
+            placer.avoid(*now, 5);
         }
     }
     Ok(())
@@ -309,7 +225,7 @@ fn draw_loss_labels<DB: DrawingBackend>(
         let Some(a) = t.after() else { continue };
         let text = format!("{} ({:+.1})", t.name(), t.margin_change().unwrap_or(0.0));
         let border = change_colour(Some(Change::Worsened));
-        plot::label_box(
+        label_box(
             root,
             placer,
             px((a.minor_pct, a.major_pct)),
@@ -321,95 +237,72 @@ fn draw_loss_labels<DB: DrawingBackend>(
     Ok(())
 }
 
-fn draw_legend<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    c: &Comparison,
-    has_curve: bool,
-    band: Option<f64>,
-) -> DrawResult<DB> {
-    let x = PANEL_LEFT;
-    let mut y = TITLE_H + 16;
+/// The legend: changes, zones now, the lines, the largest losses.
+fn legend(c: &Comparison, has_curve: bool, band: Option<f64>) -> Legend {
+    let mut l = Legend::new(PANEL_LEFT, TITLE_H + 16);
     let (b, a) = c.labels();
-    root.draw_text(&format!("Change {b} → {a}"), &plot::bold(16.0), (x, y))?;
-    y += 28;
+    let counted = |text_dx| Entries {
+        text_dx,
+        size: 15.0,
+        count_right: 220,
+        step: 24,
+    };
+    l.heading(format!("Change {b} → {a}"), 16.0, 28);
     for ch in [Change::Worsened, Change::Improved, Change::Unchanged] {
-        let colour = change_colour(Some(ch));
-        root.draw(&PathElement::new(
-            vec![(x, y + 8), (x + 30, y + 8)],
-            colour.stroke_width(2),
-        ))?;
-        arrowhead(root, (x, y + 8), (x + 34, y + 8), colour)?;
-        root.draw_text(ch.name(), &plot::text(15.0), (x + 44, y))?;
-        let n = c.change_count(ch).to_string();
-        let (w, _) = root.estimate_text_size(&n, &plot::bold(15.0))?;
-        root.draw_text(&n, &plot::bold(15.0), (x + 220 - w as i32, y))?;
-        y += 24;
+        let key = Key::Arrow(change_colour(Some(ch)));
+        l.push(Row::counted(
+            key,
+            ch.name(),
+            c.change_count(ch),
+            &counted(44),
+        ));
     }
-    root.draw(&Circle::new(
-        (x + 6, y + 8),
-        2,
-        RGBColor(110, 110, 110).filled(),
-    ))?;
-    root.draw_text("earlier position", &plot::text(14.0), (x + 44, y))?;
-    y += 34;
-    root.draw_text(&format!("Zone in {a}"), &plot::bold(16.0), (x, y))?;
-    y += 26;
+    let dot = Key::Circle {
+        dx: 6,
+        r: 2,
+        style: RGBColor(110, 110, 110).filled(),
+    };
+    l.push(
+        Row::new(24)
+            .key(dot)
+            .left("earlier position", plot::text(14.0), 44),
+    );
+    l.gap(10);
+    l.heading(format!("Zone in {a}"), 16.0, 26);
     let k = c.tryouts.len() - 1;
     for (zone, n) in c.zone_counts(k) {
-        marker(
-            root,
-            zone_shape(zone),
-            (x + 10, y + 8),
-            6,
-            zone_colour(zone),
-            BLACK,
-        )?;
-        root.draw_text(zone.name(), &plot::text(15.0), (x + 28, y))?;
-        let n = n.to_string();
-        let (w, _) = root.estimate_text_size(&n, &plot::bold(15.0))?;
-        root.draw_text(&n, &plot::bold(15.0), (x + 220 - w as i32, y))?;
-        y += 24;
+        l.push(Row::counted(Key::zone(zone), zone.name(), n, &counted(28)));
     }
-    y += 10;
+    l.gap(10);
     if has_curve {
-        root.draw(&PathElement::new(
-            vec![(x, y + 8), (x + 40, y + 8)],
-            BLACK.stroke_width(3),
-        ))?;
-        root.draw_text(
-            &format!("limit curve ({a})"),
-            &plot::text(14.0),
-            (x + 50, y),
-        )?;
-        y += 22;
+        let line = |stroke| Key::Line { stroke, len: 40 };
+        l.push(Row::entry(
+            line(chart::CURVE),
+            format!("limit curve ({a})"),
+            &LINES,
+        ));
         if let Some(m) = band {
-            for d in plot::dashes(&[(x, y + 8), (x + 40, y + 8)], 9.0, 6.0) {
-                root.draw(&PathElement::new(d, BLACK.stroke_width(2)))?;
-            }
-            root.draw_text(
-                &format!("safety band, −{m:.1} pp"),
-                &plot::text(14.0),
-                (x + 50, y),
-            )?;
-            y += 22;
+            let text = format!("safety band, −{m:.1} pp");
+            l.push(Row::entry(line(chart::BAND), text, &LINES));
         }
     }
-    y += 12;
+    l.gap(12);
     let losses = c.losses();
     if losses.is_empty() {
-        return Ok(());
+        return l;
     }
-    root.draw_text("Largest losses (margin, pp)", &plot::bold(16.0), (x, y))?;
-    y += 26;
+    l.heading("Largest losses (margin, pp)", 16.0, 26);
     for t in losses.into_iter().take(LABELLED) {
-        let id = plot::fit_px(root, &t.name(), &plot::text(14.0), 110);
-        root.draw_text(&id, &plot::text(14.0), (x, y))?;
         let d = format!("{:+.1}", t.margin_change().unwrap_or(0.0));
-        let (w, _) = root.estimate_text_size(&d, &plot::bold(14.0))?;
-        root.draw_text(&d, &plot::bold(14.0), (x + 165 - w as i32, y))?;
         let now = t.after().map_or("", |r| r.zone.name());
-        root.draw_text(now, &plot::text(13.0), (x + 180, y + 1))?;
-        y += 21;
+        l.push(
+            Row::new(21)
+                .left(t.name(), plot::text(14.0), 0)
+                .fit(110)
+                .right(d, plot::bold(14.0), 165)
+                .left(now, plot::text(13.0), 180)
+                .down(1),
+        );
     }
-    Ok(())
+    l
 }

@@ -3,11 +3,12 @@
 //! gain blue, within the tolerance grey), shaped by the zone in the last tryout; the largest
 //! losses carry their id. Locations measured in one tryout only are open grey rings.
 
-use super::fld::{
-    draw_footer, draw_title, title_lines, FOOTER_TOP, LABELLED, PANEL_LEFT, PLOT_RIGHT, SIZE,
-    TITLE_H,
-};
-use crate::plot::{self, marker, zone_shape, DrawResult, Placer};
+use super::fld::{draw_footer, draw_title, title_lines, LABELLED};
+use crate::chart::frame::{Frame, Look};
+use crate::chart::label::{label_box, Placer};
+use crate::chart::legend::{Key, Legend, Row};
+use crate::chart::{PANEL_LEFT, SIZE, TITLE_H};
+use crate::plot::{self, marker, zone_shape, DrawResult};
 use neckline_core::compare::csv_out::latest;
 use neckline_core::compare::{Comparison, Track};
 use plotters::coord::Shift;
@@ -53,6 +54,12 @@ type Rgb = (u8, u8, u8);
 const LOSS: (Rgb, Rgb) = ((0xfd, 0xdb, 0xc7), (0xb2, 0x18, 0x2b));
 const GAIN: (Rgb, Rgb) = ((0xd1, 0xe5, 0xf0), (0x21, 0x66, 0xac));
 const WITHIN: RGBColor = RGBColor(0xbd, 0xbd, 0xbd);
+/// The plus of a location measured in one of the two tryouts only.
+const ONE_ONLY: ShapeStyle = ShapeStyle {
+    color: RGBAColor(120, 120, 120, 1.0),
+    filled: false,
+    stroke_width: 2,
+};
 
 impl ChangeScale {
     /// A scale that holds every change of `c`, at least ±5 pp, in steps of 5.
@@ -80,7 +87,9 @@ impl ChangeScale {
     }
 }
 
-/// Ranges with equal scale on both axes for a plot `w × h` pixels holding `pts`.
+/// Ranges with equal scale on both axes for a plot `w × h` pixels holding `pts`: those of
+/// [`crate::chart::frame::equal_ranges`], but with the padding added to the span rather than to
+/// the ends, which can round differently in the last bit (kept, so that the map stays as drawn).
 fn equal_ranges(pts: &[(f64, f64)], w: f64, h: f64) -> ((f64, f64), (f64, f64)) {
     let fold = |f: fn(&(f64, f64)) -> f64| {
         pts.iter()
@@ -98,10 +107,6 @@ fn equal_ranges(pts: &[(f64, f64)], w: f64, h: f64) -> ((f64, f64), (f64, f64)) 
     ((cx - hw, cx + hw), (cy - hh, cy + hh))
 }
 
-const MARGIN: i32 = 12;
-const X_LABEL: i32 = 50;
-const Y_LABEL: i32 = 70;
-
 fn unit(c: &Comparison) -> String {
     c.tryouts
         .last()
@@ -114,34 +119,20 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &Comparison) -> Dr
     root.fill(&WHITE)?;
     let at = placed(c);
     let pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
-    let plot_w = (PLOT_RIGHT - 2 * MARGIN - Y_LABEL) as f64;
-    let plot_h = (FOOTER_TOP - TITLE_H - 2 * MARGIN - X_LABEL) as f64;
+    let (plot_w, plot_h) = Look::Map.plot_size();
     let (xr, yr) = equal_ranges(&pts, plot_w, plot_h);
-    let area = root.clone().shrink(
-        (0, TITLE_H),
-        (PLOT_RIGHT as u32, (FOOTER_TOP - TITLE_H) as u32),
-    );
-    let mut chart = ChartBuilder::on(&area)
-        .margin(MARGIN)
-        .x_label_area_size(X_LABEL)
-        .y_label_area_size(Y_LABEL)
-        .build_cartesian_2d(xr.0..xr.1, yr.0..yr.1)?;
     let u = unit(c);
-    chart
-        .configure_mesh()
-        .x_desc(format!("x, {u}"))
-        .y_desc(format!("y, {u}"))
-        .axis_desc_style(plot::text(17.0))
-        .label_style(plot::text(14.0))
-        .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
-        .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
-        .light_line_style(RGBColor(244, 244, 244))
-        .bold_line_style(RGBColor(220, 220, 220))
-        .draw()?;
-    let px = |p: (f64, f64)| chart.backend_coord(&p);
+    let plot = Frame {
+        x: xr,
+        y: yr,
+        x_desc: format!("x, {u}"),
+        y_desc: format!("y, {u}"),
+        look: Look::Map,
+    }
+    .draw(root)?;
+    let px = |p: (f64, f64)| plot.px(p);
     let scale = ChangeScale::of(c);
-    let (xs, ys) = chart.plotting_area().get_pixel_range();
-    let mut placer = Placer::new((xs.start + 2, ys.start + 2, xs.end - 2, ys.end - 2));
+    let mut placer = plot.placer();
     // Largest changes last, so that they are on top.
     let mut order = at.clone();
     order.sort_by(|a, b| {
@@ -150,12 +141,10 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &Comparison) -> Dr
     });
     for (t, xy) in &order {
         let p = px(*xy);
-        placer.obstacles.push((p.0 - 8, p.1 - 8, p.0 + 8, p.1 + 8));
+        placer.avoid(p, 8);
         let Some(after) = t.after().filter(|_| t.before().is_some()) else {
             // Measured in one tryout only: a grey plus, a shape no zone uses.
-            let g = RGBColor(120, 120, 120).stroke_width(2);
-            root.draw(&PathElement::new(vec![(p.0 - 6, p.1), (p.0 + 6, p.1)], g))?;
-            root.draw(&PathElement::new(vec![(p.0, p.1 - 6), (p.0, p.1 + 6)], g))?;
+            plot::plus(root, p, 6, ONE_ONLY)?;
             continue;
         };
         let shape = zone_shape(after.zone);
@@ -187,7 +176,7 @@ fn draw_labels<DB: DrawingBackend>(
         .take(LABELLED);
     for (t, xy) in shown {
         let text = format!("{} ({:+.1})", t.name(), t.margin_change().unwrap_or(0.0));
-        plot::label_box(root, placer, px(xy), &text, &style, BLACK)?;
+        label_box(root, placer, px(xy), &text, &style, BLACK)?;
     }
     Ok(())
 }
@@ -198,15 +187,14 @@ fn draw_scale<DB: DrawingBackend>(
     s: &ChangeScale,
 ) -> DrawResult<DB> {
     let x = PANEL_LEFT;
-    let mut y = TITLE_H + 16;
+    let y = TITLE_H + 16;
     let (b, a) = c.labels();
     root.draw_text(
         &format!("Margin change {b} → {a}, pp"),
         &plot::bold(16.0),
         (x, y),
     )?;
-    y += 30;
-    let (top, height) = (y, 300);
+    let (top, height) = (y + 30, 300);
     for k in 0..height {
         let d = s.reach - 2.0 * s.reach * k as f64 / (height - 1) as f64;
         root.draw(&Rectangle::new(
@@ -251,21 +239,24 @@ fn draw_scale<DB: DrawingBackend>(
     for (text, dy) in [("gain (safer now)", 0), ("loss", height - 16)] {
         root.draw_text(text, &plot::text(14.0), (x + 100, top + dy))?;
     }
-    y = top + height + 24;
-    let note = format!("grey: within ±{} pp", c.tolerance);
-    root.draw_text(&note, &plot::text(14.0), (x, y))?;
-    y += 22;
-    let g = RGBColor(120, 120, 120).stroke_width(2);
-    root.draw(&PathElement::new(vec![(x + 2, y + 8), (x + 14, y + 8)], g))?;
-    root.draw(&PathElement::new(vec![(x + 8, y + 2), (x + 8, y + 14)], g))?;
-    root.draw_text(
-        "measured in one of the two only",
-        &plot::text(14.0),
-        (x + 24, y),
-    )?;
-    y += 32;
-    root.draw_text(&format!("Shape: zone in {a}"), &plot::bold(16.0), (x, y))?;
-    y += 26;
+    let mut l = Legend::new(x, top + height + 24);
+    let text = || plot::text(14.0);
+    l.push(Row::text(
+        format!("grey: within ±{} pp", c.tolerance),
+        text(),
+        22,
+    ));
+    let plus = Key::Plus {
+        dx: 8,
+        arm: 6,
+        style: ONE_ONLY,
+    };
+    l.push(
+        Row::new(32)
+            .key(plus)
+            .left("measured in one of the two only", text(), 24),
+    );
+    l.heading(format!("Shape: zone in {a}"), 16.0, 26);
     let k = c.tryouts.len() - 1;
     for (zone, n) in c.zone_counts(k).into_iter().filter(|(_, n)| *n > 0) {
         let shape = zone_shape(zone);
@@ -274,9 +265,17 @@ fn draw_scale<DB: DrawingBackend>(
         } else {
             WITHIN
         };
-        marker(root, shape, (x + 10, y + 8), 6, fill, BLACK)?;
-        root.draw_text(&format!("{zone} ({n})"), &plot::text(14.0), (x + 28, y))?;
-        y += 22;
+        let key = Key::Marker {
+            shape,
+            fill,
+            r: 6,
+            dx: 10,
+        };
+        l.push(
+            Row::new(22)
+                .key(key)
+                .left(format!("{zone} ({n})"), text(), 28),
+        );
     }
-    Ok(())
+    l.draw(root)
 }

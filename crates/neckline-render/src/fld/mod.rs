@@ -10,16 +10,24 @@
 //!   ε1 + ε2 = −ln(1 − s) (plastic incompressibility);
 //! - the safety band: the curve's engineering major strain minus the margin setting.
 
-use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult, Placer, Rect, SIZE};
+use crate::chart::footer::draw_analysis_footer;
+use crate::chart::frame::{Frame, Look};
+use crate::chart::label::{Label, Leader, Placer};
+use crate::chart::legend::{Key, Legend, Row, COUNTED, LINES};
+use crate::chart::title::{draw_title, job_lines};
+use crate::chart::{self, Stroke, PANEL_LEFT, SIZE, TITLE_H};
+use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult};
 use neckline_core::analysis::Analysis;
 use neckline_core::assess::Zone;
 use neckline_core::point::PointResult;
 use neckline_core::strain::StrainMeasure;
 use neckline_core::summary::point_xy;
-use neckline_core::CAUTION;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;
+
+mod lines;
+pub use lines::{band_line, curve_line, reference_paths, thinning_line, Line, THINNING_LINES};
 
 /// What the diagram shows.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -65,9 +73,6 @@ pub fn margin_in(p: &PointResult, m: StrainMeasure) -> Option<f64> {
     }
 }
 
-/// Thinning iso-lines drawn, percent.
-pub const THINNING_LINES: [f64; 3] = [10.0, 20.0, 30.0];
-
 /// The diagram as an SVG document.
 pub fn fld_svg(a: &Analysis, opts: &FldOptions) -> io::Result<String> {
     plot::render_svg(SIZE, |root| draw(root, a, opts))
@@ -76,79 +81,6 @@ pub fn fld_svg(a: &Analysis, opts: &FldOptions) -> io::Result<String> {
 /// The diagram as a PNG image.
 pub fn fld_png(a: &Analysis, opts: &FldOptions) -> io::Result<Vec<u8>> {
     plot::render_png(SIZE, |root| draw(root, a, opts))
-}
-
-type Line = Vec<(f64, f64)>;
-
-/// The limit curve in axis coordinates (percent of `measure`).
-pub fn curve_line(a: &Analysis, measure: StrainMeasure) -> Line {
-    a.curve
-        .true_polyline(16)
-        .iter()
-        .map(|p| {
-            (
-                plot::axis_value(measure, p[0]),
-                plot::axis_value(measure, p[1]),
-            )
-        })
-        .collect()
-}
-
-/// The safety-band line: the curve's engineering major strain minus the margin, in axis
-/// coordinates. Points where that would be no strain at all (e ≤ −1) are left out.
-pub fn band_line(a: &Analysis, measure: StrainMeasure) -> Line {
-    let m = a.settings.margin_pct / 100.0;
-    a.curve
-        .true_polyline(16)
-        .iter()
-        .filter_map(|p| {
-            let e1 = p[1].exp() - 1.0 - m;
-            (e1 > -1.0).then(|| {
-                (
-                    plot::axis_value(measure, p[0]),
-                    plot::axis_value(measure, (1.0 + e1).ln()),
-                )
-            })
-        })
-        .collect()
-}
-
-/// A straight path in true strain, `(ε2, ε1) = s·(dir)`, for `s` in `0..=2`, in axis coordinates.
-fn ray(dir: (f64, f64), measure: StrainMeasure) -> Line {
-    (0..=400)
-        .map(|k| {
-            let s = k as f64 * 0.005;
-            (
-                plot::axis_value(measure, s * dir.0),
-                plot::axis_value(measure, s * dir.1),
-            )
-        })
-        .collect()
-}
-
-/// The reference strain paths with their labels.
-pub fn reference_paths(measure: StrainMeasure) -> Vec<(&'static str, Line)> {
-    vec![
-        ("uniaxial β = −½", ray((-0.5, 1.0), measure)),
-        ("plane strain β = 0", ray((0.0, 1.0), measure)),
-        ("equibiaxial β = 1", ray((1.0, 1.0), measure)),
-        ("constant thickness ε1 = −ε2", ray((-1.0, 1.0), measure)),
-    ]
-}
-
-/// The thinning iso-line for `pct` percent: ε1 + ε2 = −ln(1 − pct/100), drawn from the
-/// equibiaxial line (ε1 = ε2) towards negative minor strain, in axis coordinates.
-pub fn thinning_line(pct: f64, measure: StrainMeasure) -> Line {
-    let c = -(1.0 - pct / 100.0).ln();
-    (0..=400)
-        .map(|k| {
-            let e2 = c / 2.0 - k as f64 * 0.005;
-            (
-                plot::axis_value(measure, e2),
-                plot::axis_value(measure, c - e2),
-            )
-        })
-        .collect()
 }
 
 fn round_out(lo: f64, hi: f64, step: f64) -> (f64, f64) {
@@ -182,11 +114,6 @@ pub fn ranges(a: &Analysis, measure: StrainMeasure) -> ((f64, f64), (f64, f64)) 
     (x, y)
 }
 
-const TITLE_H: i32 = 92;
-const PLOT_RIGHT: i32 = 870;
-const FOOTER_TOP: i32 = 800;
-const PANEL_LEFT: i32 = 885;
-
 fn draw<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     a: &Analysis,
@@ -195,98 +122,52 @@ fn draw<DB: DrawingBackend>(
     root.fill(&WHITE)?;
     let m = opts.measure;
     let (xr, yr) = ranges(a, m);
-    let area = root.clone().shrink(
-        (0, TITLE_H),
-        (PLOT_RIGHT as u32, (FOOTER_TOP - TITLE_H) as u32),
-    );
-    let mut chart = ChartBuilder::on(&area)
-        .margin(12)
-        .x_label_area_size(50)
-        .y_label_area_size(62)
-        .build_cartesian_2d(xr.0..xr.1, yr.0..yr.1)?;
     let word = plot::measure_word(m);
-    chart
-        .configure_mesh()
-        .x_desc(format!("minor strain ε2, {word} %"))
-        .y_desc(format!("major strain ε1, {word} %"))
-        .axis_desc_style(plot::text(17.0))
-        .label_style(plot::text(14.0))
-        .x_label_formatter(&|v| plot::tick(*v, xr.1 - xr.0))
-        .y_label_formatter(&|v| plot::tick(*v, yr.1 - yr.0))
-        .light_line_style(RGBColor(240, 240, 240))
-        .bold_line_style(RGBColor(215, 215, 215))
-        .draw()?;
-    let px = |p: (f64, f64)| chart.backend_coord(&p);
-    let path_px = |line: &Line| -> Vec<Vec<(i32, i32)>> {
-        plot::clip_polyline(line, xr, yr)
-            .iter()
-            .map(|run| run.iter().map(|p| px(*p)).collect())
-            .collect()
-    };
-    let grey = RGBColor(120, 120, 120);
-    let light = RGBColor(165, 165, 165);
+    let plot = Frame {
+        x: xr,
+        y: yr,
+        x_desc: format!("minor strain ε2, {word} %"),
+        y_desc: format!("major strain ε1, {word} %"),
+        look: Look::Diagram,
+    }
+    .draw(root)?;
+    let px = |p: (f64, f64)| plot.px(p);
     let mut line_labels: Vec<(String, (i32, i32), RGBColor)> = Vec::new();
-    for pct in THINNING_LINES {
-        let runs = path_px(&thinning_line(pct, m));
+    let stroke = |line: &Line, stroke: Stroke| -> Result<_, DrawingAreaErrorKind<DB::ErrorType>> {
+        let runs = plot.runs(line);
         for run in &runs {
-            for d in plot::dashes(run, 3.0, 4.0) {
-                root.draw(&PathElement::new(d, light.stroke_width(1)))?;
-            }
+            stroke.draw(root, run)?;
         }
-        if let Some(end) = runs.last().and_then(|r| r.last()) {
-            line_labels.push((format!("{pct:.0} % thinning"), *end, grey));
+        Ok(runs.last().and_then(|r| r.last()).copied())
+    };
+    for pct in THINNING_LINES {
+        if let Some(end) = stroke(&thinning_line(pct, m), chart::THINNING)? {
+            line_labels.push((format!("{pct:.0} % thinning"), end, chart::GREY));
         }
     }
     for (name, line) in reference_paths(m) {
-        let runs = path_px(&line);
-        for run in &runs {
-            for d in plot::dashes(run, 10.0, 4.0) {
-                root.draw(&PathElement::new(d, grey.stroke_width(1)))?;
-            }
-        }
-        if let Some(end) = runs.last().and_then(|r| r.last()) {
-            line_labels.push((name.to_string(), *end, grey));
+        if let Some(end) = stroke(&line, chart::REFERENCE)? {
+            line_labels.push((name.to_string(), end, chart::GREY));
         }
     }
     if let Some(max) = a.settings.max_thinning_pct.filter(|_| !opts.curve_only) {
-        let runs = path_px(&thinning_line(max, m));
-        for run in &runs {
-            for d in plot::dashes(run, 14.0, 3.0) {
-                root.draw(&PathElement::new(
-                    d,
-                    zone_colour(Zone::Failed).stroke_width(3),
-                ))?;
-            }
-        }
-        if let Some(end) = runs.last().and_then(|r| r.last()) {
-            line_labels.push((
-                format!("max thinning {} %", neckline_core::output::fmt_setting(max)),
-                *end,
-                BLACK,
-            ));
+        if let Some(end) = stroke(&thinning_line(max, m), chart::MAX_THINNING)? {
+            line_labels.push((max_thinning_label(max), end, BLACK));
         }
     }
     let band = if opts.curve_only {
         Vec::new()
     } else {
-        path_px(&band_line(a, m))
+        plot.runs(&band_line(a, m))
     };
     for run in &band {
-        for d in plot::dashes(run, 9.0, 6.0) {
-            root.draw(&PathElement::new(d, BLACK.stroke_width(2)))?;
-        }
+        chart::BAND.draw(root, run)?;
     }
-    let curve = path_px(&curve_line(a, m));
+    let curve = plot.runs(&curve_line(a, m));
     for run in &curve {
-        root.draw(&PathElement::new(run.clone(), BLACK.stroke_width(3)))?;
+        chart::CURVE.draw(root, run)?;
     }
-    let plot_box = plot_rect(&chart);
-    let mut placer = Placer::new((
-        plot_box.0 + 2,
-        plot_box.1 + 2,
-        plot_box.2 - 2,
-        plot_box.3 - 2,
-    ));
+    let mut placer = plot.placer();
     if draws_density(a, m) && !opts.curve_only {
         draw_density(root, a, &px, (xr.1 - xr.0).max(yr.1 - yr.0))?;
     }
@@ -302,20 +183,23 @@ fn draw<DB: DrawingBackend>(
     if let Some(end) = band.last().and_then(|r| r.last()) {
         line_labels.push((band_label(a, m), *end, BLACK));
     }
-    draw_line_labels(root, &line_labels, &mut placer)?;
-    draw_title(root, a, m)?;
-    draw_legend(root, a, opts)?;
-    draw_footer(root, a)
+    for (text, anchor, colour) in &line_labels {
+        let style = plot::text(13.0).color(colour);
+        Label::LINE.draw(root, &mut placer, *anchor, text, &style)?;
+    }
+    let (part, second, third) = job_lines(a);
+    let third = format!("{third}  ({word} strain axes)");
+    draw_title(
+        root,
+        [&format!("Forming-limit diagram: {part}"), &second, &third],
+    )?;
+    legend(root, a, opts).draw(root)?;
+    draw_analysis_footer(root, a)
 }
 
-fn plot_rect<DB: DrawingBackend>(
-    chart: &ChartContext<
-        DB,
-        Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
-    >,
-) -> Rect {
-    let (xs, ys) = chart.plotting_area().get_pixel_range();
-    (xs.start, ys.start, xs.end, ys.end)
+/// The label of the maximum-thinning line.
+fn max_thinning_label(max: f64) -> String {
+    format!("max thinning {} %", neckline_core::output::fmt_setting(max))
 }
 
 /// Cells across the diagram's longer axis when locations are drawn as a density.
@@ -402,9 +286,9 @@ fn draw_points<DB: DrawingBackend>(
             let c = px(point_xy(p, m));
             marker(root, zone_shape(*zone), c, 5, zone_colour(*zone), BLACK)?;
             if p.judgement.borderline {
-                borderline_ring(root, c, 11)?;
+                plot::borderline_ring(root, c, 11)?;
             }
-            placer.obstacles.push((c.0 - 6, c.1 - 6, c.0 + 6, c.1 + 6));
+            placer.avoid(c, 6);
         }
     }
     Ok(())
@@ -451,28 +335,6 @@ fn draw_paths<DB: DrawingBackend>(
     Ok(())
 }
 
-/// A dashed black ring of radius `r` round a borderline location's marker (its zone could
-/// change within the reading error).
-pub fn borderline_ring<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    c: (i32, i32),
-    r: i32,
-) -> DrawResult<DB> {
-    let pts: Vec<(i32, i32)> = (0..=48)
-        .map(|k| {
-            let t = k as f64 / 48.0 * std::f64::consts::TAU;
-            (
-                c.0 + (r as f64 * t.cos()).round() as i32,
-                c.1 + (r as f64 * t.sin()).round() as i32,
-            )
-        })
-        .collect();
-    for d in plot::dashes(&pts, 4.0, 3.0) {
-        root.draw(&PathElement::new(d, BLACK.stroke_width(1)))?;
-    }
-    Ok(())
-}
-
 /// Label text of a worst location: its id and why it is in its zone; a margin is in the
 /// measure plotted and never printed across its zone's edges (see [`neckline_core::output::fmt_margin`]).
 pub fn worst_label(
@@ -511,251 +373,88 @@ fn draw_worst_labels<DB: DrawingBackend>(
     for p in a.worst(opts.labelled) {
         let c = px(point_xy(p, opts.measure));
         let text = worst_label(p, &a.settings, opts.measure);
-        let (w, h) = root.estimate_text_size(&text, &style)?;
-        let (w, h) = (w as i32 + 6, h as i32 + 4);
-        let at = placer.place(c, w, h);
-        leader(root, c, (at.0, at.1, at.0 + w, at.1 + h))?;
-        root.draw(&Rectangle::new(
-            [at, (at.0 + w, at.1 + h)],
-            RGBColor(255, 255, 255).mix(0.85).filled(),
-        ))?;
-        root.draw(&Rectangle::new(
-            [at, (at.0 + w, at.1 + h)],
-            zone_colour(p.zone()).stroke_width(1),
-        ))?;
-        root.draw_text(&text, &style, (at.0 + 3, at.1 + 2))?;
+        let label = Label::boxed(zone_colour(p.zone())).leader(Leader::Beyond(8));
+        label.draw(root, placer, c, &text, &style)?;
     }
     Ok(())
 }
 
-/// A thin line from a marker to the nearest point of its label box.
-fn leader<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    from: (i32, i32),
-    r: Rect,
-) -> DrawResult<DB> {
-    let to = (from.0.clamp(r.0, r.2), from.1.clamp(r.1, r.3));
-    if (to.0 - from.0).abs() + (to.1 - from.1).abs() > 8 {
-        root.draw(&PathElement::new(vec![from, to], BLACK.stroke_width(1)))?;
-    }
-    Ok(())
-}
-
-fn draw_line_labels<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    labels: &[(String, (i32, i32), RGBColor)],
-    placer: &mut Placer,
-) -> DrawResult<DB> {
-    for (text, anchor, colour) in labels {
-        let style = plot::text(13.0).color(colour);
-        let (w, h) = root.estimate_text_size(text, &style)?;
-        let (w, h) = (w as i32 + 4, h as i32 + 2);
-        let at = placer.place(*anchor, w, h);
-        root.draw(&Rectangle::new(
-            [at, (at.0 + w, at.1 + h)],
-            WHITE.mix(0.8).filled(),
-        ))?;
-        root.draw_text(text, &style, (at.0 + 2, at.1 + 1))?;
-    }
-    Ok(())
-}
-
-/// Job and curve line of the title, shared with the map.
-pub fn title_lines(a: &Analysis) -> (String, String, String) {
-    let j = &a.job;
-    let part = j.part.as_deref().unwrap_or("(part not named)");
-    let mut second = Vec::new();
-    if let Some(t) = &j.tryout {
-        second.push(format!("tryout {t}"));
-    }
-    if let Some(m) = &j.material {
-        second.push(m.clone());
-    }
-    if let Some(d) = &j.die {
-        second.push(format!("die {d}"));
-    }
-    second.push(neckline_core::output::count_of(a.total(), "location"));
-    let third = format!("Limit curve: {}, source: {}", a.curve.name, a.curve.source);
-    (part.to_string(), second.join("  ·  "), third)
-}
-
-fn draw_title<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    a: &Analysis,
-    m: StrainMeasure,
-) -> DrawResult<DB> {
-    let (part, second, third) = title_lines(a);
-    let head = format!("Forming-limit diagram: {part}");
-    let width = SIZE.0 - 30;
-    let t1 = plot::fit_px(root, &head, &plot::bold(23.0), width);
-    root.draw_text(&t1, &plot::bold(23.0), (15, 10))?;
-    let t2 = plot::fit_px(root, &second, &plot::text(16.0), width);
-    root.draw_text(&t2, &plot::text(16.0), (15, 40))?;
-    let t3 = format!("{third}  ({} strain axes)", plot::measure_word(m));
-    let t3 = plot::fit_px(root, &t3, &plot::text(14.0), width);
-    root.draw_text(&t3, &plot::text(14.0), (15, 64))
-}
-
-fn draw_legend<DB: DrawingBackend>(
+/// The legend: zones with their counts, the lines, the worst locations.
+fn legend<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     a: &Analysis,
     opts: &FldOptions,
-) -> DrawResult<DB> {
+) -> Legend {
     let x = PANEL_LEFT;
-    let mut y = TITLE_H + 16;
+    let mut l = Legend::new(x, TITLE_H + 16);
     if !opts.curve_only {
-        y = draw_zone_legend(root, a, opts, y)?;
-    }
-    root.draw_text("Lines", &plot::bold(16.0), (x, y))?;
-    y += 26;
-    let sample = |y: i32| vec![(x, y + 8), (x + 40, y + 8)];
-    root.draw(&PathElement::new(sample(y), BLACK.stroke_width(3)))?;
-    root.draw_text("limit curve", &plot::text(14.0), (x + 50, y))?;
-    y += 22;
-    if !opts.curve_only {
-        for d in plot::dashes(&sample(y), 9.0, 6.0) {
-            root.draw(&PathElement::new(d, BLACK.stroke_width(2)))?;
+        l.heading("Zones (locations)", 16.0, 28);
+        if draws_density(a, opts.measure) {
+            let note = format!(
+                "shaded cells: density of {} locations; markers: {} failed or marginal",
+                a.total(),
+                a.points().len()
+            );
+            l.note(root, &note, plot::text(12.0), 300, 15).gap(6);
         }
-        root.draw_text(&band_label(a, opts.measure), &plot::text(14.0), (x + 50, y))?;
-        y += 22;
+        for (zone, n) in a.counts() {
+            l.push(Row::counted(Key::zone(zone), zone.name(), n, &COUNTED));
+        }
+        let borderline = a.borderline().1;
+        if borderline > 0 {
+            let ring = Key::Borderline { at: (10, 8), r: 9 };
+            l.push(Row::counted(ring, "borderline", borderline, &COUNTED));
+        }
+        l.gap(12);
+    }
+    l.heading("Lines", 16.0, 26);
+    let line =
+        |stroke: Stroke, text: String| Row::entry(Key::Line { stroke, len: 40 }, text, &LINES);
+    l.push(line(chart::CURVE, "limit curve".into()));
+    if !opts.curve_only {
+        l.push(line(chart::BAND, band_label(a, opts.measure)));
         if let Some(max) = a.settings.max_thinning_pct {
-            for d in plot::dashes(&sample(y), 14.0, 3.0) {
-                root.draw(&PathElement::new(
-                    d,
-                    zone_colour(Zone::Failed).stroke_width(3),
-                ))?;
-            }
-            let t = format!("max thinning {} %", neckline_core::output::fmt_setting(max));
-            root.draw_text(&t, &plot::text(14.0), (x + 50, y))?;
-            y += 22;
+            l.push(line(chart::MAX_THINNING, max_thinning_label(max)));
         }
     }
-    for d in plot::dashes(&sample(y), 10.0, 4.0) {
-        root.draw(&PathElement::new(
-            d,
-            RGBColor(120, 120, 120).stroke_width(1),
-        ))?;
-    }
-    root.draw_text("strain paths", &plot::text(14.0), (x + 50, y))?;
-    y += 22;
-    for d in plot::dashes(&sample(y), 3.0, 4.0) {
-        root.draw(&PathElement::new(
-            d,
-            RGBColor(165, 165, 165).stroke_width(1),
-        ))?;
-    }
-    root.draw_text("thinning iso-lines", &plot::text(14.0), (x + 50, y))?;
+    l.push(line(chart::REFERENCE, "strain paths".into()));
+    l.push(line(chart::THINNING, "thinning iso-lines".into()));
     if !a.summary.observed_failed.is_empty() && !opts.curve_only {
-        y += 22;
-        root.draw(&Circle::new((x + 20, y + 8), 8, BLACK.stroke_width(2)))?;
-        root.draw_text("observed necked or split", &plot::text(14.0), (x + 50, y))?;
+        let ring = Key::Circle {
+            dx: 20,
+            r: 8,
+            style: BLACK.stroke_width(2),
+        };
+        l.push(Row::entry(ring, "observed necked or split", &LINES));
     }
-    y += 34;
-    if opts.curve_only {
-        return Ok(());
-    }
+    l.gap(12);
     let worst = a.worst(opts.labelled.max(1));
-    if worst.is_empty() {
-        return Ok(());
+    if opts.curve_only || worst.is_empty() {
+        return l;
     }
-    root.draw_text(
-        "Worst: failed first, then margin",
-        &plot::bold(15.0),
-        (x, y),
-    )?;
-    y += 24;
+    l.heading("Worst: failed first, then margin", 15.0, 24);
     for p in worst {
+        let key = Key::Marker {
+            shape: zone_shape(p.zone()),
+            fill: zone_colour(p.zone()),
+            r: 5,
+            dx: 6,
+        };
         let text = worst_label(p, &a.settings, opts.measure);
-        let text = plot::fit_px(root, &text, &plot::text(13.0), SIZE.0 - x as u32 - 40);
-        marker(
-            root,
-            zone_shape(p.zone()),
-            (x + 6, y + 8),
-            5,
-            zone_colour(p.zone()),
-            BLACK,
-        )?;
-        root.draw_text(&text, &plot::text(13.0), (x + 18, y))?;
-        y += 20;
-    }
-    Ok(())
-}
-
-/// The zones with their markers and counts; returns the next free line.
-fn draw_zone_legend<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    a: &Analysis,
-    opts: &FldOptions,
-    mut y: i32,
-) -> Result<i32, DrawingAreaErrorKind<DB::ErrorType>> {
-    let x = PANEL_LEFT;
-    root.draw_text("Zones (locations)", &plot::bold(16.0), (x, y))?;
-    y += 28;
-    if draws_density(a, opts.measure) {
-        let note = format!(
-            "shaded cells: density of {} locations; markers: {} failed or marginal",
-            a.total(),
-            a.points().len()
+        l.push(
+            Row::new(20)
+                .key(key)
+                .left(text, plot::text(13.0), 18)
+                .fit(SIZE.0 - x as u32 - 40),
         );
-        for line in plot::wrap_px(root, &note, &plot::text(12.0), 300) {
-            root.draw_text(&line, &plot::text(12.0), (x, y))?;
-            y += 15;
-        }
-        y += 6;
     }
-    for (zone, n) in a.counts() {
-        marker(
-            root,
-            zone_shape(zone),
-            (x + 10, y + 8),
-            6,
-            zone_colour(zone),
-            BLACK,
-        )?;
-        root.draw_text(zone.name(), &plot::text(15.0), (x + 28, y))?;
-        let count = n.to_string();
-        let (w, _) = root.estimate_text_size(&count, &plot::bold(15.0))?;
-        root.draw_text(&count, &plot::bold(15.0), (x + 200 - w as i32, y))?;
-        y += 25;
-    }
-    if a.borderline().1 > 0 {
-        borderline_ring(root, (x + 10, y + 8), 9)?;
-        root.draw_text("borderline", &plot::text(15.0), (x + 28, y))?;
-        let count = a.borderline().1.to_string();
-        let (w, _) = root.estimate_text_size(&count, &plot::bold(15.0))?;
-        root.draw_text(&count, &plot::bold(15.0), (x + 200 - w as i32, y))?;
-        y += 25;
-    }
-    Ok(y + 12)
-}
-
-/// The caution and a provenance line at the bottom of a picture.
-pub fn draw_footer<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    a: &Analysis,
-) -> DrawResult<DB> {
-    let style = plot::text(13.0).color(&RGBColor(60, 60, 60));
-    let mut y = FOOTER_TOP + 8;
-    root.draw(&PathElement::new(
-        vec![(15, FOOTER_TOP), (SIZE.0 as i32 - 15, FOOTER_TOP)],
-        RGBColor(200, 200, 200).stroke_width(1),
-    ))?;
-    for line in plot::wrap_px(root, CAUTION, &style, SIZE.0 - 30) {
-        root.draw_text(&line, &style, (15, y))?;
-        y += 17;
-    }
-    let prov = format!(
-        "neckline {}  ·  margin = limit curve minus major strain, percentage points of engineering strain  ·  input {}",
-        env!("CARGO_PKG_VERSION"),
-        a.input.file_name().map_or_else(|| "-".into(), |n| n.to_string_lossy().into_owned())
-    );
-    let prov = plot::fit_px(root, &prov, &style, SIZE.0 - 30);
-    root.draw_text(&prov, &style, (15, y))
+    l
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::chart::FOOTER_TOP;
     use crate::plot::hex;
     use neckline_core::output::fixture;
 
@@ -889,39 +588,5 @@ mod tests {
         let p = a.points().iter().find(|p| p.input.id == "F1").unwrap();
         let (x, y) = point_xy(p, StrainMeasure::True);
         assert!((y - 100.0 * 1.38f64.ln()).abs() < 1e-9 && (x - 100.0 * 0.95f64.ln()).abs() < 1e-9);
-    }
-
-    #[test]
-    fn thinning_lines_hold_constant_thickness_product() {
-        // t/t0 = 1/(λ1 λ2) by constant volume (any continuum mechanics text): on the 20 % line,
-        // (1 + e1)(1 + e2) = 1 / 0.8 = 1.25 in engineering strain.
-        for (x, y) in thinning_line(20.0, StrainMeasure::Engineering) {
-            assert!(((1.0 + x / 100.0) * (1.0 + y / 100.0) - 1.25).abs() < 1e-9);
-            assert!(y >= x - 1e-9, "major below minor at ({x}, {y})");
-        }
-    }
-
-    #[test]
-    fn reference_paths_have_their_strain_ratios() {
-        // Uniaxial tension of an isotropic sheet: β = ε2/ε1 = −1/2 in true strain, i.e.
-        // 1 + e2 = (1 + e1)^(−1/2) in engineering strain (FIELD notes §2, common practice).
-        let paths = reference_paths(StrainMeasure::Engineering);
-        for (x, y) in &paths[0].1[1..] {
-            let beta = (1.0 + x / 100.0).ln() / (1.0 + y / 100.0).ln();
-            assert!((beta + 0.5).abs() < 1e-9);
-        }
-        // Equibiaxial: e1 = e2.
-        assert!(paths[2].1.iter().all(|(x, y)| (x - y).abs() < 1e-9));
-    }
-
-    #[test]
-    fn band_is_curve_minus_margin_in_engineering_major() {
-        let a = fixture::analysis(true);
-        let c = curve_line(&a, StrainMeasure::Engineering);
-        let b = band_line(&a, StrainMeasure::Engineering);
-        assert_eq!(c.len(), b.len());
-        for (p, q) in c.iter().zip(&b) {
-            assert!((p.0 - q.0).abs() < 1e-9 && (p.1 - q.1 - 10.0).abs() < 1e-9);
-        }
     }
 }
