@@ -9,6 +9,10 @@ set -uo pipefail
 # paths and the usage line are alike; the results are then moved to OUTDIR.
 dest=$2
 work=${TMPDIR:-/tmp}/neckline-demo-outputs
+# One run at a time in that folder (two runs at once would mix their files).
+mkdir -p "$(dirname "$work")"
+exec 9>"$work.lock"
+flock 9
 rm -rf "$work" "$dest"
 mkdir -p "$work/bin" "$work/out"
 cp "$1" "$work/bin/neckline"
