@@ -136,6 +136,7 @@ pub fn judge_file(
         settings: prep.settings,
         lengths: prep.lengths,
         strain_input,
+        true_input: header.columns.gives_true_strains(),
     };
     let mut layout = Layout {
         strains_only: false,

@@ -80,6 +80,7 @@ pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>, Str
         settings,
         lengths,
         strain_input: false,
+        true_input: false,
     };
     let notes: Vec<String> = if read.ignored.is_empty() {
         Vec::new()

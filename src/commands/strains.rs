@@ -54,6 +54,7 @@ pub fn run(args: &StrainsArgs) -> Result<Outcome> {
         settings: Settings::default(),
         lengths,
         strain_input: header.columns.gives_strains(),
+        true_input: header.columns.gives_true_strains(),
     };
     let layout = Layout {
         strains_only: true,

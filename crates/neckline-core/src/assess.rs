@@ -5,15 +5,18 @@
 //! 1. `failed`, reason `curve`: on or above the curve (margin ≤ 0, within round-off);
 //! 2. `failed`, reason `thinning`: thinning at or past the set maximum, whatever the curve's
 //!    range (thinning needs no curve);
-//! 3. `uncovered`, reason `no-curve`: the minor strain is outside the curve's range: no verdict,
+//! 3. `failed`, reason `crossed`: the minor strain is outside the curve's range, but the
+//!    straight path from the origin through the location crosses the curve and the location is
+//!    at 100 % or more of its limit use: that path has already crossed the curve;
+//! 4. `uncovered`, reason `no-curve`: the minor strain is outside the curve's range: no verdict,
 //!    never safe;
-//! 4. `marginal`, reason `band`: inside the safety band below the curve (default 10 percentage
+//! 5. `marginal`, reason `band`: inside the safety band below the curve (default 10 percentage
 //!    points of engineering major strain, common practice for steel);
-//! 5. `thickening`, reason `thickening`: the sheet got thicker by at least the threshold
+//! 6. `thickening`, reason `thickening`: the sheet got thicker by at least the threshold
 //!    (default 2 % of t0, a judgement of ours, see [`DEFAULT_THICKENING_PCT`]): wrinkle tendency;
-//! 6. `low-stretch`, reason `low-stretch`: engineering major strain below the threshold
+//! 7. `low-stretch`, reason `low-stretch`: engineering major strain below the threshold
 //!    (default 2 %, common practice);
-//! 7. `safe`, reason `none`.
+//! 8. `safe`, reason `none`.
 
 use crate::kinematics::StrainState;
 use crate::limit::LimitCurve;
@@ -96,6 +99,9 @@ pub enum Reason {
     LowStretch,
     /// Minor strain outside the curve's range.
     NoCurve,
+    /// Minor strain outside the curve's range, but at 100 % or more of the limit along the
+    /// straight path from the origin, which crosses the curve.
+    Crossed,
     /// At risk or past the limit along its multi-stage path (polar effective plastic strain)
     /// while the strain curve is content.
     Path,
@@ -105,9 +111,10 @@ pub enum Reason {
 
 impl Reason {
     /// Every reason, in the order of the rules.
-    pub const ALL: [Reason; 8] = [
+    pub const ALL: [Reason; 9] = [
         Reason::Curve,
         Reason::Thinning,
+        Reason::Crossed,
         Reason::NoCurve,
         Reason::Band,
         Reason::Path,
@@ -125,6 +132,7 @@ impl Reason {
             Reason::Thickening => "thickening",
             Reason::LowStretch => "low-stretch",
             Reason::NoCurve => "no-curve",
+            Reason::Crossed => "crossed",
             Reason::Path => "path",
             Reason::None => "none",
         }
@@ -267,8 +275,10 @@ pub struct Judgement {
 pub fn judge(state: &StrainState, curve: &LimitCurve, settings: &Settings) -> Judgement {
     let limit_major = curve.limit_major_eng_of(state.true_strain.minor, state.eng.minor);
     let margin_pct = limit_major.map(|l| l.percent() - state.eng.major.percent());
-    let limit_use_pct = limit_major.and(curve.limit_use_pct(state));
-    let (zone, reason) = zone_of(state, margin_pct, settings);
+    // Wherever the straight path from the origin crosses the curve, also outside the curve's
+    // minor range.
+    let limit_use_pct = curve.limit_use_pct(state);
+    let (zone, reason) = zone_of_with_use(state, margin_pct, limit_use_pct, settings);
     Judgement {
         limit_major,
         margin_pct,
@@ -285,8 +295,17 @@ pub fn judge(state: &StrainState, curve: &LimitCurve, settings: &Settings) -> Ju
 /// strain times the curve's local slope, since the limit is read at the minor strain:
 /// `u = 100 de (1 + |de1_lim/de2|)` (first-order error propagation). For measured axes
 /// `de = δd/d0` (from `e = d/d0 − 1`; 0.025 mm on a 2.5 mm circle is 1 % strain, common
-/// practice); for strains given directly it is their own reading error.
+/// practice); for engineering strains given directly it is their own reading error; for true
+/// strains see [`margin_uncertainty_pct_of`].
 pub fn margin_uncertainty_pct(state: &StrainState, curve: &LimitCurve, de: f64) -> f64 {
+    margin_uncertainty_pct_of(state, curve, [de, de])
+}
+
+/// [`margin_uncertainty_pct`] with its own engineering strain error on each principal strain,
+/// `de = [δe2, δe1]` (fractions): `u = 100 (δe1 + |de1_lim/de2| δe2)`, the slope taken over
+/// ±δe2 on both sides. True strains read to ±δε have `δe = (1 + e) δε` (from `e = exp ε − 1`,
+/// de/dε = exp ε = 1 + e), so the two errors differ.
+pub fn margin_uncertainty_pct_of(state: &StrainState, curve: &LimitCurve, de: [f64; 2]) -> f64 {
     let e2 = state.eng.minor.value();
     let at = |e: f64| {
         crate::strain::EngStrain(e)
@@ -295,11 +314,11 @@ pub fn margin_uncertainty_pct(state: &StrainState, curve: &LimitCurve, de: f64) 
             .map(|l| l.value())
     };
     let here = at(e2);
-    let slope = |side: f64| match (here, at(e2 + side * de)) {
-        (Some(a), Some(b)) => ((b - a) / de).abs(),
+    let slope = |side: f64| match (here, at(e2 + side * de[0])) {
+        (Some(a), Some(b)) => ((b - a) / de[0]).abs(),
         _ => 0.0,
     };
-    100.0 * de * (1.0 + slope(1.0).max(slope(-1.0)))
+    100.0 * (de[1] + de[0] * slope(1.0).max(slope(-1.0)))
 }
 
 /// [`judge`], plus the borderline flag when a strain error `de` (a fraction) is given: a point
@@ -311,9 +330,19 @@ pub fn judge_reading(
     curve: &LimitCurve,
     settings: &Settings,
 ) -> Judgement {
+    judge_reading_of(state, de.map(|d| [d, d]), curve, settings)
+}
+
+/// [`judge_reading`] with an engineering strain error per principal strain, `[δe2, δe1]`.
+pub fn judge_reading_of(
+    state: &StrainState,
+    de: Option<[f64; 2]>,
+    curve: &LimitCurve,
+    settings: &Settings,
+) -> Judgement {
     let mut j = judge(state, curve, settings);
     if let (Some(de), Some(m)) = (de, j.margin_pct) {
-        let u = margin_uncertainty_pct(state, curve, de);
+        let u = margin_uncertainty_pct_of(state, curve, de);
         j.uncertainty_pct = Some(u);
         j.borderline = is_borderline(m, u, settings);
     }
@@ -338,12 +367,26 @@ pub fn zone_of(
     margin_pct: Option<f64>,
     settings: &Settings,
 ) -> (Zone, Reason) {
+    zone_of_with_use(state, margin_pct, None, settings)
+}
+
+/// [`zone_of`] with the limit use along the straight path from the origin (`None` where that
+/// path does not meet the curve): outside the curve's minor range, a location at 100 % or more
+/// is failed with the reason `crossed` (its straight path has already crossed the curve).
+pub fn zone_of_with_use(
+    state: &StrainState,
+    margin_pct: Option<f64>,
+    limit_use_pct: Option<f64>,
+    settings: &Settings,
+) -> (Zone, Reason) {
     let thinned_out = settings
         .max_thinning_pct
         .is_some_and(|m| state.thinning * 100.0 >= m - ROUND_OFF_PP);
+    let crossed = limit_use_pct.is_some_and(|u| u >= 100.0 - ROUND_OFF_PP);
     match margin_pct {
         Some(m) if m <= ROUND_OFF_PP => return (Zone::Failed, Reason::Curve),
         _ if thinned_out => return (Zone::Failed, Reason::Thinning),
+        None if crossed => return (Zone::Failed, Reason::Crossed),
         None => return (Zone::Uncovered, Reason::NoCurve),
         Some(m) if m < settings.margin_pct - ROUND_OFF_PP => return (Zone::Marginal, Reason::Band),
         Some(_) => {}

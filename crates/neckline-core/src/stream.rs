@@ -489,6 +489,7 @@ mod tests {
             settings: crate::assess::Settings::default(),
             lengths,
             strain_input: false,
+            true_input: false,
         };
         for t in ["tryout-1.csv", "tryout-2.csv"] {
             let path = root.join("../../demo-parts/rear-floor-pan").join(t);

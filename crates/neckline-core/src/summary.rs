@@ -391,7 +391,7 @@ impl Summary {
     ///     Path::new("kb.toml"),
     /// )?;
     /// let lengths = Lengths { unit: Default::default(), d0: Some(2.5), t0: None };
-    /// let ctx = Context { curve, settings: Settings::default(), lengths, strain_input: false };
+    /// let ctx = Context { curve, settings: Settings::default(), lengths, strain_input: false, true_input: false };
     /// let judged: Vec<_> = [("A", 3.40), ("B", 3.25), ("C", 2.75)]
     ///     .into_iter()
     ///     .enumerate()
@@ -518,6 +518,7 @@ mod tests {
             settings: Settings::default(),
             lengths,
             strain_input: false,
+            true_input: false,
         };
         let mut state = 11u64;
         let mut next = || {

@@ -68,6 +68,7 @@ fn stream(bytes: &[u8], reading_error: Option<f64>) {
         settings,
         lengths,
         strain_input: header.columns.gives_strains(),
+        true_input: header.columns.gives_true_strains(),
     };
     let layout = Layout {
         z: header.columns.has("z"),

@@ -152,6 +152,7 @@ fn judge_csv(text: &str) -> (Zone, Option<f64>) {
         settings: Settings::default(),
         lengths,
         strain_input: false,
+        true_input: false,
     };
     let m = set.points.into_iter().next().expect("the row is read");
     let p = ctx.judge(state_of(m, file, &lengths).unwrap());

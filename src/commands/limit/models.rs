@@ -328,6 +328,7 @@ fn curve_picture(curve: &LimitCurve, format: PictureFormat) -> std::io::Result<V
             t0: None,
         },
         strain_input: false,
+        true_input: false,
     };
     let mut a = Analysis::new(
         PathBuf::from("(generated curve)"),

@@ -48,6 +48,7 @@ pub(super) const OWN_RESULT_COLUMNS: &[&str] = &[
     "margin_uncertainty_pct",
     "borderline",
     "thinning_measured_pct",
+    "peps_use_uncertainty_pct",
     "reason",
     "",
 ];
@@ -56,8 +57,10 @@ pub(super) const OWN_RESULT_COLUMNS: &[&str] = &[
 /// effective strain, the direction of the last increment (degrees: 90 plane strain, 45
 /// equibiaxial), its limit and the use of it, the bend of the path (degrees between the first
 /// and the last increment), the zone by the strain curve alone and by the path criterion, and
-/// `yes` where the major axis turned between stages (the criterion's fixed-axes assumption fails).
-pub const PATH_COLUMNS: [&str; 9] = [
+/// `yes` where the major axis turned between stages (with `angle_deg` the increments are taken
+/// in the part's fixed frame), and the path's notes (unloading beyond the noise, axes that may
+/// have turned, a straight path judged by the strain curve alone).
+pub const PATH_COLUMNS: [&str; 10] = [
     "stages",
     "peps_effective_pct",
     "peps_angle_deg",
@@ -67,7 +70,12 @@ pub const PATH_COLUMNS: [&str; 9] = [
     "strain_zone",
     "peps_zone",
     "path_turned",
+    "path_note",
 ];
+
+/// The path column added when a reading error is set: the uncertainty of `peps_use_pct`,
+/// percentage points.
+pub const PATH_READING_COLUMNS: [&str; 1] = ["peps_use_uncertainty_pct"];
 
 /// Columns added at the end when the locations were computed from grid nodes: major direction
 /// in the blank (degrees from +X), in-plane rotation (2-D), formed-surface normal and centre
@@ -145,6 +153,11 @@ impl Columns {
     /// Whether rows give strains rather than axes.
     pub fn gives_strains(&self) -> bool {
         !matches!(self.kind, Kind::Axes { .. })
+    }
+
+    /// Whether rows give true strains (alone or beside engineering ones, which they win over).
+    pub fn gives_true_strains(&self) -> bool {
+        matches!(self.kind, Kind::True { .. } | Kind::Both { .. })
     }
 
     /// The field number of neckline's column `name`, when the file has it.

@@ -44,7 +44,7 @@ mod rules;
 mod screen;
 
 pub use column_map::{check_name, ColumnMap};
-pub use columns::{Columns, GRID_COLUMNS, NAMES, PATH_COLUMNS};
+pub use columns::{Columns, GRID_COLUMNS, NAMES, PATH_COLUMNS, PATH_READING_COLUMNS};
 pub(crate) use dialect::{csv_error, read_header_line};
 pub use dialect::{csv_reader, parse_number, Dialect};
 pub use header::Header;

@@ -101,6 +101,7 @@ pub fn analysis(with_xy: bool) -> Analysis {
         settings,
         lengths,
         strain_input: false,
+        true_input: false,
     };
     let states = set
         .points

@@ -438,6 +438,29 @@ pub fn fmt_length(v: f64, unit: crate::units::LengthUnit) -> String {
 /// Why a location is in its zone, in words with the numbers that decided it:
 /// "thinning 27.7 % (max 25)", "margin 4.2 pp < band 10", "thicker 3.3 % (from 2)".
 pub fn reason_text(p: &crate::point::PointResult, st: &crate::assess::Settings) -> String {
+    let text = strain_reason_text(p, st);
+    // Where both criteria judge and the strain curve's zone ranks worse, the path's differing
+    // finding is shown beside it.
+    match &p.path {
+        Some(pj)
+            if p.judgement.reason != crate::assess::Reason::Path
+                && pj.judges()
+                && pj.zone != p.zone() =>
+        {
+            match pj.use_pct {
+                Some(u) => format!(
+                    "{text}; path {} {} %",
+                    pj.zone,
+                    fmt_against(u, &[(100.0, false)], 1)
+                ),
+                None => format!("{text}; path {}", pj.zone),
+            }
+        }
+        _ => text,
+    }
+}
+
+fn strain_reason_text(p: &crate::point::PointResult, st: &crate::assess::Settings) -> String {
     use crate::assess::Reason;
     let j = &p.judgement;
     let band = st.margin_pct;
@@ -475,10 +498,21 @@ pub fn reason_text(p: &crate::point::PointResult, st: &crate::assess::Settings) 
             "minor {} % off the curve",
             fmt_against(p.strain.eng.minor.percent(), &[], 1)
         ),
+        Reason::Crossed => format!(
+            "crossed the curve: {} % of limit (minor {} % off the curve)",
+            fmt_against(j.limit_use_pct.unwrap_or(f64::NAN), &[(100.0, false)], 1),
+            fmt_against(p.strain.eng.minor.percent(), &[], 1)
+        ),
         Reason::Path => match &p.path {
-            Some(pj) if pj.use_pct.is_none() => {
-                format!("no path limit; curve: {} pp {}", margin(), pj.strain_zone)
-            }
+            Some(pj) if pj.use_pct.is_none() => match pj.notes.is_empty() {
+                true => format!("no path limit; curve: {} pp {}", margin(), pj.strain_zone),
+                false => format!(
+                    "no path limit: {}; curve: {} pp {}",
+                    pj.notes.join("; "),
+                    margin(),
+                    pj.strain_zone
+                ),
+            },
             Some(pj) => format!(
                 "path {} % of limit; curve: {} pp {}",
                 fmt_against(pj.use_pct.unwrap_or(f64::NAN), &[(100.0, false)], 1),

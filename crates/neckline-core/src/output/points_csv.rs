@@ -7,7 +7,7 @@
 //! is read from, 4), limit use 2 decimals, `beta` 3 decimals, thickness
 //! 4 decimals in mm and 5 in inches (0.1 µm, 0.01 thou), positions 3 decimals, d0 4 decimals.
 
-pub use crate::measure::{GRID_COLUMNS, PATH_COLUMNS};
+pub use crate::measure::{GRID_COLUMNS, PATH_COLUMNS, PATH_READING_COLUMNS};
 use crate::output::push_fixed_bytes;
 use crate::point::PointResult;
 use crate::units::LengthUnit;
@@ -100,6 +100,9 @@ impl Layout {
         }
         if self.path {
             h.extend(PATH_COLUMNS);
+            if self.reading {
+                h.extend(PATH_READING_COLUMNS);
+            }
         }
         if self.grid {
             h.extend(GRID_COLUMNS);
@@ -179,6 +182,9 @@ impl Layout {
         }
         if self.path {
             path_fields(f, p);
+            if self.reading {
+                f.num(p.path.as_ref().and_then(|j| j.use_uncertainty_pct), 2);
+            }
         }
         if self.grid {
             grid_fields(f, p);
@@ -228,6 +234,7 @@ fn path_fields(f: &mut Fields<'_>, p: &PointResult) {
         f.text(p.zone().name());
         f.text("");
         f.text("");
+        f.text("");
         return;
     };
     f.text(&j.stages.len().to_string());
@@ -239,6 +246,11 @@ fn path_fields(f: &mut Fields<'_>, p: &PointResult) {
     f.text(j.strain_zone.name());
     f.text(j.zone.name());
     f.text(if j.turned { "yes" } else { "" });
+    let mut notes = j.notes.clone();
+    if j.straight && j.angle_deg.is_some() && j.stages.len() > 1 {
+        notes.push("straight within the noise: judged by the strain curve".into());
+    }
+    f.text(&notes.join("; "));
 }
 
 fn grid_fields(f: &mut Fields<'_>, p: &PointResult) {

@@ -9,7 +9,7 @@
 pub mod elements;
 pub mod staged;
 
-use crate::assess::{judge_reading, Judgement, Settings, Zone};
+use crate::assess::{judge_reading_of, Judgement, Settings, Zone};
 use crate::error::Location;
 use crate::grid::GridExtras;
 use crate::kinematics::StrainState;
@@ -86,6 +86,9 @@ pub struct Context {
     pub lengths: Lengths,
     /// Whether the file gives strains (the reading error is then in percentage points).
     pub strain_input: bool,
+    /// Whether those strains are true strains (the reading error is then in percentage points
+    /// of true strain).
+    pub true_input: bool,
 }
 
 impl Context {
@@ -98,6 +101,31 @@ impl Context {
             Some(d0) => Some(r / d0),
             None => Some(r / 100.0),
         }
+    }
+
+    /// The engineering strain errors `[δe2, δe1]` (fractions) of one reading, each converted
+    /// once from the input's own measure: axes `δe = δd/d0` (from `e = d/d0 − 1`); engineering
+    /// strains their reading error; true strains `δe = (1 + e) δε` (from `e = exp ε − 1`).
+    pub fn eng_strain_errors(&self, d0: Option<f64>, strain: &StrainState) -> Option<[f64; 2]> {
+        let de = self.strain_error(d0)?;
+        Some(if d0.is_none() && self.true_input {
+            [
+                (1.0 + strain.eng.minor.value()) * de,
+                (1.0 + strain.eng.major.value()) * de,
+            ]
+        } else {
+            [de, de]
+        })
+    }
+
+    /// The true strain errors `[δε2, δε1]` of one reading: `δε = δe/(1 + e)` (from
+    /// `ε = ln(1 + e)`), the reading error itself for true strains given directly.
+    pub fn true_strain_errors(&self, d0: Option<f64>, strain: &StrainState) -> Option<[f64; 2]> {
+        let [d2, d1] = self.eng_strain_errors(d0, strain)?;
+        Some([
+            d2 / (1.0 + strain.eng.minor.value()),
+            d1 / (1.0 + strain.eng.major.value()),
+        ])
     }
 
     /// Judge one location.
@@ -119,7 +147,12 @@ impl Context {
         strain: StrainState,
     ) -> PointResult {
         PointResult {
-            judgement: judge_reading(&strain, self.strain_error(d0), &self.curve, &self.settings),
+            judgement: judge_reading_of(
+                &strain,
+                self.eng_strain_errors(d0, &strain),
+                &self.curve,
+                &self.settings,
+            ),
             thickness: self.lengths.t0.map(|t0| strain.thickness(t0)),
             input,
             d0,

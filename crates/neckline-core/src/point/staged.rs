@@ -6,7 +6,7 @@ use super::{state_of, Context, PointResult, StateInput};
 use crate::assess::Reason;
 use crate::error::{Error, Location, Result};
 use crate::measure::{MeasurementReader, RejectedRow};
-use crate::path::judge_path;
+use crate::path::{combined_zone, judge_path_noisy};
 use std::collections::HashMap;
 
 /// The locations of a multi-stage file, each judged at its last stage by the strain curve and
@@ -92,15 +92,29 @@ pub fn judge_staged<B: std::io::BufRead>(
             })
             .collect();
         let axes: Vec<Option<f64>> = list.iter().map(|(_, s)| s.input.angle_deg).collect();
+        let errors: Option<Vec<[f64; 2]>> = list
+            .iter()
+            .map(|(_, s)| ctx.true_strain_errors(s.d0, &s.strain))
+            .collect();
         let Some((_, last)) = list.pop() else {
             continue;
         };
         let mut p = ctx.judge(last);
         if staged {
-            let j = judge_path(&path, &ctx.curve, ctx.settings.margin_pct, p.zone(), &axes);
-            if j.zone < p.judgement.zone {
-                p.judgement.zone = j.zone;
+            let j = judge_path_noisy(
+                &path,
+                &ctx.curve,
+                ctx.settings.margin_pct,
+                p.zone(),
+                &axes,
+                errors.as_deref(),
+            );
+            // One rule for the two criteria: a bent path's zone wins when it ranks worse
+            // (failed, uncovered, marginal, thickening, low-stretch, safe).
+            if let Some(zone) = combined_zone(p.judgement.zone, &j) {
+                p.judgement.zone = zone;
                 p.judgement.reason = Reason::Path;
+                p.judgement.borderline = j.borderline;
             }
             p.path = Some(Box::new(j));
         }
