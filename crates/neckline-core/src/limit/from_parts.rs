@@ -691,7 +691,11 @@ impl PartsFit {
         let (ns, nf) = self.near;
         if ns < NEAR_MIN || nf < NEAR_MIN {
             v.push(format!(
-                "few circles near the boundary: {ns} safe and {nf} necked-or-split within {} %                  true major strain of the 50 % line (at least {NEAR_MIN} of each wanted: the                  written line is the {} % necking line, and with fewer than {NEAR_MIN} circles                  of a kind not one of them is expected beyond it); read more circles across and                  beside necks",
+                "few circles near the boundary: {ns} safe and {nf} necked-or-split within {} % \
+                 true major strain of the 50 % line (at least {NEAR_MIN} of each wanted: the \
+                 written line is the {} % necking line, and with fewer than {NEAR_MIN} circles \
+                 of a kind not one of them is expected beyond it); read more circles across and \
+                 beside necks",
                 100.0 * NEAR_BAND,
                 100.0 * self.level
             ));
@@ -707,10 +711,15 @@ impl PartsFit {
                 .map(|(f, s)| format!("{f} below {s}"))
                 .collect();
             if self.contradictions.len() > SHOWN {
-                listed.push(format!("and {} more pairs", self.contradictions.len() - SHOWN));
+                listed.push(format!(
+                    "and {} more pairs",
+                    self.contradictions.len() - SHOWN
+                ));
             }
             v.push(format!(
-                "contradictory labels: {} of {} circles ({:.1} %, more than {} %) are in pairs                  where a necked or split circle lies more than {} % true major strain below a                  safe one within {} % minor strain: {}; check their marks and readings",
+                "contradictory labels: {} of {} circles ({:.1} %, more than {} %) are in pairs \
+                 where a necked or split circle lies more than {} % true major strain below a \
+                 safe one within {} % minor strain: {}; check their marks and readings",
                 ids.len(),
                 self.counts.safe + self.counts.failed(),
                 100.0 * share,
@@ -723,7 +732,9 @@ impl PartsFit {
         let (lo, hi) = (self.knots[0], self.knots[self.knots.len() - 1]);
         match self.supported {
             Some((a, b)) if a > lo || b < hi => v.push(format!(
-                "only one kind of circle near the curve's ends: supported from {:.2} to {:.2} %                  true minor strain of {:.2} to {:.2} % (the file's `supported`; check warns for                  locations judged beyond it)",
+                "only one kind of circle near the curve's ends: supported from {:.2} to {:.2} % \
+                 true minor strain of {:.2} to {:.2} % (the file's `supported`; check warns for \
+                 locations judged beyond it)",
                 100.0 * a,
                 100.0 * b,
                 100.0 * lo,

@@ -338,7 +338,6 @@ fn overlap_counts_and_bands_by_hand() {
     assert_eq!(r[1].wrong_side(), 0);
 }
 
-
 // --- the recovery study -----------------------------------------------------------------------
 
 /// Circles per run, as in the benchmark.
@@ -365,7 +364,10 @@ fn conservative_line_holds_under_the_known_curve_at_every_share() {
     for share in study::SHARES {
         let dev = study_share(share);
         let below = dev.iter().filter(|d| **d <= 0.0).count();
-        assert!(below >= 9, "share {share}: {below} of 10 at or below: {dev:?}");
+        assert!(
+            below >= 9,
+            "share {share}: {below} of 10 at or below: {dev:?}"
+        );
         means.push(study::spread(&dev));
     }
     let (m50, lo50, hi50) = means[0];
