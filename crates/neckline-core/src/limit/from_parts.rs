@@ -327,7 +327,7 @@ pub fn contradicted_ids(pairs: &[(String, String)]) -> Vec<String> {
 pub fn supported_range(overlap: &[KnotReport]) -> Option<(f64, f64)> {
     let mut both = overlap.iter().filter(|r| r.band != Band::OneSided);
     let first = both.next()?.minor;
-    let last = both.last().map_or(first, |r| r.minor);
+    let last = both.next_back().map_or(first, |r| r.minor);
     Some((first, last))
 }
 
