@@ -37,6 +37,7 @@ fn unbounded_curve() -> LimitCurve {
         measure: neckline_core::strain::StrainMeasure::True,
         points: vec![[-1e6, 1e6], [1e6, 1e6]],
         warnings: Vec::new(),
+        supported: None,
         true_path: Default::default(),
     }
 }

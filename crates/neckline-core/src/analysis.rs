@@ -85,6 +85,8 @@ impl Analysis {
         let mut warnings = ctx.curve.warnings.clone();
         warnings.extend(thickness_mismatch(&ctx.curve, &ctx.lengths));
         warnings.extend(notes.iter().cloned());
+        let mut summary = Summary::new(view);
+        summary.supported = ctx.curve.supported_true();
         Analysis {
             input,
             job,
@@ -92,7 +94,7 @@ impl Analysis {
             curve: ctx.curve,
             settings: ctx.settings,
             strain_input: ctx.strain_input,
-            summary: Summary::new(view),
+            summary,
             stages: Vec::new(),
             warnings,
             files: Vec::new(),
@@ -127,6 +129,26 @@ impl Analysis {
     /// Add the warnings that need the whole file (strain columns that disagree).
     pub fn finish(&mut self) {
         self.summary.flush();
+        if let (Some((lo, hi)), u) = (self.summary.supported, &self.summary.unsupported) {
+            if u.total > 0 {
+                self.warnings.push(format!(
+                    "{} location{} judged on an unsupported part of the curve (outside {:.2} to \
+                     {:.2} % true minor strain, where the circles it was fitted to were of one \
+                     kind only): {}{}",
+                    u.total,
+                    if u.total == 1 { " was" } else { "s were" },
+                    100.0 * lo,
+                    100.0 * hi,
+                    u.items
+                        .iter()
+                        .take(10)
+                        .cloned()
+                        .collect::<Vec<_>>()
+                        .join(", "),
+                    if u.total > 10 { ", ..." } else { "" }
+                ));
+            }
+        }
         let d = &self.summary.disagree;
         if d.total > 0 {
             self.warnings.push(format!(

@@ -332,6 +332,7 @@ impl Pass<'_> {
         let mut chunks = Chunker::new(body, h.lines + 1, h.dialect.delimiter());
         let mut seen = SeenIds::default();
         let mut summary = Summary::new(self.view);
+        summary.supported = self.ctx.curve.supported_true();
         let batch = 2 * rayon::current_num_threads().max(1);
         let out_err = |e| Error::io(std::path::Path::new("points.csv"), e);
         std::thread::scope(|scope| {

@@ -151,6 +151,7 @@ fn widen_by(e: &mut Option<[f64; 4]>, o: Option<[f64; 4]>) {
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Template {
     view: View,
+    supported: Option<(f64, f64)>,
     density_level: u32,
     map_level: u32,
     complete: bool,
@@ -160,6 +161,7 @@ impl Template {
     /// An empty summary to fold the next part of the file into.
     pub fn part(&self) -> Summary {
         let mut s = Summary::new(self.view);
+        s.supported = self.supported;
         s.density.level = self.density_level;
         s.map.level = self.map_level;
         // Past the size where every location is kept, the parts keep only what a merge keeps.
@@ -222,6 +224,10 @@ pub struct Summary {
     pub observed: crate::observed::ObservedTally,
     /// Locations observed necked or split, kept for drawing (the first [`AT_RISK_KEPT`]).
     pub observed_failed: Vec<PointResult>,
+    /// The curve's supported true minor strain range, when it states one (a press-shop curve).
+    pub supported: Option<(f64, f64)>,
+    /// Locations judged on the curve outside its supported range.
+    pub unsupported: Capped<String>,
 }
 
 impl Summary {
@@ -253,6 +259,8 @@ impl Summary {
             turned: Capped::default(),
             observed: Default::default(),
             observed_failed: Vec::new(),
+            supported: None,
+            unsupported: Capped::default(),
         }
     }
 
@@ -265,6 +273,7 @@ impl Summary {
     pub fn template(&self) -> Template {
         Template {
             view: self.view,
+            supported: self.supported,
             density_level: self.density.level,
             map_level: self.map.level,
             complete: self.complete,
@@ -327,6 +336,12 @@ impl Summary {
             }
             if j.turned {
                 self.turned.push_with(|| p.input.id.clone());
+            }
+        }
+        if let (Some((lo, hi)), Some(_)) = (self.supported, p.judgement.limit_major) {
+            let minor = p.strain.true_strain.minor.value();
+            if minor < lo || minor > hi {
+                self.unsupported.push_with(|| p.input.id.clone());
             }
         }
         if p.judgement.margin_pct.is_some() || p.zone() == Zone::Failed {
@@ -464,6 +479,7 @@ impl Summary {
         self.paths += o.paths;
         self.hidden.merge(o.hidden);
         self.turned.merge(o.turned);
+        self.unsupported.merge(o.unsupported);
         self.observed.merge(o.observed);
         let room = AT_RISK_KEPT.saturating_sub(self.observed_failed.len());
         self.observed_failed

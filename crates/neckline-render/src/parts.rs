@@ -62,8 +62,11 @@ fn condition_style(c: Condition) -> (plot::Shape, RGBColor) {
     }
 }
 
-/// The curve where a knot has one kind of circle only.
+/// The written curve beyond its supported range (a knot with one kind of circle only).
 const ONE_SIDED: Stroke = Stroke::dashed(BLACK, 3, 8.0, 5.0);
+/// The 50 % line, the fitted boundary (information: the written curve lies below it).
+/// Okabe-Ito blue (Okabe & Ito 2008).
+const MEDIAN: Stroke = Stroke::solid(RGBColor(0x00, 0x72, 0xB2), 2);
 
 struct PartsPlot<'a> {
     curve: &'a LimitCurve,
@@ -79,7 +82,14 @@ impl PartsPlot<'_> {
             .circles
             .iter()
             .map(|c| (c.minor, c.major))
-            .chain(self.fit.knots.iter().copied().zip(self.fit.majors.clone()));
+            .chain(self.fit.knots.iter().copied().zip(self.fit.majors.clone()))
+            .chain(
+                self.fit
+                    .knots
+                    .iter()
+                    .copied()
+                    .zip(self.fit.conservative.clone()),
+            );
         let (mut x, mut y) = ((0.0f64, 0.0f64), (0.0f64, 0.0f64));
         for (a, b) in pts {
             x = (x.0.min(100.0 * a), x.1.max(100.0 * a));
@@ -143,8 +153,8 @@ impl PartsPlot<'_> {
         }
     }
 
-    /// The fitted curve: solid between knots that both have safe and necked-or-split circles
-    /// near them, dashed where a knot has one kind only (the curve is carried there by the
+    /// The 50 % line thin, and the written curve: solid over its supported range (the knots
+    /// whose nearest circles are of both kinds), dashed beyond it (carried there by the
     /// smoothness penalty, not bracketed by evidence).
     fn draw_curve<DB: DrawingBackend>(
         &self,
@@ -153,13 +163,22 @@ impl PartsPlot<'_> {
         xr: (f64, f64),
         yr: (f64, f64),
     ) -> plot::DrawResult<DB> {
-        let o = &self.fit.overlap;
-        for w in o.windows(2) {
+        let f = self.fit;
+        let median: Vec<(f64, f64)> = f.median_pct().iter().map(|p| (p[0], p[1])).collect();
+        for run in plot::clip_polyline(&median, xr, yr) {
+            let run: Vec<_> = run.iter().map(|p| px(*p)).collect();
+            MEDIAN.draw(root, &run)?;
+        }
+        let inside = |x: f64| {
+            f.supported
+                .is_some_and(|(lo, hi)| x >= lo - 1e-12 && x <= hi + 1e-12)
+        };
+        for k in 1..f.knots.len() {
             let piece = [
-                (100.0 * w[0].minor, 100.0 * w[0].major),
-                (100.0 * w[1].minor, 100.0 * w[1].major),
+                (100.0 * f.knots[k - 1], 100.0 * f.conservative[k - 1]),
+                (100.0 * f.knots[k], 100.0 * f.conservative[k]),
             ];
-            let bracketed = w.iter().all(|r| r.band != Band::OneSided);
+            let bracketed = inside(f.knots[k - 1]) && inside(f.knots[k]);
             let stroke = if bracketed { chart::CURVE } else { ONE_SIDED };
             for run in plot::clip_polyline(&piece, xr, yr) {
                 let run: Vec<_> = run.iter().map(|p| px(*p)).collect();
@@ -263,8 +282,9 @@ impl PartsPlot<'_> {
             style: BLACK.stroke_width(2),
         };
         for (key, text, step) in [
-            (line(chart::CURVE), "fitted curve, □ knots", 22),
-            (line(ONE_SIDED), "one kind of circle only", 24),
+            (line(chart::CURVE), "curve written (lower bound)", 22),
+            (line(ONE_SIDED), "beyond supported range", 24),
+            (line(MEDIAN), "50 % line, □ knots", 24),
             (ring, "circle on the wrong side", 26),
             (
                 Key::Patch(mix.mix(0.45).filled()),
@@ -287,12 +307,12 @@ impl PartsPlot<'_> {
                     r.right(text, plot::text(13.0), at)
                 })
         };
-        l.push(row(["minor", "curve", "wrong side"].map(String::from), 19));
-        for r in &self.fit.overlap {
+        l.push(row(["minor", "50 %", "written"].map(String::from), 19));
+        for (r, c) in self.fit.overlap.iter().zip(&self.fit.conservative) {
             let cells = [
                 format!("{:.1}", 100.0 * r.minor),
                 format!("{:.1}", 100.0 * r.major),
-                r.wrong_side().to_string(),
+                format!("{:.1}", 100.0 * c),
             ];
             l.push(row(cells, 18));
         }

@@ -162,6 +162,7 @@ pub fn keeler_brazier_curve(a: &KeelerBrazierArgs) -> Result<GeneratedCurve> {
         measure: StrainMeasure::Engineering,
         points_pct: kb.points_pct(),
         notes: Vec::new(),
+        extra: Vec::new(),
     })
 }
 
@@ -193,6 +194,7 @@ pub fn necking_curve(a: &NeckingArgs) -> Result<GeneratedCurve> {
         measure: StrainMeasure::True,
         points_pct: pts.iter().map(|p| [100.0 * p[0], 100.0 * p[1]]).collect(),
         notes: Vec::new(),
+        extra: Vec::new(),
     })
 }
 
@@ -246,6 +248,7 @@ pub fn mk_curve(a: &MkArgs) -> Result<GeneratedCurve> {
             .map(|p| [100.0 * p.minor(), 100.0 * p.major])
             .collect(),
         notes: mk_notes(&limits),
+        extra: Vec::new(),
     })
 }
 

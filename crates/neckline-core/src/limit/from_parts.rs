@@ -60,6 +60,32 @@ pub const MIN_RANGES: usize = 3;
 pub const SCALE_MAX: f64 = 0.2;
 /// Ratio of neighbouring scales in the profile over `s`.
 pub const SCALE_RATIO: f64 = 1.1;
+/// The necking probability of the written (conservative) line: 5 %. A circle on it is necked
+/// one time in twenty by the fitted model; the figure follows the lower 5 % fractile that
+/// lower-bound design values are commonly set at (common practice).
+pub const CONSERVATIVE_LEVEL: f64 = 0.05;
+/// One-sided 95 % point of the standard normal distribution, 1.645 (normal table): the
+/// confidence allowance below the 5 % line is this many standard errors of the 50 % line.
+pub const CONFIDENCE_Z: f64 = 1.645;
+/// Half-width of the band about the 50 % line in which a circle counts as near the boundary:
+/// 5 % true major strain, about three times the ±1-2 % reading error of a tape (from memory):
+/// farther away, a circle's kind says nothing about where the boundary lies.
+pub const NEAR_BAND: f64 = 0.05;
+/// Fewest circles of each kind near the boundary before the fit is flagged: 20. The written
+/// line is the 5 % line, a 1-in-20 fractile: with fewer than 20 circles of a kind near the
+/// boundary, not even one of them is expected beyond that line, so the level rests on the
+/// model's shape rather than on circles.
+pub const NEAR_MIN: usize = 20;
+/// Two circles count as at about the same minor strain within 1 % true strain (twice the 0.5 %
+/// an optical reading resolves, from memory).
+pub const CONTRA_MINOR: f64 = 0.01;
+/// A safe circle more than 5 % true major strain above a necked-or-split one at about the same
+/// minor strain contradicts it: two readings with the ±1.5 % scatter of a tape differ by more
+/// than 5 % less than one time in a hundred (5/(1.5·√2) = 2.4 standard deviations, normal
+/// table), so such a pair is a mislabel or a misread, not noise.
+pub const CONTRA_MAJOR: f64 = 0.05;
+/// Share of circles in contradictory pairs above which the fit warns: 5 %.
+pub const CONTRA_SHARE: f64 = 0.05;
 
 /// One circle read on a part: its true strains and the condition marked.
 #[derive(Debug, Clone, PartialEq)]
@@ -83,6 +109,9 @@ pub struct FitSettings {
     pub smoothing: f64,
     /// Smallest logistic scale `s`, true strain: the finest scatter a reading resolves.
     pub scale_min: f64,
+    /// Weight the two kinds of circle to equal totals ([`class_weights`]); `false` weights
+    /// every circle 1, the earlier fit whose line moves with the mix (kept for the study).
+    pub balanced: bool,
 }
 
 impl Default for FitSettings {
@@ -95,6 +124,7 @@ impl Default for FitSettings {
             knot_spacing: 0.05,
             smoothing: 0.1,
             scale_min: 0.005,
+            balanced: true,
         }
     }
 }
@@ -222,6 +252,85 @@ pub fn check_evidence(circles: &[PartCircle], h: f64) -> Result<Vec<(f64, f64)>,
     }
 }
 
+/// The class weights `(safe, necked-or-split)`: `N/(2 Ns)` and `N/(2 Nf)`, so that each kind
+/// carries half of the total weight `N` whatever the mix. Unweighted, the likelihood's boundary
+/// moves towards the rarer kind as the mix changes (the intercept of a logistic model carries
+/// the log of the prior odds; King & Zeng 2001, *Logistic regression in rare events data*,
+/// Political Analysis 9); with equal class totals the prior odds are 1 and the 50 % line
+/// stays where the two kinds meet.
+pub fn class_weights(c: &Counts) -> (f64, f64) {
+    let n = (c.safe + c.failed()) as f64;
+    let half = |k: usize| if k == 0 { 0.0 } else { n / (2.0 * k as f64) };
+    (half(c.safe), half(c.failed()))
+}
+
+/// The vertical distance from the 50 % line to the line of necking probability `p` of a
+/// logistic boundary of scale `s`: `s · ln(p / (1 − p))` (negative below 1/2).
+pub fn level_offset(p: f64, s: f64) -> f64 {
+    s * (p / (1.0 - p)).ln()
+}
+
+/// Circles of each kind within [`NEAR_BAND`] of the 50 % line: `(safe, necked-or-split)`.
+pub fn near_counts(circles: &[PartCircle], knots: &[f64], majors: &[f64]) -> (usize, usize) {
+    let mut n = (0, 0);
+    for p in circles {
+        if (p.major - eval(knots, majors, p.minor)).abs() <= NEAR_BAND {
+            if p.condition.failed() {
+                n.1 += 1;
+            } else {
+                n.0 += 1;
+            }
+        }
+    }
+    n
+}
+
+/// Contradictory labels: every pair of a necked-or-split circle and a safe circle within
+/// [`CONTRA_MINOR`] of it in minor strain that lies more than [`CONTRA_MAJOR`] above it, as
+/// `(necked-or-split id, safe id)`, in the order of the necked-or-split circles' minor strain.
+pub fn contradictions(circles: &[PartCircle]) -> Vec<(String, String)> {
+    let mut safe: Vec<&PartCircle> = circles.iter().filter(|p| !p.condition.failed()).collect();
+    safe.sort_by(|a, b| a.minor.total_cmp(&b.minor));
+    let mut failed: Vec<&PartCircle> = circles.iter().filter(|p| p.condition.failed()).collect();
+    failed.sort_by(|a, b| a.minor.total_cmp(&b.minor));
+    let mut out = Vec::new();
+    for f in failed {
+        let from = safe.partition_point(|p| p.minor < f.minor - CONTRA_MINOR);
+        for p in safe[from..]
+            .iter()
+            .take_while(|p| p.minor <= f.minor + CONTRA_MINOR)
+        {
+            if p.major - f.major > CONTRA_MAJOR {
+                out.push((f.id.clone(), p.id.clone()));
+            }
+        }
+    }
+    out
+}
+
+/// The ids of the circles in `pairs`, each once, in order of first appearance.
+pub fn contradicted_ids(pairs: &[(String, String)]) -> Vec<String> {
+    let mut seen = std::collections::BTreeSet::new();
+    let mut ids = Vec::new();
+    for (a, b) in pairs {
+        for id in [a, b] {
+            if seen.insert(id.as_str()) {
+                ids.push(id.clone());
+            }
+        }
+    }
+    ids
+}
+
+/// The supported part of the curve, true minor strain: from the first to the last knot whose
+/// nearest circles hold both kinds; `None` when no knot does.
+pub fn supported_range(overlap: &[KnotReport]) -> Option<(f64, f64)> {
+    let mut both = overlap.iter().filter(|r| r.band != Band::OneSided);
+    let first = both.next()?.minor;
+    let last = both.next_back().map_or(first, |r| r.minor);
+    Some((first, last))
+}
+
 fn plural(n: usize) -> &'static str {
     if n == 1 {
         ""
@@ -294,21 +403,30 @@ fn slope_changes(knots: &[f64]) -> DMatrix<f64> {
 
 /// The fitting problem for one set of circles and knots.
 struct Problem {
-    /// Per circle: basis piece, true major strain, label ±1.
-    rows: Vec<(usize, f64, f64, f64)>,
+    /// Per circle: basis piece, true major strain, label ±1, class weight.
+    rows: Vec<(usize, f64, f64, f64, f64)>,
     n: usize,
     /// `λ DᵀD`.
     penalty: DMatrix<f64>,
 }
 
 impl Problem {
-    fn new(circles: &[PartCircle], knots: &[f64], smoothing: f64) -> Self {
+    fn new(circles: &[PartCircle], knots: &[f64], smoothing: f64, balanced: bool) -> Self {
+        let (safe_w, failed_w) = if balanced {
+            class_weights(&Counts::of(circles))
+        } else {
+            (1.0, 1.0)
+        };
         let rows = circles
             .iter()
             .map(|p| {
                 let (i, w) = piece(knots, p.minor);
-                let y = if p.condition.failed() { 1.0 } else { -1.0 };
-                (i, w, p.major, y)
+                let (y, c) = if p.condition.failed() {
+                    (1.0, failed_w)
+                } else {
+                    (-1.0, safe_w)
+                };
+                (i, w, p.major, y, c)
             })
             .collect();
         let d = slope_changes(knots);
@@ -329,13 +447,13 @@ impl Problem {
         let mut j = theta.dot(&pt);
         let mut g = pt * 2.0;
         let mut h = &self.penalty * 2.0;
-        for &(i, w, major, y) in &self.rows {
+        for &(i, w, major, y, c) in &self.rows {
             let f = (1.0 - w) * theta[i] + w * theta[i + 1];
             let z = y * (major - f) / s;
-            j += softplus(-z);
-            // dJ/dθ = σ(−z) · y/s · φ;  d²J/dθ² = σ(z)σ(−z)/s² · φφᵀ.
-            let gi = sigmoid(-z) * y / s;
-            let hi = sigmoid(z) * sigmoid(-z) / (s * s);
+            j += c * softplus(-z);
+            // dJ/dθ = c σ(−z) · y/s · φ;  d²J/dθ² = c σ(z)σ(−z)/s² · φφᵀ.
+            let gi = c * sigmoid(-z) * y / s;
+            let hi = c * sigmoid(z) * sigmoid(-z) / (s * s);
             let phi = [(i, 1.0 - w), (i + 1, w)];
             for &(a, pa) in &phi {
                 g[a] += gi * pa;
@@ -345,6 +463,29 @@ impl Problem {
             }
         }
         (j, g, h)
+    }
+
+    /// The sandwich covariance of the knot values at a minimum, `H⁻¹ G H⁻¹`: `H` the Hessian
+    /// of `J` (penalty included), `G = Σ ci² gi giᵀ` the outer products of the circles' score
+    /// terms. With weights the plain inverse Hessian understates the spread; the sandwich form
+    /// holds for a weighted likelihood (White 1982, *Maximum likelihood estimation of
+    /// misspecified models*, Econometrica 50). `None` when `H` is singular.
+    fn covariance(&self, theta: &DVector<f64>, s: f64) -> Option<DMatrix<f64>> {
+        let (_, _, h) = self.value_gradient_hessian(theta, s);
+        let mut g = DMatrix::zeros(self.n, self.n);
+        for &(i, w, major, y, c) in &self.rows {
+            let f = (1.0 - w) * theta[i] + w * theta[i + 1];
+            let z = y * (major - f) / s;
+            let gi = c * sigmoid(-z) * y / s;
+            let phi = [(i, 1.0 - w), (i + 1, w)];
+            for &(a, pa) in &phi {
+                for &(b, pb) in &phi {
+                    g[(a, b)] += gi * gi * pa * pb;
+                }
+            }
+        }
+        let hinv = h.cholesky()?.inverse();
+        Some(&hinv * g * &hinv)
     }
 
     fn value(&self, theta: &DVector<f64>, s: f64) -> f64 {
@@ -478,8 +619,23 @@ impl KnotReport {
 pub struct PartsFit {
     /// Knot minor strains, true, increasing.
     pub knots: Vec<f64>,
-    /// Fitted major strains at the knots, true.
+    /// The 50 % line (the fitted boundary) at the knots, true major strain.
     pub majors: Vec<f64>,
+    /// The conservative line at the knots, true major strain: the line of necking probability
+    /// [`PartsFit::level`] less a one-sided 95 % allowance for the fit's own uncertainty,
+    /// `majors + s · ln(level/(1 − level)) − z · se` ([`CONFIDENCE_Z`]). This is the curve
+    /// written.
+    pub conservative: Vec<f64>,
+    /// Necking probability of the conservative line.
+    pub level: f64,
+    /// Standard error of the 50 % line at each knot, true strain (sandwich covariance).
+    pub standard_error: Vec<f64>,
+    /// True minor strain range where both kinds of circle lie (see [`supported_range`]).
+    pub supported: Option<(f64, f64)>,
+    /// Circles within [`NEAR_BAND`] of the 50 % line: `(safe, necked-or-split)`.
+    pub near: (usize, usize),
+    /// Contradictory pairs `(necked-or-split id, safe id)` (see [`contradictions`]).
+    pub contradictions: Vec<(String, String)>,
     /// The fitted logistic scale `s`, true strain.
     pub scale: f64,
     /// Whether `s` stopped at the floor (the two kinds do not overlap enough to measure it).
@@ -502,19 +658,100 @@ impl PartsFit {
         self.overlap.iter().map(KnotReport::wrong_side).sum()
     }
 
-    /// The fitted curve's true major strain at true minor strain `x` (clamped to the knots).
+    /// The 50 % line's true major strain at true minor strain `x` (clamped to the knots).
     pub fn major_at(&self, x: f64) -> f64 {
         eval(&self.knots, &self.majors, x)
     }
 
-    /// `[minor, major]` in percent true strain, for the curve file.
-    pub fn points_pct(&self) -> Vec<[f64; 2]> {
-        self.knots
-            .iter()
-            .zip(&self.majors)
-            .map(|(x, y)| [100.0 * x, 100.0 * y])
-            .collect()
+    /// The conservative line's true major strain at true minor strain `x` (clamped).
+    pub fn conservative_at(&self, x: f64) -> f64 {
+        eval(&self.knots, &self.conservative, x)
     }
+
+    /// The conservative line `[minor, major]` in percent true strain: the curve file's points.
+    pub fn points_pct(&self) -> Vec<[f64; 2]> {
+        pct(&self.knots, &self.conservative)
+    }
+
+    /// The 50 % line `[minor, major]` in percent true strain (information in the curve file).
+    pub fn median_pct(&self) -> Vec<[f64; 2]> {
+        pct(&self.knots, &self.majors)
+    }
+
+    /// Share of the circles that are in contradictory pairs.
+    pub fn contradicted_share(&self) -> f64 {
+        let n = self.counts.safe + self.counts.failed();
+        contradicted_ids(&self.contradictions).len() as f64 / n.max(1) as f64
+    }
+
+    /// What the user should be told about the evidence: too few circles of a kind near the
+    /// boundary, contradictory labels above [`CONTRA_SHARE`] (with ids), unsupported ends.
+    pub fn flags(&self) -> Vec<String> {
+        let mut v = Vec::new();
+        let (ns, nf) = self.near;
+        if ns < NEAR_MIN || nf < NEAR_MIN {
+            v.push(format!(
+                "few circles near the boundary: {ns} safe and {nf} necked-or-split within {} % \
+                 true major strain of the 50 % line (at least {NEAR_MIN} of each wanted: the \
+                 written line is the {} % necking line, and with fewer than {NEAR_MIN} circles \
+                 of a kind not one of them is expected beyond it); read more circles across and \
+                 beside necks",
+                100.0 * NEAR_BAND,
+                100.0 * self.level
+            ));
+        }
+        let share = self.contradicted_share();
+        if share > CONTRA_SHARE {
+            let ids = contradicted_ids(&self.contradictions);
+            const SHOWN: usize = 12;
+            let mut listed: Vec<String> = self
+                .contradictions
+                .iter()
+                .take(SHOWN)
+                .map(|(f, s)| format!("{f} below {s}"))
+                .collect();
+            if self.contradictions.len() > SHOWN {
+                listed.push(format!(
+                    "and {} more pairs",
+                    self.contradictions.len() - SHOWN
+                ));
+            }
+            v.push(format!(
+                "contradictory labels: {} of {} circles ({:.1} %, more than {} %) are in pairs \
+                 where a necked or split circle lies more than {} % true major strain below a \
+                 safe one within {} % minor strain: {}; check their marks and readings",
+                ids.len(),
+                self.counts.safe + self.counts.failed(),
+                100.0 * share,
+                100.0 * CONTRA_SHARE,
+                100.0 * CONTRA_MAJOR,
+                100.0 * CONTRA_MINOR,
+                listed.join(", ")
+            ));
+        }
+        let (lo, hi) = (self.knots[0], self.knots[self.knots.len() - 1]);
+        match self.supported {
+            Some((a, b)) if a > lo || b < hi => v.push(format!(
+                "only one kind of circle near the curve's ends: supported from {:.2} to {:.2} % \
+                 true minor strain of {:.2} to {:.2} % (the file's `supported`; check warns for \
+                 locations judged beyond it)",
+                100.0 * a,
+                100.0 * b,
+                100.0 * lo,
+                100.0 * hi
+            )),
+            _ => {}
+        }
+        v
+    }
+}
+
+fn pct(knots: &[f64], majors: &[f64]) -> Vec<[f64; 2]> {
+    knots
+        .iter()
+        .zip(majors)
+        .map(|(x, y)| [100.0 * x, 100.0 * y])
+        .collect()
 }
 
 /// Fit the press-shop curve to the circles, or say why the evidence is too little.
@@ -528,7 +765,7 @@ pub fn fit(circles: &[PartCircle], settings: &FitSettings) -> Result<PartsFit, S
             (a.min(p.minor), b.max(p.minor))
         });
     let knots = knots(lo, hi, h);
-    let problem = Problem::new(circles, &knots, settings.smoothing);
+    let problem = Problem::new(circles, &knots, settings.smoothing, settings.balanced);
     let mean = |failed: bool| {
         let v: Vec<f64> = circles
             .iter()
@@ -559,7 +796,22 @@ pub fn fit(circles: &[PartCircle], settings: &FitSettings) -> Result<PartsFit, S
     let (objective, scale, theta) = best.ok_or("no scale was tried")?;
     let majors: Vec<f64> = theta.iter().copied().collect();
     let overlap = overlap(circles, &knots, &majors);
+    let shift = level_offset(CONSERVATIVE_LEVEL, scale);
+    let se: Vec<f64> = problem.covariance(&theta, scale).map_or_else(
+        || vec![0.0; majors.len()],
+        |c| c.diagonal().iter().map(|v| v.max(0.0).sqrt()).collect(),
+    );
     Ok(PartsFit {
+        conservative: majors
+            .iter()
+            .zip(&se)
+            .map(|(m, e)| m + shift - CONFIDENCE_Z * e)
+            .collect(),
+        standard_error: se,
+        level: CONSERVATIVE_LEVEL,
+        supported: supported_range(&overlap),
+        near: near_counts(circles, &knots, &majors),
+        contradictions: contradictions(circles),
         scale_at_floor: scale < settings.scale_min * SCALE_RATIO,
         knots,
         majors,
@@ -629,5 +881,6 @@ fn nearest(knots: &[f64], x: f64) -> usize {
     }
 }
 
+pub mod study;
 #[cfg(test)]
 mod tests;

@@ -39,6 +39,9 @@ pub struct LimitCurve {
     pub points: Vec<[f64; 2]>,
     /// Warnings raised while building the curve (clamps that acted).
     pub warnings: Vec<String>,
+    /// The part of the minor-strain range the curve's evidence supports, `[from, to]` as
+    /// fractions in `measure` (a press-shop curve's `supported`); `None` = all of it.
+    pub supported: Option<[f64; 2]>,
     /// The curve in true strain, built on first use by [`LimitCurve::limit_use_pct`].
     pub true_path: OnceLock<TruePath>,
 }
@@ -53,6 +56,10 @@ struct CurveFile {
     strain: Option<StrainMeasure>,
     points: Option<Vec<Spanned<Vec<f64>>>>,
     keeler_brazier: Option<KeelerBrazier>,
+    supported: Option<Spanned<Vec<f64>>>,
+    /// The 50 % line of a press-shop curve: information, not judged against.
+    #[allow(dead_code)]
+    points_50: Option<Vec<Vec<f64>>>,
 }
 
 /// A curve as a polyline in true strain, ready for ray queries.
@@ -201,7 +208,30 @@ impl LimitCurve {
             }
             (Some(points), None) => (validate_points(&points, &at, strain)?, Vec::new()),
         };
+        let supported = match &file.supported {
+            None => None,
+            Some(r) => {
+                let v = r.get_ref();
+                let (lo, hi) = (pct[0][0], pct[pct.len() - 1][0]);
+                let ok = v.len() == 2
+                    && v.iter().all(|x| x.is_finite())
+                    && v[0] <= v[1]
+                    && v[0] >= lo - 1e-6
+                    && v[1] <= hi + 1e-6;
+                if !ok {
+                    return Err(Error::input(
+                        at(r.span().start),
+                        format!(
+                            "`supported` must be [from, to] in percent minor strain, from <= \
+                             to, within the points' range {lo} to {hi}"
+                        ),
+                    ));
+                }
+                Some([v[0] / 100.0, v[1] / 100.0])
+            }
+        };
         Ok(LimitCurve {
+            supported,
             name: file.name,
             source: file.source,
             material: file.material,
@@ -211,6 +241,13 @@ impl LimitCurve {
             warnings,
             true_path: OnceLock::new(),
         })
+    }
+
+    /// The supported part of the minor-strain range in true strain, when the file states one.
+    pub fn supported_true(&self) -> Option<(f64, f64)> {
+        let [a, b] = self.supported?;
+        let t = |v: f64| self.measure.to_true(v).map(|t| t.value());
+        Some((t(a)?, t(b)?))
     }
 
     /// The minor-strain range covered by the curve, in its own measure.

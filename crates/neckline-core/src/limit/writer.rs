@@ -43,6 +43,8 @@ pub struct GeneratedCurve {
     pub points_pct: Vec<[f64; 2]>,
     /// Extra lines written as TOML comments after the header (a per-path table, for example).
     pub notes: Vec<String>,
+    /// Further TOML lines written after `points` (a press-shop curve's `supported`).
+    pub extra: Vec<String>,
 }
 
 /// A TOML basic string holding `s` (quotes, backslashes and control characters escaped).
@@ -85,6 +87,9 @@ impl GeneratedCurve {
             let _ = writeln!(t, "  [{:.4}, {:.4}],", p[0], p[1]);
         }
         let _ = writeln!(t, "]");
+        for line in &self.extra {
+            let _ = writeln!(t, "{line}");
+        }
         t
     }
 
@@ -135,6 +140,7 @@ mod tests {
             measure,
             points_pct,
             notes: vec!["beta  eps1".into()],
+            extra: Vec::new(),
         }
     }
 
