@@ -65,7 +65,7 @@ fn sha256sum(path: &Path) -> Option<String> {
 // The derived curve reads back through the curve parser `check` uses, states true strain, and
 // its source records the data file with the SHA-256 that coreutils' sha256sum gives for it, the
 // counts per condition, the method and its settings, the version and the stated words. Where
-// the circles bracket it, the curve is within 1 point of the generating curve (the circles sit
+// the circles bracket it, the written curve is at or below the generating curve and within 4 points (the circles sit
 // 1.5 points either side of it, so the boundary is known to ±1.5 points; the middle of the gap
 // is what a separating fit should find).
 #[test]
@@ -104,7 +104,8 @@ fn derived_curve_reads_back_and_records_the_input_hash() {
         "press-shop curve from parts: holds for this material lot, thickness and process; not a \
          laboratory curve (ISO 12004-2)",
         "circles: 72 safe, 36 necked, 36 split (8 rows without a condition, 0 rows rejected)",
-        "penalised logistic likelihood",
+        "class-balanced penalised logistic likelihood",
+        "5 % necking-probability line less 1.645 standard errors",
         "smoothness lambda = 0.1",
         "multiples of 5 %",
         env!("CARGO_PKG_VERSION"),
@@ -115,8 +116,10 @@ fn derived_curve_reads_back_and_records_the_input_hash() {
         let x = k as f64 / 100.0;
         let own = c.measure.from_true(TrueStrain(x));
         let y = c.major_at(own).unwrap();
+        // The written curve is a lower bound: at or below the generating curve (the circles
+        // bracket it at ±1.5 points), by less than 4 points (5 % line and allowance).
         assert!(
-            (y - truth(x)).abs() < 0.01,
+            y <= truth(x) + 0.001 && y > truth(x) - 0.04,
             "at {k} %: {:.2} vs {:.2}\n{r}",
             100.0 * y,
             100.0 * truth(x),
@@ -124,7 +127,7 @@ fn derived_curve_reads_back_and_records_the_input_hash() {
     }
     assert!(r
         .stdout
-        .contains("Circles on the wrong side of the curve: 0 of 144"));
+        .contains("Circles on the wrong side of the 50 % line: 0 of 144"));
     assert!(r
         .stdout
         .contains("Caution: neckline is an aid to judgement"));
@@ -249,7 +252,8 @@ fn plot_shows_circles_by_condition_curve_and_band() {
     let svg = std::fs::read_to_string(dir.path().join("c.svg")).unwrap();
     for text in [
         "Circles (condition)",
-        "fitted curve",
+        "curve written (lower bound)",
+        "50 % line",
         "overlap: safe and necked mix",
         "gap: they do not mix",
         "minor strain ε2, true %",

@@ -35,6 +35,14 @@
 //! boundary's width `s` as a number the user can read (a circle `s` above the curve is e ≈ 2.7
 //! times as likely necked as safe); and it needs only a small dense Newton solve, no LP solver.
 //!
+//! # Balance and the written curve
+//!
+//! Each kind of circle carries half the total weight ([`class_weights`]), so the 50 % line does
+//! not move with the share of safe circles. The curve written is a lower bound: the
+//! [`CONSERVATIVE_LEVEL`] necking line less [`CONFIDENCE_Z`] standard errors of the 50 % line
+//! (sandwich covariance), marked `supported` where both kinds of circle bracket it
+//! ([`supported_range`]); [`study`] is the recovery study behind these choices.
+//!
 //! # Evidence
 //!
 //! A fit is refused with fewer than [`MIN_EACH`] safe and [`MIN_EACH`] necked-or-split circles,
