@@ -470,8 +470,14 @@ mod tests {
         let j = judge(&at(40.0, 35.0), &curve(), &s);
         assert_eq!(j.margin_pct, None);
         assert_eq!((j.zone, j.reason), (Zone::Failed, Reason::Thinning));
-        // Without a thinning limit the same location cannot be judged.
+        // Without a thinning limit it is judged along its straight path: true (ln 1.35, ln 1.40)
+        // = (0.300, 0.336) meets the flat curve (true major ln 1.30 = 0.262) at a use of
+        // 0.336/0.262 = 128 %, inside the curve's minor range: it has crossed the curve.
         let j = judge(&at(40.0, 35.0), &curve(), &Settings::default());
+        assert_eq!((j.zone, j.reason), (Zone::Failed, Reason::Crossed));
+        assert!((j.limit_use_pct.unwrap() - 100.0 * 1.4f64.ln() / 1.3f64.ln()).abs() < 0.01);
+        // A location off the curve's range whose path passes beyond its ends: no verdict.
+        let j = judge(&at(10.0, -40.0), &curve(), &Settings::default());
         assert_eq!((j.zone, j.reason), (Zone::Uncovered, Reason::NoCurve));
     }
 
