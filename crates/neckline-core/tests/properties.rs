@@ -89,9 +89,16 @@ proptest! {
             (Zone::Failed, Some(m)) => prop_assert!(m <= 0.0),
             (Zone::Marginal, Some(m)) => prop_assert!(m > 0.0 && m < band),
             (_, Some(m)) => prop_assert!(m >= band),
+            // Outside the curve's minor range there is no margin; a straight path that has
+            // already crossed the curve there is failed by its limit use (reason `crossed`).
+            (Zone::Failed, None) => prop_assert!(
+                j.reason == neckline_core::assess::Reason::Crossed
+                    && j.limit_use_pct.is_some_and(|u| u >= 100.0),
+                "failed without a margin: {:?} {:?}", j.reason, j.limit_use_pct
+            ),
             (z, None) => prop_assert!(false, "zone {z} without a margin"),
         }
-        if let Some(u) = j.limit_use_pct {
+        if let (Some(u), Some(_)) = (j.limit_use_pct, j.margin_pct) {
             // On or above the curve along the path ⇔ limit use ≥ 100 %, up to the bend that a
             // straight engineering segment takes in true strain (sampled in 16 pieces).
             if j.margin_pct.unwrap() < -0.5 { prop_assert!(u > 99.0, "use {u}"); }
