@@ -368,10 +368,11 @@ fn is_measurement_file(path: &Path) -> bool {
     if OWN_OUTPUTS.contains(&name.as_str()) || name.starts_with('.') {
         return false;
     }
-    let text = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .is_some_and(|e| ["csv", "txt", "tsv"].iter().any(|t| e.eq_ignore_ascii_case(t)));
+    let text = path.extension().and_then(|e| e.to_str()).is_some_and(|e| {
+        ["csv", "txt", "tsv"]
+            .iter()
+            .any(|t| e.eq_ignore_ascii_case(t))
+    });
     text || neckline_core::workbook::is_workbook(path)
 }
 

@@ -283,7 +283,8 @@ impl<R: Read> Decode<R> {
                 self.eof = self.end == 0;
             }
             let src = &self.input[self.start..self.end];
-            let (result, read, written, _) = self.decoder.decode_to_utf8(src, &mut self.out, self.eof);
+            let (result, read, written, _) =
+                self.decoder.decode_to_utf8(src, &mut self.out, self.eof);
             self.start += read;
             self.done = self.eof && result == encoding_rs::CoderResult::InputEmpty;
             self.out_start = 0;
@@ -383,7 +384,10 @@ mod tests {
     // index-windows-1252.
     #[test]
     fn windows_1252_and_utf_16_are_decoded() {
-        assert_eq!(through(b"id;note\r\nA;M\xe4rz \x80\r\n", None), "id;note\nA;März €\n");
+        assert_eq!(
+            through(b"id;note\r\nA;M\xe4rz \x80\r\n", None),
+            "id;note\nA;März €\n"
+        );
         let le: Vec<u8> = [0xFF, 0xFE]
             .into_iter()
             .chain("ä\r\n".encode_utf16().flat_map(u16::to_le_bytes))
@@ -404,14 +408,10 @@ mod tests {
 
     #[test]
     fn encoding_names_are_read_and_unknown_ones_refused() {
-        assert_eq!(
-            TextEncoding::parse("UTF-16LE"),
-            Ok(TextEncoding::Utf16Le)
-        );
-        assert_eq!(
-            TextEncoding::parse("cp1252"),
-            Ok(TextEncoding::Windows1252)
-        );
-        assert!(TextEncoding::parse("ebcdic").unwrap_err().contains("utf-16be"));
+        assert_eq!(TextEncoding::parse("UTF-16LE"), Ok(TextEncoding::Utf16Le));
+        assert_eq!(TextEncoding::parse("cp1252"), Ok(TextEncoding::Windows1252));
+        assert!(TextEncoding::parse("ebcdic")
+            .unwrap_err()
+            .contains("utf-16be"));
     }
 }

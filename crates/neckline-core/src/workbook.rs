@@ -100,7 +100,11 @@ pub fn to_csv(path: &Path, bytes: Vec<u8>, sheet: Option<&str>) -> Result<Vec<u8
     for row in range.rows() {
         let cells: Vec<String> = row.iter().map(cell_text).collect();
         // Every row as wide as the sheet's used range; an empty row an empty line.
-        let end = if cells.iter().all(String::is_empty) { 0 } else { cells.len() };
+        let end = if cells.iter().all(String::is_empty) {
+            0
+        } else {
+            cells.len()
+        };
         for (i, c) in cells[..end].iter().enumerate() {
             if i > 0 {
                 out.push(b',');

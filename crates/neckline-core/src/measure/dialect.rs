@@ -61,10 +61,13 @@ pub fn parse_number(text: &str, dialect: Dialect) -> std::result::Result<f64, St
 fn is_date(t: &str) -> bool {
     let b = t.as_bytes();
     b.len() >= 10
-        && b[..10]
-            .iter()
-            .enumerate()
-            .all(|(i, c)| if i == 4 || i == 7 { *c == b'-' } else { c.is_ascii_digit() })
+        && b[..10].iter().enumerate().all(|(i, c)| {
+            if i == 4 || i == 7 {
+                *c == b'-'
+            } else {
+                c.is_ascii_digit()
+            }
+        })
 }
 
 /// A CSV reader over `input` for `dialect`, without a header row.
