@@ -352,6 +352,15 @@ fn the_corpus_files_in_other_encodings_are_read_now() {
         .run()
         .ok();
     assert!(r.stdout.contains("été (safe)"), "{r}");
+    // A UTF-16 points table is compared like any other.
+    neckline(&["compare", "a.csv", "points-utf16.csv", "--out", "o"])
+        .file(
+            "a.csv",
+            "id,major_eng_pct,minor_eng_pct,margin_pct,zone,x,y\nA1,18,3,7,marginal,1,2\n",
+        )
+        .file("points-utf16.csv", recovered("points-utf16.csv"))
+        .run()
+        .ok();
 }
 
 #[test]
