@@ -30,6 +30,23 @@ pub struct LengthArgs {
     /// major_true_pct, minor_true_pct.
     #[arg(long = "column", value_name = "NAME=HEADER", value_parser = neckline_core::measure::ColumnMap::parse_arg)]
     pub columns: Vec<(String, String)>,
+    /// How the input files are read (encoding, workbook sheet).
+    #[command(flatten)]
+    pub input: InputArgs,
+}
+
+/// How input files are read: their text encoding and a workbook's sheet.
+#[derive(Debug, Clone, Default, Args)]
+pub struct InputArgs {
+    /// Text encoding of the input files: utf-8, utf-16le, utf-16be or windows-1252
+    /// [default: from a byte-order mark; else UTF-8 when the whole file is valid UTF-8; else
+    /// Windows-1252, with a note].
+    #[arg(long, value_name = "NAME", value_parser = neckline_core::text::TextEncoding::parse)]
+    pub encoding: Option<neckline_core::text::TextEncoding>,
+    /// The sheet of a workbook input (.xlsx, .xlsm, .xls, .xlsb, .ods): its name, or its number
+    /// from 1 [default: the job file's `sheet`, else the first].
+    #[arg(long, value_name = "NAME|NUMBER")]
+    pub sheet: Option<String>,
 }
 
 /// The limit curve and the judgement settings.

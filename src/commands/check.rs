@@ -10,7 +10,7 @@ use clap::Args;
 use neckline_core::analysis::Analysis;
 use neckline_core::digest::FileDigest;
 use neckline_core::error::{Error, Result};
-use neckline_core::measure::{open_input, Header, RowRules};
+use neckline_core::measure::{Header, RowRules};
 use neckline_core::output::points_csv::Layout;
 use neckline_core::output::{push_fixed, write_atomic, AtomicFile};
 use neckline_core::point::Context;
@@ -43,6 +43,11 @@ pub struct CheckArgs {
 
 /// Run `check`.
 pub fn run(args: &CheckArgs) -> Result<Outcome> {
+    if args.measurements.iter().any(|p| p.is_dir()) {
+        let mut many = args.clone();
+        many.measurements = expand_folders(&args.measurements)?;
+        return run_many(&many);
+    }
     if let [one] = args.measurements.as_slice() {
         let plan = Plan::of(&args.output);
         plan.prepare(&direct_inputs(args, one))?;
@@ -122,7 +127,7 @@ pub fn judge_file(
 ) -> Result<(Analysis, Option<AtomicFile>)> {
     // The measurement file is hashed as it streams past (standard input too), never held;
     // its first rows are screened for a file that cannot be meant as it reads.
-    let mut hashed = neckline_core::digest::HashingReader::new(open_input(path)?);
+    let (mut hashed, digest) = neckline_core::text::open(path)?;
     let rules = RowRules::new(&prep.lengths, prep.settings.reading_error);
     let header = Header::read(&mut hashed, path, &prep.map)?.with_rules(rules);
     let mut input = neckline_core::measure::screen(hashed, &header)?;
@@ -152,7 +157,7 @@ pub fn judge_file(
         let rows = neckline_core::measure::MeasurementReader::after(&mut input, header);
         let staged = neckline_core::point::staged::judge_staged(rows, &ctx, order)?;
         layout.path = staged.stages.len() >= 2;
-        let files = input_digests(path, input.into_inner().1.hex(), prep);
+        let files = input_digests(path, digest.hex(), prep);
         return judged_in_memory(
             path, prep, output, plan, inputs, ctx, layout, staged, &notes, files,
         );
@@ -198,7 +203,7 @@ pub fn judge_file(
         &notes,
     );
     a.summary = summary;
-    a.files = input_digests(path, input.into_inner().1.hex(), prep);
+    a.files = input_digests(path, digest.hex(), prep);
     a.finish();
     let a = require_points(a, path, "no location could be judged", "rows")?;
     Ok((a, file))
@@ -349,6 +354,53 @@ fn folders(files: &[PathBuf], out: &Path) -> Result<Vec<PathBuf>> {
         dirs.push(out.join(stem));
     }
     Ok(dirs)
+}
+
+/// The file names neckline writes itself, left out of a folder judged whole.
+const OWN_OUTPUTS: [&str; 3] = ["points.csv", "compare.csv", "index.csv"];
+
+/// Whether `path` is named as a measurement file: `.csv`, `.txt`, `.tsv` or a workbook, and
+/// not one of neckline's own outputs.
+fn is_measurement_file(path: &Path) -> bool {
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().to_ascii_lowercase())
+        .unwrap_or_default();
+    if OWN_OUTPUTS.contains(&name.as_str()) || name.starts_with('.') {
+        return false;
+    }
+    let text = path.extension().and_then(|e| e.to_str()).is_some_and(|e| {
+        ["csv", "txt", "tsv"]
+            .iter()
+            .any(|t| e.eq_ignore_ascii_case(t))
+    });
+    text || neckline_core::workbook::is_workbook(path)
+}
+
+/// The inputs with each folder replaced by the measurement files in it (not in its
+/// subfolders), in name order.
+fn expand_folders(inputs: &[PathBuf]) -> Result<Vec<PathBuf>> {
+    let mut files = Vec::new();
+    for p in inputs {
+        if !p.is_dir() {
+            files.push(p.clone());
+            continue;
+        }
+        let mut found: Vec<PathBuf> = std::fs::read_dir(p)
+            .map_err(|e| Error::io(p, e))?
+            .filter_map(|e| e.ok().map(|e| e.path()))
+            .filter(|f| f.is_file() && is_measurement_file(f))
+            .collect();
+        if found.is_empty() {
+            return Err(Error::Usage(format!(
+                "{}: no measurement file in the folder (.csv, .txt, .tsv, .xlsx, .xlsm, .xls,                  .xlsb, .ods; points.csv, compare.csv and index.csv are left out)",
+                p.display()
+            )));
+        }
+        found.sort();
+        files.extend(found);
+    }
+    Ok(files)
 }
 
 /// `index.csv`: one row per file.

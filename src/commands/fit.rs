@@ -17,10 +17,14 @@ pub struct FitArgs {
     /// Write the measurement CSV to this file (atomically) instead of stdout.
     #[arg(long, value_name = "FILE")]
     pub out: Option<PathBuf>,
+    /// How the outlines file is read.
+    #[command(flatten)]
+    pub input: crate::args::InputArgs,
 }
 
 /// Run `fit`: failures are listed on stderr and the others written; exit 2 if none fitted.
 pub fn run(args: &FitArgs) -> Result<Outcome> {
+    super::set_input_options(&args.input, &neckline_core::job::Job::default());
     let table = read_table(&args.outlines, "id, x, y")?;
     let (list, mut failures) = outlines(&table)?;
     let mut fits = Vec::new();

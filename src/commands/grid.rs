@@ -38,6 +38,9 @@ pub struct GridArgs {
     /// Length unit of the node positions and --t0 [default: mm, or the job file's].
     #[arg(long, value_name = "mm|in")]
     pub unit: Option<LengthUnit>,
+    /// How the inputs are read.
+    #[command(flatten)]
+    pub input: crate::args::InputArgs,
     /// Outputs.
     #[command(flatten)]
     pub output: OutputArgs,
@@ -53,6 +56,7 @@ fn length_args(args: &GridArgs) -> LengthArgs {
         t0: args.t0,
         unit: args.unit,
         columns: Vec::new(),
+        input: args.input.clone(),
     }
 }
 

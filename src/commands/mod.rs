@@ -39,9 +39,27 @@ pub enum Outcome {
 
 /// Read the job file, if any.
 pub fn load_job(args: &LengthArgs) -> Result<Job> {
-    args.job
+    let job = args
+        .job
         .as_deref()
-        .map_or_else(|| Ok(Job::default()), Job::load)
+        .map_or_else(|| Ok(Job::default()), Job::load)?;
+    set_input_options(&args.input, &job);
+    Ok(job)
+}
+
+/// How the inputs are read from here on: the flags over the job file's `encoding` and `sheet`
+/// (the job's encoding was checked when it was read).
+pub fn set_input_options(args: &crate::args::InputArgs, job: &Job) {
+    let encoding = args.encoding.or_else(|| {
+        job.encoding
+            .as_deref()
+            .and_then(|e| neckline_core::text::TextEncoding::parse(e).ok())
+    });
+    let sheet = args
+        .sheet
+        .clone()
+        .or_else(|| job.sheet.as_ref().map(|s| s.to_string()));
+    neckline_core::text::set_options(neckline_core::text::InputOptions { encoding, sheet });
 }
 
 /// The lengths from flags over the job file; each given length must be positive. The unit in

@@ -39,12 +39,16 @@ impl Location {
 
 impl fmt::Display for Location {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "{}", self.file.display())?;
-        if let Some(line) = self.line {
+        if let Some(cell) = crate::workbook::cell_name(&self.file, self.line, self.column) {
+            write!(f, "{}, {cell}", self.file.display())?;
+        } else if let Some(line) = self.line {
+            write!(f, "{}", self.file.display())?;
             write!(f, ":{line}")?;
             if let Some(col) = self.column {
                 write!(f, ":{col}")?;
             }
+        } else {
+            write!(f, "{}", self.file.display())?;
         }
         if let Some(name) = &self.column_name {
             write!(f, " (column `{name}`)")?;

@@ -25,6 +25,8 @@
 //! thickening = 2      # percent thicker than t0 that counts as thickening
 //! fail_on = "failed"  # or "marginal": exit status 1 when reached
 //! reading_error = 0.02 # one axis, in `unit` (pp of strain for strain files); flags borderline
+//! encoding = "windows-1252" # the input's text encoding [default: detected]
+//! sheet = "Readings"  # a workbook's sheet, by name or number [default: the first]
 //! [columns]           # the file's own headers, mapped onto neckline's names
 //! major_true_pct = "Major strain (%)"
 //! ```
@@ -89,10 +91,37 @@ pub struct Job {
     pub stages: Option<Vec<String>>,
     /// The zone at which `check` exits with status 1: `failed` or `marginal`.
     pub fail_on: Option<crate::assess::Zone>,
+    /// The text encoding of the input files (`utf-8`, `utf-16le`, `utf-16be`,
+    /// `windows-1252`) [default: from a byte-order mark, else UTF-8 when the file is valid
+    /// UTF-8, else Windows-1252].
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub encoding: Option<String>,
+    /// The sheet of a workbook input: a name, or a number from 1 [default: the first].
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub sheet: Option<SheetKey>,
     /// The file's own headers mapped onto neckline's column names (`[columns]` table:
     /// `major_true_pct = "Major strain (%)"`).
     #[serde(default, skip_serializing_if = "std::collections::BTreeMap::is_empty")]
     pub columns: std::collections::BTreeMap<String, String>,
+}
+
+/// A workbook's sheet named in the job file: `sheet = "Readings"` or `sheet = 2`.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(untagged)]
+pub enum SheetKey {
+    /// The sheet's number, from 1.
+    Number(u32),
+    /// The sheet's name.
+    Name(String),
+}
+
+impl std::fmt::Display for SheetKey {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            SheetKey::Number(n) => write!(f, "{n}"),
+            SheetKey::Name(s) => write!(f, "{s}"),
+        }
+    }
 }
 
 impl Job {
@@ -115,6 +144,10 @@ impl Job {
                     format!("[columns]: {e}"),
                 )
             })?;
+        }
+        if let Some(e) = &job.encoding {
+            crate::text::TextEncoding::parse(e)
+                .map_err(|m| Error::input(Location::file(path), format!("encoding: {m}")))?;
         }
         check_ranges(path, &text)?;
         check_words(path, &text)?;

@@ -42,7 +42,9 @@ pub mod strain;
 pub mod stream;
 pub mod summary;
 pub mod table;
+pub mod text;
 pub mod units;
+pub mod workbook;
 
 pub use analysis::Analysis;
 pub use error::{Error, Result};

@@ -49,11 +49,25 @@ pub fn parse_number(text: &str, dialect: Dialect) -> std::result::Result<f64, St
     };
     match t.parse::<f64>() {
         Ok(v) if v.is_finite() => Ok(v),
+        _ if is_date(t) => Err(format!("expected a number, found the date {t}")),
         _ => Err(format!(
             "expected a finite number, found `{}`",
             crate::error::clip(text.trim())
         )),
     }
+}
+
+/// Whether `t` starts as an ISO date `YYYY-MM-DD` (as a workbook's date cell is given).
+fn is_date(t: &str) -> bool {
+    let b = t.as_bytes();
+    b.len() >= 10
+        && b[..10].iter().enumerate().all(|(i, c)| {
+            if i == 4 || i == 7 {
+                *c == b'-'
+            } else {
+                c.is_ascii_digit()
+            }
+        })
 }
 
 /// A CSV reader over `input` for `dialect`, without a header row.

@@ -5,17 +5,13 @@ use super::dialect::{csv_error, csv_reader};
 use super::{ColumnMap, Header, Measurement, MeasurementSet, RejectedRow};
 use crate::error::{Error, Location, Result};
 use std::collections::HashSet;
-use std::fs::File;
-use std::io::{self, BufRead, BufReader};
+use std::io::BufRead;
 use std::path::Path;
 
-/// Open `path` for reading; `-` is standard input.
+/// Open `path` for reading as UTF-8 text with LF line ends (`-` is standard input): a
+/// workbook's sheet, or text in any encoding [`crate::text`] reads.
 pub fn open_input(path: &Path) -> Result<Box<dyn BufRead + Send>> {
-    if path.as_os_str() == "-" {
-        return Ok(Box::new(BufReader::new(io::stdin())));
-    }
-    let f = File::open(path).map_err(|e| Error::io(path, e))?;
-    Ok(Box::new(BufReader::with_capacity(1 << 16, f)))
+    crate::text::open(path).map(|(input, _)| input)
 }
 
 /// Read a measurement file from `path` (`-` for standard input) into memory: for small files

@@ -43,6 +43,24 @@ fn check_map(header: &csv::StringRecord, map: &ColumnMap, loc: &Location) -> Res
     Ok(())
 }
 
+/// No two names of the column map name the same header: the map's own error, named by where
+/// the map came from (the job file's `[columns]`, `--column`).
+fn check_one_header_each(map: &ColumnMap) -> Result<()> {
+    for (i, (a, h)) in map.entries.iter().enumerate() {
+        if let Some((b, _)) = map.entries[i + 1..]
+            .iter()
+            .find(|(_, g)| g.trim().eq_ignore_ascii_case(h.trim()))
+        {
+            return Err(Error::Usage(format!(
+                "{}: `{a}` and `{b}` both name the header `{}`: each header is one column",
+                map.origin,
+                h.trim()
+            )));
+        }
+    }
+    Ok(())
+}
+
 /// No name (but the empty one) appears twice.
 fn check_twice(names: &[String], loc: &Location) -> Result<()> {
     let mut seen = HashSet::new();
@@ -80,6 +98,7 @@ impl<'a> Fields<'a> {
         map: &'a ColumnMap,
         loc: &'a Location,
     ) -> Result<Self> {
+        check_one_header_each(map)?;
         check_map(header, map, loc)?;
         let names: Vec<String> = header
             .iter()
