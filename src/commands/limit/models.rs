@@ -297,7 +297,7 @@ fn mk_notes(limits: &[PathLimit]) -> Vec<String> {
 }
 
 /// Write a model's curve (see [`emit_curve`]): `--plot` draws it alone, and the summary is
-/// [`summary`] after `--out`, the caution alone otherwise.
+/// `summary` (the file, its plane-strain limit and the caution) after `--out`, the caution alone otherwise.
 pub fn emit(curve: &GeneratedCurve, out: &CurveOutArgs) -> Result<Outcome> {
     emit_curve(
         curve,
