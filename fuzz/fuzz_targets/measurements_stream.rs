@@ -37,6 +37,7 @@ fuzz_target!(|data: &[u8]| {
         settings,
         lengths,
         strain_input: header.columns.gives_strains(),
+        true_input: header.columns.gives_true_strains(),
     };
     let layout = Layout {
         z: header.columns.has("z"),
