@@ -53,6 +53,7 @@ fn length_args(args: &GridArgs) -> LengthArgs {
         t0: args.t0,
         unit: args.unit,
         columns: Vec::new(),
+        header_row: None,
     }
 }
 

@@ -25,6 +25,7 @@
 //! thickening = 2      # percent thicker than t0 that counts as thickening
 //! fail_on = "failed"  # or "marginal": exit status 1 when reached
 //! reading_error = 0.02 # one axis, in `unit` (pp of strain for strain files); flags borderline
+//! header_row = 5     # the header's line, after an export's preamble (else found)
 //! [columns]           # the file's own headers, mapped onto neckline's names
 //! major_true_pct = "Major strain (%)"
 //! ```
@@ -93,6 +94,10 @@ pub struct Job {
     /// `major_true_pct = "Major strain (%)"`).
     #[serde(default, skip_serializing_if = "std::collections::BTreeMap::is_empty")]
     pub columns: std::collections::BTreeMap<String, String>,
+    /// The header's line in a measurement file (1-based), for an export whose preamble would
+    /// otherwise be searched; without it the header is the first line with the needed columns.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub header_row: Option<std::num::NonZeroU64>,
 }
 
 impl Job {
