@@ -30,6 +30,11 @@ pub struct LengthArgs {
     /// major_true_pct, minor_true_pct.
     #[arg(long = "column", value_name = "NAME=HEADER", value_parser = neckline_core::measure::ColumnMap::parse_arg)]
     pub columns: Vec<(String, String)>,
+    /// The header's line in the measurement file (1-based), every line before it left aside
+    /// (an export's preamble) [default: the job file's `header_row`, else the first line that
+    /// holds the needed columns].
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u64).range(1..))]
+    pub header_row: Option<u64>,
     /// How the input files are read (encoding, workbook sheet).
     #[command(flatten)]
     pub input: InputArgs,

@@ -130,6 +130,7 @@ pub fn judge_file(
     let (mut hashed, digest) = neckline_core::text::open(path)?;
     let rules = RowRules::new(&prep.lengths, prep.settings.reading_error);
     let header = Header::read(&mut hashed, path, &prep.map)?.with_rules(rules);
+    header.check_units()?;
     let mut input = neckline_core::measure::screen(hashed, &header)?;
     let strain_input = header.columns.gives_strains();
     let mut notes = header.notes.clone();
@@ -245,6 +246,7 @@ fn judged_in_memory(
     for r in staged.rejected {
         a.summary.rejected.push(r);
     }
+    a.summary.not_measured = staged.not_measured;
     a.finish();
     let a = require_points(a, path, "no location could be judged", "rows")?;
     let file = super::outputs::points_out(plan, inputs, &text)?;

@@ -60,6 +60,10 @@ pub struct CompareArgs {
     /// How many locations to list under each heading in the terminal.
     #[arg(long, value_name = "N", default_value_t = 8)]
     pub show: usize,
+    /// Write compare.csv with `;` between fields and a decimal comma, for a spreadsheet set to
+    /// a decimal comma.
+    #[arg(long)]
+    pub decimal_comma: bool,
 }
 
 /// The files of the review pack, in the order they are written.
@@ -140,7 +144,7 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
         eprint!("{}", paragraph(&format!("warning: {w}")));
     }
     let written = match &args.out {
-        Some(out) => write_pack(&c, out, &args.inputs)?,
+        Some(out) => write_pack(&c, out, &args.inputs, args.decimal_comma)?,
         None => Vec::new(),
     };
     print!("{}", terminal::summary(&c, args.show));
@@ -168,12 +172,23 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
 
 /// Render every file of the pack in memory (so that a failure leaves the folder as it was),
 /// then write each atomically.
-fn write_pack(c: &Comparison, out: &Path, inputs: &[PathBuf]) -> Result<Vec<PathBuf>> {
+fn write_pack(
+    c: &Comparison,
+    out: &Path,
+    inputs: &[PathBuf],
+    decimal_comma: bool,
+) -> Result<Vec<PathBuf>> {
     let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
     let target = |name: &str| out.join(name);
     let render = |name: &str, e: std::io::Error| Error::io(&target(name), e);
     let mut csv = Vec::new();
     csv_out::write_csv(c, &mut csv).map_err(|e| render("compare.csv", e))?;
+    if decimal_comma {
+        let mut text = Vec::with_capacity(csv.len());
+        neckline_core::output::decimal_comma::to_decimal_comma(&csv[..], &mut text)
+            .map_err(|e| render("compare.csv", e))?;
+        csv = text;
+    }
     files.push((target("compare.csv"), csv));
     let mut json = Vec::new();
     json_out::write_json(c, &mut json).map_err(|e| render("compare.json", e))?;

@@ -57,6 +57,7 @@ fn length_args(args: &GridArgs) -> LengthArgs {
         unit: args.unit,
         columns: Vec::new(),
         input: args.input.clone(),
+        header_row: None,
     }
 }
 

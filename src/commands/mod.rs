@@ -129,6 +129,9 @@ pub fn column_map(args: &LengthArgs, job: &Job) -> ColumnMap {
     );
     map.extend(job.columns.clone(), &origin);
     map.extend(args.columns.clone(), "--column");
+    map.header_row = args
+        .header_row
+        .or(job.header_row.map(std::num::NonZeroU64::get));
     map
 }
 

@@ -28,6 +28,9 @@ pub enum Format {
     Png,
     /// report.html: the printable report.
     Html,
+    /// points.xlsx: points.csv as a workbook (numbers as numbers, zones in colour), with a
+    /// summary sheet.
+    Xlsx,
 }
 
 /// Strain measure of the diagram's axes.
@@ -46,7 +49,8 @@ pub struct OutputArgs {
     #[arg(long, value_name = "DIR", default_value = "neckline-out")]
     pub out: PathBuf,
     /// Which outputs to write, comma-separated: csv (points.csv), json (summary.json),
-    /// svg (fld.svg, map.svg), png (fld.png, map.png), html (report.html).
+    /// svg (fld.svg, map.svg), png (fld.png, map.png), html (report.html), xlsx (points.xlsx,
+    /// made from points.csv, which is then written too).
     #[arg(
         long,
         value_name = "LIST",
@@ -58,6 +62,10 @@ pub struct OutputArgs {
     /// then goes to standard error).
     #[arg(long, value_name = "FILE|-")]
     pub points: Option<PathBuf>,
+    /// Write points.csv with `;` between fields and a decimal comma, for a spreadsheet set to
+    /// a decimal comma.
+    #[arg(long)]
+    pub decimal_comma: bool,
     /// Strain measure of the diagram's axes.
     #[arg(long, value_name = "MEASURE", default_value = "engineering")]
     pub plot_strain: PlotStrain,
@@ -97,6 +105,10 @@ pub struct Plan {
     pub png: Option<(PathBuf, PathBuf)>,
     /// report.html target.
     pub html: Option<PathBuf>,
+    /// points.xlsx target.
+    pub xlsx: Option<PathBuf>,
+    /// Whether points.csv is written with `;` and decimal commas.
+    pub decimal_comma: bool,
 }
 
 impl Plan {
@@ -105,12 +117,14 @@ impl Plan {
         let has = |f: Format| args.format.contains(&f);
         let dir = |name: &str| args.out.join(name);
         Plan {
-            points: (has(Format::Csv) || args.points.is_some())
+            points: (has(Format::Csv) || has(Format::Xlsx) || args.points.is_some())
                 .then(|| args.points.clone().unwrap_or_else(|| dir("points.csv"))),
             summary: has(Format::Json).then(|| dir("summary.json")),
             svg: has(Format::Svg).then(|| (dir("fld.svg"), dir("map.svg"))),
             png: has(Format::Png).then(|| (dir("fld.png"), dir("map.png"))),
             html: has(Format::Html).then(|| dir("report.html")),
+            xlsx: has(Format::Xlsx).then(|| dir("points.xlsx")),
+            decimal_comma: args.decimal_comma,
         }
     }
 
@@ -128,12 +142,20 @@ impl Plan {
             v.extend([pair.0.as_path(), pair.1.as_path()]);
         }
         v.extend(self.html.as_deref());
+        v.extend(self.xlsx.as_deref());
         v
     }
 
     /// Create the folders and refuse any target that is an input: before the work starts, so
     /// that a bad path fails at once.
     pub fn prepare(&self, inputs: &[PathBuf]) -> Result<()> {
+        if self.points_to_stdout() && (self.xlsx.is_some() || self.decimal_comma) {
+            return Err(Error::Usage(
+                "--points - sends the points to standard output: points.xlsx and \
+                 --decimal-comma need points.csv in a file"
+                    .into(),
+            ));
+        }
         for f in self.files() {
             if let Some(dir) = f.parent().filter(|d| !d.as_os_str().is_empty()) {
                 if dir.exists() && !dir.is_dir() {
@@ -220,8 +242,9 @@ fn fld_options(args: &OutputArgs) -> FldOptions {
 }
 
 /// Every file name `check` and `grid` may write into the output folder.
-pub const OUTPUT_NAMES: [&str; 9] = [
+pub const OUTPUT_NAMES: [&str; 10] = [
     "points.csv",
+    "points.xlsx",
     "summary.json",
     "fld.svg",
     "map.svg",
@@ -280,7 +303,26 @@ fn write_outputs(
     if let Some(f) = points {
         let p = f.path().to_path_buf();
         f.commit()?;
+        if let Some(x) = &plan.xlsx {
+            // Saved beside the target, then renamed: a failed save leaves no half workbook.
+            let part = x.with_file_name(".points.xlsx.part");
+            neckline_render::workbook::write_points_xlsx(&p, &part, a).map_err(|e| {
+                let _ = std::fs::remove_file(&part);
+                Error::io(x, e)
+            })?;
+            std::fs::rename(&part, x).map_err(|e| Error::io(x, e))?;
+        }
+        if plan.decimal_comma {
+            let text = std::fs::File::open(&p).map_err(|e| Error::io(&p, e))?;
+            write_atomic(&p, inputs, |w| {
+                neckline_core::output::decimal_comma::to_decimal_comma(
+                    std::io::BufReader::new(&text),
+                    w,
+                )
+            })?;
+        }
         written.push(p);
+        written.extend(plan.xlsx.clone());
     }
     for (path, bytes) in files {
         write_atomic(&path, inputs, |w| w.write_all(&bytes))?;

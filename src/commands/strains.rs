@@ -7,7 +7,7 @@ use neckline_core::analysis::Analysis;
 use neckline_core::assess::Settings;
 use neckline_core::error::{Error, Result};
 use neckline_core::limit::LimitCurve;
-use neckline_core::measure::{open_input, Header};
+use neckline_core::measure::{open_input, Header, RowRules};
 use neckline_core::output::points_csv::Layout;
 use neckline_core::point::Context;
 use neckline_core::stream::Pass;
@@ -49,7 +49,11 @@ pub fn run(args: &StrainsArgs) -> Result<Outcome> {
     let map = super::column_map(&args.lengths, &job);
     let path = &args.measurements;
     let mut input = open_input(path)?;
-    let header = Header::read(&mut input, path, &map)?;
+    let header = Header::read(&mut input, path, &map)?.with_rules(RowRules {
+        unit: lengths.unit,
+        ..RowRules::default()
+    });
+    header.check_units()?;
     let ctx = Context {
         curve: unbounded_curve(),
         settings: Settings::default(),
@@ -96,6 +100,9 @@ pub fn run(args: &StrainsArgs) -> Result<Outcome> {
     }
     let mut a = Analysis::new(path.clone(), job, ctx, Default::default(), &header.notes);
     a.summary = summary;
+    if let Some(line) = neckline_core::output::not_measured_line(&a) {
+        eprintln!("note: {line}");
+    }
     if a.total() == 0 {
         return Err(Error::Usage(format!(
             "{}: no location could be computed ({} rows rejected, listed above)",

@@ -27,6 +27,7 @@
 //! reading_error = 0.02 # one axis, in `unit` (pp of strain for strain files); flags borderline
 //! encoding = "windows-1252" # the input's text encoding [default: detected]
 //! sheet = "Readings"  # a workbook's sheet, by name or number [default: the first]
+//! header_row = 5     # the header's line, after an export's preamble (else found)
 //! [columns]           # the file's own headers, mapped onto neckline's names
 //! major_true_pct = "Major strain (%)"
 //! ```
@@ -103,6 +104,10 @@ pub struct Job {
     /// `major_true_pct = "Major strain (%)"`).
     #[serde(default, skip_serializing_if = "std::collections::BTreeMap::is_empty")]
     pub columns: std::collections::BTreeMap<String, String>,
+    /// The header's line in a measurement file (1-based), for an export whose preamble would
+    /// otherwise be searched; without it the header is the first line with the needed columns.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub header_row: Option<std::num::NonZeroU64>,
 }
 
 /// A workbook's sheet named in the job file: `sheet = "Readings"` or `sheet = 2`.

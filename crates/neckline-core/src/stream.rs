@@ -252,6 +252,10 @@ fn judge_chunk(
             Ok(true) => {}
         }
         let line = chunk.first_line + record.position().map_or(1, |p| p.line()) - 1;
+        if header.not_measured(&record) {
+            summary.not_measured.push(line);
+            continue;
+        }
         let (m, disagree) = match header.row(&record, line) {
             Ok(r) => r,
             Err(r) => {

@@ -190,6 +190,9 @@ pub struct Summary {
     pub zone_ids: [Capped<String>; 6],
     /// Rejected rows.
     pub rejected: Capped<RejectedRow>,
+    /// Lines of the rows not measured (empty readings, or flagged not valid): neither judged
+    /// nor rejected.
+    pub not_measured: Capped<u64>,
     /// Ids of locations whose zone could change within the reading error.
     pub borderline: Capped<String>,
     /// Measured against computed thickness (percent of the computed one).
@@ -242,6 +245,7 @@ impl Summary {
             worst: Vec::new(),
             zone_ids: Default::default(),
             rejected: Capped::default(),
+            not_measured: Capped::default(),
             borderline: Capped::default(),
             thickness: None,
             thinning: None,
@@ -458,6 +462,7 @@ impl Summary {
             a.merge(b);
         }
         self.rejected.merge(o.rejected);
+        self.not_measured.merge(o.not_measured);
         self.borderline.merge(o.borderline);
         ThicknessCheck::merge(&mut self.thickness, o.thickness);
         ThicknessCheck::merge(&mut self.thinning, o.thinning);
@@ -560,9 +565,18 @@ mod tests {
     fn fold_all(ps: &[PointResult]) -> Summary {
         let mut s = Summary::new(View::default());
         for p in ps {
-            s.fold(p.clone());
+            fold_with_unmeasured(&mut s, p);
         }
         s
+    }
+
+    /// Fold `p`, and count a row not measured before every fifth location (at the line before
+    /// it), so that the count and its first lines merge in file order too.
+    fn fold_with_unmeasured(s: &mut Summary, p: &PointResult) {
+        if p.input.line.is_multiple_of(5) {
+            s.not_measured.push(p.input.line - 1);
+        }
+        s.fold(p.clone());
     }
 
     /// Everything a summary holds, in a form that compares: maps as sorted lists.
@@ -581,7 +595,7 @@ mod tests {
         m.sort();
         let ids = |v: &[PointResult]| v.iter().map(|p| p.input.id.clone()).collect::<Vec<_>>();
         format!(
-            "{} {:?} {} {:?} {:?} {:?} {:?} {:?} {:?} {} {:?} {:?} {} {}",
+            "{} {:?} {} {:?} {:?} {:?} {:?} {:?} {:?} {} {:?} {:?} {} {} {:?}",
             s.total,
             s.counts,
             s.complete,
@@ -598,7 +612,8 @@ mod tests {
             d,
             m,
             s.density.size(),
-            s.map.size()
+            s.map.size(),
+            (&s.not_measured.items, s.not_measured.total)
         )
     }
 
@@ -615,11 +630,16 @@ mod tests {
                 for chunk in ps.chunks(size) {
                     let mut part = merged.next_part();
                     for p in chunk {
-                        part.fold(p.clone());
+                        fold_with_unmeasured(&mut part, p);
                     }
                     merged.merge(part);
                 }
                 assert_eq!(shape(&merged), whole, "{n} locations in {parts} parts");
+                // Every fifth line counted, the first LIST_CAP kept in file order.
+                let unmeasured = &merged.not_measured;
+                assert_eq!(unmeasured.total, (n + 1) / 5, "{n}");
+                assert_eq!(unmeasured.items.len(), unmeasured.total.min(LIST_CAP));
+                assert!(unmeasured.items.windows(2).all(|w| w[0] < w[1]));
             }
         }
     }

@@ -26,3 +26,4 @@ pub mod peps;
 pub mod plot;
 pub mod report;
 pub mod terminal;
+pub mod workbook;

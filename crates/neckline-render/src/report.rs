@@ -197,6 +197,9 @@ fn summary_page(a: &Analysis, bd: &Badges) -> Markup {
         p { (verdict_sentence(a)) }
         (curve_brief(a))
         p { (count(a.total(), "location")) " judged, " (count(a.rejected_total(), "row")) " rejected." }
+        @if let Some(line) = neckline_core::output::not_measured_line(a) {
+            p { (line) "." }
+        }
         table.zones {
             thead { tr { th { "zone" } th.n { "locations" } th { "meaning" } } }
             tbody {

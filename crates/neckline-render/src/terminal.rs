@@ -191,6 +191,9 @@ pub fn summary_text(a: &Analysis) -> String {
         count_of(a.total(), "location"),
         count_of(a.rejected_total(), "row")
     );
+    if let Some(line) = neckline_core::output::not_measured_line(a) {
+        let _ = writeln!(s, "{line}");
+    }
     if a.strain_input {
         let _ = writeln!(s, "Strains read from the file (no circle axes, no d0)");
     }

@@ -11,6 +11,9 @@ pub struct ColumnMap {
     pub entries: Vec<(String, String)>,
     /// Where the map came from, for messages (`--column`, `job.toml [columns]`).
     pub origin: String,
+    /// The header's line in the file (1-based), when given (`--header-row`, `header_row` in
+    /// the job file); else the header is the first line that holds the required columns.
+    pub header_row: Option<u64>,
 }
 
 impl ColumnMap {

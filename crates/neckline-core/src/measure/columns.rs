@@ -6,7 +6,7 @@ use super::ColumnMap;
 use crate::error::{Location, Result};
 
 /// neckline's names for the columns it reads.
-pub const NAMES: [&str; 17] = [
+pub const NAMES: [&str; 18] = [
     "id",
     "major",
     "minor",
@@ -24,6 +24,7 @@ pub const NAMES: [&str; 17] = [
     "minor_true_pct",
     "condition",
     "angle_deg",
+    "valid",
 ];
 
 /// Columns of a points.csv written by `check` that are results, not readings: left aside
@@ -131,6 +132,20 @@ pub struct Columns {
     pub(super) note: Option<usize>,
     pub(super) condition: Option<usize>,
     pub(super) angle: Option<usize>,
+    /// The validity flag (`1`/`0`, `true`/`false`, `yes`/`no`): a row flagged not valid is not
+    /// measured.
+    pub(super) valid: Option<usize>,
+}
+
+/// What a numeric column holds, for the unit row under the header.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(super) enum Quantity {
+    /// A length in the file's unit (axes, d0, positions, thickness).
+    Length,
+    /// A strain or thinning in percent.
+    Percent,
+    /// An angle in degrees.
+    Angle,
 }
 
 impl Columns {
@@ -148,6 +163,42 @@ impl Columns {
         let d0 = fields.d0(kind, &mut notes);
         notes.extend(fields.ignored());
         Ok((fields.into_columns(kind, id, d0), notes))
+    }
+
+    /// The fields that hold the reading itself (the axes, or the strain pairs).
+    pub(super) fn reading_fields(&self) -> Vec<usize> {
+        match self.kind {
+            Kind::Axes { major, minor }
+            | Kind::Eng { major, minor }
+            | Kind::True { major, minor } => {
+                vec![major, minor]
+            }
+            Kind::Both { eng, tru } => vec![eng.0, eng.1, tru.0, tru.1],
+        }
+    }
+
+    /// The numeric fields and what each holds.
+    pub(super) fn quantities(&self) -> Vec<(usize, Quantity)> {
+        let reading = if self.gives_strains() {
+            Quantity::Percent
+        } else {
+            Quantity::Length
+        };
+        let mut v: Vec<(usize, Quantity)> = self
+            .reading_fields()
+            .into_iter()
+            .map(|c| (c, reading))
+            .collect();
+        for c in [self.d0, self.x, self.y, self.z, self.thickness]
+            .into_iter()
+            .flatten()
+        {
+            v.push((c, Quantity::Length));
+        }
+        v.extend(self.thinning.map(|c| (c, Quantity::Percent)));
+        v.extend(self.angle.map(|c| (c, Quantity::Angle)));
+        v.sort_unstable_by_key(|(c, _)| *c);
+        v
     }
 
     /// Whether rows give strains rather than axes.
@@ -174,6 +225,7 @@ impl Columns {
             "x" => self.x.is_some(),
             "condition" => self.condition.is_some(),
             "angle_deg" => self.angle.is_some(),
+            "valid" => self.valid.is_some(),
             "y" => self.y.is_some(),
             _ => self.names.iter().any(|n| n == name),
         }

@@ -107,7 +107,11 @@ pub(crate) fn read_header_line(input: &mut impl BufRead, name: &Path) -> Result<
 /// The longest header or comment line read (1 MiB): a longer one is not a measurement file.
 const MAX_HEADER_LINE: u64 = 1 << 20;
 
-fn read_line_capped(input: &mut impl BufRead, line: &mut String, name: &Path) -> Result<usize> {
+pub(super) fn read_line_capped(
+    input: &mut impl BufRead,
+    line: &mut String,
+    name: &Path,
+) -> Result<usize> {
     let mut bytes = Vec::new();
     let n = input
         .take(MAX_HEADER_LINE)

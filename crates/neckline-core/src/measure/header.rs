@@ -1,10 +1,10 @@
 //! The parsed header of a measurement file.
 
-use super::dialect::{csv_error, csv_reader, read_header_line};
+use super::preamble::{find_header, not_measured, unit_row, UnitRow};
 use super::row::RowReader;
-use super::rules::{RowRules, SwapLog, MAX_FIELDS, SWAP_TOLERANCE_PP};
+use super::rules::{RowRules, SwapLog, SWAP_TOLERANCE_PP};
 use super::{ColumnMap, Columns, Dialect, Measurement, RejectedRow};
-use crate::error::{Error, Location, Result};
+use crate::error::{Error, Result};
 use std::io::BufRead;
 use std::path::{Path, PathBuf};
 
@@ -20,8 +20,14 @@ pub struct Header {
     pub columns: Columns,
     /// Notes for the user about the header.
     pub notes: Vec<String>,
-    /// Lines taken by comments and the header: the first data line is `lines + 1`.
+    /// Lines taken by comments, a preamble, the header and a unit row: the first data line is
+    /// `lines + 1`.
     pub lines: u64,
+    /// The unit row under the header, if the file has one.
+    pub units: Option<UnitRow>,
+    /// The lines of the rows not measured, as read one at a time by a
+    /// [`super::MeasurementReader`] (the streaming pass counts them in its summary).
+    pub unmeasured: std::sync::Arc<std::sync::Mutex<crate::capped::Capped<u64>>>,
     /// The d0, reading error and unit the rows are read with (see [`Header::with_rules`]).
     pub rules: RowRules,
     /// The rows whose near-equal axes were swapped.
@@ -29,51 +35,85 @@ pub struct Header {
 }
 
 impl Header {
-    /// Read comment lines and the header line from `input`, which is left at the first data
-    /// line.
+    /// Read comment lines, a preamble, the header line and a unit row from `input`, which is
+    /// left at the first data line. The header is line `map.header_row` when given, else the
+    /// first line that holds the required columns (see [`super::PREAMBLE_LINES`]).
     pub fn read(input: &mut impl BufRead, name: &Path, map: &ColumnMap) -> Result<Self> {
-        let loc = Location::file(name);
         let head = input.fill_buf().map_err(|e| Error::io(name, e))?;
         crate::error::check_text(name, head, false)?;
-        let (prefix, header) = read_header_line(input, name)?;
-        if header.is_empty() {
-            return Err(Error::input(
-                loc,
-                "the file is empty: expected a header row naming id, major, minor (or strain columns)",
-            ));
-        }
-        let dialect = Dialect::detect(&header);
-        let lines = prefix.bytes().filter(|&b| b == b'\n').count().max(1) as u64;
-        let mut reader = csv_reader(dialect, header.as_bytes());
-        let mut record = csv::StringRecord::new();
-        reader
-            .read_record(&mut record)
-            .map_err(|e| csv_error(&loc, e))?;
-        if record.len() > MAX_FIELDS {
-            return Err(Error::input(
-                loc.at_line(lines),
+        let found = find_header(input, name, map)?;
+        let mut notes = found.notes;
+        if found.skipped > 0 {
+            notes.insert(
+                0,
                 format!(
-                    "the header has {} fields, more than {MAX_FIELDS}: not a measurement file",
-                    record.len()
+                    "the header is line {}: the {} line{} before it (a preamble) left aside",
+                    found.line,
+                    found.skipped,
+                    if found.skipped == 1 { "" } else { "s" }
                 ),
-            ));
+            );
         }
-        let (columns, notes) = Columns::from_header(&record, map, &loc)?;
+        let mut lines = found.line;
+        // A row of units right after the header, when it is whole in the buffer.
+        let buf = input.fill_buf().map_err(|e| Error::io(name, e))?;
+        let mut units = None;
+        if let Some(end) = buf.iter().position(|&b| b == b'\n') {
+            if let Ok(text) = std::str::from_utf8(&buf[..end]) {
+                units = unit_row(text, lines + 1, found.dialect, &found.columns, name)?;
+            }
+            if units.is_some() {
+                input.consume(end + 1);
+                lines += 1;
+            }
+        }
         Ok(Header {
             file: name.to_path_buf(),
-            dialect,
-            columns,
+            dialect: found.dialect,
+            columns: found.columns,
             notes,
             lines,
+            units,
             rules: RowRules::default(),
             swaps: Default::default(),
+            unmeasured: Default::default(),
         })
+    }
+
+    /// Refuse a unit row whose length unit is not the one the rows are read in (see
+    /// [`Header::with_rules`]).
+    pub fn check_units(&self) -> Result<()> {
+        match &self.units {
+            Some(u) => u.check(self.rules.unit, &self.columns, &self.file),
+            None => Ok(()),
+        }
+    }
+
+    /// Whether `record` (at `line`) was not measured: its axes or strains all empty, or the
+    /// validity column saying not valid. Such a row is neither judged nor rejected.
+    pub fn not_measured(&self, record: &csv::StringRecord) -> bool {
+        not_measured(&self.columns, record)
     }
 
     /// The same header, its rows read with `rules` (the run's d0, reading error and unit).
     pub fn with_rules(mut self, rules: RowRules) -> Self {
         self.rules = rules;
         self
+    }
+
+    /// Count the row at `line` as not measured.
+    pub fn log_unmeasured(&self, line: u64) {
+        if let Ok(mut log) = self.unmeasured.lock() {
+            log.push(line);
+        }
+    }
+
+    /// The lines of the rows not measured so far (by a [`super::MeasurementReader`]).
+    pub fn unmeasured_lines(&self) -> crate::capped::Capped<u64> {
+        self.unmeasured
+            .lock()
+            .map(|l| l.clone())
+            .unwrap_or_default()
     }
 
     /// A note for the user when near-equal axes or strains were swapped.
@@ -144,7 +184,10 @@ mod tests {
     fn a_file_without_a_usable_header_is_refused() {
         let e = read("# only a comment\n\n").0.unwrap_err().to_string();
         assert!(e.starts_with("m.csv: the file is empty"), "{e}");
-        let wide = format!("id,major,minor{}\n", ",extra".repeat(MAX_FIELDS - 2));
+        let wide = format!(
+            "id,major,minor{}\n",
+            ",extra".repeat(super::super::MAX_FIELDS - 2)
+        );
         let e = read(&wide).0.unwrap_err().to_string();
         assert!(
             e.starts_with("m.csv:1: the header has 1001 fields, more than 1000"),

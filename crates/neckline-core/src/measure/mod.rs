@@ -37,6 +37,7 @@ mod column_map;
 mod columns;
 mod dialect;
 mod header;
+mod preamble;
 mod reader;
 mod recognise;
 mod row;
@@ -48,6 +49,7 @@ pub use columns::{Columns, GRID_COLUMNS, NAMES, PATH_COLUMNS, PATH_READING_COLUM
 pub(crate) use dialect::{csv_error, read_header_line};
 pub use dialect::{csv_reader, parse_number, Dialect};
 pub use header::Header;
+pub use preamble::{parse_valid, UnitRow, PREAMBLE_LINES};
 pub use reader::{
     duplicate, no_rows, open_input, read_measurements, read_measurements_from, MeasurementReader,
     Row,
@@ -159,6 +161,8 @@ pub struct MeasurementSet {
     pub rejected: Vec<RejectedRow>,
     /// Notes on the header (ignored columns, how the columns were read).
     pub notes: Vec<String>,
+    /// Lines of the rows not measured (empty readings, or flagged not valid).
+    pub not_measured: crate::capped::Capped<u64>,
 }
 
 #[cfg(test)]

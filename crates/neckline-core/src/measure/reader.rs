@@ -45,6 +45,7 @@ pub fn read_measurements_from(
         points,
         rejected,
         notes: rows.header.notes.clone(),
+        not_measured: rows.header.unmeasured_lines(),
     })
 }
 
@@ -109,6 +110,10 @@ impl<B: BufRead> Iterator for MeasurementReader<B> {
                 Ok(true) if self.record.iter().all(|f| f.trim().is_empty()) => continue,
                 Ok(true) => {
                     let line = self.header.lines + self.record.position().map_or(0, |p| p.line());
+                    if self.header.not_measured(&self.record) {
+                        self.header.log_unmeasured(line);
+                        continue;
+                    }
                     let row = self.header.row(&self.record, line).map(|(m, _)| m);
                     return Some(Ok(row.and_then(|m| {
                         if self.ids.insert((m.id.clone(), m.stage.clone())) {

@@ -22,6 +22,12 @@ fn canonical(name: &str) -> String {
     }
 }
 
+/// The header's location: `loc` at its line (line 1 when `loc` names none).
+fn at_header(loc: &Location) -> Location {
+    let line = loc.line.unwrap_or(1);
+    loc.clone().at_line(line)
+}
+
 /// Every entry of the column map names a header the file has.
 fn check_map(header: &csv::StringRecord, map: &ColumnMap, loc: &Location) -> Result<()> {
     for (name, h) in &map.entries {
@@ -30,7 +36,7 @@ fn check_map(header: &csv::StringRecord, map: &ColumnMap, loc: &Location) -> Res
             .any(|f| f.trim().eq_ignore_ascii_case(h.trim()))
         {
             return Err(Error::input(
-                loc.clone().at_line(1),
+                at_header(loc),
                 format!(
                     "column map ({}): `{name} = \"{h}\"`, but the header has no column \
                      `{h}` (found: {})",
@@ -67,7 +73,7 @@ fn check_twice(names: &[String], loc: &Location) -> Result<()> {
     for (i, n) in names.iter().enumerate() {
         if !n.is_empty() && !seen.insert(n.as_str()) {
             return Err(Error::input(
-                loc.clone().at_line(1).at_column(i as u64 + 1, n),
+                at_header(loc).at_column(i as u64 + 1, n),
                 format!("column `{n}` appears twice in the header"),
             ));
         }
@@ -121,7 +127,7 @@ impl<'a> Fields<'a> {
     }
 
     fn error(&self, message: String) -> Error {
-        Error::input(self.loc.clone().at_line(1), message)
+        Error::input(at_header(self.loc), message)
     }
 
     /// The two columns of a pair, both or neither (one alone refuses the file).
@@ -306,6 +312,7 @@ impl<'a> Fields<'a> {
             note: self.find("note"),
             condition: self.find("condition"),
             angle: self.find("angle_deg"),
+            valid: self.find("valid"),
             names: self.names,
         }
     }

@@ -145,6 +145,10 @@ impl RowReader<'_> {
                 .ok_or_else(|| self.reject(col, "empty id".into()))?,
             None => self.line.to_string(),
         };
+        if let Some(col) = c.valid {
+            super::parse_valid(self.record.get(col).unwrap_or(""))
+                .map_err(|e| self.reject(col, e))?;
+        }
         let (reading, swapped, disagree) = self.reading()?;
         let thickness = match c.thickness {
             Some(col) if self.text(col).is_some() => {

@@ -2,6 +2,7 @@
 //! Files are written atomically (a temporary file in the same folder, then a rename), and never
 //! over a file that was read as input.
 
+pub mod decimal_comma;
 #[cfg(any(test, feature = "fixture"))]
 pub mod fixture;
 pub mod points_csv;
@@ -19,6 +20,32 @@ pub fn count_of(n: usize, noun: &str) -> String {
     } else {
         format!("{n} {noun}s")
     }
+}
+
+/// Lines of the rows not measured named in the one line that reports them.
+pub const NOT_MEASURED_LINES: usize = 8;
+
+/// The one line that reports the rows not measured (`593 points not measured (lines 14, 15,
+/// 22, ...)`), or `None` when every row was measured.
+pub fn not_measured_line(a: &crate::analysis::Analysis) -> Option<String> {
+    let n = &a.summary.not_measured;
+    if n.total == 0 {
+        return None;
+    }
+    let lines: Vec<String> = n
+        .items
+        .iter()
+        .take(NOT_MEASURED_LINES)
+        .map(u64::to_string)
+        .collect();
+    let more = if n.total > lines.len() { ", ..." } else { "" };
+    Some(format!(
+        "{} not measured (line{} {}{more}): empty readings or flagged not valid, left out \
+         (neither judged nor rejected)",
+        count_of(n.total, "point"),
+        if n.total == 1 { "" } else { "s" },
+        lines.join(", ")
+    ))
 }
 
 /// How an input path is named to people: `-` is standard input.

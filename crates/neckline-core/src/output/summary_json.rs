@@ -48,6 +48,8 @@ pub fn summary(a: &Analysis) -> Value {
         })
         .collect();
     let (b_ids, b_total) = a.borderline();
+    // The first lines of the rows not measured listed in summary.json.
+    const LIST_CAP_LINES: usize = 100;
     let files: Vec<Value> = a
         .files
         .iter()
@@ -71,6 +73,8 @@ pub fn summary(a: &Analysis) -> Value {
         "points": a.total(),
         "rejected_rows": a.rejected_total(),
         "rejected": rejected,
+        "not_measured": { "count": a.summary.not_measured.total,
+                          "first_lines": a.summary.not_measured.items.iter().take(LIST_CAP_LINES).collect::<Vec<_>>() },
         "zones": zones,
         "zone_ids": zone_ids,
         "worst": worst,

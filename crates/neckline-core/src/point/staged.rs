@@ -19,6 +19,8 @@ pub struct Staged {
     pub rejected: Vec<RejectedRow>,
     /// The stages, in order.
     pub stages: Vec<String>,
+    /// Lines of the rows not measured (neither judged nor rejected).
+    pub not_measured: crate::capped::Capped<u64>,
 }
 
 /// Read every row of a file with a `stage` column (held in memory: a location's stages may be
@@ -39,7 +41,9 @@ pub fn judge_staged<B: std::io::BufRead>(
         points: Vec::new(),
         rejected: Vec::new(),
         stages: Vec::new(),
+        not_measured: Default::default(),
     };
+    let unmeasured = rows.header.unmeasured.clone();
     for row in rows {
         let m = match row? {
             Ok(m) => m,
@@ -121,5 +125,6 @@ pub fn judge_staged<B: std::io::BufRead>(
         out.points.push(p);
     }
     out.stages = stages;
+    out.not_measured = unmeasured.lock().map(|l| l.clone()).unwrap_or_default();
     Ok(out)
 }
