@@ -69,6 +69,30 @@ fn workbook(rows: &[Row]) -> Vec<u8> {
     book.save_to_buffer().unwrap()
 }
 
+/// A workbook error names its cell (`FILE, Sheet1!B2`); a text file names line and column
+/// (`FILE:2:2`). Row 2 column B is line 2 column 2: write the cell the text-file way so the
+/// messages compare.
+fn same_location(message: &str) -> String {
+    let Some(at) = message.find("FILE, Sheet1!") else {
+        return message.to_string();
+    };
+    let cell_start = at + "FILE, Sheet1!".len();
+    let rest = &message[cell_start..];
+    let letters: String = rest.chars().take_while(char::is_ascii_uppercase).collect();
+    let digits: String = rest[letters.len()..]
+        .chars()
+        .take_while(char::is_ascii_digit)
+        .collect();
+    let column = letters
+        .bytes()
+        .fold(0u32, |n, b| n * 26 + u32::from(b - b'A' + 1));
+    format!(
+        "{}FILE:{digits}:{column}{}",
+        &message[..at],
+        &rest[letters.len() + digits.len()..]
+    )
+}
+
 type Judged = (Vec<(String, String, String)>, Vec<serde_json::Value>);
 
 fn judge(name: &str, bytes: Vec<u8>) -> Judged {
@@ -82,9 +106,9 @@ fn judge(name: &str, bytes: Vec<u8>) -> Judged {
         // Every row rejected: the run refuses the file; the same for every form.
         return (
             Vec::new(),
-            vec![serde_json::Value::String(
-                r.stderr.lines().last().unwrap_or("").replace(name, "FILE"),
-            )],
+            vec![serde_json::Value::String(same_location(
+                &r.stderr.lines().last().unwrap_or("").replace(name, "FILE"),
+            ))],
         );
     }
     let points = read_rows(&r.path("o/points.csv"))
@@ -123,4 +147,19 @@ proptest! {
             prop_assert_eq!(&judge(name, bytes), &want, "{}", name);
         }
     }
+}
+
+/// The case a random draw found: every row rejected, so the run refuses the file and the
+/// message, not summary.json, carries the location; a workbook's cell must name the same place.
+#[test]
+fn a_file_of_only_bad_rows_is_refused_at_the_same_place_in_every_form() {
+    let rows = [Row {
+        id: 0,
+        major: 0.0,
+        minor: 0.0,
+        bad: true,
+    }];
+    let want = judge("lf.csv", csv_text(&rows).into_bytes());
+    assert!(want.1[0].as_str().unwrap().contains("FILE:2:2"), "{want:?}");
+    assert_eq!(judge("book.xlsx", workbook(&rows)), want);
 }
