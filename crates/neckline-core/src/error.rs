@@ -200,11 +200,11 @@ pub fn clip(raw: &str) -> String {
     format!("{head}... ({} bytes)", raw.len())
 }
 
-/// Read a whole text file, refused with [`check_text`]'s advice when it is not UTF-8 text.
+/// Read a whole text file (a job or curve file) as UTF-8, decoded as
+/// [`crate::text::decode_whole`] says; binary data is refused with [`check_text`]'s advice.
 pub fn read_text(path: &Path) -> Result<String> {
     let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
-    check_text(path, &bytes, true)?;
-    String::from_utf8(bytes).map_err(|_| Error::input(Location::file(path), "not UTF-8 text"))
+    crate::text::decode_whole(path, bytes)
 }
 
 /// Result with this crate's [`Error`].

@@ -140,8 +140,13 @@ pub fn open(path: &Path) -> Result<(Box<dyn BufRead + Send>, RawDigest)> {
             .read_to_end(&mut head)
             .map_err(|e| Error::io(path, e))?;
         let whole = (head.len() as u64) < SNIFF_BYTES;
+        // UTF-8 when the start looked at is (a character cut at the sniff's end aside).
+        let valid = match std::str::from_utf8(&head) {
+            Ok(_) => true,
+            Err(e) => !whole && e.error_len().is_none(),
+        };
         let raw = io::Cursor::new(head.clone()).chain(raw);
-        return Ok((decoded(raw, &head, whole, path, &opts), digest));
+        return Ok((decoded(raw, &head, valid, path, &opts), digest));
     }
     if path.is_dir() {
         return Err(Error::input(
@@ -166,6 +171,52 @@ pub fn open(path: &Path) -> Result<(Box<dyn BufRead + Send>, RawDigest)> {
     let head = raw.fill_buf().map_err(|e| Error::io(path, e))?.to_vec();
     let valid = opts.encoding.is_some() || utf8_file(path).map_err(|e| Error::io(path, e))?;
     Ok((decoded(raw, &head, valid, path, &opts), digest))
+}
+
+/// A whole small text file (a job or curve file, as a text editor on Windows saves it) made
+/// UTF-8: a byte-order mark says UTF-8, UTF-16 LE or UTF-16 BE; without one, valid UTF-8 is
+/// taken as it is and anything else is read as Windows-1252 with a note on the terminal.
+/// Gzip, ZIP and binary data are refused with [`crate::error::check_text`]'s advice, and so
+/// is UTF-16 that does not decode. Line ends are left to the reader (TOML takes CRLF).
+pub fn decode_whole(path: &Path, bytes: Vec<u8>) -> Result<String> {
+    let encoding = match bom(&bytes) {
+        Some(TextEncoding::Utf8) => {
+            let rest = bytes[3..].to_vec();
+            crate::error::check_text(path, &rest, true)?;
+            return String::from_utf8(rest)
+                .map_err(|_| Error::input(Location::file(path), "not UTF-8 text"));
+        }
+        Some(e) => e,
+        None if std::str::from_utf8(&bytes).is_ok() => {
+            crate::error::check_text(path, &bytes, true)?;
+            return String::from_utf8(bytes)
+                .map_err(|_| Error::input(Location::file(path), "not UTF-8 text"));
+        }
+        None => {
+            let binary = bytes.starts_with(&[0x1F, 0x8B])
+                || bytes.starts_with(b"PK\x03\x04")
+                || memchr::memchr(0, &bytes).is_some();
+            if binary {
+                crate::error::check_text(path, &bytes, true)?;
+            }
+            eprintln!(
+                "note: {} is not UTF-8: read as Windows-1252 (Western European Windows)",
+                path.display()
+            );
+            TextEncoding::Windows1252
+        }
+    };
+    let (text, had_errors) = encoding.encoding().decode_with_bom_removal(&bytes);
+    if had_errors {
+        return Err(Error::input(
+            Location::file(path),
+            "the file starts with a UTF-16 byte-order mark but is not valid UTF-16: save it \
+             as UTF-8",
+        ));
+    }
+    let text = text.into_owned();
+    crate::error::check_text(path, text.as_bytes(), true)?;
+    Ok(text)
 }
 
 /// Whether all of the file at `path` is valid UTF-8, read in blocks of 1 MiB.
