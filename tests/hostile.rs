@@ -526,3 +526,38 @@ fn a_5_mb_id_does_not_hang_check() {
     assert!(stdout.contains("2 locations judged"), "{stdout}");
     assert!(dir.path().join("out/report.html").exists(), "{stdout}");
 }
+
+// A job file saved as UTF-16 LE with its byte-order mark (Notepad's "Unicode") is read:
+// its d0 = 2.5 judges the good readings (3.0 / 2.6 mm on 2.5 mm is 20.0 % / 4.0 %).
+#[test]
+fn a_utf16_job_file_is_read() {
+    let name = "job-utf16.toml";
+    let (stdout, _, dir) = recovered(
+        &[
+            (name, &recovered_file(name)),
+            ("good.csv", MEASURED.as_bytes()),
+        ],
+        &[
+            "check",
+            "good.csv",
+            "--job",
+            name,
+            "--limit",
+            "good.toml",
+            "--out",
+            "out",
+        ],
+    );
+    assert!(stdout.contains("1 location judged"), "{stdout}");
+    let points = std::fs::read_to_string(dir.path().join("out/points.csv")).unwrap();
+    let row = common::rows(&points).remove(0);
+    // Engineering strain (d1 - d0) / d0: (3.0 - 2.5) / 2.5 = 20 %, (2.6 - 2.5) / 2.5 = 4 %.
+    assert!(
+        (common::num(&row, "major_eng_pct") - 20.0).abs() < 1e-9,
+        "{points}"
+    );
+    assert!(
+        (common::num(&row, "minor_eng_pct") - 4.0).abs() < 1e-9,
+        "{points}"
+    );
+}
