@@ -312,7 +312,7 @@
     ctx.setLineDash([]);
     if (density) drawDensity(v, ctx);
     drawOrder = drawOrder || order();
-    var r = N > 3000 ? 4 : 5;
+    var r = N > 1000 ? 4 : 5;
     if (COMPARE) drawOrder.forEach(function (i) {
       if (isNaN(fx[i])) return;
       var a = v.px(fx[i], fy[i]), b = v.px(dx[i], dy[i]);
@@ -360,7 +360,7 @@
     v.frame(ctx);
     if (cells) drawCells(v, ctx);
     drawOrder = drawOrder || order();
-    var r = N > 3000 ? 4 : 6;
+    var r = N > 1000 ? 4 : 6;
     if (COMPARE) drawOrder.forEach(function (i) {
       if (isNaN(mfx[i]) || isNaN(mx[i]) || (mfx[i] === mx[i] && mfy[i] === my[i])) return;
       var a = v.px(mfx[i], mfy[i]), b = v.px(mx[i], my[i]);
@@ -582,8 +582,12 @@
     document.getElementById("sel-note").textContent = rows.length
       ? rows.length + " selected" + (rows.length > TABLE_MAX ? " (first " + TABLE_MAX + " shown; Copy as CSV holds all)" : "")
       : "nothing selected: click a location, draw a box, search an id or use the worst list";
-    var cur = tbody.querySelector("tr.current");
-    if (cur && cur.scrollIntoView) cur.scrollIntoView({ block: "nearest" });
+    // The current row is brought into the table's own view (the page itself does not move).
+    var cur = tbody.querySelector("tr.current"), box = table.parentNode;
+    if (cur) {
+      var top = cur.offsetTop - thead.offsetHeight;
+      if (top < box.scrollTop || cur.offsetTop + cur.offsetHeight > box.scrollTop + box.clientHeight) box.scrollTop = Math.max(0, top);
+    }
   }
   function csvField(s) { return /[",\n]/.test(s) ? '"' + s.replace(/"/g, '""') + '"' : s; }
   function selectionCsv() {
