@@ -142,7 +142,6 @@ fn data(c: &Comparison, title: &str, sub: [&str; 2]) -> String {
         counts[r.zone as usize] += 1;
     }
     let (lb, la) = c.labels();
-    let f = |v: Vec<Option<f64>>| f32_column(v);
     format!(
         concat!(
             "{{\"kind\":\"compare\",\"title\":{title},\"sub\":[{s0},{s1}],\"caution\":{caution},",
@@ -190,19 +189,19 @@ fn data(c: &Comparison, title: &str, sub: [&str; 2]) -> String {
         zone = u8_column(rows.iter().map(|r| r.as_ref().map_or(0, |r| r.zone as u8))),
         zb = u8_column(befores.iter().map(|r| r.as_ref().map_or(255, |r| r.zone as u8))),
         cat = u8_column(tracks.iter().map(|(_, k)| *k)),
-        dx = f(rows.iter().map(|r| r.as_ref().map(|r| r.minor_pct)).collect()),
-        dy = f(rows.iter().map(|r| r.as_ref().map(|r| r.major_pct)).collect()),
-        fx = f(befores.iter().map(|r| r.as_ref().map(|r| r.minor_pct)).collect()),
-        fy = f(befores.iter().map(|r| r.as_ref().map(|r| r.major_pct)).collect()),
-        mx = f(xy.iter().map(|p| p.map(|q| q.0)).collect()),
-        my = f(xy.iter().map(|p| p.map(|q| q.1)).collect()),
-        mfx = f(befores.iter().map(|r| r.as_ref().and_then(|r| r.x)).collect()),
-        mfy = f(befores.iter().map(|r| r.as_ref().and_then(|r| r.y)).collect()),
-        major = f(rows.iter().map(|r| r.as_ref().map(|r| r.major_pct)).collect()),
-        minor = f(rows.iter().map(|r| r.as_ref().map(|r| r.minor_pct)).collect()),
-        margin = f(rows.iter().map(|r| r.as_ref().and_then(|r| r.margin_pct)).collect()),
-        mb = f(befores.iter().map(|r| r.as_ref().and_then(|r| r.margin_pct)).collect()),
-        dm = f(tracks.iter().map(|(t, _)| t.margin_change()).collect()),
+        dx = f32_column(rows.iter().map(|r| r.as_ref().map(|r| r.minor_pct))),
+        dy = f32_column(rows.iter().map(|r| r.as_ref().map(|r| r.major_pct))),
+        fx = f32_column(befores.iter().map(|r| r.as_ref().map(|r| r.minor_pct))),
+        fy = f32_column(befores.iter().map(|r| r.as_ref().map(|r| r.major_pct))),
+        mx = f32_column(xy.iter().map(|p| p.map(|q| q.0))),
+        my = f32_column(xy.iter().map(|p| p.map(|q| q.1))),
+        mfx = f32_column(befores.iter().map(|r| r.as_ref().and_then(|r| r.x))),
+        mfy = f32_column(befores.iter().map(|r| r.as_ref().and_then(|r| r.y))),
+        major = f32_column(rows.iter().map(|r| r.as_ref().map(|r| r.major_pct))),
+        minor = f32_column(rows.iter().map(|r| r.as_ref().map(|r| r.minor_pct))),
+        margin = f32_column(rows.iter().map(|r| r.as_ref().and_then(|r| r.margin_pct))),
+        mb = f32_column(befores.iter().map(|r| r.as_ref().and_then(|r| r.margin_pct))),
+        dm = f32_column(tracks.iter().map(|(t, _)| t.margin_change())),
         reason = i32_column(tracks.iter().map(|_| -1)),
         worst = worst.join(","),
     )
