@@ -482,7 +482,7 @@
   var worstButtons = [];
   D.worst.forEach(function (i, k) {
     var words = COMPARE
-      ? ids[i] + " — " + ZN[zone[i]] + ", margin " + fmt(dmargin[i]) + " pp"
+      ? ids[i] + " — " + ZN[zone[i]] + ", margin change " + fmt(dmargin[i]) + " pp"
       : ids[i] + " — " + ZN[zone[i]] + (isNaN(margin[i]) ? "" : ", margin " + fmt(margin[i]) + " pp");
     var b = el("button", { type: "button", "aria-pressed": "false", "data-id": ids[i], "aria-label": "Select " + words }, [shapeIcon(zone[i]), words]);
     b.addEventListener("focus", function () { setSelection([i], i, true); });
