@@ -4,8 +4,9 @@
 //! the dumped DOM is read back. Asserts: no script error and no request other than the page;
 //! `select('L10')` highlights L10 in both views and shows its row; a box drawn on the map
 //! selects exactly the locations whose points.csv coordinates are inside it, and highlights
-//! them on the diagram; `filter(['failed'])` leaves only failed locations drawn; the comparison
-//! page draws the four corners' arrows.
+//! them on the diagram; `filter(['failed'])` leaves only failed locations drawn; focus and the
+//! arrow keys on the worst list select; every control has a label; the comparison page draws
+//! the four corners' arrows.
 //!
 //! Skipped with a message when `chromium` is not installed and `CI` is unset; in CI its absence
 //! fails (`.ci/run` installs Debian's `chromium`).
@@ -188,7 +189,12 @@ fn check_review_links_selects_boxes_and_filters() {
          {b0}R.box.push(neckline.selected());R.boxFld.push(neckline.drawn().fld.highlighted);\
          {b1}R.box.push(neckline.selected());R.boxFld.push(neckline.drawn().fld.highlighted);\
          R.counts=neckline.filter(['failed']);R.drawn=neckline.drawn();\
-         R.all=neckline.filter([]);",
+         R.all=neckline.filter([]);\
+         var wb=document.querySelectorAll('.worst button');wb[0].focus();R.k0=neckline.selected();\
+         wb[0].dispatchEvent(new KeyboardEvent('keydown',{{key:'ArrowDown',bubbles:true}}));\
+         R.k1=neckline.selected();R.focused=document.activeElement.getAttribute('data-id');\
+         R.labels=[].filter.call(document.querySelectorAll('input,button'),function(e){{\
+         return !(e.labels&&e.labels.length)&&!e.getAttribute('aria-label')&&!e.textContent.trim()}}).length;",
         b0 = box_script("map", boxes[0].0, boxes[0].1, boxes[0].2, boxes[0].3),
         b1 = box_script("map", boxes[1].0, boxes[1].1, boxes[1].2, boxes[1].3),
     );
@@ -243,6 +249,21 @@ fn check_review_links_selects_boxes_and_filters() {
         .map(|v| v.as_u64().unwrap())
         .sum();
     assert_eq!(all as usize, rows.len());
+
+    // Keyboard: focus on the worst list selects; the down arrow moves the focus to the next
+    // location, which is then selected (the order of summary.json's worst list).
+    let summary = common::read_json(&dir.path().join("out/t1/summary.json"));
+    let worst: Vec<&str> = summary["worst_list"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|w| w["id"].as_str().unwrap())
+        .collect();
+    assert_eq!(strings(&r["k0"]), [worst[0]]);
+    assert_eq!(strings(&r["k1"]), [worst[1]]);
+    assert_eq!(r["focused"], Value::String(worst[1].into()));
+    // Every control has a label (a <label>, an aria-label or its own text).
+    assert_eq!(r["labels"], Value::from(0), "{r}");
 
     // The page as delivered (no harness) also opens without an error or a request.
     let (dom, log) = dump_dom(&chromium, &page);
