@@ -37,6 +37,7 @@ fn default_writes_every_output_and_plain_text_off_a_terminal() {
             "map.svg",
             "points.csv",
             "report.html",
+            "review.html",
             "summary.json"
         ],
         "{r}"

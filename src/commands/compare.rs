@@ -205,6 +205,8 @@ fn write_pack(
     }
     let html = page::page_html(c).map_err(|e| render("compare.html", e))?;
     files.push((target("compare.html"), html.into_bytes()));
+    let review = neckline_render::review::compare_review_html(c);
+    files.push((target("review.html"), review.into_bytes()));
     std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
     for (p, _) in &files {
         guard_inputs(p, inputs)?;

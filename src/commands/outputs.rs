@@ -31,6 +31,8 @@ pub enum Format {
     /// points.xlsx: points.csv as a workbook (numbers as numbers, zones in colour), with a
     /// summary sheet.
     Xlsx,
+    /// review.html: the interactive review page (diagram and map linked; opens from disk).
+    Review,
 }
 
 /// Strain measure of the diagram's axes.
@@ -50,12 +52,13 @@ pub struct OutputArgs {
     pub out: PathBuf,
     /// Which outputs to write, comma-separated: csv (points.csv), json (summary.json),
     /// svg (fld.svg, map.svg), png (fld.png, map.png), html (report.html), xlsx (points.xlsx,
-    /// made from points.csv, which is then written too).
+    /// made from points.csv, which is then written too), review (review.html: the interactive
+    /// review page).
     #[arg(
         long,
         value_name = "LIST",
         value_delimiter = ',',
-        default_value = "csv,json,svg,png,html"
+        default_value = "csv,json,svg,png,html,review"
     )]
     pub format: Vec<Format>,
     /// Where the points CSV goes instead of DIR/points.csv; `-` = standard output (the summary
@@ -107,6 +110,8 @@ pub struct Plan {
     pub html: Option<PathBuf>,
     /// points.xlsx target.
     pub xlsx: Option<PathBuf>,
+    /// review.html target.
+    pub review: Option<PathBuf>,
     /// Whether points.csv is written with `;` and decimal commas.
     pub decimal_comma: bool,
 }
@@ -124,6 +129,7 @@ impl Plan {
             png: has(Format::Png).then(|| (dir("fld.png"), dir("map.png"))),
             html: has(Format::Html).then(|| dir("report.html")),
             xlsx: has(Format::Xlsx).then(|| dir("points.xlsx")),
+            review: has(Format::Review).then(|| dir("review.html")),
             decimal_comma: args.decimal_comma,
         }
     }
@@ -143,6 +149,7 @@ impl Plan {
         }
         v.extend(self.html.as_deref());
         v.extend(self.xlsx.as_deref());
+        v.extend(self.review.as_deref());
         v
     }
 
@@ -242,7 +249,7 @@ fn fld_options(args: &OutputArgs) -> FldOptions {
 }
 
 /// Every file name `check` and `grid` may write into the output folder.
-pub const OUTPUT_NAMES: [&str; 10] = [
+pub const OUTPUT_NAMES: [&str; 11] = [
     "points.csv",
     "points.xlsx",
     "summary.json",
@@ -251,6 +258,7 @@ pub const OUTPUT_NAMES: [&str; 10] = [
     "fld.png",
     "map.png",
     "report.html",
+    "review.html",
     "peps.svg",
     "peps.png",
 ];
@@ -297,6 +305,10 @@ fn write_outputs(
     if let Some(p) = &plan.html {
         let html =
             report::report_html(a, &opts, args.map_value.into()).map_err(|e| render(p, e))?;
+        files.push((p.clone(), html.into_bytes()));
+    }
+    if let Some(p) = &plan.review {
+        let html = neckline_render::review::review_html(a, opts.measure);
         files.push((p.clone(), html.into_bytes()));
     }
     let mut written = Vec::with_capacity(files.len() + 1);
