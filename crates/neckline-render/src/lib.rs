@@ -3,8 +3,8 @@
 //! Every picture and page neckline draws for people, from the one result of the core crate:
 //! the forming-limit diagram ([`fld`]), the part map ([`map`]), the strain-path diagram
 //! ([`peps`]), the printable report ([`report`], on the layout of [`page`]), the terminal
-//! summary ([`terminal`]), the comparison of tryouts ([`compare`]) and the press-shop curve's
-//! picture ([`parts`]).
+//! summary ([`terminal`]), the comparison of tryouts ([`compare`]), the press-shop curve's
+//! picture ([`parts`]) and the laboratory curve from test sections ([`sections`]).
 //!
 //! Layers, each using only those below it: [`plot`] (fonts, palette, markers, encoders), then
 //! [`chart`] (the one chart style: frame, title, legend, footer, label placement), then the
@@ -25,5 +25,6 @@ pub mod parts;
 pub mod peps;
 pub mod plot;
 pub mod report;
+pub mod sections;
 pub mod terminal;
 pub mod workbook;
