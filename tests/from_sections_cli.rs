@@ -66,7 +66,10 @@ fn the_demo_series_gives_back_its_true_limits() {
     assert_eq!(sc.len(), 5);
     // The specimens lie 0.4 points apart (the script's offsets): the scatter of the major strain
     // is about 0.4, between 0.2 and 0.7 points.
-    assert!(sc.iter().all(|s| 100.0 * s[1] > 0.2 && 100.0 * s[1] < 0.7), "{sc:?}");
+    assert!(
+        sc.iter().all(|s| 100.0 * s[1] > 0.2 && 100.0 * s[1] < 0.7),
+        "{sc:?}"
+    );
     let bytes = std::fs::read(common::repo("demo-parts/lab-sections/sections.csv")).unwrap();
     let sha = neckline_core::digest::sha256_hex(&bytes);
     for part in [
@@ -81,11 +84,18 @@ fn the_demo_series_gives_back_its_true_limits() {
         c.material.as_deref(),
         Some("DX54 class (invented), coil 11 (invented)")
     );
-    for f in ["plots/curve.svg", "plots/sections.html", "plots/sections-20.svg"] {
+    for f in [
+        "plots/curve.svg",
+        "plots/sections.html",
+        "plots/sections-20.svg",
+    ] {
         assert!(dir.path().join(f).is_file(), "{f}\n{r}");
     }
     let page = r.read("plots/sections.html");
-    assert!(page.contains("Sign-off") && page.contains(&sha), "sign-off and digest");
+    assert!(
+        page.contains("Sign-off") && page.contains(&sha),
+        "sign-off and digest"
+    );
     assert!(r.stdout.contains("Plane-strain limit (FLC0)"), "{r}");
 }
 
@@ -111,8 +121,7 @@ fn a_lab_curve_judges_the_demo_part_like_any_curve() {
         let r = run_in(
             dir.path(),
             &[
-                "check", &tryout, "--job", &job, "--limit", curve, "--out", out, "--format",
-                "csv",
+                "check", &tryout, "--job", &job, "--limit", curve, "--out", out, "--format", "csv",
             ],
         );
         assert!(r.code == 0 || r.code == 1, "{r}");
