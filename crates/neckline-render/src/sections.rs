@@ -129,6 +129,7 @@ fn draw_section<DB: DrawingBackend>(
     );
     let mut chart = ChartBuilder::on(area)
         .margin(6)
+        .margin_right(18)
         .caption(head, plot::text(14.0).color(&title_colour))
         .x_label_area_size(22)
         .y_label_area_size(36)
