@@ -38,6 +38,7 @@ fn unbounded_curve() -> LimitCurve {
         points: vec![[-1e6, 1e6], [1e6, 1e6]],
         warnings: Vec::new(),
         supported: None,
+        scatter: None,
         true_path: Default::default(),
     }
 }

@@ -4,7 +4,8 @@
 //! the forming-limit diagram ([`fld`]), the part map ([`map`]), the strain-path diagram
 //! ([`peps`]), the printable report ([`report`], on the layout of [`page`]), the terminal
 //! summary ([`terminal`]), the comparison of tryouts ([`compare`]), the press-shop curve's
-//! picture ([`parts`]) and the interactive review page ([`review`]).
+//! picture ([`parts`]), the laboratory curve from test sections ([`sections`]) and the
+//! interactive review page ([`review`]).
 //!
 //! Layers, each using only those below it: [`plot`] (fonts, palette, markers, encoders), then
 //! [`chart`] (the one chart style: frame, title, legend, footer, label placement), then the
@@ -26,5 +27,6 @@ pub mod peps;
 pub mod plot;
 pub mod report;
 pub mod review;
+pub mod sections;
 pub mod terminal;
 pub mod workbook;

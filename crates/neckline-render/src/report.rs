@@ -173,14 +173,24 @@ fn curve_brief(a: &Analysis) -> Markup {
 
 fn signoff(a: &Analysis) -> Markup {
     let j = &a.job;
+    signoff_block([
+        j.prepared_by.as_deref(),
+        j.checked_by.as_deref(),
+        j.approved_by.as_deref(),
+    ])
+}
+
+/// The sign-off block: prepared, checked and approved, each with its name (when known), an empty
+/// signature and an empty date (shared by every printable page).
+pub fn signoff_block(names: [Option<&str>; 3]) -> Markup {
     html! {
         div.keep {
         h3 { "Sign-off" }
         table.signoff {
             thead { tr { th { "" } th { "Name" } th { "Signature" } th { "Date" } } }
             tbody {
-                @for (role, name) in [("Prepared", &j.prepared_by), ("Checked", &j.checked_by), ("Approved", &j.approved_by)] {
-                    tr { th { (role) } td { (name.as_deref().unwrap_or("")) } td {} td {} }
+                @for (role, name) in ["Prepared", "Checked", "Approved"].into_iter().zip(names) {
+                    tr { th { (role) } td { (name.unwrap_or("")) } td {} td {} }
                 }
             }
         }

@@ -4,6 +4,7 @@
 //!
 //! - [`models`]: the three material models, arguments to [`GeneratedCurve`];
 //! - [`from_parts`]: the parts file read and hashed, the fit, the curve's source record;
+//! - [`from_sections`]: the laboratory curve from test-section strain profiles;
 //! - [`curves_compare`]: `limit compare`, two curves side by side;
 //! - [`emit`]: what every curve command shares: `--out`, `--plot`, the checked write.
 //!
@@ -12,11 +13,13 @@
 pub mod curves_compare;
 pub mod emit;
 pub mod from_parts;
+pub mod from_sections;
 pub mod models;
 
 pub use curves_compare::CurvesCompareArgs;
 pub use emit::{CurveOutArgs, PictureFormat};
 pub use from_parts::FromPartsArgs;
+pub use from_sections::FromSectionsArgs;
 pub use models::{KeelerBrazierArgs, MkArgs, NeckingArgs};
 
 use super::Outcome;
@@ -44,6 +47,9 @@ pub enum LimitCommand {
     /// Press-shop curve from circles read on necked or split parts (a `condition` column: safe,
     /// necked, split), true strain.
     FromParts(FromPartsArgs),
+    /// Laboratory curve from test-section strain profiles (position-dependent method after
+    /// ISO 12004-2), true strain.
+    FromSections(FromSectionsArgs),
     /// Print two curves' engineering major strain and their difference at a set of minor strains.
     Compare(CurvesCompareArgs),
 }
@@ -55,6 +61,7 @@ pub fn run(args: &LimitArgs) -> Result<Outcome> {
         LimitCommand::Necking(a) => models::emit(&models::necking_curve(a)?, &a.out),
         LimitCommand::Mk(a) => models::emit(&models::mk_curve(a)?, &a.out),
         LimitCommand::FromParts(a) => from_parts::run(a),
+        LimitCommand::FromSections(a) => from_sections::run(a),
         LimitCommand::Compare(a) => curves_compare::run(a),
     }
 }

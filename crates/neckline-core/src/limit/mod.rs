@@ -11,6 +11,7 @@ pub mod from_parts;
 pub mod keeler_brazier;
 pub mod mk;
 pub mod necking;
+pub mod sections;
 pub mod writer;
 
 use crate::error::{Error, Location, Result};
@@ -42,6 +43,9 @@ pub struct LimitCurve {
     /// The part of the minor-strain range the curve's evidence supports, `[from, to]` as
     /// fractions in `measure` (a press-shop curve's `supported`); `None` = all of it.
     pub supported: Option<[f64; 2]>,
+    /// The scatter of each point, `[minor, major]` as fractions in `measure` (one standard
+    /// deviation, a laboratory curve's `scatter`); `None` when the file gives none.
+    pub scatter: Option<Vec<[f64; 2]>>,
     /// The curve in true strain, built on first use by [`LimitCurve::limit_use_pct`].
     pub true_path: OnceLock<TruePath>,
 }
@@ -60,6 +64,8 @@ struct CurveFile {
     /// The 50 % line of a press-shop curve: information, not judged against.
     #[allow(dead_code)]
     points_50: Option<Vec<Vec<f64>>>,
+    /// One standard deviation per point, `[minor, major]` in percent (a laboratory curve).
+    scatter: Option<Spanned<Vec<Vec<f64>>>>,
 }
 
 /// A curve as a polyline in true strain, ready for ray queries.
@@ -230,7 +236,31 @@ impl LimitCurve {
                 Some([v[0] / 100.0, v[1] / 100.0])
             }
         };
+        let scatter = match &file.scatter {
+            None => None,
+            Some(sc) => {
+                let v = sc.get_ref();
+                let ok = v.len() == pct.len()
+                    && v.iter().all(|p| {
+                        p.len() == 2
+                            && p.iter()
+                                .all(|x| x.is_finite() && *x >= 0.0 && *x <= PLAUSIBLE_PCT)
+                    });
+                if !ok {
+                    return Err(Error::input(
+                        at(sc.span().start),
+                        format!(
+                            "`scatter` must give [minor, major] in percent, each finite and not \
+                             negative, for each of the {} points",
+                            pct.len()
+                        ),
+                    ));
+                }
+                Some(v.iter().map(|p| [p[0] / 100.0, p[1] / 100.0]).collect())
+            }
+        };
         Ok(LimitCurve {
+            scatter,
             supported,
             name: file.name,
             source: file.source,

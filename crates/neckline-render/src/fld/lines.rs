@@ -27,6 +27,28 @@ pub fn curve_line(a: &Analysis, measure: StrainMeasure) -> Line {
         .collect()
 }
 
+/// The curve's scatter band, when its file gives one (a laboratory curve's `scatter`): the
+/// outline of the curve's points with their major strain raised and lowered by one standard
+/// deviation (in the file's measure), in axis coordinates, ready to fill.
+pub fn scatter_band(a: &Analysis, measure: StrainMeasure) -> Option<Line> {
+    let sc = a.curve.scatter.as_ref()?;
+    let to_axis = |minor: f64, major: f64| {
+        let t = |v: f64| a.curve.measure.to_true(v).map(|s| s.value());
+        Some((
+            plot::axis_value(measure, t(minor)?),
+            plot::axis_value(measure, t(major)?),
+        ))
+    };
+    let pts = &a.curve.points;
+    let upper = pts.iter().zip(sc).map(|(p, s)| to_axis(p[0], p[1] + s[1]));
+    let lower = pts
+        .iter()
+        .zip(sc)
+        .rev()
+        .map(|(p, s)| to_axis(p[0], p[1] - s[1]));
+    upper.chain(lower).collect()
+}
+
 /// The safety-band line: the curve's engineering major strain minus the margin, in axis
 /// coordinates. Points where that would be no strain at all (e ≤ −1) are left out.
 pub fn band_line(a: &Analysis, measure: StrainMeasure) -> Line {

@@ -27,7 +27,9 @@ use plotters::prelude::*;
 use std::io;
 
 mod lines;
-pub use lines::{band_line, curve_line, reference_paths, thinning_line, Line, THINNING_LINES};
+pub use lines::{
+    band_line, curve_line, reference_paths, scatter_band, thinning_line, Line, THINNING_LINES,
+};
 
 /// What the diagram shows.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -163,6 +165,14 @@ fn draw<DB: DrawingBackend>(
     for run in &band {
         chart::BAND.draw(root, run)?;
     }
+    if let Some(outline) = scatter_band(a, m) {
+        let clipped: Vec<(f64, f64)> = outline
+            .iter()
+            .map(|p| (p.0.clamp(xr.0, xr.1), p.1.clamp(yr.0, yr.1)))
+            .collect();
+        let poly: Vec<(i32, i32)> = clipped.iter().map(|p| px(*p)).collect();
+        root.draw(&Polygon::new(poly, SCATTER.filled()))?;
+    }
     let curve = plot.runs(&curve_line(a, m));
     for run in &curve {
         chart::CURVE.draw(root, run)?;
@@ -196,6 +206,9 @@ fn draw<DB: DrawingBackend>(
     legend(root, a, opts).draw(root)?;
     draw_analysis_footer(root, a)
 }
+
+/// The fill of a laboratory curve's scatter band (a light grey under the curve).
+const SCATTER: RGBColor = RGBColor(0xDD, 0xDD, 0xDD);
 
 /// The label of the maximum-thinning line.
 fn max_thinning_label(max: f64) -> String {
@@ -411,6 +424,13 @@ fn legend<DB: DrawingBackend>(
     let line =
         |stroke: Stroke, text: String| Row::entry(Key::Line { stroke, len: 40 }, text, &LINES);
     l.push(line(chart::CURVE, "limit curve".into()));
+    if a.curve.scatter.is_some() {
+        l.push(Row::entry(
+            Key::Patch(SCATTER.filled()),
+            "curve scatter (± 1 s.d.)",
+            &LINES,
+        ));
+    }
     if !opts.curve_only {
         l.push(line(chart::BAND, band_label(a, opts.measure)));
         if let Some(max) = a.settings.max_thinning_pct {
