@@ -128,6 +128,8 @@ pub struct OutputSet {
     own: Option<(PathBuf, &'static [&'static str])>,
     /// A staging folder outside any target folder, for written-through targets only.
     spill: Option<PathBuf>,
+    /// Folders this set made, deepest first: removed again (when empty) if it is not committed.
+    made: Vec<PathBuf>,
 }
 
 /// Which older files a commit removes from the main output folder.
@@ -154,6 +156,7 @@ impl OutputSet {
             order: Vec::new(),
             own: own.map(|o| (o.dir.to_path_buf(), o.names)),
             spill: None,
+            made: Vec::new(),
         };
         live().sets.push((id, Vec::new()));
         let mut through = Vec::new();
@@ -218,7 +221,13 @@ impl OutputSet {
         } else {
             dir
         };
+        let missing: Vec<PathBuf> = shown
+            .ancestors()
+            .take_while(|a| !a.as_os_str().is_empty() && !a.exists())
+            .map(Path::to_path_buf)
+            .collect();
         fs::create_dir_all(shown).map_err(|e| Error::io(shown, e))?;
+        self.made.extend(missing);
         let lock = Lock::take(shown, self.id)?;
         remove_stale(shown);
         let stage = shown.join(format!("{STAGE_PREFIX}{}.{}", std::process::id(), self.id));
@@ -351,6 +360,7 @@ impl OutputSet {
             .iter()
             .map(|&k| self.targets[k].path.clone())
             .collect();
+        self.made.clear();
         self.cleanup(&mut l);
         Ok(Committed { written, removed })
     }
@@ -442,6 +452,9 @@ impl OutputSet {
         l.sets.retain(|(i, _)| *i != self.id);
         self.spill = None;
         self.folders.clear();
+        for d in self.made.drain(..) {
+            let _ = fs::remove_dir(d);
+        }
     }
 }
 
@@ -756,7 +769,7 @@ mod tests {
         let mut set = OutputSet::begin(&[&a], None, &[]).unwrap();
         set.write(&a, b"x").unwrap();
         drop(set);
-        assert!(names(&d.path().join("new")).is_empty());
+        assert!(names(d.path()).is_empty(), "the folder it made, removed");
     }
 
     #[test]

@@ -218,6 +218,26 @@ mod tests {
     }
 
     #[test]
+    fn the_points_table_is_recorded_and_read_back() {
+        let a = crate::output::fixture::analysis(true);
+        // SHA-256 of "abc": FIPS 180-2, appendix B.1.
+        let p = PointsFile {
+            name: "points.csv".into(),
+            sha256: "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad".into(),
+        };
+        let mut text = Vec::new();
+        write_summary_with(&a, Some(&p), &mut text).unwrap();
+        let text = String::from_utf8(text).unwrap();
+        assert_eq!(recorded_points(&text), Some(p));
+        let mut none = Vec::new();
+        write_summary(&a, &mut none).unwrap();
+        let none = String::from_utf8(none).unwrap();
+        assert!(none.contains("\"points_file\": null"));
+        assert_eq!(recorded_points(&none), None);
+        assert_eq!(recorded_points("not json"), None);
+    }
+
+    #[test]
     fn worst_list_carries_reasons_and_curve_its_points() {
         let a = crate::output::fixture::analysis(true);
         let v = summary(&a);
