@@ -58,7 +58,9 @@ mod imp {
                 if n == 1 {
                     stop(i32::from(byte));
                 }
-                if n == 0 {
+                let again = n < 0
+                    && std::io::Error::last_os_error().kind() == std::io::ErrorKind::Interrupted;
+                if n == 0 || (n < 0 && !again) {
                     return;
                 }
             });

@@ -5,6 +5,9 @@
 //! The SHA-256 that summary.json records for its points.csv is checked against the `sha2`
 //! crate's digest of the file (FIPS 180-4 SHA-256, a general-purpose library).
 
+// FIFOs, devices, mounts and pids are Unix's.
+#![cfg(unix)]
+
 mod common;
 use common::{demo_tryout, neckline, read_json, repo_arg, run_in};
 use sha2::{Digest, Sha256};
