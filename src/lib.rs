@@ -13,3 +13,5 @@
 pub mod args;
 pub mod cli;
 pub mod commands;
+pub mod interrupt;
+pub mod output_set;

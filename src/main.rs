@@ -7,6 +7,7 @@ use std::process::ExitCode;
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    neckline::interrupt::install();
     let result = match &cli.command {
         Command::Check(args) => commands::check::run(args),
         Command::Strains(args) => commands::strains::run(args),

@@ -560,7 +560,7 @@ fn strains_with_no_usable_row_exits_2() {
 }
 
 #[test]
-fn outputs_left_from_an_earlier_run_are_pointed_out() {
+fn outputs_left_from_an_earlier_run_are_removed_and_named() {
     let [csv, job] = demo(1);
     let r = run(&["check", &csv, "--job", &job, "--out", "o"]);
     assert_eq!(r.code, 0, "{r}");
@@ -571,12 +571,10 @@ fn outputs_left_from_an_earlier_run_are_pointed_out() {
         ],
     );
     assert_eq!(r.code, 0, "{r}");
-    assert!(
-        r.stdout
-            .contains("note: o/report.html is from an earlier run"),
-        "{r}"
-    );
-    assert!(!r.stdout.contains("note: o/points.csv"), "{r}");
+    assert!(r.stdout.contains("note: removed "), "{r}");
+    assert!(r.stdout.contains("o/report.html"), "{r}");
+    assert!(!r.path("o/report.html").exists(), "{r}");
+    assert!(!r.stdout.contains("o/points.csv,"), "{r}");
 }
 
 #[test]

@@ -1,12 +1,11 @@
 //! Interrupted runs: `check` killed (SIGKILL) while it writes a large points.csv leaves the
 //! output folder with the previous complete outputs, or none, never a torn file. Outputs are
-//! written to `.NAME.PID.tmp` beside their target and renamed over it when complete (a rename
-//! within one folder is atomic on POSIX file systems: POSIX rename(2)).
+//! written into a staging folder `.neckline-stage.PID.N` beside their targets and renamed in
+//! when every one is complete (a rename within one file system is atomic: POSIX rename(2)).
 //!
-//! A killed run leaves its temporary behind (nothing runs after SIGKILL). The next run does not
-//! remove it: a temporary is named by the process that writes it, and another `check` writing
-//! into the same folder at the same time cannot be told from a dead one portably. Temporaries
-//! are hidden (a leading dot), never read by neckline, and the next run writes its own.
+//! A killed run leaves its staging folder and its lock file behind (nothing runs after
+//! SIGKILL; the kernel releases the lock itself). The next run into the folder takes the lock,
+//! sees that the process named in the staging folder's name is gone and removes it.
 
 mod common;
 use common::run_in;
@@ -59,7 +58,7 @@ fn outputs(dir: &Path) -> (Vec<(PathBuf, Vec<u8>)>, Vec<PathBuf>) {
     for e in rd {
         let p = e.unwrap().path();
         let name = p.file_name().unwrap().to_string_lossy().into_owned();
-        if name.starts_with('.') && name.ends_with(".tmp") {
+        if name.starts_with('.') {
             temps.push(p);
         } else {
             let bytes = std::fs::read(&p).unwrap();
@@ -82,7 +81,8 @@ fn kill_while_writing(child: &mut Child, out: &Path) -> bool {
         let writing = std::fs::read_dir(out).into_iter().flatten().any(|e| {
             let e = e.unwrap();
             let name = e.file_name().to_string_lossy().into_owned();
-            name.starts_with(".points.csv.") && e.metadata().map_or(0, |m| m.len()) > 1 << 20
+            name.starts_with(".neckline-stage.")
+                && std::fs::metadata(e.path().join("points.csv")).map_or(0, |m| m.len()) > 1 << 20
         });
         if writing {
             child.kill().unwrap(); // SIGKILL on Unix
@@ -92,7 +92,7 @@ fn kill_while_writing(child: &mut Child, out: &Path) -> bool {
         std::thread::sleep(Duration::from_millis(5));
     }
     let _ = child.kill();
-    panic!("no points.csv temporary within 60 s");
+    panic!("no staged points.csv within 60 s");
 }
 
 /// points.csv is whole: a header and one line per row, each with the header's field count.
@@ -123,7 +123,11 @@ fn a_killed_first_run_leaves_no_output() {
         "{:?}",
         files.iter().map(|f| &f.0).collect::<Vec<_>>()
     );
-    assert_eq!(temps.len(), 1, "{temps:?}");
+    assert_eq!(
+        temps.len(),
+        2,
+        "the staging folder and the lock file: {temps:?}"
+    );
 }
 
 #[test]
@@ -146,21 +150,18 @@ fn a_killed_run_keeps_the_previous_outputs_and_the_next_run_completes() {
     assert_whole(points);
 
     // A second run over it, killed while it writes points.csv: the first run's files remain,
-    // byte for byte; the killed run's temporary is left.
+    // byte for byte; the killed run's staging folder and lock file are left.
     let mut child = start(dir.path(), "b.csv");
     assert!(kill_while_writing(&mut child, &out), "the run ended first");
     let (after, temps) = outputs(&out);
     assert_eq!(after, before, "the previous outputs, unchanged");
-    assert_eq!(temps.len(), 1, "{temps:?}");
-    let stale = temps[0].clone();
-    let stale_bytes = std::fs::read(&stale).unwrap();
+    assert_eq!(temps.len(), 2, "{temps:?}");
 
-    // The next run completes beside the stale temporary, which it leaves alone.
+    // The next run removes the dead run's staging folder and completes.
     let third = run_in(dir.path(), &check_args("b.csv"));
     assert_eq!(third.code, 0, "{third}");
     let (last, temps) = outputs(&out);
-    assert_eq!(temps, vec![stale.clone()]);
-    assert_eq!(std::fs::read(&stale).unwrap(), stale_bytes);
+    assert!(temps.is_empty(), "{temps:?}");
     let points = &last.iter().find(|f| f.0.ends_with("points.csv")).unwrap().1;
     assert_whole(points);
     assert_ne!(last, before, "the new outputs replaced the old");

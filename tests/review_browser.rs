@@ -1,4 +1,4 @@
-//! The interactive review page in a real browser: `check` and `compare` write review.html from
+//! The interactive review page in a real browser: `check` writes review.html and `compare` compare-review.html from
 //! the demo, headless Chromium opens it (with a small test script appended that drives the
 //! page's `window.neckline` hook and pointer events, and writes what it saw into the DOM), and
 //! the dumped DOM is read back. Asserts: no script error and no request other than the page;
@@ -296,7 +296,7 @@ fn compare_review_draws_the_corners_arrows() {
         ],
     );
     assert_eq!(r.code, 0, "{r}");
-    let page = dir.path().join("out/review/review.html");
+    let page = dir.path().join("out/review/compare-review.html");
     let rows = read_rows(&dir.path().join("out/review/compare.csv"));
     let worsened: Vec<String> = {
         let mut v: Vec<String> = rows

@@ -6,13 +6,14 @@ use super::outputs::{emit, OutputArgs, Plan, Summary};
 use super::progress::{Bar, Progress};
 use super::{require_points, Outcome, Prepared};
 use crate::args::{JudgeArgs, LengthArgs};
+use crate::output_set::{OutputSet, StagedFile};
 use clap::Args;
 use neckline_core::analysis::Analysis;
 use neckline_core::digest::FileDigest;
 use neckline_core::error::{Error, Result};
 use neckline_core::measure::{Header, RowRules};
 use neckline_core::output::points_csv::Layout;
-use neckline_core::output::{push_fixed, write_atomic, AtomicFile};
+use neckline_core::output::push_fixed;
 use neckline_core::point::Context;
 use neckline_core::stream::Pass;
 use rayon::prelude::*;
@@ -50,9 +51,9 @@ pub fn run(args: &CheckArgs) -> Result<Outcome> {
     }
     if let [one] = args.measurements.as_slice() {
         let plan = Plan::of(&args.output);
-        plan.prepare(&direct_inputs(args, one))?;
+        let set = plan.prepare(&args.output.out, &direct_inputs(args, one))?;
         let prep = Prepared::resolve(&args.lengths, &args.judge)?;
-        let a = check_one(one, args, &args.output, &plan, &prep, Batch::Alone)?;
+        let a = check_one(one, args, &args.output, &plan, set, &prep, Batch::Alone)?;
         return Ok(outcome(args, &a));
     }
     run_many(args)
@@ -94,6 +95,7 @@ fn check_one(
     args: &CheckArgs,
     output: &OutputArgs,
     plan: &Plan,
+    mut set: OutputSet,
     prep: &Prepared,
     batch: Batch,
 ) -> Result<Analysis> {
@@ -103,7 +105,8 @@ fn check_one(
     };
     let mut inputs = direct_inputs(args, path);
     inputs.extend(prep.job.limit.clone());
-    let (a, points) = judge_file(path, prep, output, plan, &inputs, bar)?;
+    set.add_inputs(&inputs)?;
+    let (a, points) = judge_file(path, prep, output, plan, &mut set, bar)?;
     if args.strict && a.rejected_total() > 0 {
         return Err(Error::Usage(format!(
             "--strict: {} rows rejected, first: {}",
@@ -111,20 +114,20 @@ fn check_one(
             a.rejected()[0]
         )));
     }
-    emit(&a, output, plan, &inputs, points, summary)?;
+    emit(&a, output, plan, set, &inputs, points, summary)?;
     Ok(a)
 }
 
 /// Read, judge and summarise one measurement file in one streaming pass, writing points.csv
-/// (to a temporary file, returned for the caller to commit with the other outputs) as it goes.
+/// (staged in `set`, returned for the caller to commit with the other outputs) as it goes.
 pub fn judge_file(
     path: &Path,
     prep: &Prepared,
     output: &OutputArgs,
     plan: &Plan,
-    inputs: &[PathBuf],
+    set: &mut OutputSet,
     bar: Bar,
-) -> Result<(Analysis, Option<AtomicFile>)> {
+) -> Result<(Analysis, Option<StagedFile>)> {
     // The measurement file is hashed as it streams past (standard input too), never held;
     // its first rows are screened for a file that cannot be meant as it reads.
     let (mut hashed, digest) = neckline_core::text::open(path)?;
@@ -160,11 +163,11 @@ pub fn judge_file(
         layout.path = staged.stages.len() >= 2;
         let files = input_digests(path, digest.hex(), prep);
         return judged_in_memory(
-            path, prep, output, plan, inputs, ctx, layout, staged, &notes, files,
+            path, prep, output, plan, set, ctx, layout, staged, &notes, files,
         );
     }
     let mut file = match &plan.points {
-        Some(p) if !plan.points_to_stdout() => Some(AtomicFile::create(p, inputs)?),
+        Some(p) if !plan.points_to_stdout() => Some(set.create(p)?),
         _ => None,
     };
     let mut out = std::io::BufWriter::with_capacity(1 << 20, std::io::stdout());
@@ -218,13 +221,13 @@ fn judged_in_memory(
     prep: &Prepared,
     output: &OutputArgs,
     plan: &Plan,
-    inputs: &[PathBuf],
+    set: &mut OutputSet,
     ctx: Context,
     layout: Layout,
     staged: neckline_core::point::staged::Staged,
     notes: &[String],
     files: Vec<FileDigest>,
-) -> Result<(Analysis, Option<AtomicFile>)> {
+) -> Result<(Analysis, Option<StagedFile>)> {
     let mut a = Analysis::new(
         path.to_path_buf(),
         prep.job.clone(),
@@ -249,7 +252,7 @@ fn judged_in_memory(
     a.summary.not_measured = staged.not_measured;
     a.finish();
     let a = require_points(a, path, "no location could be judged", "rows")?;
-    let file = super::outputs::points_out(plan, inputs, &text)?;
+    let file = super::outputs::points_out(plan, set, &text)?;
     Ok((a, file))
 }
 
@@ -286,8 +289,8 @@ fn run_many(args: &CheckArgs) -> Result<Outcome> {
             let mut output = args.output.clone();
             output.out = dir.clone();
             let plan = Plan::of(&output);
-            plan.prepare(&direct_inputs(args, path))?;
-            check_one(path, args, &output, &plan, &prep, Batch::OneOfSeveral)
+            let set = plan.prepare(&output.out, &direct_inputs(args, path))?;
+            check_one(path, args, &output, &plan, set, &prep, Batch::OneOfSeveral)
         })
         .collect();
     let mut text = String::new();
@@ -317,9 +320,9 @@ fn run_many(args: &CheckArgs) -> Result<Outcome> {
     }
     let index = args.output.out.join("index.csv");
     let inputs: Vec<PathBuf> = args.measurements.clone();
-    write_atomic(&index, &inputs, |w| {
-        w.write_all(index_csv(&args.measurements, &results).as_bytes())
-    })?;
+    let mut set = OutputSet::begin(&[&index], None, &inputs)?;
+    set.write(&index, index_csv(&args.measurements, &results).as_bytes())?;
+    set.commit()?;
     print!("{text}");
     println!("Wrote {}", index.display());
     println!("{}", neckline_core::CAUTION);

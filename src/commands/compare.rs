@@ -1,10 +1,10 @@
 //! `neckline compare`: one tryout against the next, location by location, and the review pack.
 
 use super::{paragraph, Outcome};
+use crate::output_set::{Committed, OutputSet, Own};
 use clap::{Args, ValueEnum};
 use neckline_core::compare::{self, csv_out, json_out, read_tryout, Comparison, Matching};
 use neckline_core::error::{Error, Result};
-use neckline_core::output::{guard_inputs, write_atomic};
 use neckline_render::compare::{fld, map, page, terminal};
 use std::path::{Path, PathBuf};
 
@@ -39,8 +39,8 @@ pub struct CompareArgs {
     #[arg(value_name = "POINTS.csv", num_args = 2.., required = true)]
     pub inputs: Vec<PathBuf>,
     /// Folder for the review pack (created if missing): compare.csv, compare.json,
-    /// compare-fld.svg/.png, compare-map.svg/.png (when x, y exist), compare.html
-    /// [default: terminal only].
+    /// compare-fld.svg/.png, compare-map.svg/.png (when x, y exist), compare.html,
+    /// compare-review.html [default: terminal only].
     #[arg(long, value_name = "DIR")]
     pub out: Option<PathBuf>,
     /// Smallest change of margin that counts as improved or worsened, percentage points (of
@@ -67,7 +67,7 @@ pub struct CompareArgs {
 }
 
 /// The files of the review pack, in the order they are written.
-pub const PACK_NAMES: [&str; 7] = [
+pub const PACK_NAMES: [&str; 8] = [
     "compare.csv",
     "compare.json",
     "compare-fld.svg",
@@ -75,6 +75,7 @@ pub const PACK_NAMES: [&str; 7] = [
     "compare-map.svg",
     "compare-map.png",
     "compare.html",
+    "compare-review.html",
 ];
 
 fn matching(args: &CompareArgs) -> Result<Matching> {
@@ -130,8 +131,21 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
         )));
     }
     let how = matching(args)?;
-    if let Some(out) = &args.out {
-        check_out(out)?;
+    let set = match &args.out {
+        Some(out) => {
+            check_out(out)?;
+            let targets: Vec<PathBuf> = PACK_NAMES.iter().map(|n| out.join(n)).collect();
+            let targets: Vec<&Path> = targets.iter().map(PathBuf::as_path).collect();
+            let own = Own {
+                dir: out,
+                names: &PACK_NAMES,
+            };
+            Some(OutputSet::begin(&targets, Some(own), &args.inputs)?)
+        }
+        None => None,
+    };
+    for p in &args.inputs {
+        super::outputs::check_recorded_points(p)?;
     }
     let tryouts = args
         .inputs
@@ -143,24 +157,13 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
     for w in &c.warnings {
         eprint!("{}", paragraph(&format!("warning: {w}")));
     }
-    let written = match &args.out {
-        Some(out) => write_pack(&c, out, &args.inputs, args.decimal_comma)?,
-        None => Vec::new(),
+    let Committed { written, removed } = match (set, &args.out) {
+        (Some(set), Some(out)) => write_pack(&c, set, out, args.decimal_comma)?,
+        _ => Committed::default(),
     };
     print!("{}", terminal::summary(&c, args.show));
-    if let Some(out) = &args.out {
-        for name in PACK_NAMES {
-            let p = out.join(name);
-            if p.is_file() && !written.contains(&p) {
-                print!(
-                    "{}",
-                    paragraph(&format!(
-                        "note: {} is from an earlier run and was not written by this one",
-                        p.display()
-                    ))
-                );
-            }
-        }
+    if args.out.is_some() {
+        print!("{}", super::outputs::removed_note(&removed));
         if map::placed(&c).is_empty() {
             println!("note: no location has x, y: the map of margin change was not drawn");
         }
@@ -170,14 +173,14 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
     Ok(gate(&c, args.fail_on))
 }
 
-/// Render every file of the pack in memory (so that a failure leaves the folder as it was),
-/// then write each atomically.
+/// Render every file of the pack in memory, stage each in `set`, then move them in together
+/// (a failure leaves the folder as it was).
 fn write_pack(
     c: &Comparison,
+    mut set: OutputSet,
     out: &Path,
-    inputs: &[PathBuf],
     decimal_comma: bool,
-) -> Result<Vec<PathBuf>> {
+) -> Result<Committed> {
     let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
     let target = |name: &str| out.join(name);
     let render = |name: &str, e: std::io::Error| Error::io(&target(name), e);
@@ -206,17 +209,11 @@ fn write_pack(
     let html = page::page_html(c).map_err(|e| render("compare.html", e))?;
     files.push((target("compare.html"), html.into_bytes()));
     let review = neckline_render::review::compare_review_html(c);
-    files.push((target("review.html"), review.into_bytes()));
-    std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
-    for (p, _) in &files {
-        guard_inputs(p, inputs)?;
-    }
-    let mut written = Vec::new();
+    files.push((target("compare-review.html"), review.into_bytes()));
     for (p, bytes) in files {
-        write_atomic(&p, inputs, |w| w.write_all(&bytes))?;
-        written.push(p);
+        set.write(&p, &bytes)?;
     }
-    Ok(written)
+    set.commit()
 }
 
 /// The `--fail-on` gate: newly failed (or marginal) locations in the last tryout, and those

@@ -1,10 +1,10 @@
 //! `neckline fit`: ellipses fitted to outline points, written as a measurement file for `check`.
 
 use super::Outcome;
+use crate::output_set::OutputSet;
 use clap::Args;
 use neckline_core::error::{Error, Result};
 use neckline_core::fit::outlines::{fit_outline, outlines, write_fits};
-use neckline_core::output::write_atomic;
 use neckline_core::table::read_table;
 use std::path::{Path, PathBuf};
 
@@ -25,6 +25,9 @@ pub struct FitArgs {
 /// Run `fit`: failures are listed on stderr and the others written; exit 2 if none fitted.
 pub fn run(args: &FitArgs) -> Result<Outcome> {
     super::set_input_options(&args.input, &neckline_core::job::Job::default());
+    let inputs = std::slice::from_ref(&args.outlines);
+    let targets: Vec<&Path> = args.out.iter().map(PathBuf::as_path).collect();
+    let mut set = OutputSet::begin(&targets, None, inputs)?;
     let table = read_table(&args.outlines, "id, x, y")?;
     let (list, mut failures) = outlines(&table)?;
     let mut fits = Vec::new();
@@ -58,9 +61,12 @@ pub fn run(args: &FitArgs) -> Result<Outcome> {
     }
     eprintln!("fitted {} of {} outlines", fits.len(), list.len());
     match &args.out {
-        Some(path) => write_atomic(path, std::slice::from_ref(&args.outlines), |w| {
-            write_fits(&fits, w)
-        })?,
+        Some(path) => {
+            let mut f = set.create(path)?;
+            write_fits(&fits, &mut f).map_err(|e| Error::io(path, e))?;
+            f.finish()?;
+            set.commit()?;
+        }
         None => {
             let stdout = std::io::stdout();
             match write_fits(&fits, &mut stdout.lock()) {

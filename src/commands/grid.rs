@@ -144,7 +144,7 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
     inputs.extend(args.job.clone());
     inputs.extend(args.judge.limit.clone());
     let plan = Plan::of(&args.output);
-    plan.prepare(&inputs)?;
+    let mut set = plan.prepare(&args.output.out, &inputs)?;
     let (a, all, counts) = grid_analysis(args)?;
     if args.strict && a.rejected_total() > 0 {
         return Err(Error::Usage(format!(
@@ -167,11 +167,12 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
     };
     let text = points_csv::table(&layout, &all);
     drop(all);
-    let points = super::outputs::points_out(&plan, &inputs, text.as_bytes())?;
+    let points = super::outputs::points_out(&plan, &mut set, text.as_bytes())?;
     emit(
         &a,
         &args.output,
         &plan,
+        set,
         &inputs,
         points,
         Summary::PrintAfter(&preface),

@@ -3,9 +3,9 @@
 //! (`neckline-check.1`, `neckline-limit-mk.1`, ...).
 
 use super::{paragraph, Outcome};
+use crate::output_set::OutputSet;
 use clap::Args;
 use neckline_core::error::{Error, Result};
-use neckline_core::output::write_atomic;
 use std::path::{Path, PathBuf};
 
 /// Arguments of `manual`.
@@ -52,13 +52,18 @@ pub fn run(args: &ManualArgs, cli: clap::Command) -> Result<Outcome> {
             dir.display()
         )));
     }
-    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
-    let mut names = Vec::with_capacity(pages.len());
-    for (name, text) in &pages {
-        let path = dir.join(name);
-        write_atomic(&path, &[], |w| w.write_all(text))?;
-        names.push(path.display().to_string());
+    let paths: Vec<PathBuf> = pages.iter().map(|(name, _)| dir.join(name)).collect();
+    let targets: Vec<&Path> = paths.iter().map(PathBuf::as_path).collect();
+    let mut set = OutputSet::begin(&targets, None, &[])?;
+    for ((_, text), path) in pages.iter().zip(&paths) {
+        set.write(path, text)?;
     }
+    let names: Vec<String> = set
+        .commit()?
+        .written
+        .iter()
+        .map(|p| p.display().to_string())
+        .collect();
     print!("{}", paragraph(&format!("Wrote {}", names.join(", "))));
     Ok(Outcome::Done)
 }

@@ -3,11 +3,11 @@
 
 use super::paragraph;
 use crate::args::{MapPlaneArg, MapValueArg};
+use crate::output_set::{Committed, OutputSet, Own, StagedFile};
 use clap::{Args, ValueEnum};
 use neckline_core::analysis::Analysis;
 use neckline_core::error::{Error, Result};
-use neckline_core::output::AtomicFile;
-use neckline_core::output::{guard_inputs, summary_json, write_atomic};
+use neckline_core::output::summary_json::{self, PointsFile};
 use neckline_core::strain::StrainMeasure;
 use neckline_core::summary::{MapPlane, View};
 use neckline_render::fld::{self, FldOptions};
@@ -139,23 +139,27 @@ impl Plan {
         self.points.as_deref() == Some(Path::new("-"))
     }
 
-    /// Every file target (standard output left out).
-    pub fn files(&self) -> Vec<&Path> {
-        let mut v: Vec<&Path> = Vec::new();
-        v.extend(self.points.as_deref().filter(|p| *p != Path::new("-")));
-        v.extend(self.summary.as_deref());
-        for pair in [&self.svg, &self.png].into_iter().flatten() {
-            v.extend([pair.0.as_path(), pair.1.as_path()]);
+    /// Every file target (standard output left out), with the path diagrams drawn beside the
+    /// forming-limit diagram for a multi-stage file.
+    pub fn files(&self) -> Vec<PathBuf> {
+        let mut v: Vec<PathBuf> = Vec::new();
+        v.extend(self.points.clone().filter(|p| p != Path::new("-")));
+        v.extend(self.summary.clone());
+        for (pair, peps) in [(&self.svg, "peps.svg"), (&self.png, "peps.png")] {
+            if let Some((f, m)) = pair {
+                v.extend([f.clone(), m.clone(), f.with_file_name(peps)]);
+            }
         }
-        v.extend(self.html.as_deref());
-        v.extend(self.xlsx.as_deref());
-        v.extend(self.review.as_deref());
+        v.extend(self.html.clone());
+        v.extend(self.xlsx.clone());
+        v.extend(self.review.clone());
         v
     }
 
-    /// Create the folders and refuse any target that is an input: before the work starts, so
-    /// that a bad path fails at once.
-    pub fn prepare(&self, inputs: &[PathBuf]) -> Result<()> {
+    /// Before the work starts: create the folders, refuse any target that is a folder or an
+    /// input, lock the folders and check that each can be written, so that a bad path fails
+    /// at once and nothing is written. The returned set stages the outputs for [`emit`].
+    pub fn prepare(&self, out: &Path, inputs: &[PathBuf]) -> Result<OutputSet> {
         if self.points_to_stdout() && (self.xlsx.is_some() || self.decimal_comma) {
             return Err(Error::Usage(
                 "--points - sends the points to standard output: points.xlsx and \
@@ -163,26 +167,13 @@ impl Plan {
                     .into(),
             ));
         }
-        for f in self.files() {
-            if let Some(dir) = f.parent().filter(|d| !d.as_os_str().is_empty()) {
-                if dir.exists() && !dir.is_dir() {
-                    return Err(Error::Usage(format!(
-                        "cannot write {}: {} is a file, not a folder; choose another output path",
-                        f.display(),
-                        dir.display()
-                    )));
-                }
-                std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
-            }
-            if f.is_dir() {
-                return Err(Error::Usage(format!(
-                    "cannot write {}: it is a folder",
-                    f.display()
-                )));
-            }
-            guard_inputs(f, inputs)?;
-        }
-        Ok(())
+        let files = self.files();
+        let targets: Vec<&Path> = files.iter().map(PathBuf::as_path).collect();
+        let own = Own {
+            dir: out,
+            names: &OUTPUT_NAMES,
+        };
+        OutputSet::begin(&targets, Some(own), inputs)
     }
 }
 
@@ -197,18 +188,19 @@ pub enum Summary<'a> {
     Silent,
 }
 
-/// Write the planned outputs of `a`, then print the summary for people as `summary` says, on
-/// standard output, or on standard error when the points CSV goes to standard output.
-/// `inputs` are never written over.
+/// Write the planned outputs of `a` through `set` (all moved in together), then print the
+/// summary for people as `summary` says, on standard output, or on standard error when the
+/// points CSV goes to standard output. `inputs` are never written over nor removed.
 pub fn emit(
     a: &Analysis,
     args: &OutputArgs,
     plan: &Plan,
+    set: OutputSet,
     inputs: &[PathBuf],
-    points: Option<AtomicFile>,
+    points: Option<StagedFile>,
     summary: Summary<'_>,
 ) -> Result<()> {
-    let written = write_outputs(a, args, plan, inputs, points)?;
+    let Committed { written, removed } = write_outputs(a, args, plan, set, inputs, points)?;
     let preface = match summary {
         Summary::Silent => return Ok(()),
         Summary::Print => "",
@@ -221,12 +213,7 @@ pub fn emit(
             "note: no location has {u}, {v}: the part map was not drawn\n"
         ));
     }
-    for stale in stale_outputs(&args.out, &written) {
-        text.push_str(&paragraph(&format!(
-            "note: {} is from an earlier run and was not written by this one",
-            stale.display()
-        )));
-    }
+    text.push_str(&removed_note(&removed));
     if !written.is_empty() {
         let names: Vec<String> = written.iter().map(|p| p.display().to_string()).collect();
         text.push_str(&paragraph(&format!("Wrote {}", names.join(", "))));
@@ -263,21 +250,56 @@ pub const OUTPUT_NAMES: [&str; 11] = [
     "peps.png",
 ];
 
-/// Render every planned output in memory first (so a failure leaves the folder as it was),
-/// then write each file atomically.
+/// The note on older outputs a commit removed (empty when none).
+pub fn removed_note(removed: &[PathBuf]) -> String {
+    if removed.is_empty() {
+        return String::new();
+    }
+    let names: Vec<String> = removed.iter().map(|p| p.display().to_string()).collect();
+    paragraph(&format!(
+        "note: removed {} from an earlier run (not written by this one), so that the folder \
+         holds one run's files",
+        names.join(", ")
+    ))
+}
+
+/// Stage every planned output in `set` (points.csv first, already written by the pass; then
+/// points.xlsx, summary.json with the points table's SHA-256, the pictures and the report),
+/// then commit the set: every file moved in, or none.
 fn write_outputs(
     a: &Analysis,
     args: &OutputArgs,
     plan: &Plan,
+    mut set: OutputSet,
     inputs: &[PathBuf],
-    points: Option<AtomicFile>,
-) -> Result<Vec<PathBuf>> {
-    plan.prepare(inputs)?;
+    points: Option<StagedFile>,
+) -> Result<Committed> {
+    set.add_inputs(inputs)?;
     let render = |p: &Path, e: std::io::Error| Error::io(p, e);
+    let mut recorded = None;
+    if let Some(f) = points {
+        let target = f.target().to_path_buf();
+        let mut sha256 = f.finish()?;
+        if let Some(x) = &plan.xlsx {
+            let from = set.staged(&target)?;
+            let to = set.staged(x)?;
+            neckline_render::workbook::write_points_xlsx(&from, &to, a)
+                .map_err(|e| Error::io(x, e))?;
+        }
+        if plan.decimal_comma {
+            sha256 = restage_decimal_comma(&mut set, &target)?;
+        }
+        let name = target.file_name().unwrap_or(target.as_os_str());
+        recorded = Some(PointsFile {
+            name: name.to_string_lossy().into_owned(),
+            sha256,
+        });
+    }
     let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
     if let Some(p) = &plan.summary {
         let mut json = Vec::new();
-        summary_json::write_summary(a, &mut json).map_err(|e| render(p, e))?;
+        summary_json::write_summary_with(a, recorded.as_ref(), &mut json)
+            .map_err(|e| render(p, e))?;
         files.push((p.clone(), json));
     }
     let opts = fld_options(args);
@@ -311,63 +333,69 @@ fn write_outputs(
         let html = neckline_render::review::review_html(a, opts.measure);
         files.push((p.clone(), html.into_bytes()));
     }
-    let mut written = Vec::with_capacity(files.len() + 1);
-    if let Some(f) = points {
-        let p = f.path().to_path_buf();
-        f.commit()?;
-        if let Some(x) = &plan.xlsx {
-            // Saved beside the target, then renamed: a failed save leaves no half workbook.
-            let part = x.with_file_name(".points.xlsx.part");
-            neckline_render::workbook::write_points_xlsx(&p, &part, a).map_err(|e| {
-                let _ = std::fs::remove_file(&part);
-                Error::io(x, e)
-            })?;
-            std::fs::rename(&part, x).map_err(|e| Error::io(x, e))?;
-        }
-        if plan.decimal_comma {
-            let text = std::fs::File::open(&p).map_err(|e| Error::io(&p, e))?;
-            write_atomic(&p, inputs, |w| {
-                neckline_core::output::decimal_comma::to_decimal_comma(
-                    std::io::BufReader::new(&text),
-                    w,
-                )
-            })?;
-        }
-        written.push(p);
-        written.extend(plan.xlsx.clone());
-    }
     for (path, bytes) in files {
-        write_atomic(&path, inputs, |w| w.write_all(&bytes))?;
-        written.push(path);
+        set.write(&path, &bytes)?;
     }
-    Ok(written)
+    set.commit()
 }
 
-/// Output files in `dir` left by an earlier run and not written by this one: they may no longer
-/// agree with the files that were.
-fn stale_outputs(dir: &Path, written: &[PathBuf]) -> Vec<PathBuf> {
-    OUTPUT_NAMES
-        .iter()
-        .map(|n| dir.join(n))
-        .filter(|p| p.is_file() && !written.contains(p))
-        .collect()
+/// Rewrite the staged points table with `;` and decimal commas; its new SHA-256.
+fn restage_decimal_comma(set: &mut OutputSet, target: &Path) -> Result<String> {
+    let staged = set.staged(target)?;
+    let plain = staged.with_extension("plain");
+    std::fs::rename(&staged, &plain).map_err(|e| Error::io(target, e))?;
+    let text = std::fs::File::open(&plain).map_err(|e| Error::io(target, e))?;
+    let mut f = set.create(target)?;
+    neckline_core::output::decimal_comma::to_decimal_comma(std::io::BufReader::new(&text), &mut f)
+        .map_err(|e| Error::io(target, e))?;
+    let _ = std::fs::remove_file(&plain);
+    f.finish()
 }
 
 /// A points table made in memory, to its planned place: standard output at once, or a
-/// temporary file returned for [`emit`] to commit with the other outputs.
-pub fn points_out(plan: &Plan, inputs: &[PathBuf], text: &[u8]) -> Result<Option<AtomicFile>> {
+/// staged file returned for [`emit`] to commit with the other outputs.
+pub fn points_out(plan: &Plan, set: &mut OutputSet, text: &[u8]) -> Result<Option<StagedFile>> {
     match &plan.points {
         Some(_) if plan.points_to_stdout() => {
             write_stdout(text)?;
             Ok(None)
         }
         Some(p) => {
-            let mut f = AtomicFile::create(p, inputs)?;
+            let mut f = set.create(p)?;
             f.write_all(text).map_err(|e| Error::io(p, e))?;
             Ok(Some(f))
         }
         None => Ok(None),
     }
+}
+
+/// Refuse a points table whose summary.json (beside it) records another table: the two are
+/// then of different runs. A summary that records no table (an earlier version's) or records
+/// another file name is not checked.
+pub fn check_recorded_points(points: &Path) -> Result<()> {
+    let beside = points.with_file_name("summary.json");
+    let Ok(text) = std::fs::read_to_string(&beside) else {
+        return Ok(());
+    };
+    let Some(recorded) = summary_json::recorded_points(&text) else {
+        return Ok(());
+    };
+    if points.file_name() != Some(std::ffi::OsStr::new(&recorded.name)) {
+        return Ok(());
+    }
+    let found = crate::output_set::sha256_of(points).map_err(|e| Error::io(points, e))?;
+    if found != recorded.sha256 {
+        return Err(Error::Usage(format!(
+            "{} does not belong with {}: the summary records SHA-256 {} for {}, the file has {}; \
+             the two are from different runs. Run check again to make a matching pair",
+            points.display(),
+            beside.display(),
+            recorded.sha256,
+            recorded.name,
+            found
+        )));
+    }
+    Ok(())
 }
 
 /// Write to standard output; a closed pipe is not an error.

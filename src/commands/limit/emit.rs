@@ -3,11 +3,11 @@
 //! curve file (or standard output) and a summary for people.
 
 use crate::commands::Outcome;
+use crate::output_set::OutputSet;
 use clap::Args;
 use neckline_core::error::{Error, Result};
 use neckline_core::limit::writer::GeneratedCurve;
 use neckline_core::limit::LimitCurve;
-use neckline_core::output::write_atomic;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
@@ -37,6 +37,19 @@ impl CurveOutArgs {
     /// refused, so that a command can check it before any work.
     pub fn plot_format(&self) -> Result<Option<PictureFormat>> {
         self.plot.as_deref().map(PictureFormat::of).transpose()
+    }
+
+    /// Before the work: check `--plot`'s format, make the folders of `--out` and `--plot`, and
+    /// lock them and check that they can be written (see [`OutputSet::begin`]).
+    pub fn begin(&self, inputs: &[PathBuf]) -> Result<OutputSet> {
+        self.plot_format()?;
+        let targets: Vec<&Path> = self
+            .out
+            .iter()
+            .chain(&self.plot)
+            .map(|p| p.as_path())
+            .collect();
+        OutputSet::begin(&targets, None, inputs)
     }
 }
 
@@ -97,6 +110,8 @@ where
     /// The summary, given the file written, or `None` when the curve went to standard output
     /// (the summary then goes to standard error).
     pub summary: S,
+    /// Where the files are staged, from [`CurveOutArgs::begin`].
+    pub set: OutputSet,
 }
 
 /// Check the curve by reading it back, draw `--plot` if asked, then write the curve to `--out`
@@ -112,14 +127,19 @@ where
     S: FnOnce(&LimitCurve, Option<&Path>) -> String,
 {
     let format = out.plot_format()?;
-    for target in out.out.iter().chain(&out.plot) {
-        neckline_core::output::guard_inputs(target, how.inputs)?;
-    }
+    let mut set = how.set;
+    set.add_inputs(how.inputs)?;
     let shown = out.out.clone().unwrap_or_else(|| PathBuf::from("<stdout>"));
     let (text, parsed) = curve.render_checked_with(&shown, how.header)?;
     if let (Some(path), Some(format)) = (&out.plot, format) {
         let bytes = (how.picture)(&parsed, format).map_err(|e| Error::io(path, e))?;
-        write_atomic(path, how.inputs, |w| w.write_all(&bytes))?;
+        set.write(path, &bytes)?;
+    }
+    if let Some(path) = &out.out {
+        set.write(path, text.as_bytes())?;
+    }
+    set.commit()?;
+    if let Some(path) = &out.plot {
         eprintln!("Drew {}", path.display());
     }
     match &out.out {
@@ -129,10 +149,7 @@ where
                 .map_err(|e| Error::io(Path::new("<stdout>"), e))?;
             eprint!("{}", (how.summary)(&parsed, None));
         }
-        Some(path) => {
-            write_atomic(path, how.inputs, |w| w.write_all(text.as_bytes()))?;
-            print!("{}", (how.summary)(&parsed, Some(path)));
-        }
+        Some(path) => print!("{}", (how.summary)(&parsed, Some(path))),
     }
     Ok(Outcome::Done)
 }

@@ -82,7 +82,9 @@ pub fn run(a: &FromPartsArgs) -> Result<Outcome> {
     settings
         .validate()
         .map_err(|m| Error::Usage(format!("from-parts: {m}")))?;
-    a.out.plot_format()?;
+    let mut inputs = vec![a.parts.clone()];
+    inputs.extend(a.lengths.job.clone());
+    let set = a.out.begin(&inputs)?;
     let data = read_parts(&a.parts, &a.lengths)?;
     require_circles(&data, &a.parts)?;
     const SHOWN: usize = 10;
@@ -101,14 +103,13 @@ pub fn run(a: &FromPartsArgs) -> Result<Outcome> {
         eprintln!("warning: {}: {flag}", input_name(&a.parts));
     }
     let curve = parts_curve(a, &data, &fit);
-    let mut inputs = vec![a.parts.clone()];
-    inputs.extend(a.lengths.job.clone());
     emit_curve(
         &curve,
         &a.out,
         CurveWrite {
             header: SHOP_HEADER,
             inputs: &inputs,
+            set,
             picture: |c: &LimitCurve, format: PictureFormat| {
                 parts_picture(c, &fit, &data.circles, &a.parts, format)
             },

@@ -305,6 +305,7 @@ pub fn emit(curve: &GeneratedCurve, out: &CurveOutArgs) -> Result<Outcome> {
         CurveWrite {
             header: PREDICTION_HEADER,
             inputs: &[],
+            set: out.begin(&[])?,
             picture: curve_picture,
             summary: |c: &LimitCurve, written: Option<&Path>| match written {
                 Some(path) => summary(c, path),

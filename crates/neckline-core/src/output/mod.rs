@@ -1,6 +1,6 @@
-//! Writing results: every writer takes the one [`Analysis`](crate::analysis::Analysis).
-//! Files are written atomically (a temporary file in the same folder, then a rename), and never
-//! over a file that was read as input.
+//! Writing results: every writer takes the one [`Analysis`](crate::analysis::Analysis) and
+//! writes into any `Write`; the command line stages the files and moves them in as one set, and
+//! never over a file that was read as input ([`guard_inputs`]).
 
 pub mod decimal_comma;
 #[cfg(any(test, feature = "fixture"))]
@@ -9,8 +9,7 @@ pub mod points_csv;
 pub mod summary_json;
 
 use crate::error::{Error, Result};
-use std::fs::{self, File};
-use std::io::{BufWriter, Write};
+use std::fs;
 use std::path::{Path, PathBuf};
 
 /// `n` and the noun, singular for one: "1 location", "3 locations".
@@ -71,85 +70,6 @@ pub fn guard_inputs(target: &Path, inputs: &[PathBuf]) -> Result<()> {
         }
     }
     Ok(())
-}
-
-/// A file being written: a temporary file beside its target, renamed over the target by
-/// [`AtomicFile::commit`]. Dropped without a commit (an error, a panic), it is removed, so a
-/// reader of the target sees the previous complete file or the new one, never a torn one.
-pub struct AtomicFile {
-    path: PathBuf,
-    tmp: PathBuf,
-    writer: Option<BufWriter<File>>,
-}
-
-impl AtomicFile {
-    /// Start writing `path` (refused when it is one of `inputs`).
-    pub fn create(path: &Path, inputs: &[PathBuf]) -> Result<Self> {
-        guard_inputs(path, inputs)?;
-        let name = path
-            .file_name()
-            .map_or_else(|| "out".into(), |n| n.to_string_lossy().into_owned());
-        let tmp = path.with_file_name(format!(".{name}.{}.tmp", std::process::id()));
-        let f = File::create(&tmp).map_err(|e| Error::io(path, e))?;
-        Ok(AtomicFile {
-            path: path.to_path_buf(),
-            tmp,
-            writer: Some(BufWriter::with_capacity(1 << 20, f)),
-        })
-    }
-
-    /// The target path.
-    pub fn path(&self) -> &Path {
-        &self.path
-    }
-
-    /// Flush, sync and rename over the target.
-    pub fn commit(mut self) -> Result<()> {
-        let w = self
-            .writer
-            .take()
-            .expect("an uncommitted file has its writer");
-        let result = (|| {
-            w.into_inner().map_err(|e| e.into_error())?.sync_all()?;
-            fs::rename(&self.tmp, &self.path)
-        })();
-        result.map_err(|e| Error::io(&self.path, e))
-    }
-}
-
-impl Write for AtomicFile {
-    fn write(&mut self, buf: &[u8]) -> std::io::Result<usize> {
-        self.writer.as_mut().map_or(Ok(0), |w| w.write(buf))
-    }
-    fn write_all(&mut self, buf: &[u8]) -> std::io::Result<()> {
-        match self.writer.as_mut() {
-            Some(w) => w.write_all(buf),
-            None => Ok(()),
-        }
-    }
-    fn flush(&mut self) -> std::io::Result<()> {
-        self.writer.as_mut().map_or(Ok(()), |w| w.flush())
-    }
-}
-
-impl Drop for AtomicFile {
-    fn drop(&mut self) {
-        if self.writer.take().is_some() {
-            let _ = fs::remove_file(&self.tmp);
-        }
-    }
-}
-
-/// Write `path` atomically: `fill` writes into a temporary file beside it, which is renamed over
-/// `path` only when `fill` succeeded. On failure the temporary file is removed.
-pub fn write_atomic(
-    path: &Path,
-    inputs: &[PathBuf],
-    fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>,
-) -> Result<()> {
-    let mut f = AtomicFile::create(path, inputs)?;
-    fill(&mut f).map_err(|e| Error::io(path, e))?;
-    f.commit()
 }
 
 /// Append `v` with `decimals` fixed decimals (at most 9) to `buf`: the same text as

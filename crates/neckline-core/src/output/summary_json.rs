@@ -164,8 +164,43 @@ pub fn iso8601(secs: u64) -> String {
 
 /// Write the summary, pretty-printed.
 pub fn write_summary(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
-    serde_json::to_writer_pretty(&mut *out, &summary(a))?;
+    write_summary_with(a, None, out)
+}
+
+/// The points table a summary.json goes with: its file name and the SHA-256 of its bytes.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct PointsFile {
+    /// The file name (no folder), e.g. `points.csv`.
+    pub name: String,
+    /// SHA-256 of the file's bytes as written, lowercase hex.
+    pub sha256: String,
+}
+
+/// [`write_summary`], recording the points table written by the same run in `points_file`
+/// (`null` when the run wrote none, or sent it to standard output).
+pub fn write_summary_with(
+    a: &Analysis,
+    points: Option<&PointsFile>,
+    out: &mut dyn Write,
+) -> io::Result<()> {
+    let mut v = summary(a);
+    v["points_file"] = points.map_or(
+        Value::Null,
+        |p| json!({ "name": p.name, "sha256": p.sha256 }),
+    );
+    serde_json::to_writer_pretty(&mut *out, &v)?;
     writeln!(out)
+}
+
+/// The points table a summary.json's text records (`None` for a summary without one, as an
+/// earlier version's, or text that is not such a summary).
+pub fn recorded_points(summary_text: &str) -> Option<PointsFile> {
+    let v: Value = serde_json::from_str(summary_text).ok()?;
+    let p = &v["points_file"];
+    Some(PointsFile {
+        name: p["name"].as_str()?.to_string(),
+        sha256: p["sha256"].as_str()?.to_string(),
+    })
 }
 
 #[cfg(test)]
@@ -180,6 +215,26 @@ mod tests {
         assert_eq!(iso8601(951_782_400), "2000-02-29T00:00:00Z");
         assert_eq!(iso8601(1 << 31), "2038-01-19T03:14:08Z");
         assert!(crate::job::is_date(&utc_now()[..10]));
+    }
+
+    #[test]
+    fn the_points_table_is_recorded_and_read_back() {
+        let a = crate::output::fixture::analysis(true);
+        // SHA-256 of "abc": FIPS 180-2, appendix B.1.
+        let p = PointsFile {
+            name: "points.csv".into(),
+            sha256: "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad".into(),
+        };
+        let mut text = Vec::new();
+        write_summary_with(&a, Some(&p), &mut text).unwrap();
+        let text = String::from_utf8(text).unwrap();
+        assert_eq!(recorded_points(&text), Some(p));
+        let mut none = Vec::new();
+        write_summary(&a, &mut none).unwrap();
+        let none = String::from_utf8(none).unwrap();
+        assert!(none.contains("\"points_file\": null"));
+        assert_eq!(recorded_points(&none), None);
+        assert_eq!(recorded_points("not json"), None);
     }
 
     #[test]
