@@ -4,9 +4,9 @@
 //! `check`) and hashed as read, so that the curve's `source` records the SHA-256 of the very
 //! bytes it came from.
 
-use super::emit::{emit_curve, CurveOutArgs, CurveWrite, PictureFormat};
 use crate::args::InputArgs;
 use crate::commands::{paragraph, Outcome};
+use crate::output_set::OutputSet;
 use clap::Args;
 use neckline_core::error::{Error, Result};
 use neckline_core::job::Job;
@@ -16,10 +16,11 @@ use neckline_core::limit::sections::{
 };
 use neckline_core::limit::LimitCurve;
 use neckline_core::measure::ColumnMap;
-use neckline_core::output::{input_name, write_atomic};
+use neckline_core::output::input_name;
 use neckline_core::strain::TrueStrain;
 use neckline_core::CAUTION;
 use neckline_render::sections as pictures;
+use std::io::Write;
 use std::path::{Path, PathBuf};
 
 /// Arguments of `limit from-sections`.
@@ -130,39 +131,45 @@ pub fn run(a: &FromSectionsArgs) -> Result<Outcome> {
         .unwrap_or_else(|| format!("Laboratory curve, {file}"));
     let curve = sections::lab_curve(&curve_name, &stats, &words)
         .map_err(|m| Error::Usage(format!("{name}: {m}")))?;
-    let out = CurveOutArgs {
-        out: a.out.clone(),
-        name: a.name.clone(),
-        material: a.material.clone(),
-        plot: None,
-    };
     let inputs = vec![a.sections.clone()];
+    // The curve as it will be read back, then every file of the run staged in one set and
+    // moved in together (the pictures' names depend on the geometries read).
+    let shown = a.out.clone().unwrap_or_else(|| PathBuf::from("<stdout>"));
+    let (text, parsed) = curve.render_checked_with(&shown, LAB_HEADER)?;
+    let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
     if let Some(dir) = &a.plot {
-        for f in ["curve.svg", "sections.html"] {
-            neckline_core::output::guard_inputs(&dir.join(f), &inputs)?;
-        }
-    }
-    let mut written: Option<LimitCurve> = None;
-    let outcome = emit_curve(
-        &curve,
-        &out,
-        CurveWrite {
-            header: LAB_HEADER,
-            inputs: &inputs,
-            picture: |_: &LimitCurve, _: PictureFormat| Ok(Vec::new()),
-            summary: |c: &LimitCurve, path: Option<&Path>| {
-                written = Some(c.clone());
-                summary(c, path, &stats, &warnings, &results, &data)
-            },
-        },
-    )?;
-    if let (Some(dir), Some(c)) = (&a.plot, &written) {
         let rejected: Vec<String> = data.rejected.iter().map(|r| r.to_string()).collect();
-        draw(
-            dir, c, &stats, &results, &words, &warnings, &rejected, &inputs,
-        )?;
+        files = draw(dir, &parsed, &stats, &results, &words, &warnings, &rejected)?;
     }
-    Ok(outcome)
+    if let Some(p) = &a.out {
+        files.push((p.clone(), text.clone().into_bytes()));
+    }
+    let targets: Vec<&Path> = files.iter().map(|(p, _)| p.as_path()).collect();
+    let mut set = OutputSet::begin(&targets, None, &inputs)?;
+    for (p, bytes) in &files {
+        set.write(p, bytes)?;
+    }
+    set.commit()?;
+    if let Some(dir) = &a.plot {
+        eprintln!("Drew {}", dir.display());
+    }
+    match &a.out {
+        None => {
+            std::io::stdout()
+                .lock()
+                .write_all(text.as_bytes())
+                .map_err(|e| Error::io(Path::new("<stdout>"), e))?;
+            eprint!(
+                "{}",
+                summary(&parsed, None, &stats, &warnings, &results, &data)
+            );
+        }
+        Some(p) => print!(
+            "{}",
+            summary(&parsed, Some(p), &stats, &warnings, &results, &data)
+        ),
+    }
+    Ok(Outcome::Done)
 }
 
 /// The rows left out, the first ten named.
@@ -179,8 +186,7 @@ fn report_rejected(data: &SectionData) {
     }
 }
 
-/// The pictures and the page, into `dir`.
-#[allow(clippy::too_many_arguments)]
+/// The pictures and the page for `dir`: (path, bytes) of each.
 fn draw(
     dir: &Path,
     curve: &LimitCurve,
@@ -189,32 +195,22 @@ fn draw(
     words: &LabWords,
     warnings: &[String],
     rejected: &[String],
-    inputs: &[PathBuf],
-) -> Result<()> {
-    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
-    let put = |name: &str, bytes: &[u8]| -> Result<()> {
-        let path = dir.join(name);
-        write_atomic(&path, inputs, |w| w.write_all(bytes))
-    };
+) -> Result<Vec<(PathBuf, Vec<u8>)>> {
     let io = |name: &str| {
         let path = dir.join(name);
         move |e: std::io::Error| Error::io(&path, e)
     };
-    put(
-        "curve.svg",
+    let mut files = vec![(
+        dir.join("curve.svg"),
         pictures::curve_svg(curve, stats, results)
             .map_err(io("curve.svg"))?
-            .as_bytes(),
-    )?;
+            .into_bytes(),
+    )];
     for g in stats {
         let file = format!("sections-{}.svg", safe_name(&g.geometry));
         let mine = pictures::of_geometry(results, &g.geometry);
-        put(
-            &file,
-            pictures::profiles_svg(&g.geometry, &mine)
-                .map_err(io(&file))?
-                .as_bytes(),
-        )?;
+        let svg = pictures::profiles_svg(&g.geometry, &mine).map_err(io(&file))?;
+        files.push((dir.join(file), svg.into_bytes()));
     }
     let page = pictures::sections_page(&pictures::SectionsPage {
         curve,
@@ -225,9 +221,8 @@ fn draw(
         rejected,
     })
     .map_err(io("sections.html"))?;
-    put("sections.html", page.as_bytes())?;
-    eprintln!("Drew {}", dir.display());
-    Ok(())
+    files.push((dir.join("sections.html"), page.into_bytes()));
+    Ok(files)
 }
 
 /// A geometry label as a file-name part: letters, digits, `.`, `-` and `_` kept, the rest `_`.
