@@ -2,6 +2,7 @@
 
 use super::{paragraph, Outcome};
 use clap::{Args, ValueEnum};
+use neckline_core::compare::record::Record;
 use neckline_core::compare::{self, csv_out, json_out, read_tryout, Comparison, Matching};
 use neckline_core::error::{Error, Result};
 use neckline_core::output::{guard_inputs, write_atomic};
@@ -64,6 +65,11 @@ pub struct CompareArgs {
     /// a decimal comma.
     #[arg(long)]
     pub decimal_comma: bool,
+    /// Job file (TOML) of the review: `report_id`, `revision` and the sign-off names
+    /// (`prepared_by`, `checked_by`, `approved_by`) for compare.html [default: a report number
+    /// made from the inputs' SHA-256, blank names].
+    #[arg(long, value_name = "FILE")]
+    pub job: Option<PathBuf>,
 }
 
 /// The files of the review pack, in the order they are written.
@@ -139,12 +145,26 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
         .enumerate()
         .map(|(k, p)| read_tryout(p, k + 1))
         .collect::<Result<Vec<_>>>()?;
+    let job = args
+        .job
+        .as_ref()
+        .map(|p| neckline_core::job::Job::load(p).map(|j| (j, p.clone())))
+        .transpose()?;
     let c = compare::compare(tryouts, how, args.tolerance)?;
     for w in &c.warnings {
         eprint!("{}", paragraph(&format!("warning: {w}")));
     }
     let written = match &args.out {
-        Some(out) => write_pack(&c, out, &args.inputs, args.decimal_comma)?,
+        Some(out) => {
+            let labels: Vec<String> = c.tryouts.iter().map(|t| t.label.clone()).collect();
+            let rec = Record::new(
+                &args.inputs,
+                &labels,
+                job.as_ref().map(|(j, p)| (j, p.as_path())),
+            )
+            .map_err(|e| Error::io(&args.inputs[0], e))?;
+            write_pack(&c, &rec, out, &args.inputs, args.decimal_comma)?
+        }
         None => Vec::new(),
     };
     print!("{}", terminal::summary(&c, args.show));
@@ -174,6 +194,7 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
 /// then write each atomically.
 fn write_pack(
     c: &Comparison,
+    rec: &Record,
     out: &Path,
     inputs: &[PathBuf],
     decimal_comma: bool,
@@ -203,7 +224,7 @@ fn write_pack(
     if let Some(png) = map::map_png(c).map_err(|e| render("compare-map.png", e))? {
         files.push((target("compare-map.png"), png));
     }
-    let html = page::page_html(c).map_err(|e| render("compare.html", e))?;
+    let html = page::page_html_with(c, Some(rec)).map_err(|e| render("compare.html", e))?;
     files.push((target("compare.html"), html.into_bytes()));
     std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
     for (p, _) in &files {
