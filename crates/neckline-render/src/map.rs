@@ -563,9 +563,18 @@ mod tests {
             band: 10.0,
             hi: 40.0,
         };
-        // Below the band edge the zone colours themselves; beyond it a green ramp.
+        // At and below 0 a ramp from the failed red to near-black; marginal its zone colour;
+        // beyond the band a green ramp.
         assert_eq!(s.colour(0.0), zone_colour(Zone::Failed)); // on the curve: failed
-        assert_eq!(s.colour(-8.0), zone_colour(Zone::Failed));
+        assert_eq!(s.colour(-10.0), RGBColor(0x40, 0x08, 0x12)); // the deepest: darkest
+                                                                 // Greyscale: luma Y' = 0.299 R + 0.587 G + 0.114 B (ITU-R BT.601); deeper past the curve
+                                                                 // is darker, and the deepest darker than any other colour of the scale.
+        let luma =
+            |c: RGBColor| 0.299 * f64::from(c.0) + 0.587 * f64::from(c.1) + 0.114 * f64::from(c.2);
+        let ramp: Vec<f64> = (0..=10).map(|k| luma(s.colour(-f64::from(k)))).collect();
+        assert!(ramp.windows(2).all(|w| w[1] < w[0]), "{ramp:?}");
+        let others = (1..=40).map(|m| luma(s.colour(f64::from(m))));
+        assert!(others.fold(f64::INFINITY, f64::min) > ramp[10] + 50.0);
         assert_eq!(s.colour(0.01), zone_colour(Zone::Marginal)); // just below: marginal
         assert_eq!(s.colour(9.99), zone_colour(Zone::Marginal));
         assert_eq!(s.colour(10.0), RGBColor(0xd4, 0xec, 0xd6)); // band edge: light green

@@ -561,7 +561,7 @@ fn hot_spots(a: &Analysis) -> Markup {
                         td.n { (k + 1) }
                         td { (h.zone.name()) }
                         td { (h.worst.map_or_else(|| "—".to_string(), |w| a.points()[w].input.id.clone())) }
-                        td.n { (fmt_opt(h.margin, 1)) }
+                        td.n { (fmt_margin_opt(h.worst.and_then(|w| a.points()[w].judgement.margin_pct), a.settings.margin_pct)) }
                         td.n { (h.locations) }
                         td.n { (format!("{:.0}", h.area)) }
                     }
@@ -717,8 +717,10 @@ mod render_tests {
 
     #[test]
     fn text_content_snapshot() {
-        let (_, html) = report();
-        let text = visible_text(&html).replace(env!("CARGO_PKG_VERSION"), "VERSION");
+        let (a, html) = report();
+        let text = visible_text(&html)
+            .replace(env!("CARGO_PKG_VERSION"), "VERSION")
+            .replace(&a.generated.text(), "TIME");
         insta::assert_snapshot!(text);
     }
 
@@ -732,7 +734,8 @@ mod render_tests {
         }
         assert!(!html.contains("<LH>"));
         assert!(html.contains("TP-1 test panel &lt;LH&gt; &amp; co (invented)"));
-        assert_eq!(html.matches("<section class=\"page\"").count(), 7);
+        assert_eq!(html.matches("<section class=\"page\"").count(), 6);
+        assert_eq!(html.matches("<section class=\"follow\"").count(), 1);
         assert_eq!(
             html.matches("<svg width=\"1200\"").count(),
             2,
@@ -749,7 +752,7 @@ mod render_tests {
         let mut r = csv::Reader::from_reader(csv.as_bytes());
         let head = r.headers().unwrap().clone();
         let col = |name: &str| head.iter().position(|h| h == name).unwrap();
-        let (id, margin, zone) = (col("id"), col("margin_pct"), col("zone"));
+        let (id, margin, zone, reason) = (col("id"), col("margin_pct"), col("zone"), col("reason"));
         let text = visible_text(&html);
         for rec in r.records() {
             let rec = rec.unwrap();
@@ -768,9 +771,16 @@ mod render_tests {
                     let shown: f64 = cells[8].parse().unwrap();
                     assert!((shown - m).abs() <= 0.05 + 1e-9, "{line} vs {m}");
                 }
-                // No margin: limit, margin and use are empty, and the reason says why.
-                Err(_) => assert!(line.contains("off the curve"), "{line}"),
+                // No margin: limit, margin and use are empty, and the code says why (O off the
+                // curve, X crossed).
+                Err(_) => assert!(cells.contains(&"O") || cells.contains(&"X"), "{line}"),
             }
+            // The reason points.csv gives (the one that decided the zone) is among the codes.
+            let r = neckline_core::assess::Reason::ALL
+                .into_iter()
+                .find(|r| r.name() == &rec[reason])
+                .unwrap();
+            assert!(cells.contains(&record::code(r)), "{line}: {}", &rec[reason]);
         }
     }
 

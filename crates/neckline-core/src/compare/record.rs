@@ -213,7 +213,7 @@ mod tests {
         let dir = tempfile::tempdir().unwrap();
         let p = dir.path().join("points.csv");
         std::fs::write(&p, "abc").unwrap();
-        let r = Record::new(&[p.clone()], &["T1".into()], None).unwrap();
+        let r = Record::new(std::slice::from_ref(&p), &["T1".into()], None).unwrap();
         assert_eq!(
             r.inputs[0].sha256,
             "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"

@@ -387,6 +387,25 @@ mod tests {
         assert_eq!(n("a/.."), ".");
     }
 
+    // The fixture's zone rules (common practice): M3 is thinned to 31.6 % past the 25 % maximum
+    // and 6 pp under the curve, inside the 10 pp band: both apply, thinning decided the zone.
+    #[test]
+    fn every_reason_that_applies_is_listed() {
+        let a = crate::output::fixture::analysis(true);
+        let of = |id: &str| {
+            let p = a.points().iter().find(|p| p.input.id == id).unwrap();
+            reasons(p, &a.settings)
+        };
+        assert_eq!(of("M3"), [Reason::Thinning, Reason::Band]);
+        assert_eq!(of("F2"), [Reason::Curve]);
+        assert_eq!(of("M1"), [Reason::Band]);
+        let p = a.points().iter().find(|p| p.input.id == "M3").unwrap();
+        assert_eq!(codes(p, &a.settings), "T B");
+        assert!(legend(&a.settings)
+            .iter()
+            .any(|(c, w)| *c == "T" && w.contains("25 %")));
+    }
+
     #[test]
     fn curve_kinds_from_their_sources() {
         let c = |source: &str| {
