@@ -55,6 +55,9 @@ table.points td, table.worst td { white-space: nowrap; }
 .legend { font-size: 8pt; color: #444; }
 .curvekind { margin: 2mm 0 1mm 0; }
 .measurement .k { color: #555; }
+table.digests { font-size: 7pt; width: 100%; }
+table.digests td, table.digests th { padding: 0.2mm 1mm; }
+table.digests code { font-size: 7pt; word-break: break-all; }
 figure { margin: 0; }
 figure svg { width: 100%; height: auto; display: block; }
 code, .formula { font-family: "DejaVu Sans Mono", "Liberation Mono", monospace; font-size: 9.5pt; }

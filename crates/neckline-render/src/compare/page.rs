@@ -277,8 +277,12 @@ pub fn page_html_with(c: &Comparison, rec: Option<&Record>) -> io::Result<String
             @if let Some(r) = rec { (record::record_block(r)) }
             (warnings(c)) (verdicts(c)) (transitions(c, &bd))
             @if let Some(line) = record::one_sided_empty(c) { (line) }
-            @if let Some(r) = rec { (record::signoff(r)) }
-            (page::caution())
+            // With a record the sign-off takes the caution's place on the first page; the
+            // caution is on the last page and, short, in every page's footer.
+            @match rec {
+                Some(r) => (record::signoff(r)),
+                None => (page::caution()),
+            }
         }))
         (page::section("at-risk", record::at_risk_section(c, &bd)))
         (page::section("changes", losses_gains(c, &bd)))

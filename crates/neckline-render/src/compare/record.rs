@@ -34,11 +34,17 @@ pub fn record_block(r: &Record) -> Markup {
         table.job {
             tr { th { "Report" } td { (r.report_id) ", revision " (r.revision) } }
             tr { th { "Generated" } td { (r.generated.text()) } }
-            @for d in &r.inputs {
-                tr { th { "Input: " (d.role) } td {
-                    code { (normalise(&d.path).display().to_string()) } br;
-                    "SHA-256 " code { (d.sha256) }
-                } }
+        }
+        table.digests {
+            thead { tr { th { "input" } th { "file" } th { "SHA-256" } } }
+            tbody {
+                @for d in &r.inputs {
+                    tr {
+                        td { (d.role) }
+                        td { code { (normalise(&d.path).display().to_string()) } }
+                        td { code { (d.sha256) } }
+                    }
+                }
             }
         }
     }
