@@ -26,8 +26,9 @@ pub struct HotSpot {
     /// Its area in the length unit squared: each location stands for one grid spacing
     /// squared, each cell for its own area.
     pub area: f64,
-    /// The worst location of the region (index into [`Analysis::points`]), when one is kept.
-    pub worst: Option<usize>,
+    /// The worst location of the region, when one is kept (among the kept locations and the
+    /// worst list).
+    pub worst: Option<PointResult>,
     /// The region's worst margin, pp.
     pub margin: Option<f64>,
 }
@@ -149,7 +150,7 @@ pub fn hot_spots(a: &Analysis, cells: usize) -> Vec<HotSpot> {
                     zone,
                     locations: members.len(),
                     area: members.len() as f64 * step * step,
-                    worst,
+                    worst: worst.map(|w| points[w].clone()),
                     margin: worst.and_then(|w| map_margin(&points[w])),
                 });
             }
@@ -173,17 +174,19 @@ pub fn hot_spots(a: &Analysis, cells: usize) -> Vec<HotSpot> {
             for g in connected(&centres, REACH_SPACINGS) {
                 let keys: std::collections::HashSet<(i64, i64)> =
                     g.iter().map(|k| mine[*k].0).collect();
+                // A large file keeps its first at-risk locations and its worst ones: the region's
+                // worst is found among both.
                 let worst = points
                     .iter()
-                    .enumerate()
-                    .filter(|(_, p)| p.zone() == zone)
-                    .filter(|(_, p)| {
+                    .chain(a.summary.worst.iter())
+                    .filter(|p| p.zone() == zone)
+                    .filter(|p| {
                         plane
                             .coords(p)
                             .is_some_and(|(x, y)| keys.contains(&bins.key(x, y)))
                     })
-                    .map(|(i, _)| i)
-                    .reduce(|w, i| if worse(&points[i], &points[w]) { i } else { w });
+                    .reduce(|w, p| if worse(p, w) { p } else { w })
+                    .cloned();
                 let margin = g
                     .iter()
                     .filter_map(|k| mine[*k].1.margin)
@@ -242,7 +245,7 @@ mod tests {
             .sum();
         assert_eq!(n, a.count(Zone::Failed));
         for s in &spots {
-            let w = &a.points()[s.worst.unwrap()];
+            let w = s.worst.as_ref().unwrap();
             assert_eq!(w.zone(), s.zone);
         }
     }

@@ -28,7 +28,6 @@
 //! encoding = "windows-1252" # the input's text encoding [default: detected]
 //! sheet = "Readings"  # a workbook's sheet, by name or number [default: the first]
 //! header_row = 5     # the header's line, after an export's preamble (else found)
-//! outline = "outline.csv" # the part's outline, x, y in part coordinates [default: traced]
 //! [columns]           # the file's own headers, mapped onto neckline's names
 //! major_true_pct = "Major strain (%)"
 //! [measurement]       # how the circles were read, for the report's record
@@ -118,10 +117,6 @@ pub struct Job {
     /// How the circles were read (`[measurement]` table), for the report's record.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub measurement: Option<Measurement>,
-    /// A polyline file of the part's outline (x, y in part coordinates), relative to the job
-    /// file; without it the map traces the outline from the measured points.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub outline: Option<PathBuf>,
 }
 
 /// How the circles were measured: the `[measurement]` table of a job file. Every key is
@@ -213,10 +208,7 @@ impl Job {
             check_limit_path(path, &text, &limit)?;
             job.limit = Some(limit);
         }
-        if let Some(o) = job.outline.take() {
-            let base = path.parent().unwrap_or(Path::new(""));
-            job.outline = Some(if o.is_absolute() { o } else { base.join(o) });
-        }
+
         Ok(job)
     }
 }

@@ -303,7 +303,7 @@ fn draw<DB: DrawingBackend>(
     let spots = neckline_core::hotspot::hot_spots(a, RASTER_CELLS);
     if !a.summary.complete {
         for s in spots.iter().take(HOT_SPOTS_LABELLED) {
-            let Some(p) = s.worst.map(|w| &a.points()[w]) else {
+            let Some(p) = s.worst.as_ref() else {
                 continue;
             };
             if let Some(xy) = plane.coords(p) {
@@ -409,11 +409,11 @@ fn draw_ramp<DB: DrawingBackend>(
 
 /// The locations the map labels: the worst of each hot spot, largest first (at most
 /// [`HOT_SPOTS_LABELLED`]), then the worst locations up to [`LABELLED`] labels in all.
-pub fn labelled<'a>(a: &'a Analysis, spots: &[HotSpot]) -> Vec<&'a PointResult> {
+pub fn labelled<'a>(a: &'a Analysis, spots: &'a [HotSpot]) -> Vec<&'a PointResult> {
     let plane = a.summary.view.plane;
     let mut v: Vec<&PointResult> = spots
         .iter()
-        .filter_map(|s| s.worst.map(|w| &a.points()[w]))
+        .filter_map(|s| s.worst.as_ref())
         .take(HOT_SPOTS_LABELLED)
         .collect();
     for p in a.worst(neckline_core::summary::WORST_KEPT) {

@@ -560,8 +560,8 @@ fn hot_spots(a: &Analysis) -> Markup {
                     tr {
                         td.n { (k + 1) }
                         td { (h.zone.name()) }
-                        td { (h.worst.map_or_else(|| "—".to_string(), |w| a.points()[w].input.id.clone())) }
-                        td.n { (fmt_margin_opt(h.worst.and_then(|w| a.points()[w].judgement.margin_pct), a.settings.margin_pct)) }
+                        td { (h.worst.as_ref().map_or_else(|| "—".to_string(), |w| w.input.id.clone())) }
+                        td.n { (fmt_margin_opt(h.worst.as_ref().and_then(|w| w.judgement.margin_pct), a.settings.margin_pct)) }
                         td.n { (h.locations) }
                         td.n { (format!("{:.0}", h.area)) }
                     }

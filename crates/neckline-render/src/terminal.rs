@@ -289,7 +289,8 @@ fn hot_spot_lines(s: &mut String, a: &Analysis) {
     for (k, h) in spots.iter().take(HOT_SPOTS_LISTED).enumerate() {
         let worst = h
             .worst
-            .map_or_else(|| "-".to_string(), |w| a.points()[w].input.id.clone());
+            .as_ref()
+            .map_or_else(|| "-".to_string(), |w| w.input.id.clone());
         let _ = writeln!(
             s,
             "  {:>2}  {:<10} {:<12} {:>9} {:>10.0}",
