@@ -86,7 +86,13 @@ fn review_page_is_self_contained_printable_and_names_the_newly_at_risk() {
     );
     assert_eq!(page_requests(&log, &page), Vec::<String>::new());
     let pdf = std::fs::read(&pdf_path).unwrap();
-    assert_eq!(pdf_pages(&pdf), sections, "one printed page per section");
+    // One printed page per section, but the still-at-risk list (every failed or marginal
+    // location of the later tryout) may take two.
+    let printed = pdf_pages(&pdf);
+    assert!(
+        (sections..=sections + 1).contains(&printed),
+        "{printed} pages for {sections} sections"
+    );
 
     let shot = dir.path().join("shot.png");
     let log = run_chromium(

@@ -3,6 +3,7 @@
 use super::{paragraph, Outcome};
 use crate::output_set::{Committed, OutputSet, Own};
 use clap::{Args, ValueEnum};
+use neckline_core::compare::record::Record;
 use neckline_core::compare::{self, csv_out, json_out, read_tryout, Comparison, Matching};
 use neckline_core::error::{Error, Result};
 use neckline_render::compare::{fld, map, page, terminal};
@@ -64,6 +65,11 @@ pub struct CompareArgs {
     /// a decimal comma.
     #[arg(long)]
     pub decimal_comma: bool,
+    /// Job file (TOML) of the review: `report_id`, `revision` and the sign-off names
+    /// (`prepared_by`, `checked_by`, `approved_by`) for compare.html [default: a report number
+    /// made from the inputs' SHA-256, blank names].
+    #[arg(long, value_name = "FILE")]
+    pub job: Option<PathBuf>,
 }
 
 /// The files of the review pack, in the order they are written.
@@ -140,7 +146,9 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
                 dir: out,
                 names: &PACK_NAMES,
             };
-            Some(OutputSet::begin(&targets, Some(own), &args.inputs)?)
+            // The job file is read too: no output may be written over it.
+            let read: Vec<PathBuf> = args.inputs.iter().chain(&args.job).cloned().collect();
+            Some(OutputSet::begin(&targets, Some(own), &read)?)
         }
         None => None,
     };
@@ -153,12 +161,26 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
         .enumerate()
         .map(|(k, p)| read_tryout(p, k + 1))
         .collect::<Result<Vec<_>>>()?;
+    let job = args
+        .job
+        .as_ref()
+        .map(|p| neckline_core::job::Job::load(p).map(|j| (j, p.clone())))
+        .transpose()?;
     let c = compare::compare(tryouts, how, args.tolerance)?;
     for w in &c.warnings {
         eprint!("{}", paragraph(&format!("warning: {w}")));
     }
     let Committed { written, removed } = match (set, &args.out) {
-        (Some(set), Some(out)) => write_pack(&c, set, out, args.decimal_comma)?,
+        (Some(set), Some(out)) => {
+            let labels: Vec<String> = c.tryouts.iter().map(|t| t.label.clone()).collect();
+            let rec = Record::new(
+                &args.inputs,
+                &labels,
+                job.as_ref().map(|(j, p)| (j, p.as_path())),
+            )
+            .map_err(|e| Error::io(&args.inputs[0], e))?;
+            write_pack(&c, &rec, set, out, args.decimal_comma)?
+        }
         _ => Committed::default(),
     };
     print!("{}", terminal::summary(&c, args.show));
@@ -177,6 +199,7 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
 /// (a failure leaves the folder as it was).
 fn write_pack(
     c: &Comparison,
+    rec: &Record,
     mut set: OutputSet,
     out: &Path,
     decimal_comma: bool,
@@ -206,7 +229,7 @@ fn write_pack(
     if let Some(png) = map::map_png(c).map_err(|e| render("compare-map.png", e))? {
         files.push((target("compare-map.png"), png));
     }
-    let html = page::page_html(c).map_err(|e| render("compare.html", e))?;
+    let html = page::page_html_with(c, Some(rec)).map_err(|e| render("compare.html", e))?;
     files.push((target("compare.html"), html.into_bytes()));
     let review = neckline_render::review::compare_review_html(c);
     files.push((target("compare-review.html"), review.into_bytes()));

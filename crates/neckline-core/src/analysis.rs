@@ -37,6 +37,8 @@ pub struct Analysis {
     pub warnings: Vec<String>,
     /// The input files and their SHA-256, where the command recorded them.
     pub files: Vec<crate::digest::FileDigest>,
+    /// When the analysis was made: the generation time of every output written from it.
+    pub generated: crate::output::record::RunTime,
 }
 
 /// The overall verdict of an analysis.
@@ -98,6 +100,7 @@ impl Analysis {
             stages: Vec::new(),
             warnings,
             files: Vec::new(),
+            generated: crate::output::record::RunTime::now(),
         }
     }
 

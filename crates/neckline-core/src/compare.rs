@@ -12,6 +12,7 @@ pub mod csv_out;
 pub mod json_out;
 pub mod pairing;
 pub mod read;
+pub mod record;
 
 pub use read::{read_results, read_tryout, RecordedSummary, ResultRow, Tryout};
 

@@ -30,6 +30,12 @@
 //! header_row = 5     # the header's line, after an export's preamble (else found)
 //! [columns]           # the file's own headers, mapped onto neckline's names
 //! major_true_pct = "Major strain (%)"
+//! [measurement]       # how the circles were read, for the report's record
+//! method = "optical"  # hand, tape, optical, ...
+//! equipment = "camera cell 2"
+//! operator = "Night shift metrology"
+//! uncertainty = "±0.02 mm per axis"
+//! grid = "2.5 mm circles, electrochemically etched"
 //! ```
 
 use crate::error::{line_col, Error, Location, Result};
@@ -108,6 +114,42 @@ pub struct Job {
     /// otherwise be searched; without it the header is the first line with the needed columns.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub header_row: Option<std::num::NonZeroU64>,
+    /// How the circles were read (`[measurement]` table), for the report's record.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub measurement: Option<Measurement>,
+}
+
+/// How the circles were measured: the `[measurement]` table of a job file. Every key is
+/// optional; the report prints "not stated" for one left out.
+#[derive(Debug, Clone, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Measurement {
+    /// Method: hand (loupe and scale), tape (transparent strain tape), optical, ...
+    pub method: Option<String>,
+    /// Equipment and its identification.
+    pub equipment: Option<String>,
+    /// Who read the circles.
+    pub operator: Option<String>,
+    /// The reading uncertainty, in words with its unit (`±0.02 mm per axis`).
+    pub uncertainty: Option<String>,
+    /// The grid: kind, circle size, how it was applied.
+    pub grid: Option<String>,
+}
+
+impl Measurement {
+    /// The rows of the report's measurement block: label and value ("not stated" when left
+    /// out).
+    pub fn rows(m: Option<&Measurement>) -> Vec<(&'static str, String)> {
+        let m = m.cloned().unwrap_or_default();
+        let v = |s: Option<String>| s.unwrap_or_else(|| "not stated".into());
+        vec![
+            ("Method", v(m.method)),
+            ("Equipment", v(m.equipment)),
+            ("Operator", v(m.operator)),
+            ("Reading uncertainty", v(m.uncertainty)),
+            ("Grid", v(m.grid)),
+        ]
+    }
 }
 
 /// A workbook's sheet named in the job file: `sheet = "Readings"` or `sheet = 2`.
@@ -166,6 +208,7 @@ impl Job {
             check_limit_path(path, &text, &limit)?;
             job.limit = Some(limit);
         }
+
         Ok(job)
     }
 }
@@ -454,6 +497,26 @@ mod tests {
             e.contains("job.toml:1:") && e.contains("`thickening`"),
             "{e}"
         );
+    }
+
+    #[test]
+    fn measurement_table_is_read_and_checked() {
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("job.toml");
+        std::fs::write(
+            &p,
+            "part = \"x\"\n[measurement]\nmethod = \"tape\"\nuncertainty = \"±0.02 mm\"\n",
+        )
+        .unwrap();
+        let j = Job::load(&p).unwrap();
+        let rows = Measurement::rows(j.measurement.as_ref());
+        assert_eq!(rows[0], ("Method", "tape".to_string()));
+        assert_eq!(rows[1], ("Equipment", "not stated".to_string()));
+        assert_eq!(rows[3].1, "±0.02 mm");
+        assert!(Measurement::rows(None).iter().all(|r| r.1 == "not stated"));
+        std::fs::write(&p, "[measurement]\nmethd = \"tape\"\n").unwrap();
+        let e = Job::load(&p).unwrap_err().to_string();
+        assert!(e.contains("job.toml:2:1") && e.contains("methd"), "{e}");
     }
 
     #[test]

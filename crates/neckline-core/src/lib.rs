@@ -30,6 +30,7 @@ pub mod digest;
 pub mod error;
 pub mod fit;
 pub mod grid;
+pub mod hotspot;
 pub mod job;
 pub mod kinematics;
 pub mod limit;

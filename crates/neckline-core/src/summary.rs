@@ -116,14 +116,20 @@ impl ThicknessCheck {
 }
 
 /// The rank of a location in the worst list: failed before marginal before the rest (a
-/// location failed by thinning can keep a positive margin), then smallest margin first.
+/// location failed by thinning can keep a positive margin); within a zone, each by the measure
+/// that put it there: locations whose multi-stage path decided their zone first, highest path
+/// use first, then the rest by margin to the strain curve, smallest first.
 fn worst_key(p: &PointResult) -> (u8, f64) {
     let rank = match p.zone() {
         Zone::Failed => 0,
-        Zone::Marginal => 1,
-        _ => 2,
+        Zone::Marginal => 2,
+        _ => 4,
     };
-    (rank, p.judgement.margin_pct.unwrap_or(f64::INFINITY))
+    let by_path = p.judgement.reason == crate::assess::Reason::Path;
+    match p.path.as_ref().and_then(|j| j.use_pct) {
+        Some(u) if by_path => (rank, -u),
+        _ => (rank + 1, p.judgement.margin_pct.unwrap_or(f64::INFINITY)),
+    }
 }
 
 fn at_risk(p: &PointResult) -> bool {

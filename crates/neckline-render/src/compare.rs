@@ -4,4 +4,5 @@
 pub mod fld;
 pub mod map;
 pub mod page;
+pub mod record;
 pub mod terminal;

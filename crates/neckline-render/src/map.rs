@@ -16,13 +16,17 @@ use crate::fld::worst_label;
 use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult};
 use neckline_core::analysis::Analysis;
 use neckline_core::assess::Zone;
+use neckline_core::hotspot::HotSpot;
 use neckline_core::point::PointResult;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;
 
-/// How many of the worst locations carry their id.
+/// How many locations carry their id at least (the worst of each hot spot, then the worst).
 pub const LABELLED: usize = 6;
+
+/// Hot spots whose worst location is labelled, at most.
+pub const HOT_SPOTS_LABELLED: usize = 8;
 
 /// What the map colours each location (or cell) by.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -165,11 +169,12 @@ fn cell_value(c: &neckline_core::summary::MapCell, value: MapValue) -> Option<f6
     }
 }
 
-/// The colour scale: margins from `lo` to `hi` percentage points. Below the band edge the
-/// zone colours themselves: the failed red at and below 0 (on the curve), the marginal yellow
-/// up to the band edge; beyond the edge a single-hue green ramp, light at the edge and dark far
-/// from it (the safe hue: further from the curve is darker). A change of zone shows as a change
-/// of hue.
+/// The colour scale: margins from `lo` to `hi` percentage points. At and below 0 (on the
+/// curve) a ramp of its own from the failed red to a near-black red at `lo`: deeper past the
+/// curve is darker, and darker than any other colour of the scale, so that it reads in
+/// greyscale too; the marginal yellow up to the band edge; beyond the edge a single-hue green
+/// ramp, light at the edge and dark far from it (the safe hue: further from the curve is
+/// darker). A change of zone shows as a change of hue.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct MarginScale {
     /// Low end, pp.
@@ -183,6 +188,16 @@ pub struct MarginScale {
 type Rgb = (u8, u8, u8);
 /// Light to dark green, ending at the safe zone's green.
 const BEYOND: (Rgb, Rgb) = ((0xd4, 0xec, 0xd6), (0x22, 0x88, 0x33));
+
+/// The failed red to a near-black red (luminance 145 to 27 of 255 by ITU-R BT.601 weights;
+/// the darkest green of the scale is 96).
+const PAST: (Rgb, Rgb) = ((0xee, 0x66, 0x77), (0x40, 0x08, 0x12));
+
+fn mix(ends: (Rgb, Rgb), t: f64) -> RGBColor {
+    let (a, b) = ends;
+    let m = |x: u8, y: u8| (x as f64 + t * (y as f64 - x as f64)).round() as u8;
+    RGBColor(m(a.0, b.0), m(a.1, b.1), m(a.2, b.2))
+}
 
 impl MarginScale {
     /// A scale that holds every margin of `a`, at least `−band/2 ..= 3·band`.
@@ -205,7 +220,12 @@ impl MarginScale {
     pub fn colour(&self, m: f64) -> RGBColor {
         use neckline_core::assess::ROUND_OFF_PP;
         if m <= ROUND_OFF_PP {
-            return zone_colour(Zone::Failed);
+            let t = if self.lo < 0.0 {
+                (m / self.lo).clamp(0.0, 1.0)
+            } else {
+                0.0
+            };
+            return mix(PAST, t);
         }
         if m < self.band - ROUND_OFF_PP {
             return zone_colour(Zone::Marginal);
@@ -216,9 +236,7 @@ impl MarginScale {
         } else {
             1.0
         };
-        let (a, b) = BEYOND;
-        let mix = |x: u8, y: u8| (x as f64 + t * (y as f64 - x as f64)).round() as u8;
-        RGBColor(mix(a.0, b.0), mix(a.1, b.1), mix(a.2, b.2))
+        mix(BEYOND, t)
     }
 }
 
@@ -260,7 +278,15 @@ fn draw<DB: DrawingBackend>(
             draw_marker(root, p, px(*xy), &scale, value, &mut placer)?;
         }
     } else {
-        draw_raster(root, a, value, &scale, &px, (xr.1 - xr.0).max(yr.1 - yr.0))?;
+        draw_raster(
+            root,
+            a,
+            value,
+            &scale,
+            &px,
+            (xr.1 - xr.0).max(yr.1 - yr.0),
+            plot.rect(),
+        )?;
         let plane = a.summary.view.plane;
         for p in a.worst(MARKED_IN_RASTER).into_iter().rev() {
             if let Some(xy) = plane.coords(p) {
@@ -274,7 +300,18 @@ fn draw<DB: DrawingBackend>(
             root.draw(&Circle::new(px(xy), 12, BLACK.stroke_width(2)))?;
         }
     }
-    draw_worst(root, a, &px, &mut placer)?;
+    let spots = neckline_core::hotspot::hot_spots(a, RASTER_CELLS);
+    if !a.summary.complete {
+        for s in spots.iter().take(HOT_SPOTS_LABELLED) {
+            let Some(p) = s.worst.as_ref() else {
+                continue;
+            };
+            if let Some(xy) = plane.coords(p) {
+                draw_marker(root, p, px(xy), &scale, value, &mut placer)?;
+            }
+        }
+    }
+    draw_worst(root, a, &spots, &px, &mut placer)?;
     draw_map_title(root, a, value)?;
     match scale {
         Scale::Margin(s) => draw_scale(root, &s)?,
@@ -323,6 +360,7 @@ fn draw_raster<DB: DrawingBackend>(
     scale: &Scale,
     px: &dyn Fn((f64, f64)) -> (i32, i32),
     span: f64,
+    clip: plot::Rect,
 ) -> DrawResult<DB> {
     let mut bins = a.summary.map.clone();
     bins.coarsen_to(span, RASTER_CELLS);
@@ -331,8 +369,14 @@ fn draw_raster<DB: DrawingBackend>(
         let (x0, y0) = bins.corner(*k);
         let (a0, b0) = px((x0, y0 + size));
         let (a1, b1) = px((x0 + size, y0));
+        // Cut to the plot area: a cell astride its edge is drawn only inside it.
+        let (a0, b0) = (a0.max(clip.0), b0.max(clip.1));
+        let (a1, b1) = (a1.max(a0 + 1).min(clip.2), b1.max(b0 + 1).min(clip.3));
+        if a1 <= a0 || b1 <= b0 {
+            continue;
+        }
         root.draw(&Rectangle::new(
-            [(a0, b0), (a1.max(a0 + 1), b1.max(b0 + 1))],
+            [(a0, b0), (a1, b1)],
             scale.colour(cell_value(c, value)).filled(),
         ))?;
     }
@@ -363,19 +407,39 @@ fn draw_ramp<DB: DrawingBackend>(
     Ok(())
 }
 
+/// The locations the map labels: the worst of each hot spot, largest first (at most
+/// [`HOT_SPOTS_LABELLED`]), then the worst locations up to [`LABELLED`] labels in all.
+pub fn labelled<'a>(a: &'a Analysis, spots: &'a [HotSpot]) -> Vec<&'a PointResult> {
+    let plane = a.summary.view.plane;
+    let mut v: Vec<&PointResult> = spots
+        .iter()
+        .filter_map(|s| s.worst.as_ref())
+        .take(HOT_SPOTS_LABELLED)
+        .collect();
+    for p in a.worst(neckline_core::summary::WORST_KEPT) {
+        if v.len() >= LABELLED.max(v.len()) {
+            break;
+        }
+        if plane.coords(p).is_some() && !v.iter().any(|q| q.input.id == p.input.id) {
+            v.push(p);
+        }
+    }
+    v.retain(|p| plane.coords(p).is_some());
+    v
+}
+
 fn draw_worst<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     a: &Analysis,
+    spots: &[HotSpot],
     px: &dyn Fn((f64, f64)) -> (i32, i32),
     placer: &mut Placer,
 ) -> DrawResult<DB> {
     let style = plot::bold(15.0);
     let plane = a.summary.view.plane;
-    let shown = a
-        .worst(neckline_core::summary::WORST_KEPT)
+    let shown = labelled(a, spots)
         .into_iter()
-        .filter_map(|p| Some((p, plane.coords(p)?)))
-        .take(LABELLED);
+        .filter_map(|p| Some((p, plane.coords(p)?)));
     for (p, xy) in shown {
         let text = worst_label(
             p,
@@ -472,6 +536,11 @@ fn shapes_legend(a: &Analysis) -> Legend {
         );
     }
     l.push(Row::text(
+        "labelled: the worst of each hot spot",
+        small(),
+        18,
+    ));
+    l.push(Row::text(
         if a.summary.complete {
             "dashed: hull of the measured locations"
         } else {
@@ -494,9 +563,18 @@ mod tests {
             band: 10.0,
             hi: 40.0,
         };
-        // Below the band edge the zone colours themselves; beyond it a green ramp.
+        // At and below 0 a ramp from the failed red to near-black; marginal its zone colour;
+        // beyond the band a green ramp.
         assert_eq!(s.colour(0.0), zone_colour(Zone::Failed)); // on the curve: failed
-        assert_eq!(s.colour(-8.0), zone_colour(Zone::Failed));
+        assert_eq!(s.colour(-10.0), RGBColor(0x40, 0x08, 0x12)); // the deepest: darkest
+                                                                 // Greyscale: luma Y' = 0.299 R + 0.587 G + 0.114 B (ITU-R BT.601); deeper past the curve
+                                                                 // is darker, and the deepest darker than any other colour of the scale.
+        let luma =
+            |c: RGBColor| 0.299 * f64::from(c.0) + 0.587 * f64::from(c.1) + 0.114 * f64::from(c.2);
+        let ramp: Vec<f64> = (0..=10).map(|k| luma(s.colour(-f64::from(k)))).collect();
+        assert!(ramp.windows(2).all(|w| w[1] < w[0]), "{ramp:?}");
+        let others = (1..=40).map(|m| luma(s.colour(f64::from(m))));
+        assert!(others.fold(f64::INFINITY, f64::min) > ramp[10] + 50.0);
         assert_eq!(s.colour(0.01), zone_colour(Zone::Marginal)); // just below: marginal
         assert_eq!(s.colour(9.99), zone_colour(Zone::Marginal));
         assert_eq!(s.colour(10.0), RGBColor(0xd4, 0xec, 0xd6)); // band edge: light green

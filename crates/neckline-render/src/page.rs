@@ -48,7 +48,16 @@ table.signoff { width: 100%; margin-top: 4mm; }
 table.signoff td, table.signoff th { border: 1px solid var(--ink); height: 8mm; }
 table.signoff th { width: 24mm; }
 table.points, table.worst { font-size: 8pt; }
+section.follow { margin-top: 5mm; }
 table.points td, table.points th, table.worst td, table.worst th { padding: 0.3mm 1.2mm; }
+td.codes { white-space: nowrap; font-family: "DejaVu Sans Mono", "Liberation Mono", monospace; }
+table.points td, table.worst td { white-space: nowrap; }
+.legend { font-size: 8pt; color: #444; }
+.curvekind { margin: 2mm 0 1mm 0; }
+.measurement .k { color: #555; }
+table.digests { font-size: 7pt; width: 100%; }
+table.digests td, table.digests th { padding: 0.2mm 1mm; }
+table.digests code { font-size: 7pt; word-break: break-all; }
 figure { margin: 0; }
 figure svg { width: 100%; height: auto; display: block; }
 code, .formula { font-family: "DejaVu Sans Mono", "Liberation Mono", monospace; font-size: 9.5pt; }
@@ -57,7 +66,14 @@ code, .formula { font-family: "DejaVu Sans Mono", "Liberation Mono", monospace; 
   body { font-size: 9pt; line-height: 1.25; }
   h3 { margin: 2.5mm 0 1mm 0; }
   th, td { padding: 0.35mm 1.5mm; }
-  table.signoff td, table.signoff th { height: 7mm; }
+  table.points, table.worst { font-size: 7pt; }
+  table.points td, table.points th, table.worst td, table.worst th { padding: 0.1mm 1mm; line-height: 1.15; }
+  table.signoff td, table.signoff th { height: 6mm; }
+  table.signoff { margin-top: 2mm; }
+  .warning, .caution { padding: 1mm 2.5mm; }
+  p { margin: 1mm 0; }
+  .measurement, .curvekind { font-size: 8.5pt; }
+  table.zones td, table.zones th, table.brief td, table.brief th { padding: 0.1mm 1.5mm; }
   h1 { font-size: 14pt; margin-bottom: 1mm; }
   .verdict { margin: 1mm 0; font-size: 13pt; padding: 1mm 4mm; }
   section.page { break-before: page; page-break-before: always; }
@@ -118,6 +134,11 @@ pub fn layout(title: &str, running: &str, corner: &str, body: Markup) -> String 
         }
     };
     page.into_string()
+}
+
+/// A section that follows the one before on the same printed page.
+pub fn follow(id: &str, body: Markup) -> Markup {
+    html! { section.follow id=(id) { (body) } }
 }
 
 /// A section that starts a new printed page.

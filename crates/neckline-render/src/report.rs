@@ -10,6 +10,8 @@ use crate::page::{self, Badges};
 use maud::{html, Markup};
 use neckline_core::analysis::{Analysis, Verdict};
 use neckline_core::assess::Zone;
+use neckline_core::job::Measurement;
+use neckline_core::output::record::{self, CurveKind};
 use neckline_core::output::{fmt_length, fmt_margin_opt, fmt_opt, fmt_setting, reason_text};
 use neckline_core::point::PointResult;
 use std::io::{self, Write};
@@ -75,13 +77,62 @@ fn header(a: &Analysis) -> Markup {
             ("Lot", or_dash(&j.lot)),
             ("Initial thickness t0", length(a.lengths.t0, a)),
             ("Circle diameter d0", length(a.lengths.d0, a)),
-            ("Date", or_dash(&j.date)),
+            ("Date measured", or_dash(&j.date)),
             ("Measured by", or_dash(&j.measured_by)),
             ("Measurement file", file_name(a)),
             ("Report", format!("{}, revision {}", or_dash(&j.report_id), or_dash(&j.revision))),
-            ("Limit curve", format!("{} ({} strain)", a.curve.name, a.curve.measure.name())),
+            ("Generated", a.generated.text()),
         ]))
-        p.note { "Curve source: " (a.curve.source) }
+        (curve_kind(a))
+        (measurement(a))
+    }
+}
+
+/// Where the curve came from: its file as given (relative to the job file), normalised.
+fn curve_file(a: &Analysis) -> Option<String> {
+    a.files
+        .iter()
+        .find(|f| f.role == "curve")
+        .map(|f| record::normalise(&f.path).display().to_string())
+}
+
+/// The curve's kind and provenance in one line, and the warning an estimated curve carries.
+fn curve_kind(a: &Analysis) -> Markup {
+    let kind = CurveKind::of(&a.curve);
+    html! {
+        p.curvekind {
+            b { "Limit curve: " (kind.words()) } " — " (a.curve.name) " (" (a.curve.measure.name()) " strain)"
+            @if let Some(f) = curve_file(a) { ", file " code { (f) } }
+            "; its source: see the limit-curve page."
+        }
+        @if let Some(w) = kind.warning() { p.warning { "Warning: " (w) "." } }
+    }
+}
+
+/// How the circles were read, from the job's `[measurement]` table ("not stated" where left
+/// out); the reading error the judgement used, when one was set.
+fn measurement(a: &Analysis) -> Markup {
+    let mut rows = Measurement::rows(a.job.measurement.as_ref());
+    if let Some(e) = a.settings.reading_error {
+        let unit = if a.strain_input {
+            "pp of strain".to_string()
+        } else {
+            a.lengths.unit.name().to_string()
+        };
+        rows.push((
+            "Reading error judged with",
+            format!("{} {unit} per axis", fmt_setting(e)),
+        ));
+    }
+    html! {
+        p.measurement {
+            b { "Measurement: " }
+            @for (k, (label, value)) in rows.iter().enumerate() {
+                @if k > 0 { "; " }
+                span.k { (label.to_lowercase()) } " " (value)
+            }
+            "."
+        }
     }
 }
 
@@ -167,10 +218,6 @@ fn zone_rule(z: Zone, st: &neckline_core::assess::Settings) -> String {
     }
 }
 
-fn curve_brief(a: &Analysis) -> Markup {
-    html! { p { (crate::terminal::settings_line(a)) "." } }
-}
-
 fn signoff(a: &Analysis) -> Markup {
     let j = &a.job;
     signoff_block([
@@ -205,8 +252,7 @@ fn summary_page(a: &Analysis, bd: &Badges) -> Markup {
         (header(a))
         div class=(format!("verdict v-{}", v.name())) { "Verdict: " (v.name().to_uppercase()) }
         p { (verdict_sentence(a)) }
-        (curve_brief(a))
-        p { (count(a.total(), "location")) " judged, " (count(a.rejected_total(), "row")) " rejected." }
+        p { (crate::terminal::settings_line(a)) ". " (count(a.total(), "location")) " judged, " (count(a.rejected_total(), "row")) " rejected." }
         @if let Some(line) = neckline_core::output::not_measured_line(a) {
             p { (line) "." }
         }
@@ -262,6 +308,35 @@ fn id_cell(p: &PointResult) -> Markup {
     }
 }
 
+/// How the worst lists are ordered.
+const ORDER: &str = "failed first, then marginal; by path use where the path judged, \
+                     else by margin";
+
+/// The legend of the reason codes used by `shown`: every reason that applies is listed, not
+/// only the one that decided the zone.
+fn code_legend(a: &Analysis, shown: &[&PointResult], ordered: bool) -> Markup {
+    let used: Vec<&str> = shown
+        .iter()
+        .flat_map(|p| record::reasons(p, &a.settings))
+        .map(record::code)
+        .collect();
+    let legend: Vec<(&str, String)> = record::legend(&a.settings)
+        .into_iter()
+        .filter(|(c, _)| used.contains(c))
+        .collect();
+    html! {
+        p.legend {
+            @if ordered { "Order: " (ORDER) ". " }
+            "Why (every reason that applies): "
+            @for (k, (c, words)) in legend.into_iter().enumerate() {
+                @if k > 0 { "; " }
+                b { (c) } " " (words)
+            }
+            "."
+        }
+    }
+}
+
 fn worst_brief(a: &Analysis, bd: &Badges) -> Markup {
     let worst = a.worst(WORST_BRIEF);
     if worst.is_empty() {
@@ -269,14 +344,14 @@ fn worst_brief(a: &Analysis, bd: &Badges) -> Markup {
     }
     let band = a.settings.margin_pct;
     html! {
-        h3 { "Worst locations (failed first, then by margin)" }
+        h3 { "Worst locations" }
         table.brief {
             thead { tr {
                 th { "id" } th.n { "margin pp" } th.n { "major %" } th.n { "minor %" }
                 th.n { "thinning %" } th { "zone" } th { "why" }
             } }
             tbody {
-                @for p in worst {
+                @for p in &worst {
                     tr {
                         td { (id_cell(p)) }
                         td.n { (fmt_margin_opt(p.judgement.margin_pct, band)) }
@@ -284,11 +359,12 @@ fn worst_brief(a: &Analysis, bd: &Badges) -> Markup {
                         td.n { (format!("{:.1}", p.strain.eng.minor.percent())) }
                         td.n { (format!("{:.1}", p.strain.thinning * 100.0)) }
                         td { (bd.zone(p.zone())) }
-                        td { (reason_text(p, &a.settings)) }
+                        td.codes { (record::codes(p, &a.settings)) }
                     }
                 }
             }
         }
+        (code_legend(a, &worst, true))
         @if a.settings.reading_error.is_some() { p.note { "≈: borderline, the zone could change within the reading error." } }
     }
 }
@@ -302,7 +378,7 @@ fn points_table(a: &Analysis, points: &[&PointResult], class: &str, bd: &Badges)
                 th { "id" } th.n { "major %" } th.n { "minor %" } th.n { "ε1 true %" }
                 th.n { "ε2 true %" } th.n { "thinning %" } th.n { "β" } th.n { "limit %" }
                 th.n { "margin pp" } th.n { "limit use %" } th.n { "x" } th.n { "y" }
-                th { "zone" } th { "reason" } th { "stage" } th { "note" }
+                th { "zone" } th { "why" } th { "stage" } th { "note" }
             } }
             tbody {
                 @for p in points {
@@ -320,7 +396,7 @@ fn points_table(a: &Analysis, points: &[&PointResult], class: &str, bd: &Badges)
                         td.n { (fmt_opt(p.input.x, 1)) }
                         td.n { (fmt_opt(p.input.y, 1)) }
                         td { (bd.zone(p.zone())) }
-                        td { (reason_text(p, &a.settings)) }
+                        td.codes { (record::codes(p, &a.settings)) }
                         td { (p.input.stage.as_deref().unwrap_or("")) }
                         td { (p.input.note.as_deref().unwrap_or("")) }
                     }
@@ -452,7 +528,7 @@ fn provenance(a: &Analysis) -> Markup {
         @if !a.files.is_empty() {
             table.job {
                 @for f in &a.files {
-                    tr { th { (f.role) } td { code { (f.path.display().to_string()) } br; "SHA-256 " code { (f.sha256) } } }
+                    tr { th { (f.role) } td { code { (record::normalise(&f.path).display().to_string()) } br; "SHA-256 " code { (f.sha256) } } }
                 }
             }
         }
@@ -473,6 +549,36 @@ fn all_locations(a: &Analysis, bd: &Badges) -> Markup {
             @if kept.len() < a.total() { " The table stops here: all " (a.total()) " locations are in points.csv." }
         }
         (points_table(a, &kept, "points", bd))
+        (code_legend(a, &kept, false))
+    }
+}
+
+/// The hot spots: connected regions of failed (then marginal) locations, largest first.
+fn hot_spots(a: &Analysis) -> Markup {
+    let (spots, unit) = crate::terminal::hot_spots(a);
+    if spots.is_empty() {
+        return html! { p.note { "Hot spots: none (no failed or marginal location on the map)." } };
+    }
+    let n = crate::terminal::HOT_SPOTS_LISTED;
+    html! {
+        h3 { "Hot spots: " (crate::terminal::hot_spot_counts(&spots)) }
+        p.note { "Connected regions of failed, then of marginal, locations (neighbours within 1.5 grid spacings), largest first." }
+        table.brief {
+            thead { tr { th.n { "#" } th { "zone" } th { "worst" } th.n { "margin pp" } th.n { "locations" } th.n { "area " (unit) } } }
+            tbody {
+                @for (k, h) in spots.iter().take(n).enumerate() {
+                    tr {
+                        td.n { (k + 1) }
+                        td { (h.zone.name()) }
+                        td { (h.worst.as_ref().map_or_else(|| "—".to_string(), |w| w.input.id.clone())) }
+                        td.n { (fmt_margin_opt(h.worst.as_ref().and_then(|w| w.judgement.margin_pct), a.settings.margin_pct)) }
+                        td.n { (h.locations) }
+                        td.n { (format!("{:.0}", h.area)) }
+                    }
+                }
+            }
+        }
+        @if spots.len() > n { p.note { "... and " (spots.len() - n) " more." } }
     }
 }
 
@@ -491,6 +597,7 @@ fn running(a: &Analysis) -> (String, String) {
         || format!("verdict {}", a.verdict().name()),
         |r| format!("report {r}"),
     );
+    let corner = format!("{corner} · generated {}", a.generated.text());
     (head.join(" · "), corner)
 }
 
@@ -516,7 +623,8 @@ pub fn report_html(a: &Analysis, opts: &FldOptions, value: map::MapValue) -> io:
             @match &map_svg {
                 Some(svg) => {
                     figure { (page::inline_svg(svg)) }
-                    p.note { "Colour: margin to the limit curve (failed red, marginal yellow, a green ramp beyond the band); shape: zone; labelled: the " (map::LABELLED) " worst locations." }
+                    p.note { "Colour: margin to the limit curve (failed: a red ramp, darker deeper past the curve; marginal yellow; a green ramp beyond the band); shape: zone; labelled: the worst location of each hot spot, then the worst locations." }
+                    (hot_spots(a))
                 }
                 None => p.note { "No map: no location carries x, y coordinates." },
             }
@@ -524,13 +632,14 @@ pub fn report_html(a: &Analysis, opts: &FldOptions, value: map::MapValue) -> io:
         @if a.summary.paths > 0 { (page::section("paths", paths_section(a, &bd)?)) }
         (page::section("worst", html! {
             h2 { "Worst locations" }
-            p { "The " (worst.len()) " worst locations: failed first, then by margin to the limit curve, smallest first." }
+            p { "The " (worst.len()) " worst locations: " (ORDER) "." }
             (points_table(a, &worst, "worst", &bd))
+            (code_legend(a, &worst, false))
             (notes(a))
             @for w in &a.warnings { p.note { "Warning: " (w) } }
             (rejected(a))
         }))
-        (page::section("points", all_locations(a, &bd)))
+        (page::follow("points", all_locations(a, &bd)))
         (page::section("curve", curve_section(a)))
         (page::section("method", html! {
             (maud::PreEscaped(METHOD))
@@ -618,8 +727,10 @@ mod render_tests {
 
     #[test]
     fn text_content_snapshot() {
-        let (_, html) = report();
-        let text = visible_text(&html).replace(env!("CARGO_PKG_VERSION"), "VERSION");
+        let (a, html) = report();
+        let text = visible_text(&html)
+            .replace(env!("CARGO_PKG_VERSION"), "VERSION")
+            .replace(&a.generated.text(), "TIME");
         insta::assert_snapshot!(text);
     }
 
@@ -633,7 +744,8 @@ mod render_tests {
         }
         assert!(!html.contains("<LH>"));
         assert!(html.contains("TP-1 test panel &lt;LH&gt; &amp; co (invented)"));
-        assert_eq!(html.matches("<section class=\"page\"").count(), 7);
+        assert_eq!(html.matches("<section class=\"page\"").count(), 6);
+        assert_eq!(html.matches("<section class=\"follow\"").count(), 1);
         assert_eq!(
             html.matches("<svg width=\"1200\"").count(),
             2,
@@ -650,7 +762,7 @@ mod render_tests {
         let mut r = csv::Reader::from_reader(csv.as_bytes());
         let head = r.headers().unwrap().clone();
         let col = |name: &str| head.iter().position(|h| h == name).unwrap();
-        let (id, margin, zone) = (col("id"), col("margin_pct"), col("zone"));
+        let (id, margin, zone, reason) = (col("id"), col("margin_pct"), col("zone"), col("reason"));
         let text = visible_text(&html);
         for rec in r.records() {
             let rec = rec.unwrap();
@@ -669,9 +781,16 @@ mod render_tests {
                     let shown: f64 = cells[8].parse().unwrap();
                     assert!((shown - m).abs() <= 0.05 + 1e-9, "{line} vs {m}");
                 }
-                // No margin: limit, margin and use are empty, and the reason says why.
-                Err(_) => assert!(line.contains("off the curve"), "{line}"),
+                // No margin: limit, margin and use are empty, and the code says why (O off the
+                // curve, X crossed).
+                Err(_) => assert!(cells.contains(&"O") || cells.contains(&"X"), "{line}"),
             }
+            // The reason points.csv gives (the one that decided the zone) is among the codes.
+            let r = neckline_core::assess::Reason::ALL
+                .into_iter()
+                .find(|r| r.name() == &rec[reason])
+                .unwrap();
+            assert!(cells.contains(&record::code(r)), "{line}: {}", &rec[reason]);
         }
     }
 

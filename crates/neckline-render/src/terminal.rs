@@ -201,6 +201,7 @@ pub fn summary_text(a: &Analysis) -> String {
         let _ = writeln!(s, "  {:<12}{n:>6}", zone.name());
     }
     worst_table(&mut s, a);
+    hot_spot_lines(&mut s, a);
     if a.rejected_total() > 0 {
         let _ = writeln!(s);
         let _ = writeln!(s, "Rejected rows (not judged):");
@@ -237,6 +238,72 @@ pub fn summary_text(a: &Analysis) -> String {
     }
     s.push_str(&wrap(CAUTION, WIDTH, ""));
     s
+}
+
+/// Hot spots listed at most, in the terminal and the report.
+pub const HOT_SPOTS_LISTED: usize = 8;
+
+/// The hot spots as the map draws them, and the area unit's name ("mm²").
+pub fn hot_spots(a: &Analysis) -> (Vec<neckline_core::hotspot::HotSpot>, String) {
+    let spots = if a.summary.placed > 0 {
+        neckline_core::hotspot::hot_spots(a, crate::map::RASTER_CELLS)
+    } else {
+        Vec::new()
+    };
+    let unit = match a.lengths.unit {
+        neckline_core::units::LengthUnit::Mm => "mm²",
+        neckline_core::units::LengthUnit::In => "in²",
+    };
+    (spots, unit.to_string())
+}
+
+/// The count of hot spots by zone in words: "4 failed, 3 marginal".
+pub fn hot_spot_counts(spots: &[neckline_core::hotspot::HotSpot]) -> String {
+    let n = |z: Zone| spots.iter().filter(|s| s.zone == z).count();
+    format!("{} failed, {} marginal", n(Zone::Failed), n(Zone::Marginal))
+}
+
+fn hot_spot_lines(s: &mut String, a: &Analysis) {
+    let (spots, unit) = hot_spots(a);
+    if spots.is_empty() {
+        return;
+    }
+    let _ = writeln!(s);
+    s.push_str(&wrap(
+        &format!(
+            "Hot spots (connected failed or marginal locations, largest first): {}",
+            hot_spot_counts(&spots)
+        ),
+        WIDTH,
+        "",
+    ));
+    let _ = writeln!(
+        s,
+        "  {:>2}  {:<10} {:<12} {:>9} {:>10}",
+        "#",
+        "zone",
+        "worst",
+        "locations",
+        format!("area {unit}")
+    );
+    for (k, h) in spots.iter().take(HOT_SPOTS_LISTED).enumerate() {
+        let worst = h
+            .worst
+            .as_ref()
+            .map_or_else(|| "-".to_string(), |w| w.input.id.clone());
+        let _ = writeln!(
+            s,
+            "  {:>2}  {:<10} {:<12} {:>9} {:>10.0}",
+            k + 1,
+            h.zone.name(),
+            worst,
+            h.locations,
+            h.area
+        );
+    }
+    if spots.len() > HOT_SPOTS_LISTED {
+        let _ = writeln!(s, "  ... and {} more", spots.len() - HOT_SPOTS_LISTED);
+    }
 }
 
 /// The settings in one sentence.

@@ -6,6 +6,7 @@ pub mod decimal_comma;
 #[cfg(any(test, feature = "fixture"))]
 pub mod fixture;
 pub mod points_csv;
+pub mod record;
 pub mod summary_json;
 
 use crate::error::{Error, Result};

@@ -65,7 +65,7 @@ pub fn summary(a: &Analysis) -> Value {
         .collect();
     json!({
         "tool": { "name": "neckline", "version": env!("CARGO_PKG_VERSION") },
-        "run_time_utc": utc_now(),
+        "run_time_utc": a.generated.utc(),
         "files": files,
         "input": a.input.display().to_string(),
         "input_kind": if a.strain_input { "strains" } else { "axes" },

@@ -60,10 +60,49 @@ impl Placer {
                     inside(r) && free(r, &self.labels)
                 })
             })
+            .or_else(|| {
+                // Farther out, ring by ring, until a place free of other labels is found: a
+                // long leader is better than two labels on one another.
+                far_candidates(anchor, w, h).into_iter().find(|c| {
+                    let r = boxed(*c);
+                    inside(r) && free(r, &self.labels)
+                })
+            })
             .unwrap_or(candidates[0]);
         self.labels.push(boxed(pick));
+        PLACED.with(|p| p.borrow_mut().push(boxed(pick)));
         pick
     }
+}
+
+thread_local! {
+    /// Every label box placed on this thread since the last [`take_placed`].
+    static PLACED: std::cell::RefCell<Vec<Rect>> = const { std::cell::RefCell::new(Vec::new()) };
+}
+
+/// The label boxes placed on this thread since the last call (for tests that check that the
+/// labels of a picture overlap nowhere).
+pub fn take_placed() -> Vec<Rect> {
+    PLACED.with(|p| std::mem::take(&mut *p.borrow_mut()))
+}
+
+/// Whether two boxes overlap.
+pub fn boxes_overlap(a: Rect, b: Rect) -> bool {
+    overlaps(a, b)
+}
+
+fn far_candidates(anchor: (i32, i32), w: i32, h: i32) -> Vec<(i32, i32)> {
+    let (x, y) = anchor;
+    let mut out = Vec::new();
+    for d in (130..=1400).step_by(20) {
+        for k in 0..24 {
+            let t = f64::from(k) * std::f64::consts::TAU / 24.0;
+            let cx = x + (f64::from(d) * t.cos()) as i32;
+            let cy = y + (f64::from(d) * t.sin()) as i32;
+            out.push((cx - w / 2, cy - h / 2));
+        }
+    }
+    out
 }
 
 fn candidates(anchor: (i32, i32), w: i32, h: i32) -> Vec<(i32, i32)> {

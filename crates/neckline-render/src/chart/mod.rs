@@ -99,5 +99,9 @@ pub const REFERENCE: Stroke = Stroke::dashed(GREY, 1, 10.0, 4.0);
 /// The thinning iso-lines.
 pub const THINNING: Stroke = Stroke::dashed(LIGHT, 1, 3.0, 4.0);
 
-/// The maximum-thinning line: heavy and long-dashed, in the failed zone's colour.
-pub const MAX_THINNING: Stroke = Stroke::dashed(plot::palette::RED, 3, 14.0, 3.0);
+/// The colour of the maximum-thinning line and its label: Tol's indigo, outside the zone
+/// palette, so that the line never reads as a zone (nor as a failure).
+pub const MAX_THINNING_INK: RGBColor = RGBColor(0x33, 0x22, 0x88);
+
+/// The maximum-thinning line: a heavy dotted line in its own colour, unlike any other line.
+pub const MAX_THINNING: Stroke = Stroke::dashed(MAX_THINNING_INK, 3, 3.0, 5.0);

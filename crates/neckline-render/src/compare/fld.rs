@@ -19,8 +19,12 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;
 
-/// How many of the largest losses carry their id.
+/// How many of the largest losses, and of the largest gains, carry their id (every newly
+/// failed or marginal location does too).
 pub const LABELLED: usize = 6;
+
+/// Labelled locations listed in the legend at most.
+const LEGEND_LABELS: usize = 16;
 
 /// Colour of a change: blue improved, purple worsened, grey unchanged (Tol's bright scheme;
 /// none of them a zone colour, so that a change never reads as a zone).
@@ -221,10 +225,9 @@ fn draw_loss_labels<DB: DrawingBackend>(
     placer: &mut Placer,
 ) -> DrawResult<DB> {
     let style = plot::bold(15.0);
-    for t in c.losses().into_iter().take(LABELLED) {
+    for t in c.labelled(LABELLED) {
         let Some(a) = t.after() else { continue };
-        let text = format!("{} ({:+.1})", t.name(), t.margin_change().unwrap_or(0.0));
-        let border = change_colour(Some(Change::Worsened));
+        let (text, border) = super::record::label(t, c.tolerance);
         label_box(
             root,
             placer,
@@ -287,12 +290,12 @@ fn legend(c: &Comparison, has_curve: bool, band: Option<f64>) -> Legend {
         }
     }
     l.gap(12);
-    let losses = c.losses();
-    if losses.is_empty() {
+    let labelled = c.labelled(LABELLED);
+    if labelled.is_empty() {
         return l;
     }
-    l.heading("Largest losses (margin, pp)", 16.0, 26);
-    for t in losses.into_iter().take(LABELLED) {
+    l.heading("Labelled (margin change, pp)", 16.0, 26);
+    for t in labelled.into_iter().take(LEGEND_LABELS) {
         let d = format!("{:+.1}", t.margin_change().unwrap_or(0.0));
         let now = t.after().map_or("", |r| r.zone.name());
         l.push(

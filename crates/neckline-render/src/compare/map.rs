@@ -170,13 +170,12 @@ fn draw_labels<DB: DrawingBackend>(
 ) -> DrawResult<DB> {
     let style = plot::bold(15.0);
     let shown = c
-        .losses()
+        .labelled(LABELLED)
         .into_iter()
-        .filter_map(|t| Some((t, latest(t).xy()?)))
-        .take(LABELLED);
+        .filter_map(|t| Some((t, latest(t).xy()?)));
     for (t, xy) in shown {
-        let text = format!("{} ({:+.1})", t.name(), t.margin_change().unwrap_or(0.0));
-        label_box(root, placer, px(xy), &text, &style, BLACK)?;
+        let (text, border) = super::record::label(t, c.tolerance);
+        label_box(root, placer, px(xy), &text, &style, border)?;
     }
     Ok(())
 }

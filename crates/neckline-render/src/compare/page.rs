@@ -5,10 +5,12 @@
 
 use super::fld::{change_colour, fld_svg, LABELLED};
 use super::map::map_svg;
+use super::record;
 use crate::page::{self, Badges};
 use crate::plot::hex;
 use maud::{html, Markup};
 use neckline_core::assess::Zone;
+use neckline_core::compare::record::Record;
 use neckline_core::compare::{count, Change, Comparison, Matching, Status, Track};
 use neckline_core::output::fmt_opt;
 use std::io;
@@ -163,24 +165,6 @@ fn change_table(c: &Comparison, v: &[&Track], bd: &Badges, empty: &str) -> Marku
     }
 }
 
-fn at_risk_section(c: &Comparison, bd: &Badges) -> Markup {
-    let (b, a) = c.labels();
-    let risk = c.newly_at_risk();
-    let new_only = c.at_risk_only_after(true);
-    let fixed = c.fixed();
-    html! {
-        h2 { "At risk now" }
-        h3 { "Newly failed or marginal in " (a) " (" (risk.len()) ")" }
-        (change_table(c, &risk, bd, &format!("No location is failed or marginal in {a} that was in a better zone in {b}.")))
-        @if !new_only.is_empty() {
-            h3 { "Failed or marginal in " (a) ", not measured in " (b) " (" (new_only.len()) ")" }
-            (one_sided_table(&new_only, bd))
-        }
-        h3 { "Fixed: failed or marginal in " (b) ", neither in " (a) " (" (fixed.len()) ")" }
-        (change_table(c, &fixed, bd, "No location left the failed and marginal zones."))
-    }
-}
-
 fn losses_gains(c: &Comparison, bd: &Badges) -> Markup {
     let losses = c.losses();
     let gains = c.gains();
@@ -252,14 +236,14 @@ fn pictures(c: &Comparison) -> io::Result<(Markup, Markup)> {
         p.note {
             "Each arrow runs from a location's earlier strains to its strains in " (a)
             "; colour: change of margin; marker at the head: zone in " (a) "; labelled: the "
-            (LABELLED) " largest losses (change in percentage points)."
+            (LABELLED) " largest losses and gains, every location newly failed or marginal and every one that left the failed zone (change in percentage points)."
         }
     };
     let map = match map_svg(c)? {
         Some(svg) => html! {
             h2 { "Margin change on the part" }
             figure { (page::inline_svg(&svg)) }
-            p.note { "Colour: change of margin from " (b) " to " (a) "; shape: zone in " (a) "." }
+            p.note { "Colour: change of margin from " (b) " to " (a) "; shape: zone in " (a) "; labelled as on the diagram." }
         },
         None => html! {
             h2 { "Margin change on the part" }
@@ -269,8 +253,14 @@ fn pictures(c: &Comparison) -> io::Result<(Markup, Markup)> {
     Ok((fld, map))
 }
 
-/// The whole page.
+/// The whole page, without a record block (tests of the layout).
 pub fn page_html(c: &Comparison) -> io::Result<String> {
+    page_html_with(c, None)
+}
+
+/// The whole page; with `rec`, as a record: number, revision, generation time, inputs' SHA-256
+/// and the sign-off block.
+pub fn page_html_with(c: &Comparison, rec: Option<&Record>) -> io::Result<String> {
     let bd = Badges::new()?;
     let last = c
         .tryouts
@@ -283,11 +273,20 @@ pub fn page_html(c: &Comparison) -> io::Result<String> {
     let (fld, map) = pictures(c)?;
     let body = html! {
         (page::section("summary", html! {
-            (header(c)) (warnings(c)) (verdicts(c)) (transitions(c, &bd)) (page::caution())
+            (header(c))
+            @if let Some(r) = rec { (record::record_block(r)) }
+            (warnings(c)) (verdicts(c)) (transitions(c, &bd))
+            @if let Some(line) = record::one_sided_empty(c) { (line) }
+            // With a record the sign-off takes the caution's place on the first page; the
+            // caution is on the last page and, short, in every page's footer.
+            @match rec {
+                Some(r) => (record::signoff(r)),
+                None => (page::caution()),
+            }
         }))
-        (page::section("at-risk", at_risk_section(c, &bd)))
+        (page::section("at-risk", record::at_risk_section(c, &bd)))
         (page::section("changes", losses_gains(c, &bd)))
-        (page::section("one-sided", one_sided(c, &bd)))
+        @if record::one_sided_empty(c).is_none() { (page::section("one-sided", one_sided(c, &bd))) }
         (page::section("diagram", fld))
         (page::section("map", map))
         (page::section("caution", html! {
@@ -301,10 +300,19 @@ pub fn page_html(c: &Comparison) -> io::Result<String> {
             }
         }))
     };
-    Ok(page::layout(
-        &title,
-        &format!("{title} · tryouts {}", labels.join(" → ")),
-        "",
-        body,
-    ))
+    let (running, corner) = match rec {
+        Some(r) => (
+            format!(
+                "{title} · tryouts {} · generated {}",
+                labels.join(" → "),
+                r.generated.text()
+            ),
+            format!("report {}, revision {}", r.report_id, r.revision),
+        ),
+        None => (
+            format!("{title} · tryouts {}", labels.join(" → ")),
+            String::new(),
+        ),
+    };
+    Ok(page::layout(&title, &running, &corner, body))
 }

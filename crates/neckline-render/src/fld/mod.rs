@@ -134,6 +134,10 @@ fn draw<DB: DrawingBackend>(
     }
     .draw(root)?;
     let px = |p: (f64, f64)| plot.px(p);
+    // The density goes first: every line (the curve and the band above all) is drawn over it.
+    if draws_density(a, m) && !opts.curve_only {
+        draw_density(root, a, &px, (xr.1 - xr.0).max(yr.1 - yr.0))?;
+    }
     let mut line_labels: Vec<(String, (i32, i32), RGBColor)> = Vec::new();
     let stroke = |line: &Line, stroke: Stroke| -> Result<_, DrawingAreaErrorKind<DB::ErrorType>> {
         let runs = plot.runs(line);
@@ -154,7 +158,7 @@ fn draw<DB: DrawingBackend>(
     }
     if let Some(max) = a.settings.max_thinning_pct.filter(|_| !opts.curve_only) {
         if let Some(end) = stroke(&thinning_line(max, m), chart::MAX_THINNING)? {
-            line_labels.push((max_thinning_label(max), end, BLACK));
+            line_labels.push((max_thinning_label(max), end, chart::MAX_THINNING_INK));
         }
     }
     let band = if opts.curve_only {
@@ -178,9 +182,6 @@ fn draw<DB: DrawingBackend>(
         chart::CURVE.draw(root, run)?;
     }
     let mut placer = plot.placer();
-    if draws_density(a, m) && !opts.curve_only {
-        draw_density(root, a, &px, (xr.1 - xr.0).max(yr.1 - yr.0))?;
-    }
     if !opts.curve_only {
         draw_points(root, a, m, &px, &mut placer)?;
         draw_paths(root, a, opts, &px)?;
