@@ -156,16 +156,6 @@ pub fn judge_file(
         path: false,
         unit: prep.lengths.unit,
     };
-    if header.columns.has("stage") {
-        let order = prep.job.stages.as_deref();
-        let rows = neckline_core::measure::MeasurementReader::after(&mut input, header);
-        let staged = neckline_core::point::staged::judge_staged(rows, &ctx, order)?;
-        layout.path = staged.stages.len() >= 2;
-        let files = input_digests(path, digest.hex(), prep);
-        return judged_in_memory(
-            path, prep, output, plan, set, ctx, layout, staged, &notes, files,
-        );
-    }
     let mut file = match &plan.points {
         Some(p) if !plan.points_to_stdout() => Some(set.create(p)?),
         _ => None,
@@ -177,6 +167,38 @@ pub fn judge_file(
         (None, false) => None,
     };
     let io_err = |e| Error::io(plan.points.as_deref().unwrap_or(Path::new("-")), e);
+    if header.columns.has("stage") {
+        // Several stages per location: grouped through run files, in bounded memory.
+        let order = prep.job.stages.as_deref();
+        let run = neckline_core::point::staged_runs::judge_staged_runs(
+            &mut input,
+            &header,
+            &ctx,
+            order,
+            &mut layout,
+            output.view(),
+            sink,
+        )?;
+        match out.flush() {
+            Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => return Err(io_err(e)),
+            _ => {}
+        }
+        let mut a = Analysis::new(
+            path.to_path_buf(),
+            prep.job.clone(),
+            ctx,
+            output.view(),
+            &notes,
+        );
+        if layout.path {
+            a.stages = run.stages;
+        }
+        a.summary = run.summary;
+        a.files = input_digests(path, digest.hex(), prep);
+        a.finish();
+        let a = require_points(a, path, "no location could be judged", "rows")?;
+        return Ok((a, file));
+    }
     if let Some(w) = sink.as_mut() {
         w.write_all(layout.header_line().as_bytes())
             .map_err(io_err)?;
@@ -210,49 +232,6 @@ pub fn judge_file(
     a.files = input_digests(path, digest.hex(), prep);
     a.finish();
     let a = require_points(a, path, "no location could be judged", "rows")?;
-    Ok((a, file))
-}
-
-/// A file judged in memory (several stages per location): its rows written and folded in the
-/// order of the ids.
-#[allow(clippy::too_many_arguments)]
-fn judged_in_memory(
-    path: &Path,
-    prep: &Prepared,
-    output: &OutputArgs,
-    plan: &Plan,
-    set: &mut OutputSet,
-    ctx: Context,
-    layout: Layout,
-    staged: neckline_core::point::staged::Staged,
-    notes: &[String],
-    files: Vec<FileDigest>,
-) -> Result<(Analysis, Option<StagedFile>)> {
-    let mut a = Analysis::new(
-        path.to_path_buf(),
-        prep.job.clone(),
-        ctx,
-        output.view(),
-        notes,
-    );
-    if layout.path {
-        a.stages = staged.stages.clone();
-    }
-    a.files = files;
-    let mut text = layout.header_line().into_bytes();
-    for p in staged.points {
-        if plan.points.is_some() {
-            layout.push_row(&mut text, &p);
-        }
-        a.summary.fold(p);
-    }
-    for r in staged.rejected {
-        a.summary.rejected.push(r);
-    }
-    a.summary.not_measured = staged.not_measured;
-    a.finish();
-    let a = require_points(a, path, "no location could be judged", "rows")?;
-    let file = super::outputs::points_out(plan, set, &text)?;
     Ok((a, file))
 }
 

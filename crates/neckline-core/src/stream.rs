@@ -301,7 +301,7 @@ pub struct Pass<'a> {
 }
 
 /// A batch of chunks read, or the error that stopped reading.
-fn read_batch<R: Read>(
+pub(crate) fn read_batch<R: Read>(
     chunks: &mut Chunker<R>,
     n: usize,
     file: &std::path::Path,

@@ -59,6 +59,11 @@
 
 use crate::condition::Condition;
 use nalgebra::{DMatrix, DVector};
+use rayon::prelude::*;
+
+/// Circles per task when the objective is summed on every core (fixed, so that the sums come
+/// out the same on any number of cores).
+const CIRCLES_PER_TASK: usize = 8192;
 
 /// At least this many safe circles, and as many necked-or-split ones, are needed for a fit.
 pub const MIN_EACH: usize = 10;
@@ -409,6 +414,10 @@ fn slope_changes(knots: &[f64]) -> DMatrix<f64> {
     d
 }
 
+/// One part of the circles' sums: value, gradient, and the Hessian's diagonal and first
+/// off-diagonal.
+type Sums = (f64, Vec<f64>, Vec<f64>, Vec<f64>);
+
 /// The fitting problem for one set of circles and knots.
 struct Problem {
     /// Per circle: basis piece, true major strain, label ±1, class weight.
@@ -445,29 +454,56 @@ impl Problem {
         }
     }
 
-    /// `J(θ; s)`, its gradient and Hessian.
+    /// `J(θ; s)`, its gradient and Hessian. The circles' terms are summed on every core, each
+    /// part into the two bands of the Hessian they touch (a circle's basis has two neighbouring
+    /// knots), then added to the penalty's.
     fn value_gradient_hessian(
         &self,
         theta: &DVector<f64>,
         s: f64,
     ) -> (f64, DVector<f64>, DMatrix<f64>) {
-        let pt = &self.penalty * theta;
-        let mut j = theta.dot(&pt);
-        let mut g = pt * 2.0;
-        let mut h = &self.penalty * 2.0;
-        for &(i, w, major, y, c) in &self.rows {
-            let f = (1.0 - w) * theta[i] + w * theta[i + 1];
-            let z = y * (major - f) / s;
-            j += c * softplus(-z);
-            // dJ/dθ = c σ(−z) · y/s · φ;  d²J/dθ² = c σ(z)σ(−z)/s² · φφᵀ.
-            let gi = c * sigmoid(-z) * y / s;
-            let hi = c * sigmoid(z) * sigmoid(-z) / (s * s);
-            let phi = [(i, 1.0 - w), (i + 1, w)];
-            for &(a, pa) in &phi {
-                g[a] += gi * pa;
-                for &(b, pb) in &phi {
-                    h[(a, b)] += hi * pa * pb;
+        let n = self.n;
+        // Fixed parts summed in order: the same sums whatever the number of cores.
+        let parts: Vec<Sums> = self
+            .rows
+            .par_chunks(CIRCLES_PER_TASK)
+            .map(|rows| {
+                let (mut j, mut g, mut diag, mut off) =
+                    (0.0, vec![0.0; n], vec![0.0; n], vec![0.0; n]);
+                for &(i, w, major, y, c) in rows {
+                    let f = (1.0 - w) * theta[i] + w * theta[i + 1];
+                    let z = y * (major - f) / s;
+                    j += c * softplus(-z);
+                    // dJ/dθ = c σ(−z) · y/s · φ;  d²J/dθ² = c σ(z)σ(−z)/s² · φφᵀ.
+                    let gi = c * sigmoid(-z) * y / s;
+                    let hi = c * sigmoid(z) * sigmoid(-z) / (s * s);
+                    g[i] += gi * (1.0 - w);
+                    g[i + 1] += gi * w;
+                    diag[i] += hi * (1.0 - w) * (1.0 - w);
+                    diag[i + 1] += hi * w * w;
+                    off[i] += hi * (1.0 - w) * w;
                 }
+                (j, g, diag, off)
+            })
+            .collect();
+        let (mut jc, mut gc, mut diag, mut off) = (0.0, vec![0.0; n], vec![0.0; n], vec![0.0; n]);
+        for (j, g, d, o) in parts {
+            jc += j;
+            for k in 0..n {
+                gc[k] += g[k];
+                diag[k] += d[k];
+                off[k] += o[k];
+            }
+        }
+        let pt = &self.penalty * theta;
+        let j = theta.dot(&pt) + jc;
+        let g = pt * 2.0 + DVector::from_vec(gc);
+        let mut h = &self.penalty * 2.0;
+        for a in 0..n {
+            h[(a, a)] += diag[a];
+            if a + 1 < n {
+                h[(a, a + 1)] += off[a];
+                h[(a + 1, a)] += off[a];
             }
         }
         (j, g, h)
@@ -496,8 +532,22 @@ impl Problem {
         Some(&hinv * g * &hinv)
     }
 
+    /// `J(θ; s)` alone (for the line search).
     fn value(&self, theta: &DVector<f64>, s: f64) -> f64 {
-        self.value_gradient_hessian(theta, s).0
+        let parts: Vec<f64> = self
+            .rows
+            .par_chunks(CIRCLES_PER_TASK)
+            .map(|rows| {
+                let mut j = 0.0;
+                for &(i, w, major, y, c) in rows {
+                    let f = (1.0 - w) * theta[i] + w * theta[i + 1];
+                    j += c * softplus(-y * (major - f) / s);
+                }
+                j
+            })
+            .collect();
+        let jc: f64 = parts.iter().sum();
+        theta.dot(&(&self.penalty * theta)) + jc
     }
 }
 
@@ -519,7 +569,8 @@ pub struct Minimum {
 /// direction). `vgh(x)` returns the value, gradient and Hessian; `value(x)` the value alone. A
 /// Hessian that is not positive definite is shifted by `μI` (μ growing tenfold from 1e-10 of its
 /// largest diagonal entry) until its Cholesky factor exists. Stops when the Newton decrement
-/// `−gᵀδ` is below `tol` or after `max_iter` steps.
+/// `−gᵀδ` is below `tol · max(1, |f|)` (relative to the value, so that a sum over many terms
+/// stops at the same relative precision as a small one) or after `max_iter` steps.
 pub fn minimise(
     vgh: impl Fn(&DVector<f64>) -> (f64, DVector<f64>, DMatrix<f64>),
     value: impl Fn(&DVector<f64>) -> f64,
@@ -533,7 +584,7 @@ pub fn minimise(
         let step = newton_step(&h, &g);
         let decrement = -g.dot(&step);
         // A NaN decrement (a broken function) also stops here.
-        if decrement.is_nan() || decrement <= tol {
+        if decrement.is_nan() || decrement <= tol * f.abs().max(1.0) {
             return Minimum {
                 x,
                 value: f,

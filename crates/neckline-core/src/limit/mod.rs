@@ -76,6 +76,10 @@ pub struct TruePath {
     /// Whether the origin sees the vertices under a strictly turning angle (true of every
     /// forming-limit curve drawn above the origin): then a ray meets at most one segment.
     pub star_shaped: bool,
+    /// The safety band below the curve, built on first use by
+    /// [`LimitCurve::band_point_on_ray`] for one band width (its bits), so that judging many
+    /// paths does not build it again for each.
+    pub band: OnceLock<(u64, Option<Box<TruePath>>)>,
 }
 
 impl TruePath {
@@ -85,6 +89,7 @@ impl TruePath {
         TruePath {
             points,
             star_shaped,
+            band: OnceLock::new(),
         }
     }
 }
@@ -373,18 +378,27 @@ impl LimitCurve {
     /// Where the same ray meets the safety band: the curve lowered by `band_pct` percentage
     /// points of engineering major strain at each minor strain (in true strain).
     pub fn band_point_on_ray(&self, band_pct: f64, d: [f64; 2]) -> Option<[f64; 2]> {
-        let band: Vec<[f64; 2]> = self
-            .true_polyline(16)
-            .into_iter()
-            .filter_map(|[e2, e1]| {
-                let eng = e1.exp() - 1.0 - band_pct / 100.0;
-                (eng > -1.0).then(|| [e2, (1.0 + eng).ln()])
-            })
-            .collect();
-        if band.len() < 2 {
-            return None;
+        let build = || {
+            let band: Vec<[f64; 2]> = self
+                .true_polyline(16)
+                .into_iter()
+                .filter_map(|[e2, e1]| {
+                    let eng = e1.exp() - 1.0 - band_pct / 100.0;
+                    (eng > -1.0).then(|| [e2, (1.0 + eng).ln()])
+                })
+                .collect();
+            (band.len() >= 2).then(|| Box::new(TruePath::new(band)))
+        };
+        let path = self
+            .true_path
+            .get_or_init(|| TruePath::new(self.true_polyline(16)));
+        let (bits, cached) = path.band.get_or_init(|| (band_pct.to_bits(), build()));
+        let hit = |band: &TruePath| ray_hit(band, d).map(|s| [s * d[0], s * d[1]]);
+        if *bits == band_pct.to_bits() {
+            cached.as_deref().and_then(hit)
+        } else {
+            build().as_deref().and_then(hit)
         }
-        ray_hit(&TruePath::new(band), d).map(|s| [s * d[0], s * d[1]])
     }
 }
 

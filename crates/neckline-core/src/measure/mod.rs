@@ -51,8 +51,8 @@ pub use dialect::{csv_reader, parse_number, Dialect};
 pub use header::Header;
 pub use preamble::{parse_valid, UnitRow, PREAMBLE_LINES};
 pub use reader::{
-    duplicate, no_rows, open_input, read_measurements, read_measurements_from, MeasurementReader,
-    Row,
+    duplicate, duplicate_key, no_rows, open_input, read_measurements, read_measurements_from,
+    MeasurementReader, Row,
 };
 pub use rules::{
     RowRules, SwapLog, MAX_FIELDS, MAX_FIELD_BYTES, MAX_LENGTH, MAX_ROW_BYTES, STRETCH_RANGE,

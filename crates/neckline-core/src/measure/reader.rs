@@ -130,20 +130,24 @@ impl<B: BufRead> Iterator for MeasurementReader<B> {
 
 /// The rejection of a row whose id (and stage) came before.
 pub fn duplicate(header: &Header, m: &Measurement) -> RejectedRow {
-    let mut location = Location::file(&header.file).at_line(m.line);
+    duplicate_key(header, &m.id, m.stage.as_deref(), m.line)
+}
+
+/// [`duplicate`] from the row's key (id, stage) and line.
+pub fn duplicate_key(header: &Header, id: &str, stage: Option<&str>, line: u64) -> RejectedRow {
+    let mut location = Location::file(&header.file).at_line(line);
     if let Some(c) = header.columns.id {
         location = location.at_column(c as u64 + 1, &header.columns.names[c]);
     }
-    let reason = match &m.stage {
-        Some(s) => format!(
-            "duplicate id `{}` in stage `{s}`: each location is measured once per stage",
-            m.id
-        ),
-        None => format!("duplicate id `{}`: ids must be unique within a file", m.id),
+    let reason = match stage {
+        Some(s) => {
+            format!("duplicate id `{id}` in stage `{s}`: each location is measured once per stage")
+        }
+        None => format!("duplicate id `{id}`: ids must be unique within a file"),
     };
     RejectedRow {
         location,
-        id: Some(m.id.clone()),
+        id: Some(id.to_string()),
         reason,
     }
 }

@@ -8,6 +8,7 @@
 
 pub mod elements;
 pub mod staged;
+pub mod staged_runs;
 
 use crate::assess::{judge_reading_of, Judgement, Settings, Zone};
 use crate::error::Location;

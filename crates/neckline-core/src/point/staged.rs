@@ -86,45 +86,53 @@ pub fn judge_staged<B: std::io::BufRead>(
     }
     let staged = stages.len() >= 2;
     for id in ids {
-        let mut list = by_id.remove(&id).unwrap_or_default();
-        list.sort_by_key(|(k, _)| *k);
-        let path: Vec<[f64; 2]> = list
-            .iter()
-            .map(|(_, s)| {
-                let t = s.strain.true_strain;
-                [t.minor.value(), t.major.value()]
-            })
-            .collect();
-        let axes: Vec<Option<f64>> = list.iter().map(|(_, s)| s.input.angle_deg).collect();
-        let errors: Option<Vec<[f64; 2]>> = list
-            .iter()
-            .map(|(_, s)| ctx.true_strain_errors(s.d0, &s.strain))
-            .collect();
-        let Some((_, last)) = list.pop() else {
-            continue;
-        };
-        let mut p = ctx.judge(last);
-        if staged {
-            let j = judge_path_noisy(
-                &path,
-                &ctx.curve,
-                ctx.settings.margin_pct,
-                p.zone(),
-                &axes,
-                errors.as_deref(),
-            );
-            // One rule for the two criteria: a bent path's zone wins when it ranks worse
-            // (failed, uncovered, marginal, thickening, low-stretch, safe).
-            if let Some(zone) = combined_zone(p.judgement.zone, &j) {
-                p.judgement.zone = zone;
-                p.judgement.reason = Reason::Path;
-                p.judgement.borderline = j.borderline;
-            }
-            p.path = Some(Box::new(j));
-        }
-        out.points.push(p);
+        let list = by_id.remove(&id).unwrap_or_default();
+        out.points.extend(judge_location(list, ctx, staged));
     }
     out.stages = stages;
     out.not_measured = unmeasured.lock().map(|l| l.clone()).unwrap_or_default();
     Ok(out)
+}
+
+/// Judge one location from its rows `(stage index, state)`: at its last stage by the strain
+/// curve and, when the file has several stages (`staged`), along its path.
+pub(super) fn judge_location(
+    mut list: Vec<(usize, StateInput)>,
+    ctx: &Context,
+    staged: bool,
+) -> Option<PointResult> {
+    list.sort_by_key(|(k, _)| *k);
+    let path: Vec<[f64; 2]> = list
+        .iter()
+        .map(|(_, s)| {
+            let t = s.strain.true_strain;
+            [t.minor.value(), t.major.value()]
+        })
+        .collect();
+    let axes: Vec<Option<f64>> = list.iter().map(|(_, s)| s.input.angle_deg).collect();
+    let errors: Option<Vec<[f64; 2]>> = list
+        .iter()
+        .map(|(_, s)| ctx.true_strain_errors(s.d0, &s.strain))
+        .collect();
+    let (_, last) = list.pop()?;
+    let mut p = ctx.judge(last);
+    if staged {
+        let j = judge_path_noisy(
+            &path,
+            &ctx.curve,
+            ctx.settings.margin_pct,
+            p.zone(),
+            &axes,
+            errors.as_deref(),
+        );
+        // One rule for the two criteria: a bent path's zone wins when it ranks worse
+        // (failed, uncovered, marginal, thickening, low-stretch, safe).
+        if let Some(zone) = combined_zone(p.judgement.zone, &j) {
+            p.judgement.zone = zone;
+            p.judgement.reason = Reason::Path;
+            p.judgement.borderline = j.borderline;
+        }
+        p.path = Some(Box::new(j));
+    }
+    Some(p)
 }
