@@ -16,28 +16,44 @@ use neckline_core::strain::StrainMeasure;
 use neckline_core::summary::{map_margin, point_xy};
 use std::collections::HashMap;
 
-/// The index of a margin's colour in [`palette`]: 0 failed (on or above the curve), 1 inside
-/// the band, then the green ramp beyond the band; 255 for no margin (grey). Ordered from the
-/// worst margin to the best, so the worst of several is the smallest index.
+/// Steps of the map's failed-zone ramp (deeper past the curve, darker): 0.05 of the scale's
+/// lowest margin a step.
+pub const FAILED_STEPS: usize = 21;
+
+/// The index of a margin's colour in [`palette`]: the failed ramp first (0 the deepest past
+/// the curve, `FAILED_STEPS - 1` on the curve), then the band, then the green ramp beyond the
+/// band; 255 for no margin (grey). Ordered from the worst margin to the best, so the worst of
+/// several is the smallest index.
 pub fn colour_index(m: Option<f64>, s: &MarginScale) -> u8 {
     let Some(m) = m else { return 255 };
+    let last = (FAILED_STEPS - 1) as f64;
     if m <= ROUND_OFF_PP {
-        return 0;
+        let t = if s.lo < 0.0 {
+            (m / s.lo).clamp(0.0, 1.0)
+        } else {
+            0.0
+        };
+        return (last - (t * last).round()) as u8;
     }
     if m < s.band - ROUND_OFF_PP {
-        return 1;
+        return FAILED_STEPS as u8;
     }
     let t = if s.hi > s.band {
         ((m.clamp(s.band, s.hi) - s.band) / (s.hi - s.band)).clamp(0.0, 1.0)
     } else {
         1.0
     };
-    2 + (t * (RAMP_STEPS - 1) as f64).round() as u8
+    (FAILED_STEPS + 1) as u8 + (t * (RAMP_STEPS - 1) as f64).round() as u8
 }
 
 /// The colours of [`colour_index`]: those of the static map's [`MarginScale`].
 pub fn palette(s: &MarginScale) -> Vec<String> {
-    let mut v = vec![hex(s.colour(s.lo.min(-1.0))), hex(s.colour(s.band / 2.0))];
+    let last = (FAILED_STEPS - 1) as f64;
+    let deepest = s.lo.min(0.0);
+    let mut v: Vec<String> = (0..FAILED_STEPS)
+        .map(|k| hex(s.colour(deepest * (1.0 - k as f64 / last))))
+        .collect();
+    v.push(hex(s.colour(s.band / 2.0)));
     for k in 0..RAMP_STEPS {
         let m = s.band + (s.hi - s.band) * k as f64 / (RAMP_STEPS - 1) as f64;
         v.push(hex(s.colour(m)));
@@ -257,9 +273,9 @@ mod tests {
             hi: 30.0,
         };
         let pal = palette(&s);
-        // The same colour as the static map for a margin on the curve, in the band, at the
-        // band's edge and far beyond it.
-        for m in [-3.0, 0.0, 4.0, 10.0, 30.0, 45.0] {
+        // The same colour as the static map for a margin past the curve (on a step of the
+        // failed ramp), on the curve, in the band, at the band's edge and far beyond it.
+        for m in [-6.0, -5.0, -3.0, -0.25, 0.0, 4.0, 10.0, 30.0, 45.0] {
             let k = colour_index(Some(m), &s) as usize;
             assert_eq!(pal[k], hex(s.colour(m)), "margin {m}");
         }
