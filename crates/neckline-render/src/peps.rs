@@ -99,9 +99,12 @@ pub fn stage_points(j: &PathJudgement) -> Vec<(f64, f64)> {
     out
 }
 
+/// A location on the diagram: its zone, its stages' points and its id.
+type Located = (Zone, Vec<(f64, f64)>, String);
+
 fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> DrawResult<DB> {
     root.fill(&WHITE)?;
-    let pts: Vec<(Zone, Vec<(f64, f64)>, String)> = a
+    let pts: Vec<Located> = a
         .points()
         .iter()
         .filter_map(|p| {
