@@ -40,7 +40,8 @@ fn the_demo_corner_is_safe_on_the_strain_curve_and_failed_by_path() {
     assert!(dir.path().join("o/peps.svg").is_file());
     assert!(dir.path().join("o/peps.png").is_file());
     let svg = std::fs::read_to_string(dir.path().join("o/peps.svg")).unwrap();
-    assert!(svg.contains("Polar effective plastic strain diagram"));
+    assert!(svg.contains("Effective strain path diagram"));
+    assert!(svg.contains("β = dε2/dε1 of the last strain increment"));
 }
 
 #[test]

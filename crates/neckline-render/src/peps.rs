@@ -1,22 +1,28 @@
-//! The polar effective plastic strain diagram (`peps.svg`, `peps.png`) of a multi-stage file,
-//! in the published method's polar form (Stoughton & Yoon 2012, Int. J. Solids Struct. 49):
-//! each location at its accumulated effective strain ε̄ along the direction θ of its last strain
-//! increment (x = ε̄ cos θ, y = ε̄ sin θ, percent); the limit curve mapped point by point (a point
-//! (ε2, ε1) of the curve, reached on a straight path, sits at its effective strain along
-//! θ = atan2(ε1, ε2)); the safety band mapped the same way.
+//! The path diagram (`peps.svg`, `peps.png`) of a multi-stage file, in the shop's words: each
+//! location's accumulated effective strain ε̄ (von Mises, plane stress, incompressible; percent)
+//! against the strain ratio β = dε2/dε1 of its last increment, after each stage, the stages
+//! marked and joined. The limit is the effective-strain criterion of Stoughton & Yoon 2012
+//! (Int. J. Solids Struct. 49, "polar effective plastic strain"): a point (ε2, ε1) of the limit
+//! curve, reached on a straight path, is the limit ε̄* = ε̄(ε2, ε1) for β = ε2/ε1; the safety
+//! band is mapped the same way.
 
 use crate::chart::footer::draw_analysis_footer;
 use crate::chart::frame::{Frame, Look};
+use crate::chart::label::Label;
 use crate::chart::legend::{Key, Legend, Row, COUNTED};
 use crate::chart::title::PATH_TITLE;
 use crate::chart::{self, PANEL_LEFT, SIZE};
 use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult};
 use neckline_core::analysis::Analysis;
 use neckline_core::assess::Zone;
-use neckline_core::path::increment_effective;
+use neckline_core::path::{increment_effective, PathJudgement};
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;
+
+/// The x range's bounds: β beyond these (a last increment close to pure ε2) is drawn at the edge.
+const BETA_MIN: f64 = -1.0;
+const BETA_MAX: f64 = 1.2;
 
 /// The diagram as SVG, or `None` when no location was judged along a path.
 pub fn peps_svg(a: &Analysis) -> io::Result<Option<String>> {
@@ -34,19 +40,29 @@ pub fn peps_png(a: &Analysis) -> io::Result<Option<Vec<u8>>> {
     plot::render_png(SIZE, |root| draw(root, a)).map(Some)
 }
 
-/// A true-strain point `[ε2, ε1]` reached on a straight path, in the polar form (percent).
-pub fn polar(p: [f64; 2]) -> (f64, f64) {
-    let r = 100.0 * increment_effective(p);
-    let t = p[1].atan2(p[0]);
-    (r * t.cos(), r * t.sin())
+/// Strain ratio β = dε2/dε1 of an increment `[Δε2, Δε1]` (common practice: −½ uniaxial
+/// tension, 0 plane strain, 1 equibiaxial), kept within the diagram's range; `None` when the
+/// increment does not stretch along ε1.
+pub fn beta(d: [f64; 2]) -> Option<f64> {
+    (d[1] > 1e-12).then(|| (d[0] / d[1]).clamp(BETA_MIN, BETA_MAX))
 }
 
-/// The limit curve in the polar form.
+/// A true-strain point `[ε2, ε1]` reached on a straight path: (β, ε̄ in percent), with
+/// ε̄ = (2/√3) √(ε1² + ε1 ε2 + ε2²) (von Mises, plane stress, incompressible; Hill 1950).
+pub fn straight(p: [f64; 2]) -> Option<(f64, f64)> {
+    Some((beta(p)?, 100.0 * increment_effective(p)))
+}
+
+/// The limit curve, mapped.
 pub fn curve_line(a: &Analysis) -> Vec<(f64, f64)> {
-    a.curve.true_polyline(16).into_iter().map(polar).collect()
+    a.curve
+        .true_polyline(16)
+        .into_iter()
+        .filter_map(straight)
+        .collect()
 }
 
-/// The safety band in the polar form.
+/// The safety band, mapped.
 pub fn band_line(a: &Analysis) -> Vec<(f64, f64)> {
     let m = a.settings.margin_pct / 100.0;
     a.curve
@@ -54,63 +70,82 @@ pub fn band_line(a: &Analysis) -> Vec<(f64, f64)> {
         .into_iter()
         .filter_map(|[e2, e1]| {
             let e = e1.exp() - 1.0 - m;
-            (e > -1.0).then(|| polar([e2, (1.0 + e).ln()]))
+            (e > -1.0).then(|| straight([e2, (1.0 + e).ln()]))?
         })
         .collect()
 }
 
-/// Where a location sits: ε̄ along θ.
-fn location(j: &neckline_core::path::PathJudgement) -> Option<(f64, f64)> {
-    let t = j.angle_deg?.to_radians();
-    let r = 100.0 * j.effective;
-    Some((r * t.cos(), r * t.sin()))
+/// A location's stages: after each one, (β of the increment into it, ε̄ accumulated so far, %).
+/// The last point is the judged one (the judgement's ε̄ and direction, noise filtered); stages
+/// whose increment does not stretch along ε1 are left out.
+pub fn stage_points(j: &PathJudgement) -> Vec<(f64, f64)> {
+    let mut out = Vec::new();
+    let (mut prev, mut acc) = ([0.0, 0.0], 0.0);
+    let n = j.stages.len();
+    for s in j.stages.iter().take(n.saturating_sub(1)) {
+        let d = [s[0] - prev[0], s[1] - prev[1]];
+        acc += increment_effective(d);
+        if let Some(b) = beta(d) {
+            out.push((b, 100.0 * acc));
+        }
+        prev = *s;
+    }
+    if let Some(t) = j.angle_deg {
+        let t = t.to_radians();
+        if let Some(b) = beta([t.cos(), t.sin()]) {
+            out.push((b, 100.0 * j.effective));
+        }
+    }
+    out
 }
+
+/// A location on the diagram: its zone, its stages' points and its id.
+type Located = (Zone, Vec<(f64, f64)>, String);
 
 fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> DrawResult<DB> {
     root.fill(&WHITE)?;
-    let pts: Vec<(Zone, (f64, f64), String)> = a
+    let pts: Vec<Located> = a
         .points()
         .iter()
         .filter_map(|p| {
-            let j = p.path.as_ref()?;
-            Some((p.zone(), location(j)?, p.input.id.clone()))
+            let s = stage_points(p.path.as_ref()?);
+            (!s.is_empty()).then(|| (p.zone(), s, p.input.id.clone()))
         })
         .collect();
     let curve = curve_line(a);
-    let all = curve.iter().chain(pts.iter().map(|p| &p.1));
-    let (mut x0, mut x1, mut y1) = (-5.0f64, 5.0f64, 10.0f64);
+    let all = curve.iter().chain(pts.iter().flat_map(|p| p.1.iter()));
+    let (mut x0, mut x1, mut y1) = (-0.6f64, 1.05f64, 10.0f64);
     for &(x, y) in all {
         if x.is_finite() && y.is_finite() {
             (x0, x1, y1) = (x0.min(x), x1.max(x), y1.max(y));
         }
     }
-    let (xr, yr) = ((x0 - 5.0, x1 + 5.0), (-5.0, y1 * 1.1 + 5.0));
+    let (xr, yr) = ((x0 - 0.05, x1 + 0.05), (0.0, y1 * 1.1 + 2.0));
     let plot = Frame {
         x: xr,
         y: yr,
-        x_desc: "effective strain × cos θ, %  (θ: direction of the last strain increment)".into(),
-        y_desc: "effective strain × sin θ, %".into(),
+        x_desc: "β = dε2/dε1 of the last strain increment  (−0.5 uniaxial, 0 plane strain, 1 equibiaxial)".into(),
+        y_desc: "accumulated effective strain (von Mises), %".into(),
         look: Look::Diagram,
     }
     .draw(root)?;
     let px = |p: (f64, f64)| plot.px(p);
-    for (name, deg) in [
-        ("equibiaxial θ = 45°", 45.0f64),
-        ("plane strain θ = 90°", 90.0),
-        ("uniaxial θ = 116.6°", 116.565),
+    let mut placer = plot.placer();
+    for (_, s, _) in &pts {
+        for p in s {
+            placer.avoid(px(*p), 6);
+        }
+    }
+    let mut line_labels = Vec::new();
+    for (name, b) in [
+        ("uniaxial", -0.5f64),
+        ("plane strain", 0.0),
+        ("equibiaxial", 1.0),
     ] {
-        let t = deg.to_radians();
-        let ray: Vec<(f64, f64)> = (0..=200)
-            .map(|k| {
-                let r = k as f64 * yr.1 / 200.0;
-                (r * t.cos(), r * t.sin())
-            })
-            .collect();
-        for run in plot.runs(&ray) {
+        for run in plot.runs(&[(b, yr.0), (b, yr.1)]) {
             chart::REFERENCE.draw(root, &run)?;
-            if let Some(end) = run.last() {
-                let style = plot::text(13.0).color(&chart::GREY);
-                root.draw_text(name, &style, (end.0 + 4, end.1))?;
+            if let Some(top) = run.iter().min_by_key(|p| p.1) {
+                line_labels.push((name, (top.0, top.1 + 10)));
             }
         }
     }
@@ -119,21 +154,26 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
     let line: Vec<(i32, i32)> = curve.iter().map(|p| px(*p)).collect();
     chart::CURVE.draw(root, &line)?;
     for zone in Zone::ALL.iter().rev() {
-        for (_, xy, _) in pts.iter().filter(|p| p.0 == *zone) {
-            marker(
-                root,
-                zone_shape(*zone),
-                px(*xy),
-                5,
-                zone_colour(*zone),
-                BLACK,
-            )?;
+        for (_, s, _) in pts.iter().filter(|p| p.0 == *zone) {
+            let joined: Vec<(i32, i32)> = s.iter().map(|p| px(*p)).collect();
+            let colour = zone_colour(*zone);
+            root.draw(&PathElement::new(joined.clone(), colour.stroke_width(1)))?;
+            let (last, before) = joined.split_last().expect("not empty");
+            for c in before {
+                root.draw(&Circle::new(*c, 3, colour.filled()))?;
+                root.draw(&Circle::new(*c, 3, BLACK.stroke_width(1)))?;
+            }
+            marker(root, zone_shape(*zone), *last, 5, colour, BLACK)?;
         }
     }
+    let grey = plot::text(13.0).color(&chart::GREY);
+    for (name, at) in line_labels {
+        Label::LINE.draw(root, &mut placer, at, name, &grey)?;
+    }
     for id in a.summary.hidden.items.iter().take(8) {
-        if let Some((_, xy, _)) = pts.iter().find(|p| &p.2 == id) {
-            let c = px(*xy);
-            root.draw_text(id, &plot::bold(14.0), (c.0 + 8, c.1 - 18))?;
+        if let Some((zone, s, _)) = pts.iter().find(|p| &p.2 == id) {
+            let c = px(*s.last().expect("not empty"));
+            Label::boxed(zone_colour(*zone)).draw(root, &mut placer, c, id, &plot::bold(14.0))?;
         }
     }
     let part = a.job.part.as_deref().unwrap_or("(part not named)");
@@ -146,9 +186,9 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
     PATH_TITLE.draw(
         root,
         [
-            &format!("Polar effective plastic strain diagram: {part}"),
+            &format!("Effective strain path diagram: {part}"),
             &second,
-            "Each location: its accumulated effective strain (von Mises) along the direction of its last increment",
+            "Each location after each stage: accumulated effective strain against the direction (β) of the last increment",
         ],
     )?;
     let mut l = Legend::new(PANEL_LEFT, 110);
@@ -163,8 +203,10 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
         a.settings.margin_pct
     );
     for text in [
-        "solid: limit curve, mapped",
+        "solid: limit curve on straight paths",
         &band,
+        "small dots: earlier stages, joined",
+        "large marker: after the last stage",
         "labelled: hidden by the strain curve",
     ] {
         l.push(Row::text(text, plot::text(14.0), 20));
@@ -177,15 +219,17 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, a: &Analysis) -> Draw
 mod tests {
     use super::*;
 
-    // A point reached on a straight path sits at its effective strain along its own direction:
-    // plane strain ε1 at θ = 90°, radius (2/√3) ε1 (von Mises, plane stress).
+    // On a straight path β = ε2/ε1 and ε̄ = (2/√3) √(ε1² + ε1ε2 + ε2²) (von Mises, plane
+    // stress; Hill 1950): plane strain ε̄ = (2/√3) ε1, equibiaxial ε̄ = 2ε1, uniaxial β = −½
+    // and ε̄ = ε1.
     #[test]
-    fn straight_paths_map_to_their_effective_strain() {
-        let (x, y) = polar([0.0, 0.3]);
-        assert!(x.abs() < 1e-9);
-        assert!((y - 100.0 * 0.3 * 2.0 / 3f64.sqrt()).abs() < 1e-9);
-        // Equibiaxial: θ = 45°, ε̄ = 2ε1.
-        let (x, y) = polar([0.1, 0.1]);
-        assert!((x - y).abs() < 1e-9 && (x.hypot(y) - 20.0).abs() < 1e-9);
+    fn straight_paths_map_to_their_ratio_and_effective_strain() {
+        let (b, e) = straight([0.0, 0.3]).unwrap();
+        assert!(b.abs() < 1e-9 && (e - 100.0 * 0.3 * 2.0 / 3f64.sqrt()).abs() < 1e-9);
+        let (b, e) = straight([0.1, 0.1]).unwrap();
+        assert!((b - 1.0).abs() < 1e-9 && (e - 20.0).abs() < 1e-9);
+        let (b, e) = straight([-0.1, 0.2]).unwrap();
+        assert!((b + 0.5).abs() < 1e-9 && (e - 20.0).abs() < 1e-9);
+        assert!(straight([0.1, -0.1]).is_none());
     }
 }
