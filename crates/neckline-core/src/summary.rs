@@ -13,7 +13,9 @@ use crate::point::PointResult;
 use crate::strain::StrainMeasure;
 
 mod bins;
+mod spread;
 pub use bins::{map_margin, Bins, Cell, MapCell, ZoneCounts};
+pub use spread::{Rank, Worst, SPREAD_CELLS, SPREAD_CELL_PCT, SPREAD_PER_CELL};
 
 /// Up to this many locations, every one is kept and drawn as a marker.
 pub const KEEP_ALL: usize = 5_000;
@@ -235,6 +237,9 @@ pub struct Summary {
     pub observed_failed: Vec<PointResult>,
     /// The curve's supported true minor strain range, when it states one (a press-shop curve).
     pub supported: Option<(f64, f64)>,
+    /// Failed and marginal locations spread over the diagram: per cell of a coarse grid over
+    /// (minor, major) strain in the view's measure, the worst few (see [`Summary::markers`]).
+    pub spread: Bins<Worst>,
     /// Locations judged on the curve outside its supported range.
     pub unsupported: Capped<String>,
 }
@@ -270,6 +275,7 @@ impl Summary {
             observed: Default::default(),
             observed_failed: Vec::new(),
             supported: None,
+            spread: spread::new_spread(),
             unsupported: Capped::default(),
         }
     }
@@ -356,6 +362,11 @@ impl Summary {
         }
         if p.judgement.margin_pct.is_some() || p.zone() == Zone::Failed {
             self.offer_worst(p);
+        }
+        if at_risk(p) {
+            let k = worst_key(p);
+            let rank = Rank(k.0, k.1, p.input.line, p.input.id.clone());
+            self.spread.add(x, y, |c| c.offer(rank, p));
         }
     }
 
@@ -491,6 +502,7 @@ impl Summary {
         self.hidden.merge(o.hidden);
         self.turned.merge(o.turned);
         self.unsupported.merge(o.unsupported);
+        self.spread.merge(o.spread);
         self.observed.merge(o.observed);
         let room = AT_RISK_KEPT.saturating_sub(self.observed_failed.len());
         self.observed_failed
@@ -501,6 +513,24 @@ impl Summary {
     pub fn flush(&mut self) {
         self.density.flush();
         self.map.flush();
+        self.spread.flush();
+    }
+
+    /// The locations the diagram marks: every kept one while [`Summary::complete`]; past that,
+    /// the worst list and the spread sample (failed and marginal locations from every region of
+    /// the diagram where there are any, not the first in file order), each once, worst first.
+    /// Read after [`Summary::flush`].
+    pub fn markers(&self) -> Vec<&PointResult> {
+        if self.complete {
+            return self.kept.iter().collect();
+        }
+        let mut seen = std::collections::HashSet::new();
+        let worst = self.worst.iter().filter(|p| at_risk(p));
+        let sample = spread::sample(&self.spread).into_iter().map(|(_, p)| p);
+        worst
+            .chain(sample)
+            .filter(|p| seen.insert((p.input.line, p.input.id.as_str())))
+            .collect()
     }
 
     /// Number of locations in `zone`.
@@ -685,6 +715,91 @@ mod tests {
             .map(|c| c.0.iter().sum::<u32>())
             .sum();
         assert_eq!(cells as usize, ps.len(), "every location is in the density");
+    }
+
+    // Past KEEP_ALL, the diagram marks failures from the whole spread, not the first rows:
+    // 20 000 invented locations, the first 4 000 failed at minor 0-4 %, then failures from minor
+    // -17 % to +10 % among safe ones; curve (-30, 50), (0, 30), (30, 45) as in `points`.
+    #[test]
+    fn markers_spread_over_the_diagram_whatever_the_parts() {
+        let curve = LimitCurve::parse(
+            "name = \"t\"\nsource = \"test\"\nstrain = \"engineering\"\npoints = [[-30, 50], [0, 30], [30, 45]]\n",
+            Path::new("c.toml"),
+        )
+        .unwrap();
+        let lengths = Lengths {
+            unit: Default::default(),
+            d0: Some(2.5),
+            t0: None,
+        };
+        let ctx = Context {
+            curve,
+            settings: Settings::default(),
+            lengths,
+            strain_input: false,
+            true_input: false,
+        };
+        let ps: Vec<PointResult> = (0..20_000usize)
+            .map(|i| {
+                let (minor, major) = if i < 4_000 {
+                    (0.04 * (i % 400) as f64 / 400.0, 0.55)
+                } else if i % 5 == 0 {
+                    (-0.17 + 0.27 * (i % 997) as f64 / 996.0, 0.60)
+                } else {
+                    (-0.05 + 0.10 * (i % 89) as f64 / 88.0, 0.10)
+                };
+                let m = Measurement::axes(
+                    &format!("P{i}"),
+                    i as u64 + 2,
+                    2.5 * (1.0 + major),
+                    2.5 * (1.0 + minor),
+                    None,
+                );
+                ctx.judge(state_of(m, Path::new("t.csv"), &lengths).unwrap())
+            })
+            .collect();
+        let minor = |p: &PointResult| p.strain.eng.minor.percent();
+        let ids = |s: &Summary| {
+            s.markers()
+                .iter()
+                .map(|p| p.input.id.clone())
+                .collect::<Vec<_>>()
+        };
+        let mut whole = fold_all(&ps);
+        whole.flush();
+        assert!(!whole.complete);
+        // The file-order list is all at 0-4 %, which is what the diagram must not show alone.
+        assert!(whole.kept.iter().all(|p| (0.0..4.01).contains(&minor(p))));
+        let failed: Vec<f64> = whole
+            .markers()
+            .iter()
+            .filter(|p| p.zone() == Zone::Failed)
+            .map(|p| minor(p))
+            .collect();
+        let lo = failed.iter().copied().fold(f64::INFINITY, f64::min);
+        let hi = failed.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        assert!(lo < -15.0 && hi > 8.0, "failed markers from {lo} to {hi}");
+        // Every 2-point band of minor strain from -17 % to +10 % holds a failed marker.
+        for k in 0..13 {
+            let band = -17.0 + 2.0 * f64::from(k);
+            assert!(
+                failed.iter().any(|m| (band..band + 2.0).contains(m)),
+                "no failed marker at minor {band} %"
+            );
+        }
+        assert!(whole.markers().len() <= AT_RISK_KEPT);
+        for parts in [2, 3, 7] {
+            let mut merged = Summary::new(View::default());
+            for chunk in ps.chunks(ps.len().div_ceil(parts)) {
+                let mut part = merged.next_part();
+                for p in chunk {
+                    part.fold(p.clone());
+                }
+                merged.merge(part);
+            }
+            merged.flush();
+            assert_eq!(ids(&merged), ids(&whole), "{parts} parts");
+        }
     }
 
     #[test]

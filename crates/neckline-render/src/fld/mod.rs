@@ -219,6 +219,12 @@ fn max_thinning_label(max: f64) -> String {
 /// Cells across the diagram's longer axis when locations are drawn as a density.
 pub const DENSITY_CELLS: usize = 110;
 
+/// The locations the diagram marks: every one while the file is small, else the worst and a
+/// sample spread over the diagram ([`neckline_core::summary::Summary::markers`]).
+pub fn markers(a: &Analysis) -> Vec<&PointResult> {
+    a.summary.markers()
+}
+
 /// Whether the diagram draws a density (too many locations for a marker each).
 pub fn draws_density(a: &Analysis, m: StrainMeasure) -> bool {
     !a.summary.complete && a.summary.view.measure == m
@@ -237,7 +243,8 @@ fn draw_density<DB: DrawingBackend>(
     bins.coarsen_to(span, DENSITY_CELLS);
     let m = a.summary.view.measure;
     let mut kept: std::collections::HashMap<(i64, i64), u32> = Default::default();
-    for p in a.points() {
+    let risk = [Zone::Failed, Zone::Marginal];
+    for p in markers(a).into_iter().filter(|p| risk.contains(&p.zone())) {
         let (x, y) = point_xy(p, m);
         *kept.entry(bins.key(x, y)).or_default() += 1;
     }
@@ -247,7 +254,6 @@ fn draw_density<DB: DrawingBackend>(
         Zone::LowStretch,
         Zone::Safe,
     ];
-    let risk = [Zone::Failed, Zone::Marginal];
     // Per cell: key, quiet population and its main zone, at-risk overflow and its zone.
     type Shade = ((i64, i64), u32, Zone, u32, Zone);
     let cells: Vec<Shade> = bins
@@ -257,7 +263,11 @@ fn draw_density<DB: DrawingBackend>(
             let n = |z: Zone| c.0[z as usize];
             let pop: u32 = quiet.iter().map(|z| n(*z)).sum();
             let top = *quiet.iter().max_by_key(|z| n(**z)).unwrap_or(&Zone::Safe);
-            let over = risk.iter().map(|z| n(*z)).sum::<u32>() - kept.get(k).copied().unwrap_or(0);
+            let over = risk
+                .iter()
+                .map(|z| n(*z))
+                .sum::<u32>()
+                .saturating_sub(kept.get(k).copied().unwrap_or(0));
             let rz = if n(Zone::Failed) > 0 {
                 Zone::Failed
             } else {
@@ -296,7 +306,7 @@ fn draw_points<DB: DrawingBackend>(
 ) -> DrawResult<DB> {
     // Best zones first, so that the worst are drawn on top.
     for zone in Zone::ALL.iter().rev() {
-        for p in a.points().iter().filter(|p| p.zone() == *zone) {
+        for p in markers(a).into_iter().filter(|p| p.zone() == *zone) {
             let c = px(point_xy(p, m));
             marker(root, zone_shape(*zone), c, 5, zone_colour(*zone), BLACK)?;
             if p.judgement.borderline {
@@ -407,7 +417,7 @@ fn legend<DB: DrawingBackend>(
             let note = format!(
                 "shaded cells: density of {} locations; markers: {} failed or marginal",
                 a.total(),
-                a.points().len()
+                markers(a).len()
             );
             l.note(root, &note, plot::text(12.0), 300, 15).gap(6);
         }
