@@ -12,40 +12,20 @@
 //! fails (`.ci/run` installs Debian's `chromium`).
 
 mod common;
-use common::browser::{chromium, page_requests};
+use common::browser::{chromium, chromium_output, page_requests};
 use common::{demo_tryout, read_rows, run_in};
 use serde_json::Value;
 use std::path::{Path, PathBuf};
 
 /// Run headless Chromium on `page` until its scripts are done; returns (dumped DOM, log).
 fn dump_dom(chromium: &Path, page: &Path) -> (String, String) {
-    let profile = tempfile::tempdir().unwrap();
-    let out = std::process::Command::new(chromium)
-        .args([
-            "--headless",
-            "--no-sandbox",
-            "--disable-gpu",
-            "--no-first-run",
-            "--disable-background-networking",
-            "--disable-component-update",
-            "--disable-sync",
-            "--enable-logging=stderr",
-            "--v=1",
-            "--window-size=1400,1000",
-            "--virtual-time-budget=10000",
-            "--dump-dom",
-        ])
-        .arg(format!("--user-data-dir={}", profile.path().display()))
-        .arg(format!("file://{}", page.display()))
-        .output()
-        .unwrap();
-    let log = String::from_utf8_lossy(&out.stderr).into_owned();
-    assert!(
-        out.status.success(),
-        "chromium failed: {}\n{log}",
-        out.status
-    );
-    (String::from_utf8_lossy(&out.stdout).into_owned(), log)
+    let action = [
+        "--window-size=1400,1000",
+        "--virtual-time-budget=10000",
+        "--dump-dom",
+    ]
+    .map(String::from);
+    chromium_output(chromium, page, &action)
 }
 
 /// Script errors and console errors the page reports, caught from its first line on.

@@ -27,6 +27,12 @@ pub fn chromium(test: &str) -> Option<PathBuf> {
 
 /// Run headless Chromium on `page` with `action` flags and verbose logging; returns its log.
 pub fn run_chromium(chromium: &Path, page: &Path, action: &[String]) -> String {
+    chromium_output(chromium, page, action).1
+}
+
+/// Run headless Chromium on `page` with `action` flags and verbose logging; returns what it
+/// wrote to standard output (e.g. `--dump-dom`) and its log.
+pub fn chromium_output(chromium: &Path, page: &Path, action: &[String]) -> (String, String) {
     let profile = tempfile::tempdir().unwrap();
     let out = std::process::Command::new(chromium)
         .args([
@@ -51,7 +57,7 @@ pub fn run_chromium(chromium: &Path, page: &Path, action: &[String]) -> String {
         "chromium failed: {}\n{log}",
         out.status
     );
-    log
+    (String::from_utf8_lossy(&out.stdout).into_owned(), log)
 }
 
 /// URLs the page asked for: every file loaded other than the page itself, and every network

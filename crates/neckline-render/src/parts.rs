@@ -3,7 +3,6 @@
 //! strain paths, in the plotting style of the forming-limit diagram.
 
 use crate::chart::footer::draw_footer;
-use crate::chart::frame::{Frame, Look};
 use crate::chart::legend::{Entries, Key, Legend, Row, COUNTED, LINES};
 use crate::chart::title::draw_title;
 use crate::chart::{self, Stroke, PANEL_LEFT, TITLE_H};
@@ -14,7 +13,6 @@ use neckline_core::limit::from_parts::{Band, PartCircle, PartsFit};
 use neckline_core::limit::writer::SHOP_CURVE_WORDS;
 use neckline_core::limit::LimitCurve;
 use neckline_core::output::input_name;
-use neckline_core::strain::StrainMeasure;
 use plotters::prelude::*;
 use std::io;
 use std::path::Path;
@@ -105,20 +103,8 @@ impl PartsPlot<'_> {
     ) -> plot::DrawResult<DB> {
         root.fill(&WHITE)?;
         let (xr, yr) = self.ranges();
-        let plot = Frame {
-            x: xr,
-            y: yr,
-            x_desc: "minor strain ε2, true %".into(),
-            y_desc: "major strain ε1, true %".into(),
-            look: Look::Diagram,
-        }
-        .draw(root)?;
+        let plot = fld::true_strain_frame(root, xr, yr)?;
         let px = |p: (f64, f64)| plot.px(p);
-        for (_, line) in fld::reference_paths(StrainMeasure::True) {
-            for run in plot.runs(&line) {
-                chart::REFERENCE.draw(root, &run)?;
-            }
-        }
         self.draw_bands(root, &px)?;
         self.draw_curve(root, &px, xr, yr)?;
         for c in Condition::ALL {

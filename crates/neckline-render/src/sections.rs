@@ -4,7 +4,6 @@
 //! bars, and the printable `sections.html` with the report's sign-off block.
 
 use crate::chart::footer::draw_footer;
-use crate::chart::frame::{Frame, Look};
 use crate::chart::legend::{Entries, Key, Legend, Row, LINES};
 use crate::chart::title::draw_title;
 use crate::chart::{self, Stroke, PANEL_LEFT, TITLE_H};
@@ -14,7 +13,6 @@ use crate::plot::{self, okabe_ito};
 use maud::html;
 use neckline_core::limit::sections::{GeometryStats, LabWords, SectionResult, LAB_CURVE_WORDS};
 use neckline_core::limit::LimitCurve;
-use neckline_core::strain::StrainMeasure;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;
@@ -295,20 +293,8 @@ impl CurvePlot<'_> {
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> plot::DrawResult<DB> {
         root.fill(&WHITE)?;
         let (xr, yr) = self.ranges();
-        let plot = Frame {
-            x: xr,
-            y: yr,
-            x_desc: "minor strain ε2, true %".into(),
-            y_desc: "major strain ε1, true %".into(),
-            look: Look::Diagram,
-        }
-        .draw(root)?;
+        let plot = fld::true_strain_frame(root, xr, yr)?;
         let px = |p: (f64, f64)| plot.px(p);
-        for (_, line) in fld::reference_paths(StrainMeasure::True) {
-            for run in plot.runs(&line) {
-                chart::REFERENCE.draw(root, &run)?;
-            }
-        }
         let pts = self.points_pct();
         if let Some(sc) = &self.curve.scatter {
             let upper: Vec<(i32, i32)> = pts

@@ -106,6 +106,29 @@ pub fn thinning_line(pct: f64, measure: StrainMeasure) -> Line {
         .collect()
 }
 
+/// The frame of a curve picture on true-strain axes (minor across, major up) with the
+/// reference strain paths drawn: where the press-shop and the laboratory curve pictures start.
+pub fn true_strain_frame<DB: plotters::prelude::DrawingBackend>(
+    root: &plotters::prelude::DrawingArea<DB, plotters::coord::Shift>,
+    x: (f64, f64),
+    y: (f64, f64),
+) -> Result<crate::chart::frame::Plot<DB>, plotters::prelude::DrawingAreaErrorKind<DB::ErrorType>> {
+    let plot = crate::chart::frame::Frame {
+        x,
+        y,
+        x_desc: "minor strain ε2, true %".into(),
+        y_desc: "major strain ε1, true %".into(),
+        look: crate::chart::frame::Look::Diagram,
+    }
+    .draw(root)?;
+    for (_, line) in reference_paths(StrainMeasure::True) {
+        for run in plot.runs(&line) {
+            crate::chart::REFERENCE.draw(root, &run)?;
+        }
+    }
+    Ok(plot)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

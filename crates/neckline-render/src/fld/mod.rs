@@ -28,7 +28,8 @@ use std::io;
 
 mod lines;
 pub use lines::{
-    band_line, curve_line, reference_paths, scatter_band, thinning_line, Line, THINNING_LINES,
+    band_line, curve_line, reference_paths, scatter_band, thinning_line, true_strain_frame, Line,
+    THINNING_LINES,
 };
 
 /// What the diagram shows.
