@@ -162,7 +162,31 @@ pub struct Template {
     supported: Option<(f64, f64)>,
     density_level: u32,
     map_level: u32,
+    spread_level: u32,
     complete: bool,
+    room: Room,
+}
+
+/// How much of what a merge keeps is still open in the summary a part will be merged into: a
+/// part keeps no more than that, so that it copies no location the merge would drop.
+#[derive(Debug, Clone, Copy, PartialEq)]
+struct Room {
+    /// At-risk locations still to be kept (past [`KEEP_ALL`]).
+    kept: usize,
+    /// Observed necked or split locations still to be kept.
+    observed: usize,
+    /// The worst list's last key once the list is full: a later location must rank before it.
+    worst_bar: Option<(u8, f64)>,
+}
+
+impl Default for Room {
+    fn default() -> Self {
+        Room {
+            kept: AT_RISK_KEPT,
+            observed: AT_RISK_KEPT,
+            worst_bar: None,
+        }
+    }
 }
 
 impl Template {
@@ -172,6 +196,8 @@ impl Template {
         s.supported = self.supported;
         s.density.level = self.density_level;
         s.map.level = self.map_level;
+        s.spread.level = self.spread_level;
+        s.room = self.room;
         // Past the size where every location is kept, the parts keep only what a merge keeps.
         s.complete = self.complete;
         s
@@ -242,6 +268,8 @@ pub struct Summary {
     pub spread: Bins<Worst>,
     /// Locations judged on the curve outside its supported range.
     pub unsupported: Capped<String>,
+    /// What this summary may still keep (less than the defaults in a part of a file).
+    room: Room,
 }
 
 impl Summary {
@@ -277,6 +305,7 @@ impl Summary {
             supported: None,
             spread: spread::new_spread(),
             unsupported: Capped::default(),
+            room: Room::default(),
         }
     }
 
@@ -292,7 +321,18 @@ impl Summary {
             supported: self.supported,
             density_level: self.density.level,
             map_level: self.map.level,
+            spread_level: self.spread.level,
             complete: self.complete,
+            room: Room {
+                kept: if self.complete {
+                    AT_RISK_KEPT
+                } else {
+                    AT_RISK_KEPT.saturating_sub(self.kept.len())
+                },
+                observed: AT_RISK_KEPT.saturating_sub(self.observed_failed.len()),
+                worst_bar: (self.worst.len() == WORST_KEPT)
+                    .then(|| worst_key(&self.worst[WORST_KEPT - 1])),
+            },
         }
     }
 
@@ -306,7 +346,7 @@ impl Summary {
     pub fn fold_ref(&mut self, p: &PointResult) {
         self.count_in(p);
         if p.input.condition.is_some_and(|c| c.failed())
-            && self.observed_failed.len() < AT_RISK_KEPT
+            && self.observed_failed.len() < self.room.observed
         {
             self.observed_failed.push(p.clone());
         }
@@ -365,13 +405,18 @@ impl Summary {
         }
         if at_risk(p) {
             let k = worst_key(p);
-            let rank = Rank(k.0, k.1, p.input.line, p.input.id.clone());
-            self.spread.add(x, y, |c| c.offer(rank, p));
+            self.spread
+                .add_in_table(x, y, |c| c.offer((k.0, k.1, p.input.line, &p.input.id), p));
         }
     }
 
     fn offer_worst(&mut self, p: &PointResult) {
         let k = worst_key(p);
+        let ranks_before =
+            |bar: (u8, f64)| k.0 < bar.0 || (k.0 == bar.0 && k.1.total_cmp(&bar.1).is_lt());
+        if self.room.worst_bar.is_some_and(|bar| !ranks_before(bar)) {
+            return;
+        }
         if self.worst.len() == WORST_KEPT {
             let last = worst_key(&self.worst[WORST_KEPT - 1]);
             if k.0 > last.0 || (k.0 == last.0 && k.1.total_cmp(&last.1).is_ge()) {
@@ -399,7 +444,7 @@ impl Summary {
             self.kept.retain(at_risk);
             self.kept.truncate(AT_RISK_KEPT);
         }
-        if at_risk(p) && self.kept.len() < AT_RISK_KEPT {
+        if at_risk(p) && self.kept.len() < self.room.kept {
             self.kept.push(p.clone());
         }
     }

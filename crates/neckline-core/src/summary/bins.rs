@@ -86,15 +86,42 @@ impl<C: Cell> Bins<C> {
         }
     }
 
+    /// Add to the cell at `(x, y)` in the table itself, not through the pending cell: for cells
+    /// whose value is costly to make and absorb, when neighbours seldom share a cell.
+    pub fn add_in_table(&mut self, x: f64, y: f64, f: impl FnOnce(&mut C)) {
+        if !(x.is_finite() && y.is_finite()) {
+            return;
+        }
+        self.flush();
+        let key = self.key(x, y);
+        f(self.cells.entry(key).or_default());
+        if self.cells.len() > self.cap {
+            self.coarsen();
+        }
+    }
+
     /// Double the cell size, merging each 2×2 block of cells.
     pub fn coarsen(&mut self) {
+        self.coarsen_by(1);
+    }
+
+    /// Double the cell size `steps` times in one pass over the cells (each block of
+    /// 2^steps × 2^steps cells merged; the same cells as that many [`Bins::coarsen`] calls).
+    fn coarsen_by(&mut self, steps: u32) {
         if let Some((k, c)) = self.pending.take() {
             self.cells.entry(k).or_default().absorb(&c);
         }
-        self.level += 1;
+        if steps == 0 {
+            return;
+        }
+        self.level += steps;
+        let shift = steps.min(63);
         let old = std::mem::take(&mut self.cells);
         for ((i, j), c) in old {
-            self.cells.entry((i >> 1, j >> 1)).or_default().absorb(&c);
+            self.cells
+                .entry((i >> shift, j >> shift))
+                .or_default()
+                .absorb(&c);
         }
     }
 
@@ -109,14 +136,16 @@ impl<C: Cell> Bins<C> {
     pub fn merge(&mut self, mut other: Bins<C>) {
         self.flush();
         other.flush();
-        while self.level < other.level {
-            self.coarsen();
+        if self.level < other.level {
+            self.coarsen_by(other.level - self.level);
         }
-        while other.level < self.level {
-            other.coarsen();
-        }
-        for (k, c) in other.cells {
-            self.cells.entry(k).or_default().absorb(&c);
+        // The other's cells are taken in at this size directly, not coarsened first.
+        let shift = (self.level - other.level).min(63);
+        for ((i, j), c) in other.cells {
+            self.cells
+                .entry((i >> shift, j >> shift))
+                .or_default()
+                .absorb(&c);
         }
         while self.cells.len() > self.cap {
             self.coarsen();

@@ -19,13 +19,20 @@ pub const SPREAD_PER_CELL: usize = 8;
 #[derive(Debug, Clone, PartialEq)]
 pub struct Rank(pub u8, pub f64, pub u64, pub String);
 
+/// A rank by reference: (worst-list rank and key, file line, id).
+pub type RankRef<'a> = (u8, f64, u64, &'a str);
+
 impl Rank {
     fn cmp(&self, o: &Rank) -> Ordering {
+        self.cmp_ref((o.0, o.1, o.2, &o.3))
+    }
+
+    fn cmp_ref(&self, o: RankRef<'_>) -> Ordering {
         self.0
             .cmp(&o.0)
             .then(self.1.total_cmp(&o.1))
             .then(self.2.cmp(&o.2))
-            .then(self.3.cmp(&o.3))
+            .then(self.3.as_str().cmp(o.3))
     }
 }
 
@@ -34,13 +41,15 @@ impl Rank {
 pub struct Worst(pub Vec<(Rank, PointResult)>);
 
 impl Worst {
-    /// Offer a location; kept when among the [`SPREAD_PER_CELL`] worst.
-    pub fn offer(&mut self, r: Rank, p: &PointResult) {
-        if self.0.len() == SPREAD_PER_CELL && self.0.last().is_some_and(|l| r.cmp(&l.0).is_ge()) {
+    /// Offer a location; kept (copied) only when among the [`SPREAD_PER_CELL`] worst.
+    pub fn offer(&mut self, r: RankRef<'_>, p: &PointResult) {
+        if self.0.len() == SPREAD_PER_CELL && self.0.last().is_some_and(|l| l.0.cmp_ref(r).is_le())
+        {
             return;
         }
-        let at = self.0.partition_point(|(q, _)| q.cmp(&r).is_lt());
-        self.0.insert(at, (r, p.clone()));
+        let at = self.0.partition_point(|(q, _)| q.cmp_ref(r).is_lt());
+        self.0
+            .insert(at, (Rank(r.0, r.1, r.2, r.3.to_string()), p.clone()));
         self.0.truncate(SPREAD_PER_CELL);
     }
 }
@@ -48,7 +57,7 @@ impl Worst {
 impl Cell for Worst {
     fn absorb(&mut self, other: &Self) {
         for (r, p) in &other.0 {
-            self.offer(r.clone(), p);
+            self.offer((r.0, r.1, r.2, &r.3), p);
         }
     }
 }
