@@ -248,7 +248,13 @@ fn judge_chunk(
                 return Err(err.shift_line(chunk.first_line - 1));
             }
             // A blank spreadsheet row carries nothing to drop.
-            Ok(true) if record.iter().all(|f| f.trim().is_empty()) => continue,
+            Ok(true)
+                if record
+                    .iter()
+                    .all(|f| crate::measure::trim_cell(f).is_empty()) =>
+            {
+                continue
+            }
             Ok(true) => {}
         }
         let line = chunk.first_line + record.position().map_or(1, |p| p.line()) - 1;

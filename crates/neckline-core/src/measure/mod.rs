@@ -46,7 +46,7 @@ mod screen;
 
 pub use column_map::{check_name, ColumnMap};
 pub use columns::{Columns, GRID_COLUMNS, NAMES, PATH_COLUMNS, PATH_READING_COLUMNS};
-pub(crate) use dialect::{csv_error, read_header_line};
+pub(crate) use dialect::{csv_error, read_header_line, trim_cell};
 pub use dialect::{csv_reader, parse_number, Dialect};
 pub use header::Header;
 pub use preamble::{parse_valid, UnitRow, PREAMBLE_LINES};

@@ -202,7 +202,7 @@ pub(super) fn unit_row(
     }
     let mut words = Vec::new();
     for (c, q) in columns.quantities() {
-        let cell = record.get(c).unwrap_or("").trim();
+        let cell = super::dialect::trim_cell(record.get(c).unwrap_or(""));
         if cell.is_empty() {
             continue;
         }
@@ -280,7 +280,11 @@ pub(super) fn not_measured(columns: &Columns, record: &csv::StringRecord) -> boo
     {
         return false;
     }
-    let empty = |c: usize| record.get(c).is_none_or(|f| f.trim().is_empty());
+    let empty = |c: usize| {
+        record
+            .get(c)
+            .is_none_or(|f| super::dialect::trim_cell(f).is_empty())
+    };
     if columns.reading_fields().into_iter().all(empty) {
         return true;
     }

@@ -2,7 +2,7 @@
 
 use super::columns::{Columns, Kind};
 use super::rules::{RowRules, SwapLog, MAX_LENGTH};
-use super::{parse_number, Condition, Dialect, Measurement, Reading, RejectedRow};
+use super::{parse_number, trim_cell, Condition, Dialect, Measurement, Reading, RejectedRow};
 use crate::error::Location;
 use crate::strain::TrueStrain;
 use std::path::Path;
@@ -37,13 +37,13 @@ impl RowReader<'_> {
     }
 
     pub(super) fn text(&self, col: usize) -> Option<String> {
-        let v = self.record.get(col)?.trim();
+        let v = trim_cell(self.record.get(col)?);
         (!v.is_empty()).then(|| v.to_string())
     }
 
     pub(super) fn number(&self, col: usize) -> std::result::Result<f64, RejectedRow> {
         let raw = self.record.get(col).unwrap_or("");
-        if raw.trim().is_empty() {
+        if trim_cell(raw).is_empty() {
             return Err(self.reject(col, "expected a number, found an empty field".into()));
         }
         parse_number(raw, self.dialect).map_err(|e| self.reject(col, e))
@@ -51,7 +51,7 @@ impl RowReader<'_> {
 
     fn optional(&self, col: Option<usize>) -> std::result::Result<Option<f64>, RejectedRow> {
         match col {
-            Some(c) if !self.record.get(c).unwrap_or("").trim().is_empty() => {
+            Some(c) if !trim_cell(self.record.get(c).unwrap_or("")).is_empty() => {
                 let v = self.number(c)?;
                 if v.abs() > MAX_LENGTH {
                     return Err(self.reject(
@@ -124,7 +124,7 @@ impl RowReader<'_> {
             && self
                 .record
                 .get(len - 1)
-                .is_some_and(|f| f.trim().is_empty())
+                .is_some_and(|f| trim_cell(f).is_empty())
         {
             len -= 1;
         }

@@ -102,10 +102,22 @@ pub fn push_fixed_bytes(buf: &mut Vec<u8>, v: f64, decimals: usize) {
 /// rounded integer `round(v · 10^decimals)`, the decimal point put in on the way.
 fn fixed(out: &mut [u8; 32], v: f64, decimals: usize) -> Option<&[u8]> {
     const SCALE: [f64; 10] = [1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9];
-    let scaled = (v * *SCALE.get(decimals)?).round_ties_even();
-    if scaled.is_nan() || scaled.abs() >= 9.0e15 {
+    // 2^52: from here on every double is an integer.
+    const TWO_52: f64 = 4_503_599_627_370_496.0;
+    let scaled = v * *SCALE.get(decimals)?;
+    let magnitude = scaled.abs();
+    if magnitude.is_nan() || magnitude >= 9.0e15 {
         return None;
     }
+    // Round half to even without a call into libm: below 2^52, adding 2^52 leaves no bits for
+    // a fraction, so the sum is rounded to an integer by the IEEE 754 default rounding (to
+    // nearest, ties to even) and subtracting 2^52 again is exact: the same as
+    // `f64::round_ties_even` (checked against it in the tests).
+    let rounded = if magnitude < TWO_52 {
+        (magnitude + TWO_52) - TWO_52
+    } else {
+        magnitude
+    };
     const PAIRS: [u8; 200] = {
         let mut t = [0u8; 200];
         let mut k = 0;
@@ -116,8 +128,8 @@ fn fixed(out: &mut [u8; 32], v: f64, decimals: usize) -> Option<&[u8]> {
         }
         t
     };
-    let negative = scaled < 0.0;
-    let mut n = scaled.abs() as u64;
+    let mut n = rounded as u64;
+    let negative = scaled < 0.0 && n != 0;
     let mut i = out.len();
     let mut left = decimals;
     // Two digits a step, then the last odd one; the point goes in after `decimals` digits.
@@ -524,6 +536,44 @@ mod tests {
             let (x, y): (f64, f64) = (b.parse().unwrap(), expected.parse().unwrap());
             proptest::prop_assert!((x - y).abs() <= 1.01 * 10f64.powi(-(d as i32)), "{b} vs {expected}");
         }
+    }
+
+    #[test]
+    fn rounds_half_to_even_like_the_standard_library() {
+        // Reference: `f64::round_ties_even` (IEEE 754 roundTiesToEven). Multiples of 1/2, 1/8
+        // and 1/16 are exact ties at 0, 2 and 3 decimals, where the two roundings differ most.
+        for k in -20_000i32..20_000 {
+            let k = f64::from(k);
+            for (v, d) in [(k / 2.0, 0), (k / 8.0, 2), (k / 16.0, 3), (k * 0.001_37, 3)] {
+                let mut b = String::new();
+                push_fixed(&mut b, v, d);
+                let digits: i64 = b.replace('.', "").parse().unwrap();
+                let expected = (v * 10f64.powi(d as i32)).round_ties_even() as i64;
+                assert_eq!(digits, expected, "{v} at {d} decimals: {b}");
+            }
+        }
+    }
+
+    #[test]
+    fn bytes_and_text_agree() {
+        let mut bytes = b"x,".to_vec();
+        let mut text = String::from("x,");
+        for v in [
+            0.0,
+            -0.0004,
+            1.5,
+            -12.345_678,
+            1e20,
+            f64::NAN,
+            9.99e15,
+            123_456.789,
+        ] {
+            super::push_fixed_bytes(&mut bytes, v, 3);
+            push_fixed(&mut text, v, 3);
+            bytes.push(b',');
+            text.push(',');
+        }
+        assert_eq!(String::from_utf8(bytes).unwrap(), text);
     }
 
     #[test]

@@ -214,7 +214,7 @@ impl Fields<'_> {
     /// Text, quoted (RFC 4180) when it holds a comma, a quote or a line break.
     fn text(&mut self, s: &str) {
         self.sep();
-        if s.contains([',', '"', '\n', '\r']) {
+        if s.bytes().any(|b| matches!(b, b',' | b'"' | b'\n' | b'\r')) {
             self.out.push(b'"');
             self.out
                 .extend_from_slice(s.replace('"', "\"\"").as_bytes());
