@@ -123,11 +123,14 @@ fn segment_distance(p: (f64, f64), a: (f64, f64), b: (f64, f64)) -> f64 {
 /// Read an outline file: columns `x, y` and an optional `ring`. A bad cell is an error naming
 /// the file, line and column and what was expected.
 pub fn read(path: &Path) -> Result<PartOutline> {
-    let t = read_table(path, "x, y (and optionally ring)")?;
-    let rings = rings_of(&t)?;
+    of_table(&read_table(path, "x, y (and optionally ring)")?)
+}
+
+/// The outline of a table already read (see [`read`]).
+pub fn of_table(t: &Table) -> Result<PartOutline> {
     Ok(PartOutline {
-        rings,
-        source: OutlineSource::File(path.to_path_buf()),
+        rings: rings_of(t)?,
+        source: OutlineSource::File(t.source.clone()),
         cell: None,
     })
 }
