@@ -9,7 +9,8 @@ neckline's column names by [columns] in job.toml). The strain field is the same 
 function of position as the hand-read tryout 1 of ../rear-floor-pan (low stretch on the bottom,
 plane strain on the walls, drawing in the corners, thickening in the flange), sampled on a
 3 mm point grid, with measuring noise of about 0.4 % strain and a few holes where the pattern
-was lost, as real exports have.
+was lost, as real exports have. It also writes outline.csv, the part's trim line (named by
+`outline` in job.toml, drawn on the map).
 """
 import math
 import random
@@ -66,6 +67,25 @@ def main():
                         f"{100 * t2:.2f}", f"{100 * thinning:.2f}"]
                 f.write(f"{rows};" + ";".join(s.replace(".", ",") for s in vals) + "\n")
     print(f"wrote field-t1.csv: {rows} points")
+    write_outline()
+
+
+TRIM = (318.0, 218.0, 25.0)  # mm: half length and half width of the trimmed flange, corner radius
+
+
+def write_outline():
+    """The part's trim line (the flange's outer edge) as one closed ring, for the map: a
+    rectangle with rounded corners 8 mm outside the outermost measured points."""
+    hx, hy, r = TRIM
+    corners = [(hx - r, hy - r, 0), (-hx + r, hy - r, 90), (-hx + r, -hy + r, 180),
+               (hx - r, -hy + r, 270)]
+    with open("outline.csv", "w") as f:
+        f.write("ring,x,y\n")
+        for cx, cy, start in corners:
+            for k in range(7):
+                a = math.radians(start + 15 * k)
+                f.write(f"trim,{cx + r * math.cos(a):.2f},{cy + r * math.sin(a):.2f}\n")
+    print("wrote outline.csv: the trim line")
 
 
 if __name__ == "__main__":

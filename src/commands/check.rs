@@ -195,6 +195,7 @@ pub fn judge_file(
         }
         a.summary = run.summary;
         a.files = input_digests(path, digest.hex(), prep);
+        prep.place_outline(&mut a);
         a.finish();
         let a = require_points(a, path, "no location could be judged", "rows")?;
         return Ok((a, file));
@@ -230,6 +231,7 @@ pub fn judge_file(
     );
     a.summary = summary;
     a.files = input_digests(path, digest.hex(), prep);
+    prep.place_outline(&mut a);
     a.finish();
     let a = require_points(a, path, "no location could be judged", "rows")?;
     Ok((a, file))
@@ -245,6 +247,9 @@ fn input_digests(path: &Path, measurements: String, prep: &Prepared) -> Vec<File
     v.extend(neckline_core::digest::of_file("curve", &prep.curve_path).ok());
     if let Some(j) = &prep.job_path {
         v.extend(neckline_core::digest::of_file("job", j).ok());
+    }
+    if let Some(o) = &prep.job.outline {
+        v.extend(neckline_core::digest::of_file("outline", o).ok());
     }
     v
 }

@@ -11,6 +11,7 @@ use neckline_core::limit::LimitCurve;
 use neckline_core::output::points_csv::{self, Layout};
 use neckline_core::point::elements::evaluate;
 use neckline_core::point::{Context, PointResult};
+use neckline_core::summary::MapPlane;
 use neckline_core::units::LengthUnit;
 use std::path::PathBuf;
 
@@ -69,6 +70,7 @@ pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>, Str
     lengths.d0 = None;
     let settings = resolve_settings(&args.judge, &job, lengths.unit)?;
     let curve = LimitCurve::load(&limit_path(&args.judge, &job)?)?;
+    let outline = super::job_outline(&job)?;
     let read = read_mesh(&args.nodes, args.elements.as_deref())?;
     let source = args.elements.clone().unwrap_or_else(|| args.nodes.clone());
     let (states, bad) = evaluate(&read.mesh, &source, args.elements.is_none());
@@ -101,6 +103,9 @@ pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>, Str
         rejected,
         &notes,
     );
+    if let Some(o) = outline.filter(|_| a.summary.view.plane == MapPlane::Xy) {
+        a.outline = Some(o);
+    }
     if job_d0 {
         a.warnings.push(
             "d0 in the job file is not used by grid: each element's blank area gives its own"

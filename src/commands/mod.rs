@@ -18,6 +18,8 @@ use neckline_core::error::{Error, Result};
 use neckline_core::job::Job;
 use neckline_core::limit::LimitCurve;
 use neckline_core::measure::ColumnMap;
+use neckline_core::part_outline::{self, PartOutline};
+use neckline_core::summary::MapPlane;
 use neckline_core::units::Lengths;
 use neckline_core::units::{Length, LengthUnit};
 use std::path::{Path, PathBuf};
@@ -152,6 +154,8 @@ pub struct Prepared {
     pub curve_path: PathBuf,
     /// The job file read, if any.
     pub job_path: Option<PathBuf>,
+    /// The part's outline read from the job's `outline` file, if it names one.
+    pub outline: Option<PartOutline>,
 }
 
 impl Prepared {
@@ -163,6 +167,7 @@ impl Prepared {
         let curve_path = limit_path(judge, &job)?;
         let curve = LimitCurve::load(&curve_path)?;
         let map = column_map(lengths, &job);
+        let outline = job_outline(&job)?;
         Ok(Prepared {
             job,
             lengths: l,
@@ -171,8 +176,24 @@ impl Prepared {
             map,
             curve_path,
             job_path: lengths.job.clone(),
+            outline,
         })
     }
+
+    /// Give `a` the job's outline (before [`Analysis::finish`], which traces one otherwise),
+    /// when the map is drawn in the x-y plane the outline file is written in.
+    pub fn place_outline(&self, a: &mut Analysis) {
+        a.outline = self
+            .outline
+            .clone()
+            .filter(|_| a.summary.view.plane == MapPlane::Xy);
+    }
+}
+
+/// The part's outline file named by the job, read before any work (so that a bad one stops
+/// the run before an output is made).
+pub fn job_outline(job: &Job) -> Result<Option<PartOutline>> {
+    job.outline.as_deref().map(part_outline::read).transpose()
 }
 
 /// Refuse an analysis in which nothing could be judged: `what` says what failed, `of` names

@@ -39,6 +39,9 @@ pub struct Analysis {
     pub files: Vec<crate::digest::FileDigest>,
     /// When the analysis was made: the generation time of every output written from it.
     pub generated: crate::output::record::RunTime,
+    /// The part's outline on the map: the job's `outline` file when set before
+    /// [`Analysis::finish`], else traced there from the summary's map cells.
+    pub outline: Option<crate::part_outline::PartOutline>,
 }
 
 /// The overall verdict of an analysis.
@@ -101,6 +104,7 @@ impl Analysis {
             warnings,
             files: Vec::new(),
             generated: crate::output::record::RunTime::now(),
+            outline: None,
         }
     }
 
@@ -130,8 +134,12 @@ impl Analysis {
     }
 
     /// Add the warnings that need the whole file (strain columns that disagree).
+    /// Trace the part's outline unless one was read from a file.
     pub fn finish(&mut self) {
         self.summary.flush();
+        if self.outline.is_none() {
+            self.outline = crate::part_outline::trace(&self.summary.map, self.summary.map_extent);
+        }
         if let (Some((lo, hi)), u) = (self.summary.supported, &self.summary.unsupported) {
             if u.total > 0 {
                 self.warnings.push(format!(

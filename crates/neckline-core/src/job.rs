@@ -16,6 +16,7 @@
 //! checked_by = "B. Example"
 //! approved_by = "C. Example"
 //! limit = "../limits/steel-0.8mm-kb.toml"
+//! outline = "outline.csv"  # the part's outline for the map: x, y (and ring) [default: traced]
 //! unit = "mm"         # or "in"
 //! d0 = 2.5            # initial circle diameter, in `unit`
 //! t0 = 0.8            # initial sheet thickness, in `unit`
@@ -76,6 +77,11 @@ pub struct Job {
     pub approved_by: Option<String>,
     /// Limit curve file, relative to the job file.
     pub limit: Option<PathBuf>,
+    /// The part's outline for the map: a CSV of `x, y` (and optionally `ring`) in part
+    /// coordinates, relative to the job file (see [`crate::part_outline`]); without it the
+    /// outline is traced from the measured locations.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub outline: Option<PathBuf>,
     /// Length unit of d0, t0 and the measurement file.
     pub unit: Option<LengthUnit>,
     /// Initial circle diameter.
@@ -207,6 +213,14 @@ impl Job {
             };
             check_limit_path(path, &text, &limit)?;
             job.limit = Some(limit);
+        }
+        if let Some(outline) = job.outline.take() {
+            let base = path.parent().unwrap_or(Path::new(""));
+            job.outline = Some(if outline.is_absolute() {
+                outline
+            } else {
+                base.join(outline)
+            });
         }
 
         Ok(job)

@@ -12,7 +12,7 @@
 //! The modules form layers: each uses only those below it. Bottom to top: [`units`],
 //! [`strain`], [`error`], [`digest`], [`capped`], [`condition`] → [`kinematics`] → [`limit`] →
 //! [`measure`] → [`assess`] → [`path`], [`grid`] → [`point`] → [`observed`], [`summary`] →
-//! [`job`], [`analysis`] → [`stream`], [`output`] → [`compare`]; [`fit`] beside [`grid`].
+//! [`part_outline`] → [`job`], [`analysis`] → [`stream`], [`output`] → [`compare`]; [`fit`] beside [`grid`].
 //!
 //! Caution: an aid to judgement. The user's own forming-limit data, local codes and licensed
 //! engineering practice govern.
@@ -37,6 +37,7 @@ pub mod limit;
 pub mod measure;
 pub mod observed;
 pub mod output;
+pub mod part_outline;
 pub mod path;
 pub mod point;
 pub mod strain;

@@ -236,6 +236,18 @@ proptest! {
     }
 
     #[test]
+    fn part_outlines_never_panic(bytes in csv_input(), ringed in any::<bool>()) {
+        let head: &[u8] = if ringed { b"ring,x,y\n" } else { b"x,y\n" };
+        for input in [&bytes[..], &[head, &bytes[..]].concat()[..]] {
+            if let Ok(t) = read_table_from(input, Path::new("p.csv"), "x, y") {
+                if let Ok(o) = neckline_core::part_outline::of_table(&t) {
+                    let _ = (o.area(), o.contains((0.0, 0.0), 1e-9));
+                }
+            }
+        }
+    }
+
+    #[test]
     fn measurements_in_memory_never_panic(bytes in measure_input()) {
         let file = Path::new("m.csv");
         if let Ok(set) = read_measurements_from(&bytes[..], file, &ColumnMap::default()) {

@@ -6,18 +6,21 @@
 //! coloured by the worst value in it, with the worst locations marked.
 
 use crate::chart::footer::draw_analysis_footer;
+use crate::chart::frame::Plot;
 use crate::chart::frame::{equal_ranges, Frame, Look};
 use crate::chart::label::{label_box, Placer};
 use crate::chart::legend::{Key, Legend, Row};
 use crate::chart::scale::ColourBar;
 use crate::chart::title::{draw_title, job_lines};
-use crate::chart::{Stroke, MAP_PANEL_LEFT as PANEL_LEFT, SIZE, TITLE_H};
+use crate::chart::{MAP_PANEL_LEFT as PANEL_LEFT, PART_EDGE, SIZE, TITLE_H};
 use crate::fld::worst_label;
 use crate::plot::{self, marker, zone_colour, zone_shape, DrawResult};
 use neckline_core::analysis::Analysis;
 use neckline_core::assess::Zone;
 use neckline_core::hotspot::HotSpot;
+use neckline_core::part_outline::{OutlineSource, PartOutline};
 use neckline_core::point::PointResult;
+use neckline_core::summary::MapPlane;
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;
@@ -251,6 +254,11 @@ fn draw<DB: DrawingBackend>(
     if let Some(e) = a.summary.map_extent {
         pts.extend([(e[0], e[1]), (e[2], e[3])]);
     }
+    let outline = part_outline(a);
+    // A drawn outline is shown whole; a traced one lies within a cell or two of the locations.
+    if let Some(o) = outline.filter(|o| o.source != OutlineSource::Traced) {
+        pts.extend(o.rings.iter().flatten());
+    }
     let (plot_w, plot_h) = Look::Map.plot_size();
     let (xr, yr) = equal_ranges(&pts, plot_w, plot_h);
     let unit = a.lengths.unit.name();
@@ -267,10 +275,8 @@ fn draw<DB: DrawingBackend>(
     let scale = Scale::of(a, value);
     let mut placer = plot.placer();
     if a.summary.complete {
-        let hull_pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
-        let outline: Vec<(i32, i32)> = plot::hull(&hull_pts).into_iter().map(px).collect();
-        if outline.len() >= 3 {
-            HULL.draw(root, &outline)?;
+        if let Some(o) = outline {
+            draw_outline(root, &plot, o)?;
         }
         let mut order = at.clone();
         order.sort_by_key(|(p, _)| std::cmp::Reverse(p.zone()));
@@ -287,6 +293,9 @@ fn draw<DB: DrawingBackend>(
             (xr.1 - xr.0).max(yr.1 - yr.0),
             plot.rect(),
         )?;
+        if let Some(o) = outline {
+            draw_outline(root, &plot, o)?;
+        }
         let plane = a.summary.view.plane;
         for p in a.worst(MARKED_IN_RASTER).into_iter().rev() {
             if let Some(xy) = plane.coords(p) {
@@ -321,8 +330,26 @@ fn draw<DB: DrawingBackend>(
     draw_analysis_footer(root, a)
 }
 
-/// The outline round the measured locations.
-const HULL: Stroke = Stroke::dashed(RGBColor(150, 150, 150), 1, 6.0, 5.0);
+/// The part's outline to draw: a file's only on the x-y plane it is written in.
+fn part_outline(a: &Analysis) -> Option<&PartOutline> {
+    let o = a.outline.as_ref()?;
+    (o.source == OutlineSource::Traced || a.summary.view.plane == MapPlane::Xy).then_some(o)
+}
+
+/// Each ring of the outline, closed, cut to the plot area.
+fn draw_outline<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    plot: &Plot<DB>,
+    o: &PartOutline,
+) -> DrawResult<DB> {
+    for ring in &o.rings {
+        let closed: Vec<(f64, f64)> = ring.iter().chain(ring.first()).copied().collect();
+        for run in plot.runs(&closed) {
+            PART_EDGE.draw(root, &run)?;
+        }
+    }
+    Ok(())
+}
 
 /// The worst locations marked on top of a raster map.
 pub const MARKED_IN_RASTER: usize = 30;
@@ -369,9 +396,11 @@ fn draw_raster<DB: DrawingBackend>(
         let (x0, y0) = bins.corner(*k);
         let (a0, b0) = px((x0, y0 + size));
         let (a1, b1) = px((x0 + size, y0));
-        // Cut to the plot area: a cell astride its edge is drawn only inside it.
+        // At least one pixel, then cut to the plot area: a cell astride its edge is drawn
+        // only inside it, a cell wholly outside not at all.
+        let (a1, b1) = (a1.max(a0 + 1), b1.max(b0 + 1));
         let (a0, b0) = (a0.max(clip.0), b0.max(clip.1));
-        let (a1, b1) = (a1.max(a0 + 1).min(clip.2), b1.max(b0 + 1).min(clip.3));
+        let (a1, b1) = (a1.min(clip.2), b1.min(clip.3));
         if a1 <= a0 || b1 <= b0 {
             continue;
         }
@@ -540,15 +569,26 @@ fn shapes_legend(a: &Analysis) -> Legend {
         small(),
         18,
     ));
-    l.push(Row::text(
-        if a.summary.complete {
-            "dashed: hull of the measured locations"
-        } else {
-            "cells: the worst value of their locations"
-        },
-        small(),
-        18,
-    ));
+    if !a.summary.complete {
+        l.push(Row::text(
+            "cells: the worst value of their locations",
+            small(),
+            18,
+        ));
+    }
+    if let Some(o) = part_outline(a) {
+        let key = Key::Line {
+            stroke: PART_EDGE,
+            len: 22,
+        };
+        let width = SIZE.0 - (PANEL_LEFT + 28) as u32 - 10;
+        l.push(
+            Row::new(18)
+                .key(key)
+                .left(o.describe(), small(), 28)
+                .fit(width),
+        );
+    }
     l
 }
 

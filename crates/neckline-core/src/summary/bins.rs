@@ -79,6 +79,8 @@ impl<C: Cell> Bins<C> {
             Some((k, c)) if *k == key => f(c),
             _ => {
                 self.flush();
+                // The flush may have coarsened the table: the key at the size now.
+                let key = self.key(x, y);
                 let mut c = C::default();
                 f(&mut c);
                 self.pending = Some((key, c));
@@ -227,4 +229,41 @@ pub fn map_margin(p: &PointResult) -> Option<f64> {
         return Some(m.unwrap_or(0.0).min(-0.01));
     }
     m
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Every location lands in the cell that holds it, even when adding it flushed the table
+    // past its cap and so doubled the cell size: the cell's square must contain the location.
+    #[test]
+    fn a_location_lands_in_its_own_cell_across_a_coarsening() {
+        let mut b: Bins<ZoneCounts> = Bins::new(1.0, 8);
+        let pts: Vec<(f64, f64)> = (0..200)
+            .map(|i| (f64::from(i % 20) * 3.0 + 0.5, f64::from(i / 20) * 3.0 + 0.5))
+            .collect();
+        for &(x, y) in &pts {
+            b.add(x, y, |c| c.0[0] += 1);
+        }
+        b.flush();
+        let size = b.size();
+        assert!(b.level > 0, "the table never coarsened");
+        let inside = |(x, y): (f64, f64)| {
+            b.cells().keys().any(|&k| {
+                let (x0, y0) = b.corner(k);
+                (x0..x0 + size).contains(&x) && (y0..y0 + size).contains(&y)
+            })
+        };
+        assert!(pts.iter().all(|&p| inside(p)));
+        // Every cell holds a location: none was put at a key of an older, smaller size.
+        for &k in b.cells().keys() {
+            let (x0, y0) = b.corner(k);
+            assert!(
+                pts.iter()
+                    .any(|&(x, y)| (x0..x0 + size).contains(&x) && (y0..y0 + size).contains(&y)),
+                "cell {k:?} holds no location"
+            );
+        }
+    }
 }

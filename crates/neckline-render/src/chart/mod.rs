@@ -105,3 +105,7 @@ pub const MAX_THINNING_INK: RGBColor = RGBColor(0x33, 0x22, 0x88);
 
 /// The maximum-thinning line: a heavy dotted line in its own colour, unlike any other line.
 pub const MAX_THINNING: Stroke = Stroke::dashed(MAX_THINNING_INK, 3, 3.0, 5.0);
+
+/// The part's outline on the map: a solid dark slate line, neither black (the curve) nor
+/// dashed (the band and the reference paths), under the locations' colours.
+pub const PART_EDGE: Stroke = Stroke::solid(RGBColor(0x44, 0x55, 0x66), 2);
