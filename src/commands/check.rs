@@ -167,7 +167,13 @@ pub fn judge_file(
         (None, false) => None,
     };
     let io_err = |e| Error::io(plan.points.as_deref().unwrap_or(Path::new("-")), e);
-    if header.columns.has("stage") {
+    let staged = header.columns.has("stage");
+    // A file of one stage is judged as one without stages (the same outputs, one pass); one
+    // with several (or a job file's stage order) is grouped through run files.
+    let one_stage = staged
+        && prep.job.stages.is_none()
+        && neckline_core::point::staged_runs::one_stage(path, &header);
+    if staged && !one_stage {
         // Several stages per location: grouped through run files, in bounded memory.
         let order = prep.job.stages.as_deref();
         let run = neckline_core::point::staged_runs::judge_staged_runs(
@@ -216,8 +222,13 @@ pub fn judge_file(
     };
     let summary = pass.run(&mut input, sink, &mut |b| progress.set(b));
     progress.finish();
-    let summary = summary?;
-    notes.extend(header.swap_note());
+    let mut summary = summary?;
+    if one_stage {
+        // As the staged path gives them: no note of swapped or disagreeing strains.
+        summary.disagree = Default::default();
+    } else {
+        notes.extend(header.swap_note());
+    }
     match out.flush() {
         Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => return Err(io_err(e)),
         _ => {}

@@ -6,14 +6,19 @@ use crate::args::{JudgeArgs, LengthArgs};
 use clap::Args;
 use neckline_core::analysis::Analysis;
 use neckline_core::error::{Error, Result};
-use neckline_core::grid::read::read_mesh;
+use neckline_core::grid::mesh::Element;
+use neckline_core::grid::read::{
+    needs_elements, read_nodes, Cells, ElementReader, UniqueIds, ELEMENTS_WHAT,
+};
 use neckline_core::limit::LimitCurve;
-use neckline_core::output::points_csv::{self, Layout};
-use neckline_core::point::elements::evaluate;
-use neckline_core::point::{Context, PointResult};
+use neckline_core::output::points_csv::Layout;
+use neckline_core::point::elements::{judge_elements, ElementJudge};
+use neckline_core::point::Context;
 use neckline_core::summary::MapPlane;
+use neckline_core::table::stream_table;
 use neckline_core::units::LengthUnit;
-use std::path::PathBuf;
+use std::io::Write;
+use std::path::{Path, PathBuf};
 
 /// Arguments of `grid`.
 #[derive(Debug, Clone, Args)]
@@ -62,25 +67,24 @@ fn length_args(args: &GridArgs) -> LengthArgs {
     }
 }
 
-/// Read the mesh, compute every element's strains and judge them; also every judged element
-/// (for points.csv) and the count of what was rejected, in words ([`rejected_counts`]).
-pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>, String)> {
+/// Read the nodes, then compute, judge and write (to `sink`, points.csv's rows with its header)
+/// the elements a batch at a time on every core, as `check` streams rows: nothing holds every
+/// element. Also the count of what was rejected, in words ([`rejected_counts`]).
+pub fn grid_analysis(
+    args: &GridArgs,
+    mut sink: Option<&mut (dyn Write + Send)>,
+) -> Result<(Analysis, String)> {
     let job = load_job(&length_args(args))?;
     let mut lengths = resolve_lengths(&length_args(args), &job)?;
     lengths.d0 = None;
     let settings = resolve_settings(&args.judge, &job, lengths.unit)?;
     let curve = LimitCurve::load(&limit_path(&args.judge, &job)?)?;
     let outline = super::job_outline(&job)?;
-    let read = read_mesh(&args.nodes, args.elements.as_deref())?;
+    let set = read_nodes(&args.nodes)?;
+    if args.elements.is_none() && !set.has_grid {
+        return Err(needs_elements(&set));
+    }
     let source = args.elements.clone().unwrap_or_else(|| args.nodes.clone());
-    let (states, bad) = evaluate(&read.mesh, &source, args.elements.is_none());
-    let counts = rejected_counts(read.node_rows.len(), read.elements.len() + bad.len());
-    let mut rejected = read.node_rows;
-    rejected.extend(read.elements);
-    rejected.extend(bad);
-    rejected.sort_by(|a, b| {
-        (&a.location.file, a.location.line).cmp(&(&b.location.file, b.location.line))
-    });
     let job_d0 = job.d0.is_some();
     let ctx = Context {
         curve,
@@ -89,20 +93,92 @@ pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>, Str
         strain_input: false,
         true_input: false,
     };
-    let notes: Vec<String> = if read.ignored.is_empty() {
+    let notes: Vec<String> = if set.ignored_columns.is_empty() {
         Vec::new()
     } else {
-        vec![format!("ignored columns: {}", read.ignored.join(", "))]
+        vec![format!(
+            "ignored columns: {}",
+            set.ignored_columns.join(", ")
+        )]
     };
-    let (mut a, all) = Analysis::of_states(
+    let mut a = Analysis::new(
         args.nodes.clone(),
         job,
-        ctx,
+        ctx.clone(),
         args.output.view(),
-        states,
-        rejected,
         &notes,
     );
+    let layout = Layout {
+        grid: true,
+        reading: ctx.settings.reading_error.is_some(),
+        unit: ctx.lengths.unit,
+        ..Layout::default()
+    };
+    let points_err = |e| Error::io(Path::new("points.csv"), e);
+    if let Some(w) = sink.as_mut() {
+        w.write_all(layout.header_line().as_bytes())
+            .map_err(points_err)?;
+    }
+    let judge = ElementJudge {
+        nodes: &set.nodes,
+        three_d: set.three_d,
+        source: &source,
+        regular_grid: args.elements.is_none(),
+        ctx: &ctx,
+        layout: &layout,
+        write: sink.is_some(),
+    };
+    // Elements rejected as read (a missing corner, a bad row), and as evaluated.
+    let (mut read_bad, mut eval_bad) = (Vec::new(), Vec::new());
+    let mut take = |elements: &[Element], a: &mut Analysis| -> Result<()> {
+        let template = a.summary.template();
+        for piece in judge_elements(&judge, elements, &template) {
+            if let Some(w) = sink.as_mut() {
+                w.write_all(&piece.text).map_err(points_err)?;
+            }
+            a.summary.merge(piece.summary);
+            eval_bad.extend(piece.rejected);
+        }
+        Ok(())
+    };
+    match &args.elements {
+        Some(path) => {
+            let stream = stream_table(path, ELEMENTS_WHAT)?;
+            let reader = ElementReader::new(&stream.table, &set)?;
+            let mut ids = UniqueIds::default();
+            stream.for_each_batch(
+                |t, line, r| reader.parse(t, line, r),
+                |t, rows| {
+                    let mut elements = Vec::with_capacity(rows.len());
+                    for row in rows {
+                        match row.and_then(|e| ids.check(t, reader.id_column(), e)) {
+                            Ok(e) => elements.push(e),
+                            Err(r) => read_bad.push(r),
+                        }
+                    }
+                    take(&elements, &mut a)
+                },
+            )?;
+        }
+        None => {
+            let mut cells = Cells::new(&set);
+            while let Some((elements, bad)) = cells.next_cells(BATCH) {
+                read_bad.extend(bad);
+                take(&elements, &mut a)?;
+            }
+        }
+    }
+    let counts = rejected_counts(set.rejected.len(), read_bad.len() + eval_bad.len());
+    let mut rejected = set.rejected;
+    rejected.extend(read_bad);
+    rejected.extend(eval_bad);
+    rejected.sort_by(|a, b| {
+        (&a.location.file, a.location.line).cmp(&(&b.location.file, b.location.line))
+    });
+    for r in rejected {
+        a.summary.rejected.push(r);
+    }
+    a.finish();
     if let Some(o) = outline.filter(|_| a.summary.view.plane == MapPlane::Xy) {
         a.outline = Some(o);
     }
@@ -123,8 +199,11 @@ pub fn grid_analysis(args: &GridArgs) -> Result<(Analysis, Vec<PointResult>, Str
             args.nodes.display()
         )));
     }
-    Ok((a, all, counts))
+    Ok((a, counts))
 }
+
+/// Elements judged between two writes of points.csv: a few MB of rows.
+const BATCH: usize = 32_768;
 
 /// "2 node rows and 3 elements rejected", each count in its own words (a grid cell is an
 /// element, not a row).
@@ -150,7 +229,19 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
     inputs.extend(args.judge.limit.clone());
     let plan = Plan::of(&args.output);
     let mut set = plan.prepare(&args.output.out, &inputs)?;
-    let (a, all, counts) = grid_analysis(args)?;
+    // points.csv is staged as it is written (moved in with the other outputs, or not at all);
+    // to standard output it is kept until the run has succeeded.
+    let mut file = match &plan.points {
+        Some(p) if !plan.points_to_stdout() => Some(set.create(p)?),
+        _ => None,
+    };
+    let mut held = Vec::new();
+    let sink: Option<&mut (dyn Write + Send)> = match (&mut file, plan.points_to_stdout()) {
+        (Some(f), _) => Some(f),
+        (None, true) => Some(&mut held),
+        (None, false) => None,
+    };
+    let (a, counts) = grid_analysis(args, sink)?;
     if args.strict && a.rejected_total() > 0 {
         return Err(Error::Usage(format!(
             "--strict: {counts}, first: {}",
@@ -164,15 +255,10 @@ pub fn run(args: &GridArgs) -> Result<Outcome> {
         a.total(),
         if three_d { "3-D formed part" } else { "2-D" }
     );
-    let layout = Layout {
-        grid: true,
-        reading: a.settings.reading_error.is_some(),
-        unit: a.lengths.unit,
-        ..Layout::default()
+    let points = match file {
+        Some(f) => Some(f),
+        None => super::outputs::points_out(&plan, &mut set, &held)?,
     };
-    let text = points_csv::table(&layout, &all);
-    drop(all);
-    let points = super::outputs::points_out(&plan, &mut set, text.as_bytes())?;
     emit(
         &a,
         &args.output,

@@ -24,6 +24,7 @@
 pub mod analysis;
 pub mod assess;
 pub mod capped;
+pub mod chunk;
 pub mod compare;
 pub mod condition;
 pub mod digest;

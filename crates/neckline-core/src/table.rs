@@ -1,12 +1,14 @@
-//! A small CSV table read whole: the reader of node, element, outline and parts files (the
+//! A CSV table, read whole or streamed in chunks ([`TableStream`]): the reader of node, element, outline and parts files (the
 //! same two dialects as measurement files, a header row, then data rows with their lines).
 //! Values are taken out of it cell by cell with the file, line and column of each in the error.
 //! Fields and rows are bounded ([`MAX_FIELDS`], [`MAX_FIELD_BYTES`]) so a mangled file is cheap
 //! to refuse.
 
+use crate::chunk::{read_batch, Chunk, Chunker};
 use crate::error::{Error, Location, Result};
 use crate::measure::{csv_error, open_input, parse_number, read_header_line, Dialect, RejectedRow};
-use std::io::BufRead;
+use rayon::prelude::*;
+use std::io::{BufRead, Read};
 use std::path::{Path, PathBuf};
 
 /// A CSV file read whole: its header and its non-blank rows with their line numbers.
@@ -31,7 +33,39 @@ pub fn read_table(path: &Path, what: &str) -> Result<Table> {
 }
 
 /// Read a CSV table from any reader; `name` is used in messages.
-pub fn read_table_from(mut input: impl BufRead, name: &Path, what: &str) -> Result<Table> {
+pub fn read_table_from(input: impl BufRead + Send, name: &Path, what: &str) -> Result<Table> {
+    let mut rows = Vec::new();
+    let mut t = stream_table_from(input, name, what)?.for_each_batch(
+        |_, line, r| (line, r.clone()),
+        |_, batch| {
+            rows.extend(batch);
+            Ok(())
+        },
+    )?;
+    t.rows = rows;
+    Ok(t)
+}
+
+/// A CSV table read as a stream: its head (header, dialect; no rows) and its body, cut into
+/// chunks at record boundaries with the file's own line numbers.
+pub struct TableStream<R: Read> {
+    /// The head of the table (its `rows` empty).
+    pub table: Table,
+    chunks: Chunker<R>,
+}
+
+/// Open `path` (`-` for standard input) as a [`TableStream`]; `what` names the expected
+/// header in the message for an empty file.
+pub fn stream_table(path: &Path, what: &str) -> Result<TableStream<impl BufRead + Send>> {
+    stream_table_from(open_input(path)?, path, what)
+}
+
+/// A [`TableStream`] of any reader; `name` is used in messages.
+pub fn stream_table_from<R: BufRead + Send>(
+    mut input: R,
+    name: &Path,
+    what: &str,
+) -> Result<TableStream<R>> {
     let loc = Location::file(name);
     let head = input.fill_buf().map_err(|e| Error::io(name, e))?;
     crate::error::check_text(name, head, false)?;
@@ -44,44 +78,73 @@ pub fn read_table_from(mut input: impl BufRead, name: &Path, what: &str) -> Resu
     }
     let dialect = Dialect::detect(&header_line);
     let header_line_no = prefix.trim_end_matches(['\n', '\r']).matches('\n').count() as u64 + 1;
-    let mut bytes = prefix.into_bytes();
-    input
-        .read_to_end(&mut bytes)
-        .map_err(|e| Error::io(name, e))?;
-    let lines = LineIndex::new(&bytes);
-    let mut reader = csv::ReaderBuilder::new()
-        .delimiter(dialect.delimiter())
-        .flexible(true)
-        .trim(csv::Trim::All)
-        .from_reader(&bytes[..]);
+    let mut reader = csv_builder(dialect).from_reader(prefix.as_bytes());
     let header_record = reader.headers().map_err(|e| csv_error(&loc, e))?;
-    check_record_size(header_record, &loc)?;
+    check_record_size(header_record, &loc, 0)?;
     let header = header_record
         .iter()
         .map(|h| h.trim().trim_start_matches('\u{feff}').to_string())
         .collect();
-    let mut rows = Vec::new();
-    for record in reader.records() {
-        let record = record.map_err(|e| csv_error(&loc, e))?;
-        check_record_size(&record, &loc)?;
-        if record.iter().all(|f| f.trim().is_empty()) {
-            continue;
-        }
-        let line = record
-            .position()
-            .map_or(0, |p| lines.line_at(&bytes, p.byte()));
-        rows.push((line, record));
-    }
-    if rows.is_empty() {
-        return Err(Error::input(loc, "the file has a header but no data rows"));
-    }
-    Ok(Table {
-        source: name.to_path_buf(),
-        dialect,
-        header,
-        header_line: header_line_no,
-        rows,
+    let body_line = prefix.matches('\n').count() as u64 + 1;
+    Ok(TableStream {
+        table: Table {
+            source: name.to_path_buf(),
+            dialect,
+            header,
+            header_line: header_line_no,
+            rows: Vec::new(),
+        },
+        chunks: Chunker::new(input, body_line, dialect.delimiter()),
     })
+}
+
+fn csv_builder(dialect: Dialect) -> csv::ReaderBuilder {
+    let mut b = csv::ReaderBuilder::new();
+    b.delimiter(dialect.delimiter())
+        .flexible(true)
+        .trim(csv::Trim::All);
+    b
+}
+
+impl<R: Read + Send> TableStream<R> {
+    /// Every non-blank row, a batch of chunks at a time: `parse` turns each row (with its
+    /// line) into an item on every core, `take` is given each batch's items in file order.
+    /// A table with no data row is refused after its last chunk. Gives back the table's head.
+    pub fn for_each_batch<T: Send>(
+        mut self,
+        parse: impl Fn(&Table, u64, &csv::StringRecord) -> T + Sync,
+        mut take: impl FnMut(&Table, Vec<T>) -> Result<()>,
+    ) -> Result<Table> {
+        let batch = 2 * rayon::current_num_threads().max(1);
+        let mut any = false;
+        loop {
+            let chunks = read_batch(&mut self.chunks, batch, &self.table.source)?;
+            if chunks.is_empty() {
+                break;
+            }
+            let t = &self.table;
+            let parsed: Vec<Result<Vec<T>>> = chunks
+                .par_iter()
+                .map(|c| {
+                    let rows = t.chunk_rows(c)?;
+                    Ok(rows.iter().map(|(line, r)| parse(t, *line, r)).collect())
+                })
+                .collect();
+            let mut items = Vec::new();
+            for p in parsed {
+                items.extend(p?);
+            }
+            any |= !items.is_empty();
+            take(t, items)?;
+        }
+        if !any {
+            return Err(Error::input(
+                Location::file(&self.table.source),
+                "the file has a header but no data rows",
+            ));
+        }
+        Ok(self.table)
+    }
 }
 
 /// Where each line ends, so that a record's 1-based line comes from its byte offset: the csv
@@ -120,8 +183,8 @@ pub const MAX_FIELD_BYTES: usize = 4096;
 
 /// Refuse the file at a row with more than [`MAX_FIELDS`] fields or a field longer than
 /// [`MAX_FIELD_BYTES`].
-fn check_record_size(r: &csv::StringRecord, loc: &Location) -> Result<()> {
-    let line = r.position().map_or(0, |p| p.line());
+fn check_record_size(r: &csv::StringRecord, loc: &Location, shift: u64) -> Result<()> {
+    let line = r.position().map_or(0, |p| p.line() + shift);
     if r.len() > MAX_FIELDS {
         return Err(Error::input(
             loc.clone().at_line(line),
@@ -151,6 +214,29 @@ fn check_record_size(r: &csv::StringRecord, loc: &Location) -> Result<()> {
 }
 
 impl Table {
+    /// The non-blank rows of one chunk of this table's body, with their lines in the file.
+    pub fn chunk_rows(&self, chunk: &Chunk) -> Result<Vec<(u64, csv::StringRecord)>> {
+        let loc = Location::file(&self.source);
+        let shift = chunk.first_line - 1;
+        let lines = LineIndex::new(&chunk.bytes);
+        let mut reader = csv_builder(self.dialect)
+            .has_headers(false)
+            .from_reader(&chunk.bytes[..]);
+        let mut rows = Vec::new();
+        for record in reader.records() {
+            let record = record.map_err(|e| csv_error(&loc, e).shift_line(shift))?;
+            check_record_size(&record, &loc, shift)?;
+            if record.iter().all(|f| f.trim().is_empty()) {
+                continue;
+            }
+            let line = record
+                .position()
+                .map_or(0, |p| lines.line_at(&chunk.bytes, p.byte()) + shift);
+            rows.push((line, record));
+        }
+        Ok(rows)
+    }
+
     /// A rejected row at `line`, column `col` (0-based) of this table.
     pub fn reject(
         &self,

@@ -159,7 +159,7 @@ proptest! {
                 elements.push(Element { id: format!("t{i}"), line: 0, nodes: vec![i, i + 1, i + n] });
             }
         }
-        let mesh = Mesh { nodes, elements, three_d: true };
+        let mesh = Mesh { nodes: nodes.into_iter().collect(), elements, three_d: true };
         let svd = f.svd(false, false).singular_values;
         for e in &mesh.elements {
             let k = mesh.evaluate(e).unwrap().kinematics;

@@ -135,11 +135,190 @@ pub struct Element {
     pub nodes: Vec<usize>,
 }
 
+/// The nodes of a grid as columns: positions in the blank and on the part, lines, and the
+/// keys of a file with an `id` column stored end to end with a hash index (a regular grid's
+/// nodes are found by their place, [`super::read::Places`], and store no key). About 48 bytes
+/// a node on a flat part (56 on a curved one), plus the key and 16 bytes of index when keyed.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Nodes {
+    reference: Vec<[f64; 2]>,
+    deformed: Vec<[f64; 2]>,
+    /// Heights on the formed part; empty while every height read is +0 (`has_z` false).
+    z: Vec<f64>,
+    has_z: bool,
+    lines: Vec<u64>,
+    keys: Keys,
+}
+
+/// Node keys end to end, and an index from a key's hash to its node.
+#[derive(Debug, Clone, Default, PartialEq)]
+struct Keys {
+    text: String,
+    ends: Vec<usize>,
+    by_hash: std::collections::HashMap<u64, u32>,
+    /// Nodes whose key shares its hash with an earlier one (searched one by one).
+    collided: Vec<u32>,
+}
+
+fn key_hash(key: &str) -> u64 {
+    use std::hash::{Hash, Hasher};
+    let mut h = std::hash::DefaultHasher::new();
+    key.hash(&mut h);
+    h.finish()
+}
+
+impl Nodes {
+    /// Number of nodes.
+    pub fn len(&self) -> usize {
+        self.lines.len()
+    }
+
+    /// Whether there is none.
+    pub fn is_empty(&self) -> bool {
+        self.lines.is_empty()
+    }
+
+    /// Add a node, its key kept (and indexed) when `keyed`; its index.
+    pub fn push(&mut self, node: &Node, keyed: bool) -> usize {
+        let i = self.len();
+        self.reference.push([node.reference.x, node.reference.y]);
+        self.deformed.push([node.deformed.x, node.deformed.y]);
+        if node.deformed.z.to_bits() != 0 && !self.has_z {
+            self.z.resize(i, 0.0);
+            self.has_z = true;
+        }
+        if self.has_z {
+            self.z.push(node.deformed.z);
+        }
+        self.lines.push(node.line);
+        if keyed {
+            let k = &mut self.keys;
+            k.text.push_str(&node.key);
+            k.ends.push(k.text.len());
+            let slot = k.ends.len() as u32 - 1;
+            match k.by_hash.entry(key_hash(&node.key)) {
+                std::collections::hash_map::Entry::Vacant(v) => {
+                    v.insert(slot);
+                }
+                // The first node with that hash stays in the index, a later one aside.
+                std::collections::hash_map::Entry::Occupied(_) => k.collided.push(slot),
+            }
+        }
+        i
+    }
+
+    fn key_of_slot(&self, s: u32) -> &str {
+        let k = &self.keys;
+        let start = if s == 0 { 0 } else { k.ends[s as usize - 1] };
+        &k.text[start..k.ends[s as usize]]
+    }
+
+    /// The key of node `i`, when nodes are keyed.
+    pub fn key(&self, i: usize) -> Option<&str> {
+        (i < self.keys.ends.len()).then(|| self.key_of_slot(i as u32))
+    }
+
+    /// The node with `key` (keyed nodes only).
+    pub fn find(&self, key: &str) -> Option<usize> {
+        let k = &self.keys;
+        let first = *k.by_hash.get(&key_hash(key))?;
+        if self.key_of_slot(first) == key {
+            return Some(first as usize);
+        }
+        k.collided
+            .iter()
+            .find(|&&s| self.key_of_slot(s) == key)
+            .map(|&s| s as usize)
+    }
+
+    /// Position of node `i` in the flat blank `(X, Y)`.
+    pub fn reference(&self, i: usize) -> Vector2<f64> {
+        Vector2::from(self.reference[i])
+    }
+
+    /// Position of node `i` on the formed part `(x, y, z)`.
+    pub fn deformed(&self, i: usize) -> Vector3<f64> {
+        let [x, y] = self.deformed[i];
+        Vector3::new(x, y, self.z.get(i).copied().unwrap_or(0.0))
+    }
+
+    /// The 1-based line of node `i` in the nodes file.
+    pub fn line(&self, i: usize) -> u64 {
+        self.lines[i]
+    }
+
+    /// Keep the nodes whose `keep` is true (unkeyed nodes only); the new index of each kept.
+    pub fn retain(&mut self, keep: &[bool]) -> Vec<Option<usize>> {
+        debug_assert!(self.keys.ends.is_empty());
+        let mut to = Vec::with_capacity(keep.len());
+        let mut n = 0;
+        for (i, &k) in keep.iter().enumerate() {
+            to.push(k.then_some(n));
+            if k {
+                self.reference[n] = self.reference[i];
+                self.deformed[n] = self.deformed[i];
+                self.lines[n] = self.lines[i];
+                if self.has_z {
+                    self.z[n] = self.z[i];
+                }
+                n += 1;
+            }
+        }
+        self.reference.truncate(n);
+        self.deformed.truncate(n);
+        self.lines.truncate(n);
+        if self.has_z {
+            self.z.truncate(n);
+        }
+        to
+    }
+
+    /// Evaluate one element: its gradient, kinematics and centres (`three_d`: the part is
+    /// curved, its heights used).
+    pub fn evaluate(&self, e: &Element, three_d: bool) -> Result<ElementResult, Degenerate> {
+        let reference: Vec<Vector2<f64>> = e.nodes.iter().map(|&i| self.reference(i)).collect();
+        let deformed: Vec<Vector3<f64>> = e.nodes.iter().map(|&i| self.deformed(i)).collect();
+        let kinematics = match (e.nodes.len(), three_d) {
+            (3, false) => ElementKinematics::from_2d(super::deformation::triangle_gradient_2d(
+                &arr(&reference),
+                &arr(&xy(&deformed)),
+            )?)?,
+            (3, true) => ElementKinematics::from_3d(super::deformation::triangle_gradient_3d(
+                &arr(&reference),
+                &arr(&deformed),
+            )?)?,
+            (_, false) => ElementKinematics::from_2d(quad_gradient_2d(
+                &arr(&reference),
+                &arr(&xy(&deformed)),
+            )?)?,
+            (_, true) => {
+                ElementKinematics::from_3d(quad_gradient_3d(&arr(&reference), &arr(&deformed))?)?
+            }
+        };
+        Ok(ElementResult {
+            kinematics,
+            centre: mean(&deformed),
+            reference_centre: mean(&reference),
+            reference_area: polygon_area(&reference),
+        })
+    }
+}
+
+impl FromIterator<Node> for Nodes {
+    fn from_iter<I: IntoIterator<Item = Node>>(iter: I) -> Self {
+        let mut nodes = Nodes::default();
+        for n in iter {
+            nodes.push(&n, true);
+        }
+        nodes
+    }
+}
+
 /// Nodes and elements, 2-D or 3-D.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Mesh {
     /// All accepted nodes.
-    pub nodes: Vec<Node>,
+    pub nodes: Nodes,
     /// The elements to evaluate.
     pub elements: Vec<Element>,
     /// Whether the deformed positions have a `z` (curved part).
@@ -184,32 +363,7 @@ fn polygon_area(p: &[Vector2<f64>]) -> f64 {
 impl Mesh {
     /// Evaluate one element: its gradient, kinematics and centres.
     pub fn evaluate(&self, e: &Element) -> Result<ElementResult, Degenerate> {
-        let nodes: Vec<&Node> = e.nodes.iter().map(|&i| &self.nodes[i]).collect();
-        let reference: Vec<Vector2<f64>> = nodes.iter().map(|n| n.reference).collect();
-        let deformed: Vec<Vector3<f64>> = nodes.iter().map(|n| n.deformed).collect();
-        let kinematics = match (nodes.len(), self.three_d) {
-            (3, false) => ElementKinematics::from_2d(super::deformation::triangle_gradient_2d(
-                &arr(&reference),
-                &arr(&xy(&deformed)),
-            )?)?,
-            (3, true) => ElementKinematics::from_3d(super::deformation::triangle_gradient_3d(
-                &arr(&reference),
-                &arr(&deformed),
-            )?)?,
-            (_, false) => ElementKinematics::from_2d(quad_gradient_2d(
-                &arr(&reference),
-                &arr(&xy(&deformed)),
-            )?)?,
-            (_, true) => {
-                ElementKinematics::from_3d(quad_gradient_3d(&arr(&reference), &arr(&deformed))?)?
-            }
-        };
-        Ok(ElementResult {
-            kinematics,
-            centre: mean(&deformed),
-            reference_centre: mean(&reference),
-            reference_area: polygon_area(&reference),
-        })
+        self.nodes.evaluate(e, self.three_d)
     }
 }
 

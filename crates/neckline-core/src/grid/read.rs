@@ -13,11 +13,15 @@
 //! A bad row (wrong field count, a value that is not a finite number, an unknown or repeated
 //! key) is rejected with its file, line and column, never dropped in silence; a grid cell or
 //! element that needs a rejected or missing node is rejected with that reason.
+//!
+//! Both files are read in chunks on every core ([`crate::table::TableStream`]); the nodes are
+//! kept as columns ([`Nodes`]), a regular grid's places as a sorted list ([`Places`]), and the
+//! elements are handed on a batch at a time ([`Cells`], [`ElementReader`]), never all held.
 
-use super::mesh::{Element, Mesh, Node};
+use super::mesh::{Element, Node, Nodes};
 use crate::error::{Error, Location, Result};
 use crate::measure::RejectedRow;
-use crate::table::{read_table, Table};
+use crate::table::{stream_table, Table};
 use nalgebra::{Vector2, Vector3};
 use std::collections::{BTreeMap, HashMap};
 use std::path::{Path, PathBuf};
@@ -60,9 +64,9 @@ pub struct NodeSet {
     /// The file as named.
     pub source: PathBuf,
     /// Accepted nodes in file order.
-    pub nodes: Vec<Node>,
+    pub nodes: Nodes,
     /// `(row, col)` → index into `nodes`, when the file has `row, col`.
-    pub grid: BTreeMap<(i64, i64), usize>,
+    pub grid: Places,
     /// Whether the file has `row, col` columns.
     pub has_grid: bool,
     /// Whether the file has an `id` column.
@@ -77,6 +81,58 @@ pub struct NodeSet {
     pub rejected_places: BTreeMap<(i64, i64), u64>,
     /// Header columns not recognised (ignored).
     pub ignored_columns: Vec<String>,
+}
+
+/// The places `(row, col)` of a regular grid's nodes, sorted, each with its node (20 bytes a
+/// node; found by bisection).
+#[derive(Debug, Clone, Default)]
+pub struct Places {
+    at: Vec<(i64, i64)>,
+    node: Vec<u32>,
+}
+
+impl Places {
+    /// The node at place `p`.
+    pub fn get(&self, p: &(i64, i64)) -> Option<usize> {
+        self.at.binary_search(p).ok().map(|k| self.node[k] as usize)
+    }
+
+    /// Whether a node is at `p`.
+    pub fn contains_key(&self, p: &(i64, i64)) -> bool {
+        self.at.binary_search(p).is_ok()
+    }
+
+    /// Number of places.
+    pub fn len(&self) -> usize {
+        self.at.len()
+    }
+
+    /// Whether there is none.
+    pub fn is_empty(&self) -> bool {
+        self.at.is_empty()
+    }
+
+    /// The places on grid row `row`, in column order.
+    fn row(&self, row: i64) -> &[(i64, i64)] {
+        let a = self.at.partition_point(|p| p.0 < row);
+        let b = self.at.partition_point(|p| p.0 <= row);
+        &self.at[a..b]
+    }
+}
+
+impl NodeSet {
+    /// The node with key `key`: its `id`, or `r{row}c{col}` in a file with only `row, col`.
+    pub fn find(&self, key: &str) -> Option<usize> {
+        if self.has_id {
+            return self.nodes.find(key);
+        }
+        let (r, c) = key.strip_prefix('r')?.split_once('c')?;
+        let p = (r.parse::<i64>().ok()?, c.parse::<i64>().ok()?);
+        // Only the key as the file's place writes it (`r01c2` is not `r1c2`).
+        (format!("r{}c{}", p.0, p.1) == key)
+            .then(|| self.grid.get(&p))
+            .flatten()
+    }
 }
 
 /// Largest grid row or column number (a grid of a billion rows is not a circle grid; the bound
@@ -110,109 +166,143 @@ fn integer(
     }
 }
 
-/// Read a nodes file (see the module notes).
+/// Read a nodes file (see the module notes), in chunks on every core.
 pub fn read_nodes(path: &Path) -> Result<NodeSet> {
-    nodes_from_table(read_table(path, "row, col (or id), X, Y, x, y[, z]")?)
+    let stream = stream_table(path, NODES_WHAT)?;
+    let reader = NodeReader::new(&stream.table)?;
+    let mut set = reader.empty_set(&stream.table);
+    let mut places = Vec::new();
+    let t = stream.for_each_batch(
+        |t, line, r| reader.parse(t, line, r),
+        |t, rows| {
+            for row in rows {
+                reader.take(t, row, &mut set, &mut places);
+            }
+            Ok(())
+        },
+    )?;
+    reader.finish(&t, &mut set, places);
+    Ok(set)
 }
 
-/// Interpret a table as a nodes file.
+const NODES_WHAT: &str = "row, col (or id), X, Y, x, y[, z]";
+
+/// Interpret a table read whole as a nodes file.
 pub fn nodes_from_table(t: Table) -> Result<NodeSet> {
-    let mut cols: BTreeMap<NodeColumn, usize> = BTreeMap::new();
-    let mut ignored = Vec::new();
-    for (i, name) in t.header.iter().enumerate() {
-        match node_role(name) {
-            Some(role) if cols.insert(role, i).is_some() => {
-                return Err(t.header_error(
-                    Some(i),
-                    format!("column `{name}` has the same role as an earlier column ({role:?})"),
-                ));
+    let reader = NodeReader::new(&t)?;
+    let mut set = reader.empty_set(&t);
+    let mut places = Vec::new();
+    for (line, r) in &t.rows {
+        let row = reader.parse(&t, *line, r);
+        reader.take(&t, row, &mut set, &mut places);
+    }
+    reader.finish(&t, &mut set, places);
+    Ok(set)
+}
+
+/// One nodes-file row as parsed on a worker.
+pub enum NodeRow {
+    /// A node, at its place in the grid when the file has `row, col`.
+    Node(Option<(i64, i64)>, Node),
+    /// A rejected row, its place when that could be read.
+    Rejected(Option<(i64, i64)>, u64, RejectedRow),
+}
+
+/// The columns of a nodes file, from its header.
+pub struct NodeReader {
+    cols: BTreeMap<NodeColumn, usize>,
+    ignored: Vec<String>,
+    has_grid: bool,
+    has_id: bool,
+}
+
+impl NodeReader {
+    /// The columns of the nodes table `t`, or why its header is not one of a nodes file.
+    pub fn new(t: &Table) -> Result<NodeReader> {
+        let mut cols: BTreeMap<NodeColumn, usize> = BTreeMap::new();
+        let mut ignored = Vec::new();
+        for (i, name) in t.header.iter().enumerate() {
+            match node_role(name) {
+                Some(role) if cols.insert(role, i).is_some() => {
+                    return Err(t.header_error(
+                        Some(i),
+                        format!(
+                            "column `{name}` has the same role as an earlier column ({role:?})"
+                        ),
+                    ));
+                }
+                Some(_) => {}
+                None => ignored.push(name.clone()),
             }
-            Some(_) => {}
-            None => ignored.push(name.clone()),
         }
-    }
-    let has_grid = cols.contains_key(&NodeColumn::Row) && cols.contains_key(&NodeColumn::Col);
-    let has_id = cols.contains_key(&NodeColumn::Id);
-    if !has_grid && !has_id {
-        return Err(t.header_error(
-            None,
-            format!(
-                "a nodes file needs `row, col` (regular grid) or `id` (with --elements); found: {}",
-                t.header.join(", ")
-            ),
-        ));
-    }
-    for (role, name) in [
-        (NodeColumn::RefX, "X"),
-        (NodeColumn::RefY, "Y"),
-        (NodeColumn::X, "x"),
-        (NodeColumn::Y, "y"),
-    ] {
-        if !cols.contains_key(&role) {
+        let has_grid = cols.contains_key(&NodeColumn::Row) && cols.contains_key(&NodeColumn::Col);
+        let has_id = cols.contains_key(&NodeColumn::Id);
+        if !has_grid && !has_id {
             return Err(t.header_error(
                 None,
                 format!(
-                "missing column `{name}`: a nodes file needs X, Y (blank, upper case) and x, y \
-                 (formed part, lower case), z optional; found: {}",
-                t.header.join(", ")
-            ),
+                    "a nodes file needs `row, col` (regular grid) or `id` (with --elements); found: {}",
+                    t.header.join(", ")
+                ),
             ));
         }
+        for (role, name) in [
+            (NodeColumn::RefX, "X"),
+            (NodeColumn::RefY, "Y"),
+            (NodeColumn::X, "x"),
+            (NodeColumn::Y, "y"),
+        ] {
+            if !cols.contains_key(&role) {
+                return Err(t.header_error(
+                    None,
+                    format!(
+                    "missing column `{name}`: a nodes file needs X, Y (blank, upper case) and x, y \
+                     (formed part, lower case), z optional; found: {}",
+                    t.header.join(", ")
+                ),
+                ));
+            }
+        }
+        Ok(NodeReader {
+            cols,
+            ignored,
+            has_grid,
+            has_id,
+        })
     }
-    let mut set = NodeSet {
-        source: t.source.clone(),
-        nodes: Vec::new(),
-        grid: BTreeMap::new(),
-        has_grid,
-        has_id,
-        three_d: cols.contains_key(&NodeColumn::Z),
-        header_line: t.header_line,
-        rejected: Vec::new(),
-        rejected_places: BTreeMap::new(),
-        ignored_columns: ignored,
-    };
-    let mut keys = HashMap::new();
-    for (line, r) in &t.rows {
-        let place = if has_grid {
-            let p = integer(&t, *line, r, cols[&NodeColumn::Row])
-                .and_then(|row| integer(&t, *line, r, cols[&NodeColumn::Col]).map(|c| (row, c)));
+
+    fn empty_set(&self, t: &Table) -> NodeSet {
+        NodeSet {
+            source: t.source.clone(),
+            nodes: Nodes::default(),
+            grid: Places::default(),
+            has_grid: self.has_grid,
+            has_id: self.has_id,
+            three_d: self.cols.contains_key(&NodeColumn::Z),
+            header_line: t.header_line,
+            rejected: Vec::new(),
+            rejected_places: BTreeMap::new(),
+            ignored_columns: self.ignored.clone(),
+        }
+    }
+
+    /// One row, alone.
+    pub fn parse(&self, t: &Table, line: u64, r: &csv::StringRecord) -> NodeRow {
+        let cols = &self.cols;
+        let place = if self.has_grid {
+            let p = integer(t, line, r, cols[&NodeColumn::Row])
+                .and_then(|row| integer(t, line, r, cols[&NodeColumn::Col]).map(|c| (row, c)));
             match p {
                 Ok(p) => Some(p),
-                Err(e) => {
-                    set.rejected.push(e);
-                    continue;
-                }
+                Err(e) => return NodeRow::Rejected(None, line, e),
             }
         } else {
             None
         };
-        match read_node(&t, *line, r, &cols, place) {
-            Ok(node) => {
-                if let Some(first) = keys.insert(node.key.clone(), *line) {
-                    let col = cols
-                        .get(&NodeColumn::Id)
-                        .or(cols.get(&NodeColumn::Row))
-                        .copied();
-                    set.rejected.push(t.reject(
-                        *line,
-                        col,
-                        Some(node.key.clone()),
-                        format!(
-                            "node `{}` appears twice (first on line {first}): keys must be unique",
-                            node.key
-                        ),
-                    ));
-                    keys.insert(node.key, first);
-                    continue;
-                }
-                if let Some(p) = place {
-                    set.grid.insert(p, set.nodes.len());
-                }
-                set.nodes.push(node);
-            }
+        match read_node(t, line, r, cols, place) {
+            Ok(node) => NodeRow::Node(place, node),
             Err(mut e) => {
                 if let Some(p) = place {
-                    set.rejected_places.insert(p, *line);
                     e.id = Some(format!("r{}c{}", p.0, p.1));
                 }
                 if let Some(id) = cols.get(&NodeColumn::Id).and_then(|&c| r.get(c)) {
@@ -220,11 +310,103 @@ pub fn nodes_from_table(t: Table) -> Result<NodeSet> {
                         .filter(|t| !t.is_empty())
                         .or(e.id);
                 }
-                set.rejected.push(e);
+                NodeRow::Rejected(place, line, e)
             }
         }
     }
-    Ok(set)
+
+    /// Take one row in file order: a repeated id is rejected here (a repeated place of a file
+    /// without ids in [`Self::finish`], where the places are sorted).
+    fn take(
+        &self,
+        t: &Table,
+        row: NodeRow,
+        set: &mut NodeSet,
+        places: &mut Vec<((i64, i64), u32)>,
+    ) {
+        match row {
+            NodeRow::Rejected(place, line, e) => {
+                if let Some(p) = place {
+                    set.rejected_places.insert(p, line);
+                }
+                set.rejected.push(e);
+            }
+            NodeRow::Node(place, node) => {
+                if self.has_id {
+                    if let Some(i) = set.nodes.find(&node.key) {
+                        let first = set.nodes.line(i);
+                        set.rejected
+                            .push(duplicate(t, &self.cols, &node.key, node.line, first));
+                        return;
+                    }
+                }
+                let i = set.nodes.push(&node, self.has_id);
+                if let Some(p) = place {
+                    places.push((p, i as u32));
+                }
+            }
+        }
+    }
+
+    /// Sort the places: of nodes at one place, the last read stands in a file with ids (its
+    /// id tells them apart), and the first in a file without (the others are rejected as
+    /// repeated keys). Rejected rows in file order.
+    fn finish(&self, t: &Table, set: &mut NodeSet, mut places: Vec<((i64, i64), u32)>) {
+        places.sort_unstable();
+        let mut keep = vec![true; set.nodes.len()];
+        let mut repeats = false;
+        let mut at = Vec::with_capacity(places.len());
+        let mut node = Vec::with_capacity(places.len());
+        for (k, &(p, i)) in places.iter().enumerate() {
+            let next_same = places.get(k + 1).is_some_and(|q| q.0 == p);
+            let first_of = k == 0 || places[k - 1].0 != p;
+            if self.has_id {
+                if !next_same {
+                    at.push(p);
+                    node.push(i);
+                }
+            } else if first_of {
+                at.push(p);
+                node.push(i);
+            } else {
+                let first = set.nodes.line(*node.last().expect("a first") as usize);
+                let line = set.nodes.line(i as usize);
+                let key = format!("r{}c{}", p.0, p.1);
+                set.rejected
+                    .push(duplicate(t, &self.cols, &key, line, first));
+                keep[i as usize] = false;
+                repeats = true;
+            }
+        }
+        drop(places);
+        if repeats {
+            let to = set.nodes.retain(&keep);
+            for n in &mut node {
+                *n = to[*n as usize].expect("a kept node") as u32;
+            }
+        }
+        set.grid = Places { at, node };
+        set.rejected.sort_by_key(|r| r.location.line);
+    }
+}
+
+fn duplicate(
+    t: &Table,
+    cols: &BTreeMap<NodeColumn, usize>,
+    key: &str,
+    line: u64,
+    first: u64,
+) -> RejectedRow {
+    let col = cols
+        .get(&NodeColumn::Id)
+        .or(cols.get(&NodeColumn::Row))
+        .copied();
+    t.reject(
+        line,
+        col,
+        Some(key.to_string()),
+        format!("node `{key}` appears twice (first on line {first}): keys must be unique"),
+    )
 }
 
 fn read_node(
@@ -237,7 +419,8 @@ fn read_node(
     t.check_len(line, r)?;
     let key = match (cols.get(&NodeColumn::Id), place) {
         (Some(&c), _) => t.text(line, r, c)?,
-        (None, Some((row, col))) => format!("r{row}c{col}"),
+        // A regular grid's node is found by its place: it keeps no key.
+        (None, Some(_)) => String::new(),
         (None, None) => unreachable!("the header check requires row, col or id"),
     };
     let num = |role: NodeColumn| t.number(line, r, cols[&role]);
@@ -253,200 +436,280 @@ fn read_node(
     })
 }
 
-/// The cells of a regular grid: the cell `r{row}c{col}` has the corners `(row, col)`,
-/// `(row, col+1)`, `(row+1, col+1)`, `(row+1, col)`, in order around it. A cell with all four
-/// read is evaluated; a cell with three or four corners in the file but one missing or
-/// rejected is rejected with that reason; a cell with fewer lies outside the grid's edge.
-pub fn grid_cells(set: &NodeSet) -> (Vec<Element>, Vec<RejectedRow>) {
-    let corners = |(r, c): (i64, i64)| [(r, c), (r, c + 1), (r + 1, c + 1), (r + 1, c)];
-    let mut candidates: std::collections::BTreeSet<(i64, i64)> = Default::default();
-    for &(r, c) in set.grid.keys().chain(set.rejected_places.keys()) {
-        for dr in [-1, 0] {
-            for dc in [-1, 0] {
-                candidates.insert((r + dr, c + dc));
+/// The cells of a regular grid, a few grid rows at a time, in order of (row, col): the cell
+/// `r{row}c{col}` has the corners `(row, col)`, `(row, col+1)`, `(row+1, col+1)`,
+/// `(row+1, col)`, in order around it. A cell with all four read is evaluated; a cell with
+/// three or four corners in the file but one missing or rejected is rejected with that
+/// reason; a cell with fewer lies outside the grid's edge.
+pub struct Cells<'a> {
+    set: &'a NodeSet,
+    /// The grid rows that may hold a cell, sorted.
+    rows: Vec<i64>,
+    next: usize,
+}
+
+impl<'a> Cells<'a> {
+    /// The cells of `set`'s grid.
+    pub fn new(set: &'a NodeSet) -> Self {
+        let mut rows: Vec<i64> = Vec::new();
+        let mut add = |r: i64| {
+            for cell_row in [r - 1, r] {
+                if rows.last() != Some(&cell_row) {
+                    rows.push(cell_row);
+                }
+            }
+        };
+        let mut last = None;
+        for &(r, _) in &set.grid.at {
+            if last != Some(r) {
+                add(r);
+                last = Some(r);
             }
         }
+        for &(r, _) in set.rejected_places.keys() {
+            add(r);
+        }
+        rows.sort_unstable();
+        rows.dedup();
+        Cells { set, rows, next: 0 }
     }
+
+    /// The cells of the next grid rows, at least `want` of them unless the grid ends, and the
+    /// cells rejected among them; `None` after the last row.
+    pub fn next_cells(&mut self, want: usize) -> Option<(Vec<Element>, Vec<RejectedRow>)> {
+        if self.next >= self.rows.len() {
+            return None;
+        }
+        let (mut cells, mut rejected) = (Vec::new(), Vec::new());
+        while self.next < self.rows.len() && cells.len() + rejected.len() < want {
+            let row = self.rows[self.next];
+            self.next += 1;
+            self.row_cells(row, &mut cells, &mut rejected);
+        }
+        Some((cells, rejected))
+    }
+
+    fn row_cells(&self, row: i64, cells: &mut Vec<Element>, rejected: &mut Vec<RejectedRow>) {
+        let set = self.set;
+        let mut cols: Vec<i64> = Vec::new();
+        for r in [row, row + 1] {
+            let rejected_cols = set
+                .rejected_places
+                .range((r, i64::MIN)..=(r, i64::MAX))
+                .map(|(p, _)| p.1);
+            for c in set.grid.row(r).iter().map(|p| p.1).chain(rejected_cols) {
+                cols.extend([c - 1, c]);
+            }
+        }
+        cols.sort_unstable();
+        cols.dedup();
+        for col in cols {
+            cell((row, col), set, cells, rejected);
+        }
+    }
+}
+
+/// The cell at `(row, col)`: evaluated, rejected, or outside the grid (see [`Cells`]).
+fn cell(at: (i64, i64), set: &NodeSet, cells: &mut Vec<Element>, rejected: &mut Vec<RejectedRow>) {
+    let (r, c) = at;
+    let corners = [(r, c), (r, c + 1), (r + 1, c + 1), (r + 1, c)];
+    let found: Vec<Option<usize>> = corners.iter().map(|p| set.grid.get(p)).collect();
+    if found.iter().all(Option::is_none) {
+        return; // every corner rejected: the node rows already say why
+    }
+    let id = format!("r{r}c{c}");
+    let line = found
+        .iter()
+        .flatten()
+        .map(|&i| set.nodes.line(i))
+        .min()
+        .unwrap_or(0);
+    let missing: Vec<String> = corners
+        .iter()
+        .zip(&found)
+        .filter(|(_, f)| f.is_none())
+        .map(|(p, _)| match set.rejected_places.get(p) {
+            Some(l) => format!("r{}c{} (rejected, line {l})", p.0, p.1),
+            None => format!("r{}c{}", p.0, p.1),
+        })
+        .collect();
+    let known = corners
+        .iter()
+        .zip(&found)
+        .filter(|(p, f)| f.is_some() || set.rejected_places.contains_key(p))
+        .count();
+    if missing.is_empty() {
+        cells.push(Element {
+            id,
+            line,
+            nodes: found.into_iter().flatten().collect(),
+        });
+    } else if known >= 3 {
+        rejected.push(RejectedRow {
+            location: Location::file(&set.source).at_line(line),
+            reason: format!(
+                "grid cell {id} not evaluated: its corner node {} is missing",
+                missing.join(", ")
+            ),
+            id: Some(id),
+        });
+    }
+    // Fewer than three known corners: the cell lies outside the grid's edge.
+}
+
+/// Every cell of a regular grid at once, and the cells rejected (see [`Cells`]).
+pub fn grid_cells(set: &NodeSet) -> (Vec<Element>, Vec<RejectedRow>) {
     let (mut cells, mut rejected) = (Vec::new(), Vec::new());
-    for cell in candidates {
-        let found: Vec<Option<usize>> = corners(cell)
-            .iter()
-            .map(|p| set.grid.get(p).copied())
-            .collect();
-        if found.iter().all(Option::is_none) {
-            continue; // every corner rejected: the node rows already say why
-        }
-        let id = format!("r{}c{}", cell.0, cell.1);
-        let line = found
-            .iter()
-            .flatten()
-            .map(|&i| set.nodes[i].line)
-            .min()
-            .unwrap_or(0);
-        let missing: Vec<String> = corners(cell)
-            .iter()
-            .zip(&found)
-            .filter(|(_, f)| f.is_none())
-            .map(|(p, _)| match set.rejected_places.get(p) {
-                Some(l) => format!("r{}c{} (rejected, line {l})", p.0, p.1),
-                None => format!("r{}c{}", p.0, p.1),
-            })
-            .collect();
-        let known = corners(cell)
-            .iter()
-            .filter(|p| set.grid.contains_key(p) || set.rejected_places.contains_key(p))
-            .count();
-        if missing.is_empty() {
-            cells.push(Element {
-                id,
-                line,
-                nodes: found.into_iter().flatten().collect(),
-            });
-        } else if known >= 3 {
-            rejected.push(RejectedRow {
-                location: Location::file(&set.source).at_line(line),
-                reason: format!(
-                    "grid cell {id} not evaluated: its corner node {} is missing",
-                    missing.join(", ")
-                ),
-                id: Some(id),
-            });
-        }
-        // Fewer than three known corners: the cell lies outside the grid's edge.
+    let mut all = Cells::new(set);
+    while let Some((c, r)) = all.next_cells(usize::MAX) {
+        cells.extend(c);
+        rejected.extend(r);
     }
     (cells, rejected)
 }
 
-/// Read an elements file against the nodes read: rows `id, n1, n2, n3[, n4]`.
-pub fn read_elements(path: &Path, nodes: &NodeSet) -> Result<(Vec<Element>, Vec<RejectedRow>)> {
-    elements_from_table(&read_table(path, "id, n1, n2, n3[, n4]")?, nodes)
+/// The columns of an elements file (`id, n1, n2, n3[, n4]`) and the nodes it names: each row
+/// read alone ([`Self::parse`], on any thread), then its id checked in file order
+/// ([`UniqueIds`]).
+pub struct ElementReader<'a> {
+    cols: Vec<usize>,
+    n4: Option<usize>,
+    nodes: &'a NodeSet,
+    rejected_keys: HashMap<String, u64>,
 }
 
-/// Interpret a table as an elements file.
-pub fn elements_from_table(t: &Table, nodes: &NodeSet) -> Result<(Vec<Element>, Vec<RejectedRow>)> {
-    let lower: Vec<String> = t.header.iter().map(|h| h.to_ascii_lowercase()).collect();
-    let find = |n: &str| lower.iter().position(|c| c == n);
-    let mut cols = Vec::new();
-    for name in ["id", "n1", "n2", "n3"] {
-        cols.push(find(name).ok_or_else(|| t.header_error(None, format!(
-            "missing column `{name}`: an elements file needs id, n1, n2, n3 and optionally n4; found: {}",
-            t.header.join(", ")
-        )))?);
+impl<'a> ElementReader<'a> {
+    /// The columns of the elements table `t`, or why its header is not one of an elements file.
+    pub fn new(t: &Table, nodes: &'a NodeSet) -> Result<Self> {
+        let lower: Vec<String> = t.header.iter().map(|h| h.to_ascii_lowercase()).collect();
+        let find = |n: &str| lower.iter().position(|c| c == n);
+        let mut cols = Vec::new();
+        for name in ["id", "n1", "n2", "n3"] {
+            cols.push(find(name).ok_or_else(|| t.header_error(None, format!(
+                "missing column `{name}`: an elements file needs id, n1, n2, n3 and optionally n4; found: {}",
+                t.header.join(", ")
+            )))?);
+        }
+        let rejected_keys = nodes
+            .rejected
+            .iter()
+            .filter_map(|r| Some((r.id.clone()?, r.location.line?)))
+            .collect();
+        Ok(ElementReader {
+            cols,
+            n4: find("n4"),
+            nodes,
+            rejected_keys,
+        })
     }
-    let n4 = find("n4");
-    let index: HashMap<&str, usize> = nodes
-        .nodes
-        .iter()
-        .enumerate()
-        .map(|(i, n)| (n.key.as_str(), i))
-        .collect();
-    let rejected_keys: HashMap<String, u64> = nodes
-        .rejected
-        .iter()
-        .filter_map(|r| Some((r.id.clone()?, r.location.line?)))
-        .collect();
-    let (mut elements, mut rejected) = (Vec::new(), Vec::new());
-    let mut ids = HashMap::new();
-    for (line, r) in &t.rows {
-        match read_element(t, *line, r, &cols, n4, &index, &rejected_keys, nodes) {
-            Ok(e) => {
-                if let Some(first) = ids.insert(e.id.clone(), *line) {
-                    rejected.push(t.reject(*line, Some(cols[0]), Some(e.id.clone()), format!(
-                        "element `{}` appears twice (first on line {first}): ids must be unique", e.id
-                    )));
-                    ids.insert(e.id, first);
-                } else {
-                    elements.push(e);
-                }
+
+    /// One row, alone: an element, or the row rejected with its line and column.
+    pub fn parse(
+        &self,
+        t: &Table,
+        line: u64,
+        r: &csv::StringRecord,
+    ) -> std::result::Result<Element, RejectedRow> {
+        t.check_len(line, r)?;
+        let id = t.text(line, r, self.cols[0])?;
+        let mut node_cols = self.cols[1..].to_vec();
+        if let Some(c) = self.n4 {
+            if r.get(c).is_some_and(|v| !v.trim().is_empty()) {
+                node_cols.push(c);
             }
+        }
+        let mut idx = Vec::new();
+        for c in node_cols {
+            let key = t.text(line, r, c).map_err(|mut e| {
+                e.id = Some(id.clone());
+                e
+            })?;
+            let source = self.nodes.source.display();
+            let why = match self.rejected_keys.get(&key) {
+                Some(l) => format!("node `{key}` was rejected (line {l} of {source})"),
+                None => format!("node `{key}` is not in {source}"),
+            };
+            idx.push(
+                self.nodes
+                    .find(&key)
+                    .ok_or_else(|| t.reject(line, Some(c), Some(id.clone()), why))?,
+            );
+        }
+        Ok(Element {
+            id,
+            line,
+            nodes: idx,
+        })
+    }
+
+    /// The column of the id (0-based).
+    pub fn id_column(&self) -> usize {
+        self.cols[0]
+    }
+}
+
+/// The element ids seen, by their 64-bit hash, with the line of each (about 20 bytes an
+/// element; two different ids share a hash with probability about n²/2⁶⁵, 3·10⁻⁸ at a
+/// million, as [`crate::stream`]'s ids).
+#[derive(Default)]
+pub struct UniqueIds(HashMap<u64, u64>);
+
+impl UniqueIds {
+    /// The element, or its row rejected when its id was seen before (on an earlier line).
+    pub fn check(
+        &mut self,
+        t: &Table,
+        id_column: usize,
+        e: Element,
+    ) -> std::result::Result<Element, RejectedRow> {
+        use std::hash::{Hash, Hasher};
+        let mut h = std::hash::DefaultHasher::new();
+        e.id.hash(&mut h);
+        match self.0.entry(h.finish()) {
+            std::collections::hash_map::Entry::Vacant(v) => {
+                v.insert(e.line);
+                Ok(e)
+            }
+            std::collections::hash_map::Entry::Occupied(o) => Err(t.reject(
+                e.line,
+                Some(id_column),
+                Some(e.id.clone()),
+                format!(
+                    "element `{}` appears twice (first on line {}): ids must be unique",
+                    e.id,
+                    o.get()
+                ),
+            )),
+        }
+    }
+}
+
+/// Interpret a table read whole as an elements file: the elements and the rows rejected.
+pub fn elements_from_table(t: &Table, nodes: &NodeSet) -> Result<(Vec<Element>, Vec<RejectedRow>)> {
+    let reader = ElementReader::new(t, nodes)?;
+    let mut ids = UniqueIds::default();
+    let (mut elements, mut rejected) = (Vec::new(), Vec::new());
+    for (line, r) in &t.rows {
+        match reader
+            .parse(t, *line, r)
+            .and_then(|e| ids.check(t, reader.id_column(), e))
+        {
+            Ok(e) => elements.push(e),
             Err(e) => rejected.push(e),
         }
     }
     Ok((elements, rejected))
 }
 
-#[allow(clippy::too_many_arguments)]
-fn read_element(
-    t: &Table,
-    line: u64,
-    r: &csv::StringRecord,
-    cols: &[usize],
-    n4: Option<usize>,
-    index: &HashMap<&str, usize>,
-    rejected_keys: &HashMap<String, u64>,
-    nodes: &NodeSet,
-) -> std::result::Result<Element, RejectedRow> {
-    t.check_len(line, r)?;
-    let id = t.text(line, r, cols[0])?;
-    let mut node_cols = cols[1..].to_vec();
-    if let Some(c) = n4 {
-        if r.get(c).is_some_and(|v| !v.trim().is_empty()) {
-            node_cols.push(c);
-        }
-    }
-    let mut idx = Vec::new();
-    for c in node_cols {
-        let key = t.text(line, r, c).map_err(|mut e| {
-            e.id = Some(id.clone());
-            e
-        })?;
-        let why = match rejected_keys.get(&key) {
-            Some(l) => format!(
-                "node `{key}` was rejected (line {l} of {})",
-                nodes.source.display()
-            ),
-            None => format!("node `{key}` is not in {}", nodes.source.display()),
-        };
-        idx.push(
-            *index
-                .get(key.as_str())
-                .ok_or_else(|| t.reject(line, Some(c), Some(id.clone()), why))?,
-        );
-    }
-    Ok(Element {
-        id,
-        line,
-        nodes: idx,
-    })
-}
+/// What an elements file is expected to hold (for the message of an empty file).
+pub const ELEMENTS_WHAT: &str = "id, n1, n2, n3[, n4]";
 
-/// A mesh as read, with what was rejected on the way, node rows and elements apart (so that
-/// messages can count each in its own words).
-#[derive(Debug, Clone)]
-pub struct MeshRead {
-    /// The accepted nodes and elements.
-    pub mesh: Mesh,
-    /// Rejected rows of the nodes file.
-    pub node_rows: Vec<RejectedRow>,
-    /// Rejected elements: rows of the elements file, or grid cells missing a corner.
-    pub elements: Vec<RejectedRow>,
-    /// Header columns of the nodes file that were not recognised (ignored).
-    pub ignored: Vec<String>,
-}
-
-/// Read the nodes and, if given, the elements, into a mesh plus every rejected row.
-pub fn read_mesh(nodes: &Path, elements: Option<&Path>) -> Result<MeshRead> {
-    let set = read_nodes(nodes)?;
-    let (elems, rejected) = match elements {
-        Some(p) => read_elements(p, &set)?,
-        None if set.has_grid => grid_cells(&set),
-        None => {
-            return Err(Error::input(
-                Location::file(nodes).at_line(set.header_line),
-                "the nodes file has `id` but no `row, col`: give --elements ELEMENTS.csv (id, n1, n2, n3[, n4])",
-            ))
-        }
-    };
-    Ok(MeshRead {
-        mesh: Mesh {
-            nodes: set.nodes,
-            elements: elems,
-            three_d: set.three_d,
-        },
-        node_rows: set.rejected,
-        elements: rejected,
-        ignored: set.ignored_columns,
-    })
+/// The nodes file has `id` but no `row, col` and no elements file was given.
+pub fn needs_elements(set: &NodeSet) -> Error {
+    Error::input(
+        Location::file(&set.source).at_line(set.header_line),
+        "the nodes file has `id` but no `row, col`: give --elements ELEMENTS.csv (id, n1, n2, n3[, n4])",
+    )
 }
 
 #[cfg(test)]
@@ -549,8 +812,8 @@ mod tests {
     fn semicolon_dialect_and_decimal_comma() {
         let set = nodes("id;X;Y;x;y;z\nA;1,5;2;1,6;2,1;0,25\n").unwrap();
         assert!(set.three_d);
-        assert!((set.nodes[0].reference.x - 1.5).abs() < 1e-12);
-        assert!((set.nodes[0].deformed.z - 0.25).abs() < 1e-12);
+        assert!((set.nodes.reference(0).x - 1.5).abs() < 1e-12);
+        assert!((set.nodes.deformed(0).z - 0.25).abs() < 1e-12);
     }
 
     #[test]

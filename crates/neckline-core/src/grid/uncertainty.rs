@@ -37,7 +37,7 @@
 //! guaranteed; such an element is far from any limit curve in practice (equibiaxial at zero
 //! strain difference).
 
-use super::mesh::{quad_reference_jacobian, Element, Mesh};
+use super::mesh::{quad_reference_jacobian, Element, Mesh, Nodes};
 use crate::limit::LimitCurve;
 use crate::strain::EngStrain;
 use nalgebra::{Matrix2, Matrix3x2, SymmetricEigen, Vector2, Vector3};
@@ -83,8 +83,13 @@ pub fn shape_gradients(reference: &[Vector2<f64>]) -> Option<Vec<Vector2<f64>>> 
 
 /// `∂λ_i/∂x_a = (∇N_a · v_i) n_i` for every node of `e` (see the module notes).
 pub fn sensitivity(mesh: &Mesh, e: &Element) -> Option<StretchSensitivity> {
-    let reference: Vec<Vector2<f64>> = e.nodes.iter().map(|&i| mesh.nodes[i].reference).collect();
-    let deformed: Vec<Vector3<f64>> = e.nodes.iter().map(|&i| mesh.nodes[i].deformed).collect();
+    sensitivity_of(&mesh.nodes, e)
+}
+
+/// [`sensitivity`] from the nodes alone.
+pub fn sensitivity_of(nodes: &Nodes, e: &Element) -> Option<StretchSensitivity> {
+    let reference: Vec<Vector2<f64>> = e.nodes.iter().map(|&i| nodes.reference(i)).collect();
+    let deformed: Vec<Vector3<f64>> = e.nodes.iter().map(|&i| nodes.deformed(i)).collect();
     let grads = shape_gradients(&reference)?;
     let f: Matrix3x2<f64> = deformed
         .iter()

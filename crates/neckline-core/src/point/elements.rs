@@ -2,15 +2,18 @@
 //! stretches ([`crate::grid`] computes them from the nodes), the equivalent circle's axes, and
 //! the margin's uncertainty from the reading error on the nodes.
 
-use super::{PointResult, StateInput};
+use super::{Context, PointResult, StateInput};
 use crate::assess::{is_borderline, Settings};
 use crate::error::Location;
-use crate::grid::mesh::{Element, ElementResult, Mesh};
+use crate::grid::mesh::{Element, ElementResult, Mesh, Nodes};
 use crate::grid::{element_name, uncertainty, GridExtras};
 use crate::kinematics::StrainState;
 use crate::limit::LimitCurve;
 use crate::measure::{Measurement, RejectedRow};
+use crate::output::points_csv::Layout;
 use crate::strain::Stretch;
+use crate::summary::{Summary, Template};
+use rayon::prelude::*;
 use std::path::Path;
 
 /// The location of one element: strains from its principal stretches, the equivalent circle's
@@ -40,10 +43,41 @@ pub fn state_input(e: &Element, r: &ElementResult, three_d: bool) -> Option<Stat
     })
 }
 
-/// Evaluate every element of `mesh`: a judged-ready location, or a rejected row naming the
-/// element (its id in the message itself, not only in the id field) and why (collapsed,
-/// inverted, not convex...). `source` is the file that defined the elements (the elements file,
-/// or the nodes file for a regular grid, `regular_grid`).
+/// Evaluate one element into a judged-ready location, or a rejected row naming the element
+/// (its id in the message itself, not only in the id field) and why (collapsed, inverted, not
+/// convex...). `source` is the file that defined the elements (the elements file, or the nodes
+/// file for a regular grid, `regular_grid`).
+pub fn evaluate_one(
+    nodes: &Nodes,
+    three_d: bool,
+    e: &Element,
+    source: &Path,
+    regular_grid: bool,
+) -> Result<StateInput, RejectedRow> {
+    let reject = |reason: String| RejectedRow {
+        location: Location::file(source).at_line(e.line),
+        id: Some(e.id.clone()),
+        reason,
+    };
+    let name = || element_name(e, regular_grid);
+    match nodes.evaluate(e, three_d) {
+        Ok(r) => match state_input(e, &r, three_d) {
+            Some(mut s) => {
+                if let Some(g) = s.grid.as_mut() {
+                    g.sensitivity = uncertainty::sensitivity_of(nodes, e);
+                }
+                Ok(s)
+            }
+            None => Err(reject(format!(
+                "{} not evaluated: its stretches are not positive",
+                name()
+            ))),
+        },
+        Err(d) => Err(reject(format!("{} not evaluated: {d}", name()))),
+    }
+}
+
+/// Evaluate every element of `mesh` ([`evaluate_one`]).
 pub fn evaluate(
     mesh: &Mesh,
     source: &Path,
@@ -51,28 +85,76 @@ pub fn evaluate(
 ) -> (Vec<StateInput>, Vec<RejectedRow>) {
     let (mut ok, mut rejected) = (Vec::new(), Vec::new());
     for e in &mesh.elements {
-        let name = element_name(e, regular_grid);
-        let reject = |reason: String| RejectedRow {
-            location: Location::file(source).at_line(e.line),
-            id: Some(e.id.clone()),
-            reason,
-        };
-        match mesh.evaluate(e) {
-            Ok(r) => match state_input(e, &r, mesh.three_d) {
-                Some(mut s) => {
-                    if let Some(g) = s.grid.as_mut() {
-                        g.sensitivity = uncertainty::sensitivity(mesh, e);
-                    }
-                    ok.push(s)
-                }
-                None => rejected.push(reject(format!(
-                    "{name} not evaluated: its stretches are not positive"
-                ))),
-            },
-            Err(d) => rejected.push(reject(format!("{name} not evaluated: {d}"))),
+        match evaluate_one(&mesh.nodes, mesh.three_d, e, source, regular_grid) {
+            Ok(s) => ok.push(s),
+            Err(r) => rejected.push(r),
         }
     }
     (ok, rejected)
+}
+
+/// How the elements of a grid are judged and written, a batch at a time.
+pub struct ElementJudge<'a> {
+    /// The nodes.
+    pub nodes: &'a Nodes,
+    /// Whether the part is curved (the nodes have heights).
+    pub three_d: bool,
+    /// The file that defined the elements.
+    pub source: &'a Path,
+    /// Whether they are the cells of a regular grid.
+    pub regular_grid: bool,
+    /// What every element is judged with.
+    pub ctx: &'a Context,
+    /// The points.csv columns.
+    pub layout: &'a Layout,
+    /// Whether rows are formatted for a points table.
+    pub write: bool,
+}
+
+/// One piece of a batch judged: its points.csv rows, partial summary, and elements rejected.
+pub struct JudgedPiece {
+    /// The points.csv rows.
+    pub text: Vec<u8>,
+    /// The partial summary.
+    pub summary: Summary,
+    /// Elements that could not be evaluated, in order.
+    pub rejected: Vec<RejectedRow>,
+}
+
+/// Elements judged per piece (on one core each).
+const PIECE: usize = 2048;
+
+/// Judge `elements` on every core, in pieces, as `check`'s stream judges chunks: each piece
+/// into its text and a partial summary (`like` its template), returned in order for the
+/// caller to write and merge.
+pub fn judge_elements(
+    j: &ElementJudge<'_>,
+    elements: &[Element],
+    like: &Template,
+) -> Vec<JudgedPiece> {
+    elements
+        .par_chunks(PIECE)
+        .map(|piece| {
+            let mut out = JudgedPiece {
+                text: Vec::with_capacity(if j.write { piece.len() * 256 } else { 0 }),
+                summary: like.part(),
+                rejected: Vec::new(),
+            };
+            for e in piece {
+                match evaluate_one(j.nodes, j.three_d, e, j.source, j.regular_grid) {
+                    Ok(s) => {
+                        let p = j.ctx.judge(s);
+                        if j.write {
+                            j.layout.push_row(&mut out.text, &p);
+                        }
+                        out.summary.fold(p);
+                    }
+                    Err(r) => out.rejected.push(r),
+                }
+            }
+            out
+        })
+        .collect()
 }
 
 /// Replace the circle rule's margin uncertainty of a grid element by the node-error one

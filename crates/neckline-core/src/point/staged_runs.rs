@@ -17,6 +17,9 @@
 //! and the summary come out as the in-memory judgement gives them, in the order the locations
 //! first appear. The run files are anonymous temporary files, gone when the run ends however
 //! it ends.
+//!
+//! A file whose rows are all of one stage ([`one_stage`]) needs none of this: `check` judges
+//! it as a file without stages, in one streamed pass, with the same outputs.
 
 use super::{state_of, Context, StateInput};
 use crate::capped::Capped;
@@ -27,7 +30,7 @@ use crate::stream::{read_batch, Chunk, Chunker, SeenIds};
 use crate::summary::{Summary, Template, View};
 use rayon::prelude::*;
 use std::hash::{Hash, Hasher};
-use std::io::{self, BufWriter, Read, Seek, Write};
+use std::io::{self, BufRead, BufWriter, Read, Seek, Write};
 
 /// Locations per run file: a file holds about `BLOCK × stages` rows (about 60 bytes each).
 pub const BLOCK: u32 = if cfg!(test) { 4 } else { 32_768 };
@@ -258,6 +261,78 @@ impl FirstPass<'_> {
 /// An anonymous temporary file (removed by the system when closed).
 fn tempfile() -> io::Result<std::fs::File> {
     tempfile::tempfile()
+}
+
+/// Whether the measurement file at `path` (its header read as `header`) has at most one stage:
+/// every non-blank row's `stage` field, trimmed, the same. Such a file gives each location at
+/// most one row (a repeated id at one stage is a duplicate), so the judgement of
+/// [`judge_staged_runs`] is that of the streamed `check` row by row, in file order: no path,
+/// no grouping. Decided by reading the file again in parallel chunks, only the `stage`
+/// field of each row, stopping at the second stage found; `false` for standard input, a file
+/// that cannot be read again or whose rows do not parse (the staged path then says why).
+pub fn one_stage(path: &std::path::Path, header: &Header) -> bool {
+    let Some(col) = header.columns.index("stage") else {
+        return false;
+    };
+    if path.as_os_str() == "-" {
+        return false;
+    }
+    let Ok((mut input, _)) = crate::text::open(path) else {
+        return false;
+    };
+    let mut line = Vec::new();
+    for _ in 0..header.lines {
+        line.clear();
+        if input.read_until(b'\n', &mut line).is_err() {
+            return false;
+        }
+    }
+    let mut chunks = Chunker::new(input, header.lines + 1, header.dialect.delimiter());
+    let batch = 2 * rayon::current_num_threads().max(1);
+    let mut stage: Option<Option<Vec<u8>>> = None;
+    loop {
+        let Ok(todo) = read_batch(&mut chunks, batch, &header.file) else {
+            return false;
+        };
+        if todo.is_empty() {
+            return true;
+        }
+        let found: Vec<Option<Vec<Option<Vec<u8>>>>> =
+            todo.par_iter().map(|c| stages_of(c, header, col)).collect();
+        for values in found {
+            let Some(values) = values else {
+                return false;
+            };
+            for v in values {
+                match &stage {
+                    None => stage = Some(v),
+                    Some(s) if *s == v => {}
+                    Some(_) => return false,
+                }
+            }
+        }
+    }
+}
+
+/// The different `stage` fields (trimmed; `None` for a row without one) of a chunk's non-blank
+/// rows, in order, at most two; `None` when a record does not parse.
+fn stages_of(chunk: &Chunk, header: &Header, col: usize) -> Option<Vec<Option<Vec<u8>>>> {
+    let mut reader = crate::measure::csv_reader(header.dialect, &chunk.bytes[..]);
+    let mut record = csv::ByteRecord::new();
+    let mut out: Vec<Option<Vec<u8>>> = Vec::new();
+    while reader.read_byte_record(&mut record).ok()? {
+        if record.iter().all(|f| f.trim_ascii().is_empty()) {
+            continue;
+        }
+        let v = record.get(col).map(<[u8]>::trim_ascii);
+        if out.last().map(|o| o.as_deref()) != Some(v) && !out.iter().any(|o| o.as_deref() == v) {
+            out.push(v.map(<[u8]>::to_vec));
+            if out.len() > 1 {
+                break;
+            }
+        }
+    }
+    Some(out)
 }
 
 /// The outcome of a staged file judged through run files.
