@@ -16,9 +16,14 @@ pub fn suffixes(n: usize) -> Vec<String> {
 
 /// The header row.
 pub fn header(c: &Comparison) -> Vec<String> {
-    let sfx = suffixes(c.tryouts.len());
+    header_of(c.tryouts.len(), c.matching)
+}
+
+/// The header row of `n` tryouts paired by `matching`.
+pub fn header_of(n: usize, matching: Matching) -> Vec<String> {
+    let sfx = suffixes(n);
     let mut h = vec!["id".to_string(), "status".to_string()];
-    if matches!(c.matching, Matching::Xy { .. }) {
+    if matches!(matching, Matching::Xy { .. }) {
         h.extend(sfx.iter().map(|s| format!("id_{s}")));
         if sfx.len() == 2 {
             h.push("distance".into());
@@ -47,9 +52,14 @@ pub fn latest(t: &Track) -> &ResultRow {
 }
 
 fn record(c: &Comparison, t: &Track) -> Vec<String> {
+    record_of(c.matching, c.tolerance, t)
+}
+
+/// The row of one track.
+pub fn record_of(matching: Matching, tolerance: f64, t: &Track) -> Vec<String> {
     let last = latest(t);
     let mut r = vec![last.id.clone(), t.status().name().to_string()];
-    if matches!(c.matching, Matching::Xy { .. }) {
+    if matches!(matching, Matching::Xy { .. }) {
         r.extend(
             t.at.iter()
                 .map(|a| a.as_ref().map_or_else(String::new, |a| a.id.clone())),
@@ -71,7 +81,7 @@ fn record(c: &Comparison, t: &Track) -> Vec<String> {
     r.push(fmt_opt(t.margin_change(), 3));
     r.push(fmt_opt(t.major_change(), 3));
     r.push(
-        t.change(c.tolerance)
+        t.change(tolerance)
             .map_or_else(String::new, |ch| ch.name().to_string()),
     );
     r.push(fmt_opt(last.x, 3));
