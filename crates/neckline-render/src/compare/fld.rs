@@ -24,6 +24,21 @@ use std::io;
 /// failed or marginal location does too).
 pub const LABELLED: usize = 6;
 
+/// Labels drawn at most when the comparison does not hold every location (the largest losses
+/// and gains, then the newly failed or marginal, worst first): more would hide the picture.
+/// compare.html lists every one up to its cap.
+pub const LABELS_AT_SCALE: usize = 40;
+
+/// The locations the pictures label: [`Comparison::labelled`], the first
+/// [`LABELS_AT_SCALE`] of them beyond the locations drawn one by one.
+pub fn labelled(c: &Comparison) -> Vec<&Track> {
+    let mut v = c.labelled(LABELLED);
+    if c.density.is_some() {
+        v.truncate(LABELS_AT_SCALE);
+    }
+    v
+}
+
 /// Labelled locations listed in the legend at most.
 const LEGEND_LABELS: usize = 16;
 
@@ -179,7 +194,7 @@ fn draw_tracks<DB: DrawingBackend>(
     let earlier = RGBColor(110, 110, 110);
     // Beyond the locations drawn one by one: the density of every location, and arrows for
     // the labelled ones only.
-    let labelled = c.labelled(LABELLED);
+    let labelled = labelled(c);
     let drawn: Vec<&Track> = match &c.density {
         Some(d) => {
             draw_density(root, d, px)?;
@@ -272,7 +287,7 @@ fn draw_loss_labels<DB: DrawingBackend>(
     placer: &mut Placer,
 ) -> DrawResult<DB> {
     let style = plot::bold(15.0);
-    for t in c.labelled(LABELLED) {
+    for t in labelled(c) {
         let Some(a) = t.after() else { continue };
         let (text, border) = super::record::label(t, c.tolerance);
         label_box(
@@ -354,7 +369,7 @@ fn legend(c: &Comparison, has_curve: bool, band: Option<f64>) -> Legend {
         }
     }
     l.gap(12);
-    let labelled = c.labelled(LABELLED);
+    let labelled = labelled(c);
     if labelled.is_empty() {
         return l;
     }

@@ -3,7 +3,7 @@
 //! gain blue, within the tolerance grey), shaped by the zone in the last tryout; the largest
 //! losses carry their id. Locations measured in one tryout only are open grey rings.
 
-use super::fld::{draw_footer, draw_title, title_lines, LABELLED};
+use super::fld::{draw_footer, draw_title, labelled, title_lines};
 use crate::chart::frame::{Frame, Look};
 use crate::chart::label::{label_box, Placer};
 use crate::chart::legend::{Key, Legend, Row};
@@ -126,8 +126,7 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &Comparison) -> Dr
     let grid = c.density.as_ref().and_then(|d| d.map.as_ref());
     // Beyond the locations drawn one by one: cells, and markers for the labelled ones only.
     let at: Vec<(&Track, (f64, f64))> = match grid {
-        Some(_) => c
-            .labelled(LABELLED)
+        Some(_) => labelled(c)
             .into_iter()
             .filter_map(|t| Some((t, latest(t).xy()?)))
             .collect(),
@@ -219,8 +218,7 @@ fn draw_labels<DB: DrawingBackend>(
     placer: &mut Placer,
 ) -> DrawResult<DB> {
     let style = plot::bold(15.0);
-    let shown = c
-        .labelled(LABELLED)
+    let shown = labelled(c)
         .into_iter()
         .filter_map(|t| Some((t, latest(t).xy()?)));
     for (t, xy) in shown {

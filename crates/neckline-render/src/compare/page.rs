@@ -3,7 +3,7 @@
 //! inline CSS and SVG only, no script, nothing fetched. Each section starts on a new printed
 //! page, with the running header and "page N of M"; the paper size is the printer's.
 
-use super::fld::{change_colour, fld_svg, LABELLED};
+use super::fld::{change_colour, fld_svg, LABELLED, LABELS_AT_SCALE};
 use super::map::map_svg;
 use super::record;
 use crate::page::{self, Badges};
@@ -238,6 +238,12 @@ fn pictures(c: &Comparison) -> io::Result<(Markup, Markup)> {
             "Each arrow runs from a location's earlier strains to its strains in " (a)
             "; colour: change of margin; marker at the head: zone in " (a) "; labelled: the "
             (LABELLED) " largest losses and gains, every location newly failed or marginal and every one that left the failed zone (change in percentage points)."
+        }
+        @if c.density.is_some() {
+            p.note {
+                (count(c.counts.tracks, "location")) ": each cell is shaded in the colour of most of its locations' changes, deeper for more; arrows and labels for the first "
+                (LABELS_AT_SCALE) " labelled only. The lists below name the rest."
+            }
         }
     };
     let map = match map_svg(c)? {
