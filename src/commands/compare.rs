@@ -152,33 +152,24 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
         }
         None => None,
     };
-    // Each input's SHA-256 (when its summary records it) on its own thread, read once: the
-    // record reuses them.
-    let digests: Vec<Option<String>> = std::thread::scope(|s| {
+    // Each input's SHA-256 (when its summary records it) on its own thread while the inputs
+    // are compared, read once: the record reuses them. A pair refused for its SHA-256 is
+    // reported before any error of the comparison.
+    let (digests, compared) = std::thread::scope(|s| {
         let runs: Vec<_> = args
             .inputs
             .iter()
             .map(|p| s.spawn(move || super::outputs::check_recorded_points(p)))
             .collect();
-        runs.into_iter()
+        let compared = compare_all(args, how, set);
+        let digests = runs
+            .into_iter()
             .map(|h| h.join().unwrap_or(Ok(None)))
-            .collect::<Result<Vec<_>>>()
-    })?;
-    let job = args
-        .job
-        .as_ref()
-        .map(|p| neckline_core::job::Job::load(p).map(|j| (j, p.clone())))
-        .transpose()?;
-    let (c, set) = match (set, &args.out) {
-        (Some(mut set), Some(out)) => {
-            let c = compare_into(args, how, &mut set, &out.join("compare.csv"))?;
-            (c, Some(set))
-        }
-        _ => (
-            compare::compare_files(&args.inputs, how, args.tolerance, None)?,
-            None,
-        ),
-    };
+            .collect::<Result<Vec<Option<String>>>>();
+        (digests, compared)
+    });
+    let digests = digests?;
+    let (job, c, set) = compared?;
     for w in &c.warnings {
         eprint!("{}", paragraph(&format!("warning: {w}")));
     }
@@ -206,6 +197,32 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
         print!("{}", paragraph(&format!("Wrote {}", names.join(", "))));
     }
     Ok(gate(&c, args.fail_on))
+}
+
+/// The review's job file (when given) and the comparison, compare.csv staged in `set`.
+type Compared = (
+    Option<(neckline_core::job::Job, PathBuf)>,
+    Comparison,
+    Option<OutputSet>,
+);
+
+fn compare_all(args: &CompareArgs, how: Matching, set: Option<OutputSet>) -> Result<Compared> {
+    let job = args
+        .job
+        .as_ref()
+        .map(|p| neckline_core::job::Job::load(p).map(|j| (j, p.clone())))
+        .transpose()?;
+    match (set, &args.out) {
+        (Some(mut set), Some(out)) => {
+            let c = compare_into(args, how, &mut set, &out.join("compare.csv"))?;
+            Ok((job, c, Some(set)))
+        }
+        _ => Ok((
+            job,
+            compare::compare_files(&args.inputs, how, args.tolerance, None)?,
+            None,
+        )),
+    }
 }
 
 /// Compare the inputs, compare.csv streamed into its staged file in `set` (through an

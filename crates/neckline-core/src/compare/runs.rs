@@ -244,20 +244,16 @@ fn join(p: usize, inputs: Vec<File>, shape: &Shape) -> Result<Joined> {
     tracks.sort_by_key(|(o, _)| *o);
     let mut tally = Tally::new(n, shape.tolerance, Some(shape.density.clone()));
     let mut out = BufWriter::with_capacity(1 << 16, temp()?);
-    let bytes = Shared::default();
-    let mut w = csv::Writer::from_writer(bytes.clone());
+    let mut b = Vec::with_capacity(256);
     for (order, t) in &tracks {
         tally.fold(t, *order);
         if shape.csv {
-            w.write_record(csv_out::record_of(shape.matching, shape.tolerance, t))
-                .and_then(|()| w.flush().map_err(csv::Error::from))
-                .map_err(|e| run_error(io::Error::other(e)))?;
-            let mut b = bytes.0.borrow_mut();
+            b.clear();
+            csv_out::push_record(shape.matching, shape.tolerance, t, &mut b);
             out.write_all(&order.to_le_bytes()).map_err(run_error)?;
             out.write_all(&(b.len() as u32).to_le_bytes())
                 .map_err(run_error)?;
             out.write_all(&b).map_err(run_error)?;
-            b.clear();
         }
     }
     let mut f = out.into_inner().map_err(|e| run_error(e.into_error()))?;
@@ -267,20 +263,6 @@ fn join(p: usize, inputs: Vec<File>, shape: &Shape) -> Result<Joined> {
         rows: vec![(p, f)],
         duplicate: dup,
     })
-}
-
-/// A buffer that the CSV writer fills and the caller empties after each record.
-#[derive(Clone, Default)]
-struct Shared(std::rc::Rc<std::cell::RefCell<Vec<u8>>>);
-
-impl Write for Shared {
-    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
-        self.0.borrow_mut().extend_from_slice(buf);
-        Ok(buf.len())
-    }
-    fn flush(&mut self) -> io::Result<()> {
-        Ok(())
-    }
 }
 
 /// The distance of each step of a track paired by position.
