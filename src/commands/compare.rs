@@ -4,7 +4,7 @@ use super::{paragraph, Outcome};
 use crate::output_set::{Committed, OutputSet, Own};
 use clap::{Args, ValueEnum};
 use neckline_core::compare::record::Record;
-use neckline_core::compare::{self, csv_out, json_out, read_tryout, Comparison, Matching};
+use neckline_core::compare::{self, json_out, Comparison, Matching};
 use neckline_core::error::{Error, Result};
 use neckline_render::compare::{fld, map, page, terminal};
 use std::path::{Path, PathBuf};
@@ -152,41 +152,45 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
         }
         None => None,
     };
-    for p in &args.inputs {
-        super::outputs::check_recorded_points(p)?;
-    }
-    let tryouts = args
-        .inputs
-        .iter()
-        .enumerate()
-        .map(|(k, p)| read_tryout(p, k + 1))
-        .collect::<Result<Vec<_>>>()?;
-    let job = args
-        .job
-        .as_ref()
-        .map(|p| neckline_core::job::Job::load(p).map(|j| (j, p.clone())))
-        .transpose()?;
-    let c = compare::compare(tryouts, how, args.tolerance)?;
+    // Each input's SHA-256 (when its summary records it) on its own thread while the inputs
+    // are compared, read once: the record reuses them. A pair refused for its SHA-256 is
+    // reported before any error of the comparison.
+    let (digests, compared) = std::thread::scope(|s| {
+        let runs: Vec<_> = args
+            .inputs
+            .iter()
+            .map(|p| s.spawn(move || super::outputs::check_recorded_points(p)))
+            .collect();
+        let compared = compare_all(args, how, set);
+        let digests = runs
+            .into_iter()
+            .map(|h| h.join().unwrap_or(Ok(None)))
+            .collect::<Result<Vec<Option<String>>>>();
+        (digests, compared)
+    });
+    let digests = digests?;
+    let (job, c, set) = compared?;
     for w in &c.warnings {
         eprint!("{}", paragraph(&format!("warning: {w}")));
     }
     let Committed { written, removed } = match (set, &args.out) {
         (Some(set), Some(out)) => {
             let labels: Vec<String> = c.tryouts.iter().map(|t| t.label.clone()).collect();
-            let rec = Record::new(
+            let rec = Record::with_digests(
                 &args.inputs,
+                &digests,
                 &labels,
                 job.as_ref().map(|(j, p)| (j, p.as_path())),
             )
             .map_err(|e| Error::io(&args.inputs[0], e))?;
-            write_pack(&c, &rec, set, out, args.decimal_comma)?
+            write_pack(&c, &rec, set, out)?
         }
         _ => Committed::default(),
     };
     print!("{}", terminal::summary(&c, args.show));
     if args.out.is_some() {
         print!("{}", super::outputs::removed_note(&removed));
-        if map::placed(&c).is_empty() {
+        if !map::has_places(&c) {
             println!("note: no location has x, y: the map of margin change was not drawn");
         }
         let names: Vec<String> = written.iter().map(|p| p.display().to_string()).collect();
@@ -195,27 +199,67 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
     Ok(gate(&c, args.fail_on))
 }
 
-/// Render every file of the pack in memory, stage each in `set`, then move them in together
-/// (a failure leaves the folder as it was).
-fn write_pack(
-    c: &Comparison,
-    rec: &Record,
-    mut set: OutputSet,
-    out: &Path,
-    decimal_comma: bool,
-) -> Result<Committed> {
+/// The review's job file (when given) and the comparison, compare.csv staged in `set`.
+type Compared = (
+    Option<(neckline_core::job::Job, PathBuf)>,
+    Comparison,
+    Option<OutputSet>,
+);
+
+fn compare_all(args: &CompareArgs, how: Matching, set: Option<OutputSet>) -> Result<Compared> {
+    let job = args
+        .job
+        .as_ref()
+        .map(|p| neckline_core::job::Job::load(p).map(|j| (j, p.clone())))
+        .transpose()?;
+    match (set, &args.out) {
+        (Some(mut set), Some(out)) => {
+            let c = compare_into(args, how, &mut set, &out.join("compare.csv"))?;
+            Ok((job, c, Some(set)))
+        }
+        _ => Ok((
+            job,
+            compare::compare_files(&args.inputs, how, args.tolerance, None)?,
+            None,
+        )),
+    }
+}
+
+/// Compare the inputs, compare.csv streamed into its staged file in `set` (through an
+/// anonymous temporary file when it is converted to a decimal comma).
+fn compare_into(
+    args: &CompareArgs,
+    how: Matching,
+    set: &mut OutputSet,
+    target: &Path,
+) -> Result<Comparison> {
+    let mut staged = set.create(target)?;
+    let c = if args.decimal_comma {
+        use std::io::Seek;
+        let temp = compare::runs::temp()?;
+        let mut w = std::io::BufWriter::with_capacity(1 << 16, temp);
+        let c = compare::compare_files(&args.inputs, how, args.tolerance, Some(&mut w))?;
+        let mut temp = w
+            .into_inner()
+            .map_err(|e| Error::io(target, e.into_error()))?;
+        temp.rewind().map_err(|e| Error::io(target, e))?;
+        let r = std::io::BufReader::with_capacity(1 << 16, temp);
+        neckline_core::output::decimal_comma::to_decimal_comma(r, &mut staged)
+            .map_err(|e| Error::io(target, e))?;
+        c
+    } else {
+        compare::compare_files(&args.inputs, how, args.tolerance, Some(&mut staged))?
+    };
+    staged.finish()?;
+    Ok(c)
+}
+
+/// Render every other file of the pack in memory, stage each in `set`, then move them in
+/// together with compare.csv (a failure leaves the folder as it was).
+fn write_pack(c: &Comparison, rec: &Record, mut set: OutputSet, out: &Path) -> Result<Committed> {
     let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
     let target = |name: &str| out.join(name);
     let render = |name: &str, e: std::io::Error| Error::io(&target(name), e);
-    let mut csv = Vec::new();
-    csv_out::write_csv(c, &mut csv).map_err(|e| render("compare.csv", e))?;
-    if decimal_comma {
-        let mut text = Vec::with_capacity(csv.len());
-        neckline_core::output::decimal_comma::to_decimal_comma(&csv[..], &mut text)
-            .map_err(|e| render("compare.csv", e))?;
-        csv = text;
-    }
-    files.push((target("compare.csv"), csv));
     let mut json = Vec::new();
     json_out::write_json(c, &mut json).map_err(|e| render("compare.json", e))?;
     files.push((target("compare.json"), json));
@@ -251,6 +295,11 @@ fn gate(c: &Comparison, fail_on: Option<Gate>) -> Outcome {
     } else {
         c.newly_failed()
     };
+    let total = hits.len().max(if marginal {
+        c.counts.newly_at_risk
+    } else {
+        c.counts.newly_failed
+    }) + c.at_risk_only_after_count(marginal);
     hits.extend(c.at_risk_only_after(marginal));
     let name = if marginal {
         "new-marginal"
@@ -262,12 +311,12 @@ fn gate(c: &Comparison, fail_on: Option<Gate>) -> Outcome {
         return Outcome::Done;
     }
     let ids: Vec<String> = hits.iter().take(12).map(|t| t.name()).collect();
-    let more = if hits.len() > 12 { ", ..." } else { "" };
+    let more = if total > 12 { ", ..." } else { "" };
     print!(
         "{}",
         paragraph(&format!(
             "--fail-on {name}: tripped by {} ({}{more}): exit status 1",
-            compare::count(hits.len(), "location"),
+            compare::count(total, "location"),
             ids.join(", ")
         ))
     );

@@ -371,17 +371,17 @@ pub fn points_out(plan: &Plan, set: &mut OutputSet, text: &[u8]) -> Result<Optio
 
 /// Refuse a points table whose summary.json (beside it) records another table: the two are
 /// then of different runs. A summary that records no table (an earlier version's) or records
-/// another file name is not checked.
-pub fn check_recorded_points(points: &Path) -> Result<()> {
+/// another file name is not checked. Gives the table's SHA-256 when it was computed.
+pub fn check_recorded_points(points: &Path) -> Result<Option<String>> {
     let beside = points.with_file_name("summary.json");
     let Ok(text) = std::fs::read_to_string(&beside) else {
-        return Ok(());
+        return Ok(None);
     };
     let Some(recorded) = summary_json::recorded_points(&text) else {
-        return Ok(());
+        return Ok(None);
     };
     if points.file_name() != Some(std::ffi::OsStr::new(&recorded.name)) {
-        return Ok(());
+        return Ok(None);
     }
     let found = crate::output_set::sha256_of(points).map_err(|e| Error::io(points, e))?;
     if found != recorded.sha256 {
@@ -395,7 +395,7 @@ pub fn check_recorded_points(points: &Path) -> Result<()> {
             found
         )));
     }
-    Ok(())
+    Ok(Some(found))
 }
 
 /// Write to standard output; a closed pipe is not an error.

@@ -13,10 +13,15 @@ pub mod json_out;
 pub mod pairing;
 pub mod read;
 pub mod record;
+pub mod runs;
+pub mod tally;
 
-pub use read::{read_results, read_tryout, RecordedSummary, ResultRow, Tryout};
+pub use read::{read_results, read_tryout, RecordedSummary, ResultRow, Tryout, TryoutStats};
+pub use runs::compare_files;
+use tally::{change_index, status_index, zone_index, Counts, Density, Tally};
 
 use crate::assess::Zone;
+use crate::capped::LIST_CAP;
 use crate::error::{Error, Result};
 use std::collections::HashMap;
 
@@ -187,8 +192,16 @@ impl Track {
 pub struct Comparison {
     /// The inputs, in order (at least two).
     pub tryouts: Vec<Tryout>,
-    /// Every location of any input, once.
+    /// Every location of any input, once, while there are at most
+    /// [`crate::summary::KEEP_ALL`]; beyond, those the capped lists keep (see [`tally`]). In
+    /// order of first appearance.
     pub tracks: Vec<Track>,
+    /// Numbers of locations, of all of them.
+    pub counts: Counts,
+    /// Whether `tracks` holds every location.
+    pub complete: bool,
+    /// Densities for the pictures, when `tracks` does not hold every location.
+    pub density: Option<Density>,
     /// How locations were paired.
     pub matching: Matching,
     /// Smallest change that counts, percentage points.
@@ -208,19 +221,54 @@ pub fn compare(mut tryouts: Vec<Tryout>, matching: Matching, tolerance: f64) -> 
         Matching::Id => tracks_by_id(&tryouts),
         Matching::Xy { within } => tracks_by_position(&tryouts, within),
     };
+    for t in &mut tryouts {
+        t.stats = TryoutStats::of(&t.rows);
+        t.rows = Vec::new();
+    }
+    let mut tally = Tally::new(tryouts.len(), tolerance, Some(density_for(&tryouts)));
+    for (k, t) in tracks.iter().enumerate() {
+        tally.fold(t, k as u64);
+    }
+    finish(tryouts, tally, matching, tolerance)
+}
+
+/// The density grids over the extents of every input's locations.
+pub fn density_for(tryouts: &[Tryout]) -> Density {
+    let join =
+        |a: Option<((f64, f64), (f64, f64))>, b: Option<((f64, f64), (f64, f64))>| match (a, b) {
+            (Some(a), Some(b)) => Some((
+                (a.0 .0.min(b.0 .0), a.0 .1.max(b.0 .1)),
+                (a.1 .0.min(b.1 .0), a.1 .1.max(b.1 .1)),
+            )),
+            (a, b) => a.or(b),
+        };
+    let strains = tryouts.iter().map(|t| t.stats.strains).fold(None, join);
+    let places = tryouts.iter().map(|t| t.stats.places).fold(None, join);
+    Density::new(strains.unwrap_or(((0.0, 1.0), (0.0, 1.0))), places)
+}
+
+/// The comparison from a tally of every track: refused when two neighbouring tryouts share
+/// no location.
+pub fn finish(
+    tryouts: Vec<Tryout>,
+    tally: Tally,
+    matching: Matching,
+    tolerance: f64,
+) -> Result<Comparison> {
     for k in 1..tryouts.len() {
-        let shared = tracks
-            .iter()
-            .filter(|t| t.at[k - 1].is_some() && t.at[k].is_some())
-            .count();
-        if shared == 0 {
+        if tally.counts.shared[k] == 0 {
             return Err(Error::Usage(no_shared_message(&tryouts, k, matching)));
         }
     }
+    let complete = tally.complete();
+    let (counts, tracks, density) = tally.finish();
     let warnings = read::basis_warnings(&tryouts, matching);
     Ok(Comparison {
         tryouts,
         tracks,
+        counts,
+        complete,
+        density,
         matching,
         tolerance,
         warnings,
@@ -313,30 +361,42 @@ impl Comparison {
         self.tracks.iter().filter(|t| t.status() == Status::Both)
     }
 
-    /// Locations with the given status.
+    /// Locations with the given status (the first [`LIST_CAP`] when not complete).
     pub fn with_status(&self, s: Status) -> Vec<&Track> {
-        self.tracks.iter().filter(|t| t.status() == s).collect()
+        self.capped(self.tracks.iter().filter(|t| t.status() == s).collect())
+    }
+
+    /// The first [`LIST_CAP`] of a list when the comparison does not hold every location (each
+    /// list's first [`LIST_CAP`] are among the tracks kept; more may be, for other lists).
+    fn capped<'a>(&self, mut v: Vec<&'a Track>) -> Vec<&'a Track> {
+        if !self.complete {
+            v.truncate(LIST_CAP);
+        }
+        v
+    }
+
+    /// How many locations have the given status (of all, not only those kept).
+    pub fn status_count(&self, s: Status) -> usize {
+        self.counts.status[status_index(s)]
     }
 
     /// How many locations went from zone `from` to zone `to` (last two tryouts).
     pub fn transitions(&self, from: Zone, to: Zone) -> usize {
-        self.both()
-            .filter(|t| t.zones() == Some((from, to)))
-            .count()
+        self.counts.transitions[zone_index(from)][zone_index(to)]
     }
 
     /// How many locations changed each way.
     pub fn change_count(&self, c: Change) -> usize {
-        self.both()
-            .filter(|t| t.change(self.tolerance) == Some(c))
-            .count()
+        self.counts.change[change_index(c)]
     }
 
     /// Locations failed now that were not failed before.
     pub fn newly_failed(&self) -> Vec<&Track> {
-        self.both()
-            .filter(|t| matches!(t.zones(), Some((b, Zone::Failed)) if b != Zone::Failed))
-            .collect()
+        self.capped(
+            self.both()
+                .filter(|t| matches!(t.zones(), Some((b, Zone::Failed)) if b != Zone::Failed))
+                .collect(),
+        )
     }
 
     /// Locations failed or marginal now and in a better zone before, worst first.
@@ -346,26 +406,41 @@ impl Comparison {
             .filter(|t| matches!(t.zones(), Some((b, a)) if at_risk(a) && a < b))
             .collect();
         v.sort_by_key(|t| t.after().map(|r| r.zone));
-        v
+        self.capped(v)
     }
 
     /// Locations failed or marginal before and neither now.
     pub fn fixed(&self) -> Vec<&Track> {
-        self.both()
-            .filter(|t| matches!(t.zones(), Some((b, a)) if at_risk(b) && !at_risk(a)))
-            .collect()
+        self.capped(
+            self.both()
+                .filter(|t| matches!(t.zones(), Some((b, a)) if at_risk(b) && !at_risk(a)))
+                .collect(),
+        )
     }
 
     /// Locations measured only in the last tryout and failed (or, with `marginal`, failed or
     /// marginal) there: nothing shows they were better before.
     pub fn at_risk_only_after(&self, marginal: bool) -> Vec<&Track> {
-        self.with_status(Status::OnlyAfter)
-            .into_iter()
-            .filter(|t| {
-                t.after()
-                    .is_some_and(|r| r.zone == Zone::Failed || (marginal && at_risk(r.zone)))
-            })
-            .collect()
+        self.capped(
+            self.tracks
+                .iter()
+                .filter(|t| t.status() == Status::OnlyAfter)
+                .filter(|t| {
+                    t.after()
+                        .is_some_and(|r| r.zone == Zone::Failed || (marginal && at_risk(r.zone)))
+                })
+                .collect(),
+        )
+    }
+
+    /// How many locations are measured only in the last tryout and failed (or, with
+    /// `marginal`, failed or marginal) there.
+    pub fn at_risk_only_after_count(&self, marginal: bool) -> usize {
+        if marginal {
+            self.counts.at_risk_only_after
+        } else {
+            self.counts.failed_only_after
+        }
     }
 
     fn by_margin_change(&self, sign: f64) -> Vec<&Track> {
@@ -378,7 +453,7 @@ impl Comparison {
             .collect();
         let key = |t: &&Track| t.margin_change().unwrap_or(0.0) * sign;
         v.sort_by(|a, b| key(b).total_cmp(&key(a)));
-        v
+        self.capped(v)
     }
 
     /// Locations whose margin fell by more than the tolerance, largest loss first.
@@ -395,10 +470,8 @@ impl Comparison {
     pub fn zone_counts(&self, k: usize) -> Vec<(Zone, usize)> {
         Zone::ALL
             .iter()
-            .map(|z| {
-                let n = self.tryouts[k].rows.iter().filter(|r| r.zone == *z).count();
-                (*z, n)
-            })
+            .zip(self.tryouts[k].stats.zones)
+            .map(|(z, n)| (*z, n))
             .collect()
     }
 
@@ -411,7 +484,7 @@ impl Comparison {
         {
             return v;
         }
-        let n = |z: Zone| self.tryouts[k].rows.iter().any(|r| r.zone == z);
+        let n = |z: Zone| self.tryouts[k].stats.zones[zone_index(z)] > 0;
         let v = if n(Zone::Failed) {
             "fail"
         } else if n(Zone::Marginal) {
@@ -458,6 +531,7 @@ mod tests {
             label: label.into(),
             rows,
             summary: None,
+            stats: TryoutStats::default(),
         }
     }
 

@@ -48,7 +48,7 @@ pub fn summary(c: &Comparison) -> Value {
                 "label": t.label, "file": t.path.display().to_string(),
                 "part": s.part, "die": s.die, "date": s.date, "curve": s.curve,
                 "safety_band_pct": s.band, "verdict": c.verdict(k),
-                "locations": t.rows.len(), "zones": zones(c.zone_counts(k)),
+                "locations": t.stats.locations, "zones": zones(c.zone_counts(k)),
             })
         })
         .collect();
@@ -65,23 +65,23 @@ pub fn summary(c: &Comparison) -> Value {
         Matching::Id => json!({ "by": "id" }),
         Matching::Xy { within } => json!({ "by": "xy", "within": within }),
     };
-    json!({
+    let mut v = json!({
         "tool": { "name": "neckline", "version": env!("CARGO_PKG_VERSION") },
         "tryouts": tryouts,
         "compared": { "before": before, "after": after },
         "matching": matching,
         "tolerance_pct": c.tolerance,
         "counts": {
-            "both": c.with_status(Status::Both).len(),
-            "only_before": c.with_status(Status::OnlyBefore).len(),
-            "only_after": c.with_status(Status::OnlyAfter).len(),
-            "only_earlier": c.with_status(Status::OnlyEarlier).len(),
+            "both": c.status_count(Status::Both),
+            "only_before": c.status_count(Status::OnlyBefore),
+            "only_after": c.status_count(Status::OnlyAfter),
+            "only_earlier": c.status_count(Status::OnlyEarlier),
             "improved": c.change_count(Change::Improved),
             "worsened": c.change_count(Change::Worsened),
             "unchanged": c.change_count(Change::Unchanged),
-            "newly_failed": c.newly_failed().len(),
-            "newly_at_risk": c.newly_at_risk().len(),
-            "fixed": c.fixed().len(),
+            "newly_failed": c.counts.newly_failed,
+            "newly_at_risk": c.counts.newly_at_risk,
+            "fixed": c.counts.fixed,
         },
         "transitions": transitions,
         "newly_failed": list(c, c.newly_failed()),
@@ -95,7 +95,32 @@ pub fn summary(c: &Comparison) -> Value {
         "at_risk_only_after": list(c, c.at_risk_only_after(true)),
         "warnings": c.warnings,
         "caution": CAUTION,
-    })
+    });
+    if !c.complete {
+        capped_keys(c, &mut v);
+    }
+    v
+}
+
+/// Beyond [`crate::summary::KEEP_ALL`] locations each list holds its first
+/// [`crate::capped::LIST_CAP`]: `list_cap` says so, and `counts` gains the length of every
+/// list (those above hold lists' lengths already).
+fn capped_keys(c: &Comparison, v: &mut Value) {
+    let n = &c.counts;
+    if let Some(m) = v.as_object_mut() {
+        m.insert("list_cap".into(), json!(crate::capped::LIST_CAP));
+    }
+    if let Some(m) = v["counts"].as_object_mut() {
+        for (k, n) in [
+            ("losses", n.losses),
+            ("gains", n.gains),
+            ("at_risk_only_after", n.at_risk_only_after),
+            ("still_at_risk", n.still_at_risk),
+            ("left_failed", n.left_failed),
+        ] {
+            m.insert(k.into(), json!(n));
+        }
+    }
 }
 
 /// Write compare.json, pretty-printed.

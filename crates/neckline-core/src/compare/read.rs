@@ -69,10 +69,94 @@ pub struct Tryout {
     pub path: PathBuf,
     /// Short name: the job's tryout, else the folder's name, else the input number.
     pub label: String,
-    /// Its locations, in file order.
+    /// Its locations, in file order, when read whole ([`read_tryout`]); a comparison takes
+    /// them into its tracks and leaves this empty.
     pub rows: Vec<ResultRow>,
     /// The summary beside it, if any.
     pub summary: Option<RecordedSummary>,
+    /// What the outputs need of all its rows.
+    pub stats: TryoutStats,
+}
+
+/// What the outputs need of every row of one tryout, in bounded memory.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct TryoutStats {
+    /// How many locations.
+    pub locations: usize,
+    /// Locations per zone, in [`Zone::ALL`] order.
+    pub zones: [usize; 6],
+    /// (minor, limit major) of its locations, engineering percent: every one while there are
+    /// few, else thinned to one per [`LIMIT_STEP_PCT`] of minor strain. Sorted by minor strain
+    /// once [`TryoutStats::finish`] ran.
+    pub limit: Vec<(f64, f64)>,
+    /// Smallest and largest minor strain, and major strain, percent.
+    pub strains: Option<Extent>,
+    /// Smallest and largest x, and y, of the locations that have both.
+    pub places: Option<Extent>,
+}
+
+/// Smallest and largest of two quantities: `((x0, x1), (y0, y1))`.
+pub type Extent = ((f64, f64), (f64, f64));
+
+/// Minor-strain step of the limit samples kept beyond [`crate::summary::KEEP_ALL`] rows, pp.
+pub const LIMIT_STEP_PCT: f64 = 0.05;
+
+fn widen(e: &mut Option<Extent>, p: (f64, f64)) {
+    let ((x0, x1), (y0, y1)) = e.get_or_insert(((p.0, p.0), (p.1, p.1)));
+    *x0 = x0.min(p.0);
+    *x1 = x1.max(p.0);
+    *y0 = y0.min(p.1);
+    *y1 = y1.max(p.1);
+}
+
+impl TryoutStats {
+    /// Fold in one row.
+    pub fn fold(&mut self, r: &ResultRow) {
+        self.locations += 1;
+        self.zones[Zone::ALL.iter().position(|&z| z == r.zone).unwrap_or(0)] += 1;
+        if let Some(l) = r.limit_pct {
+            self.limit.push((r.minor_pct, l));
+            if self.limit.len() > 2 * crate::summary::KEEP_ALL {
+                self.thin();
+            }
+        }
+        widen(&mut self.strains, (r.minor_pct, r.major_pct));
+        if let Some(xy) = r.xy() {
+            widen(&mut self.places, xy);
+        }
+    }
+
+    fn sort(&mut self) {
+        self.limit.sort_by(|a, b| a.0.total_cmp(&b.0));
+        self.limit.dedup_by(|a, b| (a.0 - b.0).abs() < 1e-6);
+    }
+
+    fn thin(&mut self) {
+        self.sort();
+        if self.limit.len() > crate::summary::KEEP_ALL {
+            let bin = |p: &(f64, f64)| (p.0 / LIMIT_STEP_PCT).floor() as i64;
+            self.limit.dedup_by(|a, b| bin(a) == bin(b));
+        }
+    }
+
+    /// Sort the limit samples (after the last row).
+    pub fn finish(&mut self) {
+        if self.limit.len() > crate::summary::KEEP_ALL {
+            self.thin();
+        } else {
+            self.sort();
+        }
+    }
+
+    /// The stats of rows read whole.
+    pub fn of(rows: &[ResultRow]) -> Self {
+        let mut s = TryoutStats::default();
+        for r in rows {
+            s.fold(r);
+        }
+        s.finish();
+        s
+    }
 }
 
 const NEEDED: [&str; 5] = ["id", "major_eng_pct", "minor_eng_pct", "margin_pct", "zone"];
@@ -81,18 +165,26 @@ const OPTIONAL: [&str; 3] = ["limit_major_eng_pct", "x", "y"];
 /// Read a `points.csv` written by `check`, its summary and a label (`number` counts from 1).
 pub fn read_tryout(path: &Path, number: usize) -> Result<Tryout> {
     let rows = read_results(path)?;
+    let mut t = tryout_of(path, number);
+    t.rows = rows;
+    Ok(t)
+}
+
+/// A tryout without its rows: its path, label and summary.
+pub fn tryout_of(path: &Path, number: usize) -> Tryout {
     let summary = read_summary(path);
     let label = summary
         .as_ref()
         .and_then(|s| s.tryout.clone())
         .or_else(|| file_label(path))
         .unwrap_or_else(|| format!("tryout {number}"));
-    Ok(Tryout {
+    Tryout {
         path: path.to_path_buf(),
         label,
-        rows,
+        rows: Vec::new(),
         summary,
-    })
+        stats: TryoutStats::default(),
+    }
 }
 
 /// A label from the path: the folder of a `points.csv` (as `check --out` names it), else the
@@ -127,7 +219,52 @@ pub fn read_results(path: &Path) -> Result<Vec<ResultRow>> {
 /// refused whole at its first bad row (a comparison needs every location): a field longer than
 /// [`crate::measure::MAX_FIELD_BYTES`], a row of more than [`crate::measure::MAX_FIELDS`]
 /// fields, a number that is not finite, an empty or duplicate id, an unknown zone.
-pub fn read_results_from(mut input: impl BufRead, path: &Path) -> Result<Vec<ResultRow>> {
+pub fn read_results_from(input: impl BufRead, path: &Path) -> Result<Vec<ResultRow>> {
+    let loc = Location::file(path);
+    let mut rows = Vec::new();
+    let mut seen = HashSet::new();
+    for_each_row(input, path, |line, row| {
+        if !seen.insert(row.id.clone()) {
+            return Err(duplicate(&loc, line, row.id_column, &row.row.id));
+        }
+        rows.push(row.row);
+        Ok(())
+    })?;
+    Ok(rows)
+}
+
+/// One row as read, with the column of its id (for messages).
+#[derive(Debug, Clone, PartialEq)]
+pub struct ReadRow {
+    /// The values.
+    pub row: ResultRow,
+    /// Column of the id, counted from 1.
+    pub id_column: u64,
+}
+
+impl std::ops::Deref for ReadRow {
+    type Target = ResultRow;
+    fn deref(&self) -> &ResultRow {
+        &self.row
+    }
+}
+
+/// The error of an id met twice in one file.
+pub fn duplicate(loc: &Location, line: u64, column: u64, id: &str) -> Error {
+    Error::input(
+        loc.clone().at_line(line).at_column(column, "id"),
+        format!("duplicate id `{id}`: a location can be compared only once"),
+    )
+}
+
+/// Read `input` row by row, handing each to `each` with its line: the rows are never held
+/// together. Every check of [`read_results_from`] but the duplicate id (which needs every id).
+/// Gives the number of rows.
+pub fn for_each_row(
+    mut input: impl BufRead,
+    path: &Path,
+    mut each: impl FnMut(u64, ReadRow) -> Result<()>,
+) -> Result<usize> {
     let loc = Location::file(path);
     let head = input.fill_buf().map_err(|e| Error::io(path, e))?;
     crate::error::check_text(path, head, false)?;
@@ -141,7 +278,7 @@ pub fn read_results_from(mut input: impl BufRead, path: &Path) -> Result<Vec<Res
     let header_line = prefix.lines().count() as u64;
     let mut rdr = csv::ReaderBuilder::new()
         .delimiter(Dialect::detect(&header).delimiter())
-        .trim(csv::Trim::All)
+        .trim(csv::Trim::Headers)
         .from_reader(Cursor::new(prefix.into_bytes()).chain(input));
     let head = rdr.headers().map_err(|e| csv_error(&loc, e))?.clone();
     let find = |name: &str| head.iter().position(|h| h == name);
@@ -167,68 +304,77 @@ pub fn read_results_from(mut input: impl BufRead, path: &Path) -> Result<Vec<Res
         })?;
     }
     let opt = OPTIONAL.map(find);
-    let mut rows = Vec::new();
-    let mut seen = HashSet::new();
-    for rec in rdr.records() {
-        let rec = rec.map_err(|e| csv_error(&loc, e))?;
+    let mut n = 0;
+    let mut rec = csv::StringRecord::new();
+    while rdr.read_record(&mut rec).map_err(|e| csv_error(&loc, e))? {
         let line = rec.position().map_or(0, |p| p.line());
-        check_size(&rec, &loc.clone().at_line(line))?;
-        let at = |i: usize, name: &str| loc.clone().at_line(line).at_column(i as u64 + 1, name);
-        let number = |i: usize, name: &str| -> Result<Option<f64>> {
-            match rec.get(i).unwrap_or("") {
-                "" => Ok(None),
-                t => match parse_number(t, Dialect::Comma) {
-                    Ok(v) if v.abs() > 1e9 => Err(Error::input(
-                        at(i, name),
-                        format!("{v:e} is beyond ±1e9: not a value `check` writes"),
-                    )),
-                    r => r.map(Some).map_err(|m| Error::input(at(i, name), m)),
-                },
-            }
-        };
-        let required = |k: usize| -> Result<f64> {
-            number(idx[k], NEEDED[k])?.ok_or_else(|| {
-                Error::input(at(idx[k], NEEDED[k]), "expected a number, found nothing")
-            })
-        };
-        let optional = |k: usize| -> Result<Option<f64>> {
-            opt[k].map_or(Ok(None), |i| number(i, OPTIONAL[k]))
-        };
-        let id = rec.get(idx[0]).unwrap_or("").to_string();
-        if id.is_empty() {
-            return Err(Error::input(
-                at(idx[0], "id"),
-                "empty id: every location needs one",
-            ));
-        }
-        if !seen.insert(id.clone()) {
-            return Err(Error::input(
-                at(idx[0], "id"),
-                format!("duplicate id `{id}`: a location can be compared only once"),
-            ));
-        }
-        rows.push(ResultRow {
-            id,
-            major_pct: required(1)?,
-            minor_pct: required(2)?,
-            margin_pct: number(idx[3], NEEDED[3])?,
-            limit_pct: optional(0)?,
-            zone: rec
-                .get(idx[4])
-                .unwrap_or("")
-                .parse()
-                .map_err(|m: String| Error::input(at(idx[4], "zone"), m))?,
-            x: optional(1)?,
-            y: optional(2)?,
-        });
+        let row = one_row(&rec, &loc, line, &idx, &opt)?;
+        each(line, row)?;
+        n += 1;
     }
-    if rows.is_empty() {
+    if n == 0 {
         return Err(Error::input(
             loc.at_line(header_line),
             "no location after the header: nothing to compare",
         ));
     }
-    Ok(rows)
+    Ok(n)
+}
+
+fn one_row(
+    rec: &csv::StringRecord,
+    loc: &Location,
+    line: u64,
+    idx: &[usize; 5],
+    opt: &[Option<usize>; 3],
+) -> Result<ReadRow> {
+    check_size(rec, &loc.clone().at_line(line))?;
+    let at = |i: usize, name: &str| loc.clone().at_line(line).at_column(i as u64 + 1, name);
+    let number = |i: usize, name: &str| -> Result<Option<f64>> {
+        match rec.get(i).unwrap_or("").trim() {
+            "" => Ok(None),
+            t => match parse_number(t, Dialect::Comma) {
+                Ok(v) if v.abs() > 1e9 => Err(Error::input(
+                    at(i, name),
+                    format!("{v:e} is beyond ±1e9: not a value `check` writes"),
+                )),
+                r => r.map(Some).map_err(|m| Error::input(at(i, name), m)),
+            },
+        }
+    };
+    let required = |k: usize| -> Result<f64> {
+        number(idx[k], NEEDED[k])?
+            .ok_or_else(|| Error::input(at(idx[k], NEEDED[k]), "expected a number, found nothing"))
+    };
+    let optional =
+        |k: usize| -> Result<Option<f64>> { opt[k].map_or(Ok(None), |i| number(i, OPTIONAL[k])) };
+    // Fields are trimmed here, one by one (the reader trims the header only).
+    let id = rec.get(idx[0]).unwrap_or("").trim().to_string();
+    if id.is_empty() {
+        return Err(Error::input(
+            at(idx[0], "id"),
+            "empty id: every location needs one",
+        ));
+    }
+    let row = ResultRow {
+        id,
+        major_pct: required(1)?,
+        minor_pct: required(2)?,
+        margin_pct: number(idx[3], NEEDED[3])?,
+        limit_pct: optional(0)?,
+        zone: rec
+            .get(idx[4])
+            .unwrap_or("")
+            .trim()
+            .parse()
+            .map_err(|m: String| Error::input(at(idx[4], "zone"), m))?,
+        x: optional(1)?,
+        y: optional(2)?,
+    };
+    Ok(ReadRow {
+        row,
+        id_column: idx[0] as u64 + 1,
+    })
 }
 
 /// Refuse a row with a field too long or too many fields: a mangled file, not a result.
@@ -331,10 +477,32 @@ fn same_file(a: &Path, b: &Path) -> bool {
     }
 }
 
+/// Whether two files hold the same bytes, read a block at a time.
 fn same_bytes(a: &Path, b: &Path) -> bool {
-    match (std::fs::read(a), std::fs::read(b)) {
-        (Ok(x), Ok(y)) => x == y,
-        _ => false,
+    let open = |p: &Path| std::fs::File::open(p).ok();
+    let (Some(fa), Some(fb)) = (open(a), open(b)) else {
+        return false;
+    };
+    let len = |f: &std::fs::File| f.metadata().map(|m| m.len()).ok();
+    if len(&fa).is_none() || len(&fa) != len(&fb) {
+        return false;
+    }
+    let (mut ra, mut rb) = (
+        std::io::BufReader::with_capacity(1 << 16, fa),
+        std::io::BufReader::with_capacity(1 << 16, fb),
+    );
+    let (mut x, mut y) = (vec![0u8; 1 << 16], vec![0u8; 1 << 16]);
+    loop {
+        let n = match ra.read(&mut x) {
+            Ok(n) => n,
+            Err(_) => return false,
+        };
+        if n == 0 {
+            return true;
+        }
+        if rb.read_exact(&mut y[..n]).is_err() || x[..n] != y[..n] {
+            return false;
+        }
     }
 }
 

@@ -61,13 +61,32 @@ impl Record {
         labels: &[String],
         job: Option<(&Job, &Path)>,
     ) -> io::Result<Self> {
+        Self::with_digests(inputs, &[], labels, job)
+    }
+
+    /// As [`Record::new`], with the SHA-256 of some inputs already known (`known[k]` that of
+    /// `inputs[k]`, when `Some`), so that a large file is not read again.
+    pub fn with_digests(
+        inputs: &[PathBuf],
+        known: &[Option<String>],
+        labels: &[String],
+        job: Option<(&Job, &Path)>,
+    ) -> io::Result<Self> {
         let mut digests = Vec::new();
         for (k, p) in inputs.iter().enumerate() {
             let label = labels
                 .get(k)
                 .cloned()
                 .unwrap_or_else(|| format!("{}", k + 1));
-            digests.push(digest_of(format!("points {label}"), p)?);
+            let role = format!("points {label}");
+            match known.get(k).cloned().flatten() {
+                Some(sha256) => digests.push(InputDigest {
+                    role,
+                    path: p.clone(),
+                    sha256,
+                }),
+                None => digests.push(digest_of(role, p)?),
+            }
             let summary = p.with_file_name("summary.json");
             if summary.is_file() {
                 digests.push(digest_of(format!("summary {label}"), &summary)?);
@@ -109,6 +128,9 @@ impl Comparison {
             };
             z(ra).cmp(&z(rb)).then(m(ra).total_cmp(&m(rb)))
         });
+        if !self.complete {
+            v.truncate(crate::capped::LIST_CAP);
+        }
         v
     }
 
@@ -126,6 +148,7 @@ impl Comparison {
                 .filter(|t| {
                     matches!(t.zones(), Some((crate::assess::Zone::Failed, a)) if a != crate::assess::Zone::Failed)
                 })
+                .take(if self.complete { usize::MAX } else { crate::capped::LIST_CAP })
                 .collect(),
         ];
         for t in lists.into_iter().flatten() {
@@ -162,6 +185,7 @@ mod tests {
             label: label.into(),
             rows,
             summary: None,
+            stats: Default::default(),
         }
     }
 

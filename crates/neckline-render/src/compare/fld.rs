@@ -14,7 +14,8 @@ use crate::chart::legend::{Entries, Key, Legend, Row, LINES};
 use crate::chart::{self, PANEL_LEFT, SIZE, TITLE_H};
 use crate::plot::{self, marker, palette, zone_colour, zone_shape, DrawResult};
 use neckline_core::compare::csv_out::latest;
-use neckline_core::compare::{count, Change, Comparison, Track};
+use neckline_core::compare::tally::{Density, Grid};
+use neckline_core::compare::{count, Change, Comparison, Status, Track};
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::io;
@@ -22,6 +23,21 @@ use std::io;
 /// How many of the largest losses, and of the largest gains, carry their id (every newly
 /// failed or marginal location does too).
 pub const LABELLED: usize = 6;
+
+/// Labels drawn at most when the comparison does not hold every location (the largest losses
+/// and gains, then the newly failed or marginal, worst first): more would hide the picture.
+/// compare.html lists every one up to its cap.
+pub const LABELS_AT_SCALE: usize = 40;
+
+/// The locations the pictures label: [`Comparison::labelled`], the first
+/// [`LABELS_AT_SCALE`] of them beyond the locations drawn one by one.
+pub fn labelled(c: &Comparison) -> Vec<&Track> {
+    let mut v = c.labelled(LABELLED);
+    if c.density.is_some() {
+        v.truncate(LABELS_AT_SCALE);
+    }
+    v
+}
 
 /// Labelled locations listed in the legend at most.
 const LEGEND_LABELS: usize = 16;
@@ -48,14 +64,9 @@ pub fn fld_png(c: &Comparison) -> io::Result<Vec<u8>> {
 
 /// The limit line of the last tryout: (minor, limit major), engineering percent, by minor.
 pub fn limit_samples(c: &Comparison) -> Vec<(f64, f64)> {
-    let last = c.tryouts.last().map_or(&[][..], |t| &t.rows[..]);
-    let mut v: Vec<(f64, f64)> = last
-        .iter()
-        .filter_map(|r| Some((r.minor_pct, r.limit_pct?)))
-        .collect();
-    v.sort_by(|a, b| a.0.total_cmp(&b.0));
-    v.dedup_by(|a, b| (a.0 - b.0).abs() < 1e-6);
-    v
+    c.tryouts
+        .last()
+        .map_or_else(Vec::new, |t| t.stats.limit.clone())
 }
 
 fn band(c: &Comparison) -> Option<f64> {
@@ -70,12 +81,13 @@ fn positions(t: &Track) -> Vec<(f64, f64)> {
 }
 
 fn ranges(c: &Comparison) -> ((f64, f64), (f64, f64)) {
-    let pts: Vec<(f64, f64)> = c
-        .tracks
+    // Every location's every position lies within the extents of the tryouts' strains.
+    let corners = c
+        .tryouts
         .iter()
-        .flat_map(positions)
-        .chain(limit_samples(c))
-        .collect();
+        .filter_map(|t| t.stats.strains)
+        .flat_map(|((x0, x1), (y0, y1))| [(x0, y0), (x1, y1)]);
+    let pts: Vec<(f64, f64)> = corners.chain(limit_samples(c)).collect();
     let lo_hi = |f: fn(&(f64, f64)) -> f64| {
         pts.iter()
             .map(f)
@@ -102,7 +114,7 @@ pub fn title_lines(c: &Comparison, what: &str) -> (String, String, String) {
     }
     second.push(format!(
         "{} in both of the last two",
-        count(c.both().count(), "location")
+        count(c.status_count(Status::Both), "location")
     ));
     let curve = last.curve.unwrap_or_else(|| "not recorded".into());
     (
@@ -180,8 +192,18 @@ fn draw_tracks<DB: DrawingBackend>(
         Some(Change::Worsened),
     ];
     let earlier = RGBColor(110, 110, 110);
+    // Beyond the locations drawn one by one: the density of every location, and arrows for
+    // the labelled ones only.
+    let labelled = labelled(c);
+    let drawn: Vec<&Track> = match &c.density {
+        Some(d) => {
+            draw_density(root, d, px)?;
+            labelled
+        }
+        None => c.tracks.iter().collect(),
+    };
     for want in order {
-        for t in c.tracks.iter().filter(|t| t.change(c.tolerance) == want) {
+        for t in drawn.iter().filter(|t| t.change(c.tolerance) == want) {
             let pts: Vec<(i32, i32)> = positions(t).into_iter().map(px).collect();
             let colour = change_colour(want);
             if pts.len() >= 2 {
@@ -218,6 +240,46 @@ fn draw_tracks<DB: DrawingBackend>(
     Ok(())
 }
 
+/// Shade of a cell holding `n` of at most `most` locations: 0.25 for one, 1 for the fullest
+/// (on a logarithmic scale).
+pub fn shade(n: u32, most: u32) -> f64 {
+    let (n, most) = (n.max(1) as f64, most.max(2) as f64);
+    0.25 + 0.75 * n.ln() / most.ln()
+}
+
+/// Each cell holding a location, in the colour of most of its changes, deeper for more.
+fn draw_density<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    d: &Density,
+    px: &dyn Fn((f64, f64)) -> (i32, i32),
+) -> DrawResult<DB> {
+    let g: &Grid<[u32; 4]> = &d.fld;
+    let most = g
+        .cells
+        .iter()
+        .map(|c| c.iter().sum::<u32>())
+        .max()
+        .unwrap_or(1);
+    let kinds = [
+        None,
+        Some(Change::Unchanged),
+        Some(Change::Improved),
+        Some(Change::Worsened),
+    ];
+    for (k, cell) in g.cells.iter().enumerate() {
+        let n: u32 = cell.iter().sum();
+        if n == 0 {
+            continue;
+        }
+        let main = (0..4).max_by_key(|&i| (cell[i], i)).unwrap_or(0);
+        let colour = change_colour(kinds[main]).mix(shade(n, most));
+        let (a, b) = g.rect(k);
+        let (p, q) = (px((a.0, b.1)), px((b.0, a.1)));
+        root.draw(&Rectangle::new([p, q], colour.filled()))?;
+    }
+    Ok(())
+}
+
 fn draw_loss_labels<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     c: &Comparison,
@@ -225,7 +287,7 @@ fn draw_loss_labels<DB: DrawingBackend>(
     placer: &mut Placer,
 ) -> DrawResult<DB> {
     let style = plot::bold(15.0);
-    for t in c.labelled(LABELLED) {
+    for t in labelled(c) {
         let Some(a) = t.after() else { continue };
         let (text, border) = super::record::label(t, c.tolerance);
         label_box(
@@ -270,6 +332,23 @@ fn legend(c: &Comparison, has_curve: bool, band: Option<f64>) -> Legend {
             .key(dot)
             .left("earlier position", plot::text(14.0), 44),
     );
+    if c.density.is_some() {
+        l.push(Row::text(
+            "cells: every location now, in the colour",
+            plot::text(14.0),
+            20,
+        ));
+        l.push(Row::text(
+            "of most of its changes, deeper for more;",
+            plot::text(14.0),
+            20,
+        ));
+        l.push(Row::text(
+            "arrows: the labelled locations",
+            plot::text(14.0),
+            22,
+        ));
+    }
     l.gap(10);
     l.heading(format!("Zone in {a}"), 16.0, 26);
     let k = c.tryouts.len() - 1;
@@ -290,7 +369,7 @@ fn legend(c: &Comparison, has_curve: bool, band: Option<f64>) -> Legend {
         }
     }
     l.gap(12);
-    let labelled = c.labelled(LABELLED);
+    let labelled = labelled(c);
     if labelled.is_empty() {
         return l;
     }

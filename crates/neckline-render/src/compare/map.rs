@@ -3,13 +3,14 @@
 //! gain blue, within the tolerance grey), shaped by the zone in the last tryout; the largest
 //! losses carry their id. Locations measured in one tryout only are open grey rings.
 
-use super::fld::{draw_footer, draw_title, title_lines, LABELLED};
+use super::fld::{draw_footer, draw_title, labelled, title_lines};
 use crate::chart::frame::{Frame, Look};
 use crate::chart::label::{label_box, Placer};
 use crate::chart::legend::{Key, Legend, Row};
 use crate::chart::{PANEL_LEFT, SIZE, TITLE_H};
 use crate::plot::{self, marker, zone_shape, DrawResult};
 use neckline_core::compare::csv_out::latest;
+use neckline_core::compare::tally::{Grid, MapCell};
 use neckline_core::compare::{Comparison, Track};
 use plotters::coord::Shift;
 use plotters::prelude::*;
@@ -23,9 +24,17 @@ pub fn placed(c: &Comparison) -> Vec<(&Track, (f64, f64))> {
         .collect()
 }
 
+/// Whether any location has `x, y` (then the map is drawn).
+pub fn has_places(c: &Comparison) -> bool {
+    match c.density.as_ref().and_then(|d| d.map.as_ref()) {
+        Some(g) => g.cells.iter().any(|k| k.count > 0),
+        None => !placed(c).is_empty(),
+    }
+}
+
 /// The map as SVG, or `None` when no location has `x, y`.
 pub fn map_svg(c: &Comparison) -> io::Result<Option<String>> {
-    if placed(c).is_empty() {
+    if !has_places(c) {
         return Ok(None);
     }
     plot::render_svg(SIZE, |root| draw(root, c)).map(Some)
@@ -33,7 +42,7 @@ pub fn map_svg(c: &Comparison) -> io::Result<Option<String>> {
 
 /// The map as PNG, or `None` when no location has `x, y`.
 pub fn map_png(c: &Comparison) -> io::Result<Option<Vec<u8>>> {
-    if placed(c).is_empty() {
+    if !has_places(c) {
         return Ok(None);
     }
     plot::render_png(SIZE, |root| draw(root, c)).map(Some)
@@ -64,10 +73,7 @@ const ONE_ONLY: ShapeStyle = ShapeStyle {
 impl ChangeScale {
     /// A scale that holds every change of `c`, at least ±5 pp, in steps of 5.
     pub fn of(c: &Comparison) -> Self {
-        let most = c
-            .both()
-            .filter_map(Track::margin_change)
-            .fold(5.0f64, |m, d| m.max(d.abs()));
+        let most = c.counts.most_change.max(5.0);
         ChangeScale {
             reach: (most / 5.0).ceil() * 5.0,
             tolerance: c.tolerance,
@@ -117,8 +123,19 @@ fn unit(c: &Comparison) -> String {
 
 fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &Comparison) -> DrawResult<DB> {
     root.fill(&WHITE)?;
-    let at = placed(c);
-    let pts: Vec<(f64, f64)> = at.iter().map(|(_, xy)| *xy).collect();
+    let grid = c.density.as_ref().and_then(|d| d.map.as_ref());
+    // Beyond the locations drawn one by one: cells, and markers for the labelled ones only.
+    let at: Vec<(&Track, (f64, f64))> = match grid {
+        Some(_) => labelled(c)
+            .into_iter()
+            .filter_map(|t| Some((t, latest(t).xy()?)))
+            .collect(),
+        None => placed(c),
+    };
+    let pts: Vec<(f64, f64)> = match grid {
+        Some(g) => vec![(g.x.0, g.y.0), (g.x.1, g.y.1)],
+        None => at.iter().map(|(_, xy)| *xy).collect(),
+    };
     let (plot_w, plot_h) = Look::Map.plot_size();
     let (xr, yr) = equal_ranges(&pts, plot_w, plot_h);
     let u = unit(c);
@@ -133,6 +150,9 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &Comparison) -> Dr
     let px = |p: (f64, f64)| plot.px(p);
     let scale = ChangeScale::of(c);
     let mut placer = plot.placer();
+    if let Some(g) = grid {
+        draw_cells(root, g, &scale, &px)?;
+    }
     // Largest changes last, so that they are on top.
     let mut order = at.clone();
     order.sort_by(|a, b| {
@@ -162,6 +182,35 @@ fn draw<DB: DrawingBackend>(root: &DrawingArea<DB, Shift>, c: &Comparison) -> Dr
     draw_footer(root, c)
 }
 
+/// The colour of a cell: its largest loss beyond the tolerance, else its largest gain, else
+/// within; a cell of locations measured in one tryout only is the grey of those.
+pub fn cell_colour(k: &MapCell, scale: &ChangeScale) -> RGBColor {
+    if k.both == 0 {
+        RGBColor(200, 200, 200)
+    } else if k.lowest < -scale.tolerance {
+        scale.colour(k.lowest)
+    } else {
+        scale.colour(k.highest)
+    }
+}
+
+fn draw_cells<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    g: &Grid<MapCell>,
+    scale: &ChangeScale,
+    px: &dyn Fn((f64, f64)) -> (i32, i32),
+) -> DrawResult<DB> {
+    for (k, cell) in g.cells.iter().enumerate() {
+        if cell.count == 0 {
+            continue;
+        }
+        let (a, b) = g.rect(k);
+        let (p, q) = (px((a.0, b.1)), px((b.0, a.1)));
+        root.draw(&Rectangle::new([p, q], cell_colour(cell, scale).filled()))?;
+    }
+    Ok(())
+}
+
 fn draw_labels<DB: DrawingBackend>(
     root: &DrawingArea<DB, Shift>,
     c: &Comparison,
@@ -169,8 +218,7 @@ fn draw_labels<DB: DrawingBackend>(
     placer: &mut Placer,
 ) -> DrawResult<DB> {
     let style = plot::bold(15.0);
-    let shown = c
-        .labelled(LABELLED)
+    let shown = labelled(c)
         .into_iter()
         .filter_map(|t| Some((t, latest(t).xy()?)));
     for (t, xy) in shown {
@@ -255,6 +303,18 @@ fn draw_scale<DB: DrawingBackend>(
             .key(plus)
             .left("measured in one of the two only", text(), 24),
     );
+    if c.density.is_some() {
+        l.push(Row::text(
+            "cells: the largest loss of their locations,",
+            text(),
+            20,
+        ));
+        l.push(Row::text(
+            "else the largest gain; shapes: the labelled",
+            text(),
+            22,
+        ));
+    }
     l.heading(format!("Shape: zone in {a}"), 16.0, 26);
     let k = c.tryouts.len() - 1;
     for (zone, n) in c.zone_counts(k).into_iter().filter(|(_, n)| *n > 0) {

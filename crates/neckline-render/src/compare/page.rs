@@ -3,7 +3,7 @@
 //! inline CSS and SVG only, no script, nothing fetched. Each section starts on a new printed
 //! page, with the running header and "page N of M"; the paper size is the printer's.
 
-use super::fld::{change_colour, fld_svg, LABELLED};
+use super::fld::{change_colour, fld_svg, LABELLED, LABELS_AT_SCALE};
 use super::map::map_svg;
 use super::record;
 use crate::page::{self, Badges};
@@ -91,9 +91,9 @@ fn verdicts(c: &Comparison) -> Markup {
             }
         }
         p {
-            (count(c.with_status(Status::Both).len(), "location")) " in both " (b) " and " (a) "; "
-            (c.with_status(Status::OnlyBefore).len()) " only in " (b) ", "
-            (c.with_status(Status::OnlyAfter).len()) " only in " (a) "."
+            (count(c.status_count(Status::Both), "location")) " in both " (b) " and " (a) "; "
+            (c.status_count(Status::OnlyBefore)) " only in " (b) ", "
+            (c.status_count(Status::OnlyAfter)) " only in " (a) "."
         }
         p {
             "Margin: "
@@ -101,8 +101,8 @@ fn verdicts(c: &Comparison) -> Markup {
             ", "
             span.chg style=(format!("color:{}", hex(change_colour(Some(Change::Worsened))))) { (c.change_count(Change::Worsened)) " worsened" }
             ", " (c.change_count(Change::Unchanged)) " unchanged. "
-            (count(c.newly_at_risk().len(), "location")) " newly failed or marginal, "
-            (c.fixed().len()) " no longer failed or marginal."
+            (count(c.counts.newly_at_risk, "location")) " newly failed or marginal, "
+            (c.counts.fixed) " no longer failed or marginal."
         }
     }
 }
@@ -168,7 +168,7 @@ fn change_table(c: &Comparison, v: &[&Track], bd: &Badges, empty: &str) -> Marku
 fn losses_gains(c: &Comparison, bd: &Badges) -> Markup {
     let losses = c.losses();
     let gains = c.gains();
-    let (nl, ng) = (losses.len(), gains.len());
+    let (nl, ng) = (c.counts.losses, c.counts.gains);
     let losses: Vec<&Track> = losses.into_iter().take(TABLE_ROWS).collect();
     let gains: Vec<&Track> = gains.into_iter().take(TABLE_ROWS).collect();
     html! {
@@ -206,20 +206,21 @@ fn one_sided_table(v: &[&Track], bd: &Badges) -> Markup {
 
 fn one_sided(c: &Comparison, bd: &Badges) -> Markup {
     let (b, a) = c.labels();
-    let groups: Vec<(String, Vec<&Track>)> = [
+    let groups: Vec<(String, Vec<&Track>, usize)> = [
         (Status::OnlyBefore, format!("Only in {b}")),
         (Status::OnlyAfter, format!("Only in {a}")),
         (Status::OnlyEarlier, "Only in earlier tryouts".to_string()),
     ]
     .into_iter()
-    .map(|(st, what)| (what, c.with_status(st)))
-    .filter(|(_, v)| !v.is_empty())
+    .map(|(st, what)| (what, c.with_status(st), c.status_count(st)))
+    .filter(|(_, v, _)| !v.is_empty())
     .collect();
     html! {
         h2 { "Measured in one tryout only" }
-        @for (what, v) in &groups {
-            h3 { (what) " (" (count(v.len(), "location")) ")" }
+        @for (what, v, n) in &groups {
+            h3 { (what) " (" (count(*n, "location")) ")" }
             (one_sided_table(v, bd))
+            (super::record::rest_note(v.len(), *n))
         }
         @if groups.is_empty() {
             p { "Every location of " (b) " was measured in " (a) " and the other way round." }
@@ -237,6 +238,12 @@ fn pictures(c: &Comparison) -> io::Result<(Markup, Markup)> {
             "Each arrow runs from a location's earlier strains to its strains in " (a)
             "; colour: change of margin; marker at the head: zone in " (a) "; labelled: the "
             (LABELLED) " largest losses and gains, every location newly failed or marginal and every one that left the failed zone (change in percentage points)."
+        }
+        @if c.density.is_some() {
+            p.note {
+                (count(c.counts.tracks, "location")) ": each cell is shaded in the colour of most of its locations' changes, deeper for more; arrows and labels for the first "
+                (LABELS_AT_SCALE) " labelled only. The lists below name the rest."
+            }
         }
     };
     let map = match map_svg(c)? {

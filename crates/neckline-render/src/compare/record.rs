@@ -119,18 +119,30 @@ pub fn at_risk_section(c: &Comparison, bd: &Badges) -> Markup {
     let fixed = c.fixed();
     html! {
         h2 { "Still at risk" }
-        h3 { "Failed or marginal in " (a) " (" (still.len()) ")" }
+        h3 { "Failed or marginal in " (a) " (" (c.counts.still_at_risk) ")" }
         @if still.is_empty() {
             p.note { "No location is failed or marginal in " (a) "." }
         } @else {
             p.note { "Every location failed or marginal in " (a) ", whatever it was in " (b) ": failed first, then by margin." }
             (risk_table(c, &still, bd))
+            (rest_note(still.len(), c.counts.still_at_risk))
         }
-        h3 { "Fixed: failed or marginal in " (b) ", neither in " (a) " (" (fixed.len()) ")" }
+        h3 { "Fixed: failed or marginal in " (b) ", neither in " (a) " (" (c.counts.fixed) ")" }
         @if fixed.is_empty() {
             p.note { "No location left the failed and marginal zones." }
         } @else {
             (risk_table(c, &fixed, bd))
+            (rest_note(fixed.len(), c.counts.fixed))
+        }
+    }
+}
+
+/// Under a list that holds the first `shown` of `total`: how many more there are and where
+/// every one is (nothing when the list is whole).
+pub fn rest_note(shown: usize, total: usize) -> Markup {
+    html! {
+        @if total > shown {
+            p.note { "The first " (shown) " are listed; " (total - shown) " more are in compare.csv (one row for every location)." }
         }
     }
 }
@@ -140,7 +152,7 @@ pub fn one_sided_empty(c: &Comparison) -> Option<Markup> {
     let (b, a) = c.labels();
     let none = [Status::OnlyBefore, Status::OnlyAfter, Status::OnlyEarlier]
         .iter()
-        .all(|s| c.with_status(*s).is_empty());
+        .all(|s| c.status_count(*s) == 0);
     none.then(|| {
         html! {
             p.note { "Every location of " (b) " was measured in " (a) " and the other way round." }

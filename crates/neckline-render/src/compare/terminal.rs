@@ -32,10 +32,10 @@ pub fn summary(c: &Comparison, show: usize) -> String {
     };
     let line = format!(
         "{how}: {} in both; {} only in {b}, {} only in {a}{}",
-        count(c.with_status(Status::Both).len(), "location"),
-        c.with_status(Status::OnlyBefore).len(),
-        c.with_status(Status::OnlyAfter).len(),
-        match c.with_status(Status::OnlyEarlier).len() {
+        count(c.status_count(Status::Both), "location"),
+        c.status_count(Status::OnlyBefore),
+        c.status_count(Status::OnlyAfter),
+        match c.status_count(Status::OnlyEarlier) {
             0 => String::new(),
             e => format!(", {e} only in earlier tryouts"),
         }
@@ -51,13 +51,15 @@ pub fn summary(c: &Comparison, show: usize) -> String {
     );
     transition_table(&mut s, c);
     let risk = c.newly_at_risk();
-    heading(&mut s, risk.len(), "newly failed or marginal");
-    zone_list(&mut s, &risk, show);
+    let n = &c.counts;
+    heading(&mut s, n.newly_at_risk, "newly failed or marginal");
+    zone_list(&mut s, &risk, n.newly_at_risk, show);
     let fixed = c.fixed();
-    heading(&mut s, fixed.len(), "no longer failed or marginal");
-    zone_list(&mut s, &fixed, show);
-    change_table(&mut s, "Largest margin losses", &c.losses(), show);
-    change_table(&mut s, "Largest margin gains", &c.gains(), show);
+    heading(&mut s, n.fixed, "no longer failed or marginal");
+    zone_list(&mut s, &fixed, n.fixed, show);
+    let losses = c.losses();
+    change_table(&mut s, "Largest margin losses", &losses, n.losses, show);
+    change_table(&mut s, "Largest margin gains", &c.gains(), n.gains, show);
     for (status, label) in [
         (Status::OnlyBefore, b),
         (Status::OnlyAfter, a),
@@ -111,7 +113,7 @@ fn more(s: &mut String, total: usize, show: usize) {
     }
 }
 
-fn zone_list(s: &mut String, v: &[&Track], show: usize) {
+fn zone_list(s: &mut String, v: &[&Track], total: usize, show: usize) {
     for t in v.iter().take(show) {
         let (zb, za) = t.zones().unwrap_or((Zone::Safe, Zone::Safe));
         let _ = writeln!(
@@ -124,10 +126,10 @@ fn zone_list(s: &mut String, v: &[&Track], show: usize) {
             fmt_opt(t.after().and_then(|r| r.margin_pct), 1),
         );
     }
-    more(s, v.len(), show);
+    more(s, total, show);
 }
 
-fn change_table(s: &mut String, title: &str, v: &[&Track], show: usize) {
+fn change_table(s: &mut String, title: &str, v: &[&Track], total: usize, show: usize) {
     if v.is_empty() {
         return;
     }
@@ -151,11 +153,12 @@ fn change_table(s: &mut String, title: &str, v: &[&Track], show: usize) {
             za
         );
     }
-    more(s, v.len(), show);
+    more(s, total, show);
 }
 
 fn one_sided(s: &mut String, c: &Comparison, status: Status, label: &str, show: usize) {
     let v = c.with_status(status);
+    let total = c.status_count(status);
     if v.is_empty() {
         return;
     }
@@ -167,14 +170,14 @@ fn one_sided(s: &mut String, c: &Comparison, status: Status, label: &str, show: 
             format!("{} ({})", t.name(), r.zone)
         })
         .collect();
-    let rest = if v.len() > show {
-        format!(", ... and {} more", v.len() - show)
+    let rest = if total > show {
+        format!(", ... and {} more", total - show)
     } else {
         String::new()
     };
     let line = format!(
         "Only in {label} ({}): {}{rest}",
-        count(v.len(), "location"),
+        count(total, "location"),
         names.join(", ")
     );
     s.push('\n');

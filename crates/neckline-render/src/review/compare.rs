@@ -39,7 +39,12 @@ fn data(c: &Comparison, title: &str, sub: [&str; 2]) -> String {
         .iter()
         .filter_map(|t| Some((t, category(t, c.tolerance)?)))
         .collect();
-    let total = tracks.len();
+    // Beyond the tracks kept, the page holds those of the capped lists.
+    let total = if c.complete {
+        tracks.len()
+    } else {
+        c.counts.tracks - c.status_count(Status::OnlyEarlier)
+    };
     if tracks.len() > TRACKS_DRAWN {
         let rank = |(t, k): &(&Track, u8)| {
             let risky = t
@@ -233,6 +238,7 @@ mod tests {
             label: label.into(),
             rows,
             summary: None,
+            stats: Default::default(),
         };
         let a = t(
             "T1",

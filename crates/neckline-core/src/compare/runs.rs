@@ -1,0 +1,541 @@
+//! A comparison of files of any length in bounded memory, through partitioned run files.
+//!
+//! 1. Each input is read as a stream (the inputs on every core at once): each row is folded
+//!    into its tryout's [`TryoutStats`] and appended to one of `P` anonymous temporary run
+//!    files, chosen by a hash of its id (by id) or of its track (by position).
+//! 2. The partitions are joined on every core: a partition's rows of all inputs are read back,
+//!    joined into tracks (an id met twice in one input is refused there), and each track is
+//!    folded into a partial [`Tally`] and written as its compare.csv row, with its place in
+//!    the first file's order, to another run file, in that order.
+//! 3. The partial tallies merge into one; the partitions' rows are merged by their place into
+//!    compare.csv.
+//!
+//! By position, the tracks are found first: each input's positions (16 bytes a row) are paired
+//! with the previous input's on a grid of cells ([`super::pairing`]), and every row gets the
+//! place of the track it joins (8 bytes a row and input).
+//!
+//! What stays in memory: a partition being joined (two on two cores), the capped lists and the
+//! densities; by position, the positions of two inputs and the track of every row. The run
+//! files are anonymous temporary files: the system removes them however the run ends.
+
+use super::read::{duplicate, for_each_row, tryout_of, unique_labels, ReadRow};
+use super::tally::{order_of, Order, Tally};
+use super::{csv_out, density_for, finish, pairing, Comparison, Matching, ResultRow, Track};
+use crate::assess::Zone;
+use crate::error::{Error, Location, Result};
+use crate::measure::open_input;
+use rayon::prelude::*;
+use std::collections::{BinaryHeap, HashMap, HashSet};
+use std::fs::File;
+use std::hash::{BuildHasher, Hash};
+use std::io::{self, BufReader, BufWriter, Read, Seek, Write};
+use std::path::{Path, PathBuf};
+
+/// Bytes of input per partition (of all inputs together).
+const PARTITION_BYTES: u64 = if cfg!(test) { 1 << 10 } else { 8 << 20 };
+/// Most partitions.
+const MAX_PARTITIONS: u64 = 256;
+
+/// An anonymous temporary file (removed by the system however the run ends).
+pub fn temp() -> Result<File> {
+    tempfile::tempfile().map_err(|e| Error::io(&std::env::temp_dir(), e))
+}
+
+fn run_error(e: io::Error) -> Error {
+    Error::io(&std::env::temp_dir(), e)
+}
+
+/// A hash that is the same on every run (FxHash, of the `rustc-hash` crate).
+fn hash_of(v: impl Hash) -> u64 {
+    rustc_hash::FxBuildHasher.hash_one(v)
+}
+
+fn partition(key: u64, n: usize) -> usize {
+    // The high bits mix best.
+    ((key as u128 * n as u128) >> 64) as usize
+}
+
+/// One row of a run file.
+struct RunRow {
+    index: u64,
+    line: u64,
+    track: u64,
+    id_column: u64,
+    row: ResultRow,
+}
+
+fn put_opt(w: &mut Vec<u8>, v: Option<f64>) {
+    w.extend_from_slice(&v.unwrap_or(f64::NAN).to_le_bytes());
+}
+
+fn encode(buf: &mut Vec<u8>, index: u64, line: u64, track: u64, r: &ReadRow) {
+    buf.clear();
+    for v in [index, line, track, r.id_column] {
+        buf.extend_from_slice(&v.to_le_bytes());
+    }
+    buf.extend_from_slice(&(r.id.len() as u32).to_le_bytes());
+    buf.extend_from_slice(r.id.as_bytes());
+    for v in [r.major_pct, r.minor_pct] {
+        buf.extend_from_slice(&v.to_le_bytes());
+    }
+    for v in [r.margin_pct, r.limit_pct, r.x, r.y] {
+        put_opt(buf, v);
+    }
+    buf.push(super::tally::zone_index(r.zone) as u8);
+}
+
+fn decode(r: &mut impl Read) -> io::Result<Option<RunRow>> {
+    let mut head = [0u8; 36];
+    match r.read_exact(&mut head[..8]) {
+        Ok(()) => {}
+        Err(e) if e.kind() == io::ErrorKind::UnexpectedEof => return Ok(None),
+        Err(e) => return Err(e),
+    }
+    r.read_exact(&mut head[8..])?;
+    let u = |k: usize| u64::from_le_bytes(head[k * 8..k * 8 + 8].try_into().unwrap_or_default());
+    let len = u32::from_le_bytes(head[32..36].try_into().unwrap_or_default()) as usize;
+    let mut id = vec![0u8; len];
+    r.read_exact(&mut id)?;
+    let mut nums = [0u8; 49];
+    r.read_exact(&mut nums)?;
+    let f = |k: usize| f64::from_le_bytes(nums[k * 8..k * 8 + 8].try_into().unwrap_or_default());
+    let opt = |k: usize| Some(f(k)).filter(|v| !v.is_nan());
+    let id = String::from_utf8(id).map_err(|e| io::Error::new(io::ErrorKind::InvalidData, e))?;
+    Ok(Some(RunRow {
+        index: u(0),
+        line: u(1),
+        track: u(2),
+        id_column: u(3),
+        row: ResultRow {
+            id,
+            major_pct: f(0),
+            minor_pct: f(1),
+            margin_pct: opt(2),
+            limit_pct: opt(3),
+            x: opt(4),
+            y: opt(5),
+            zone: Zone::ALL[(nums[48] as usize).min(5)],
+        },
+    }))
+}
+
+/// Read `path` (tryout `k`) into `parts` run files; its stats.
+fn split(
+    path: &Path,
+    parts: usize,
+    tracks: Option<&[Order]>,
+) -> Result<(super::TryoutStats, Vec<File>)> {
+    let mut files: Vec<BufWriter<File>> = (0..parts)
+        .map(|_| temp().map(|f| BufWriter::with_capacity(1 << 15, f)))
+        .collect::<Result<_>>()?;
+    let mut stats = super::TryoutStats::default();
+    let mut buf = Vec::with_capacity(256);
+    let mut index = 0u64;
+    for_each_row(open_input(path)?, path, |line, r| {
+        stats.fold(&r);
+        let track = tracks.map_or(0, |t| t[index as usize]);
+        let key = match tracks {
+            Some(_) => hash_of(track),
+            None => hash_of(r.id.as_bytes()),
+        };
+        encode(&mut buf, index, line, track, &r);
+        files[partition(key, parts)]
+            .write_all(&buf)
+            .map_err(run_error)?;
+        index += 1;
+        Ok(())
+    })?;
+    stats.finish();
+    let files = files
+        .into_iter()
+        .map(|w| {
+            let mut f = w.into_inner().map_err(|e| run_error(e.into_error()))?;
+            f.rewind().map_err(run_error)?;
+            Ok(f)
+        })
+        .collect::<Result<_>>()?;
+    Ok((stats, files))
+}
+
+/// What one partition gives: its tally, its compare.csv rows in order, and the first id met
+/// twice in one input (tryout, line, error).
+struct Joined {
+    tally: Tally,
+    rows: Vec<(usize, File)>,
+    duplicate: Option<(usize, u64, Error)>,
+}
+
+struct Shape<'a> {
+    paths: &'a [PathBuf],
+    matching: Matching,
+    tolerance: f64,
+    density: &'a super::tally::Density,
+    csv: bool,
+}
+
+fn join(p: usize, inputs: Vec<File>, shape: &Shape) -> Result<Joined> {
+    let n = inputs.len();
+    // Tracks by a hash of their key; two keys of one hash (rare) go to `clashes`.
+    let mut index: HashMap<u64, usize, rustc_hash::FxBuildHasher> = HashMap::default();
+    let mut clashes: HashMap<Vec<u8>, usize> = HashMap::new();
+    let mut tracks: Vec<(Order, Track)> = Vec::new();
+    let mut dup: Option<(usize, u64, Error)> = None;
+    for (k, f) in inputs.into_iter().enumerate() {
+        let mut r = BufReader::with_capacity(1 << 16, f);
+        while let Some(row) = decode(&mut r).map_err(run_error)? {
+            let order = match shape.matching {
+                Matching::Id => order_of(k, row.index),
+                Matching::Xy { .. } => row.track,
+            };
+            // By position the hash is the track itself: no two tracks share one.
+            let same = |t: &Track, key: &[u8]| match shape.matching {
+                Matching::Id => super::csv_out::latest(t).id.as_bytes() == key,
+                Matching::Xy { .. } => true,
+            };
+            let (h, key) = match shape.matching {
+                Matching::Id => (hash_of(row.row.id.as_bytes()), row.row.id.as_bytes()),
+                Matching::Xy { .. } => (row.track, &[][..]),
+            };
+            let found = match index.get(&h) {
+                Some(&i) if same(&tracks[i].1, key) => Some(i),
+                Some(_) => clashes.get(key).copied(),
+                None => None,
+            };
+            let at = match found {
+                Some(i) => i,
+                None => {
+                    tracks.push((
+                        order,
+                        Track {
+                            at: vec![None; n],
+                            step: vec![None; n],
+                        },
+                    ));
+                    let i = tracks.len() - 1;
+                    match index.entry(h) {
+                        std::collections::hash_map::Entry::Occupied(_) => {
+                            clashes.insert(key.to_vec(), i);
+                        }
+                        std::collections::hash_map::Entry::Vacant(v) => {
+                            v.insert(i);
+                        }
+                    }
+                    i
+                }
+            };
+            let t = &mut tracks[at].1;
+            if t.at[k].is_some() {
+                if dup.as_ref().is_none_or(|d| (k, row.line) < (d.0, d.1)) {
+                    let loc = Location::file(&shape.paths[k]);
+                    let e = duplicate(&loc, row.line, row.id_column, &row.row.id);
+                    dup = Some((k, row.line, e));
+                }
+                continue;
+            }
+            t.at[k] = Some(row.row);
+        }
+    }
+    drop((index, clashes));
+    if let Matching::Xy { .. } = shape.matching {
+        for (_, t) in &mut tracks {
+            steps(t);
+        }
+    }
+    tracks.sort_by_key(|(o, _)| *o);
+    let mut tally = Tally::new(n, shape.tolerance, Some(shape.density.clone()));
+    let mut out = BufWriter::with_capacity(1 << 16, temp()?);
+    let mut b = Vec::with_capacity(256);
+    for (order, t) in &tracks {
+        tally.fold(t, *order);
+        if shape.csv {
+            b.clear();
+            csv_out::push_record(shape.matching, shape.tolerance, t, &mut b);
+            out.write_all(&order.to_le_bytes()).map_err(run_error)?;
+            out.write_all(&(b.len() as u32).to_le_bytes())
+                .map_err(run_error)?;
+            out.write_all(&b).map_err(run_error)?;
+        }
+    }
+    let mut f = out.into_inner().map_err(|e| run_error(e.into_error()))?;
+    f.rewind().map_err(run_error)?;
+    Ok(Joined {
+        tally,
+        rows: vec![(p, f)],
+        duplicate: dup,
+    })
+}
+
+/// The distance of each step of a track paired by position.
+fn steps(t: &mut Track) {
+    for k in 1..t.at.len() {
+        if let (Some(a), Some(b)) = (&t.at[k - 1], &t.at[k]) {
+            if let (Some(p), Some(q)) = (a.xy(), b.xy()) {
+                t.step[k] = Some((q.0 - p.0).hypot(q.1 - p.1));
+            }
+        }
+    }
+}
+
+fn merge_joined(mut a: Joined, b: Joined) -> Joined {
+    a.tally.merge(b.tally);
+    a.rows.extend(b.rows);
+    a.duplicate = match (a.duplicate, b.duplicate) {
+        (Some(x), Some(y)) => Some(if (y.0, y.1) < (x.0, x.1) { y } else { x }),
+        (x, y) => x.or(y),
+    };
+    a
+}
+
+/// Merge the partitions' compare.csv rows by their place into `out`, after the header.
+fn merge_rows(mut rows: Vec<(usize, File)>, header: &[String], out: &mut dyn Write) -> Result<()> {
+    rows.sort_by_key(|(p, _)| *p);
+    let mut w = csv::Writer::from_writer(&mut *out);
+    w.write_record(header)
+        .map_err(|e| run_error(io::Error::other(e)))?;
+    w.flush().map_err(run_error)?;
+    drop(w);
+    let mut readers: Vec<BufReader<File>> = rows
+        .into_iter()
+        .map(|(_, f)| BufReader::with_capacity(1 << 16, f))
+        .collect();
+    let next = |r: &mut BufReader<File>| -> io::Result<Option<(Order, Vec<u8>)>> {
+        let mut head = [0u8; 12];
+        match r.read_exact(&mut head) {
+            Ok(()) => {}
+            Err(e) if e.kind() == io::ErrorKind::UnexpectedEof => return Ok(None),
+            Err(e) => return Err(e),
+        }
+        let order = u64::from_le_bytes(head[..8].try_into().unwrap_or_default());
+        let len = u32::from_le_bytes(head[8..].try_into().unwrap_or_default()) as usize;
+        let mut bytes = vec![0u8; len];
+        r.read_exact(&mut bytes)?;
+        Ok(Some((order, bytes)))
+    };
+    let mut heap = BinaryHeap::new();
+    let mut pending: Vec<Vec<u8>> = vec![Vec::new(); readers.len()];
+    for (i, r) in readers.iter_mut().enumerate() {
+        if let Some((o, b)) = next(r).map_err(run_error)? {
+            pending[i] = b;
+            heap.push(std::cmp::Reverse((o, i)));
+        }
+    }
+    while let Some(std::cmp::Reverse((_, i))) = heap.pop() {
+        out.write_all(&pending[i]).map_err(run_error)?;
+        if let Some((o, b)) = next(&mut readers[i]).map_err(run_error)? {
+            pending[i] = b;
+            heap.push(std::cmp::Reverse((o, i)));
+        }
+    }
+    Ok(())
+}
+
+/// By position: the place of the track each row of each input joins.
+fn tracks_by_position(paths: &[PathBuf], within: f64) -> Result<Vec<Vec<Order>>> {
+    let mut out: Vec<Vec<Order>> = Vec::with_capacity(paths.len());
+    let mut prev: Vec<Option<(f64, f64)>> = Vec::new();
+    for (k, path) in paths.iter().enumerate() {
+        let (xy, ids) = positions(path)?;
+        let mut orders: Vec<Order> = (0..xy.len() as u64).map(|i| order_of(k, i)).collect();
+        if k > 0 {
+            for p in pairing::pair(&prev, &xy, within) {
+                orders[p.after] = out[k - 1][p.before];
+            }
+        }
+        drop(ids);
+        out.push(orders);
+        prev = xy;
+    }
+    Ok(out)
+}
+
+/// An input's positions, in row order, and the hashes of its ids.
+type Positions = (Vec<Option<(f64, f64)>>, HashSet<u128>);
+
+/// The positions of an input's rows, and the check that no id is met twice: a set of 128-bit
+/// hashes of the ids (two ids with one hash, about one chance in 10^26 at a million rows, would
+/// be taken for one).
+fn positions(path: &Path) -> Result<Positions> {
+    let loc = Location::file(path);
+    let mut xy = Vec::new();
+    let mut ids: HashSet<u128> = HashSet::new();
+    for_each_row(open_input(path)?, path, |line, r| {
+        let h = (hash_of((1u8, r.id.as_bytes())) as u128) << 64 | hash_of(r.id.as_bytes()) as u128;
+        if !ids.insert(h) {
+            return Err(duplicate(&loc, line, r.id_column, &r.id));
+        }
+        xy.push(r.xy());
+        Ok(())
+    })?;
+    Ok((xy, ids))
+}
+
+/// Compare the `points.csv` files at `paths` (at least two), writing compare.csv to `csv`
+/// when given, in bounded memory (see the module's text). The comparison holds the counts of
+/// every location and, beyond [`crate::summary::KEEP_ALL`] locations, the tracks of the capped
+/// lists and the densities.
+pub fn compare_files(
+    paths: &[PathBuf],
+    matching: Matching,
+    tolerance: f64,
+    csv: Option<&mut dyn Write>,
+) -> Result<Comparison> {
+    if paths.len() < 2 {
+        return Err(Error::Usage("compare needs at least two results".into()));
+    }
+    let mut tryouts: Vec<_> = paths
+        .iter()
+        .enumerate()
+        .map(|(k, p)| tryout_of(p, k + 1))
+        .collect();
+    unique_labels(&mut tryouts);
+    let bytes: u64 = paths
+        .iter()
+        .map(|p| std::fs::metadata(p).map_or(0, |m| m.len()))
+        .sum();
+    let parts = (bytes / PARTITION_BYTES).clamp(1, MAX_PARTITIONS) as usize;
+    let orders = match matching {
+        Matching::Xy { within } => Some(tracks_by_position(paths, within)?),
+        Matching::Id => None,
+    };
+    let split: Vec<Result<_>> = paths
+        .par_iter()
+        .enumerate()
+        .map(|(k, p)| split(p, parts, orders.as_ref().map(|o| &o[k][..])))
+        .collect();
+    drop(orders);
+    let mut files: Vec<Vec<File>> = Vec::new();
+    for (t, r) in tryouts.iter_mut().zip(split) {
+        let (stats, f) = r?;
+        t.stats = stats;
+        files.push(f);
+    }
+    let density = density_for(&tryouts);
+    let shape = Shape {
+        paths,
+        matching,
+        tolerance,
+        density: &density,
+        csv: csv.is_some(),
+    };
+    let mut by_part: Vec<Vec<File>> = (0..parts).map(|_| Vec::new()).collect();
+    for input in files {
+        for (p, f) in input.into_iter().enumerate() {
+            by_part[p].push(f);
+        }
+    }
+    let joined = by_part
+        .into_par_iter()
+        .enumerate()
+        .map(|(p, inputs)| join(p, inputs, &shape))
+        .try_reduce_with(|a, b| Ok(merge_joined(a, b)))
+        .unwrap_or_else(|| Err(Error::Usage("nothing to compare".into())))?;
+    if let Some((_, _, e)) = joined.duplicate {
+        return Err(e);
+    }
+    if let Some(out) = csv {
+        merge_rows(joined.rows, &csv_out::header_of(paths.len(), matching), out)?;
+    }
+    finish(tryouts, joined.tally, matching, tolerance)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::compare::{compare, read_tryout};
+
+    fn points(dir: &Path, name: &str, rows: &[(String, f64, &str, f64)]) -> PathBuf {
+        let p = dir.join(name);
+        let mut s = String::from(
+            "id,major_eng_pct,minor_eng_pct,margin_pct,limit_major_eng_pct,zone,x,y\n",
+        );
+        for (i, (id, margin, zone, x)) in rows.iter().enumerate() {
+            s.push_str(&format!(
+                "{id},{:.3},{:.3},{margin:.3},40.000,{zone},{x:.3},{:.3}\n",
+                40.0 - margin,
+                (i % 7) as f64 - 3.0,
+                (i / 50) as f64
+            ));
+        }
+        std::fs::write(&p, s).unwrap();
+        p
+    }
+
+    /// The comparison through run files equals the one held whole (an independent in-memory
+    /// join), rows of compare.csv in the same order.
+    #[test]
+    fn runs_give_what_the_whole_comparison_gives() {
+        let dir = tempfile::tempdir().unwrap();
+        let zone = |m: f64| {
+            if m <= 0.0 {
+                "failed"
+            } else if m < 10.0 {
+                "marginal"
+            } else {
+                "safe"
+            }
+        };
+        let a: Vec<_> = (0..400)
+            .map(|i| {
+                let m = (i * 37 % 50) as f64 - 5.0;
+                (format!("L{i}"), m, zone(m), (i % 50) as f64)
+            })
+            .collect();
+        // The later file: in another order, one missing, one new, some moved.
+        let mut b: Vec<_> = a
+            .iter()
+            .filter(|r| r.0 != "L7")
+            .map(|r| {
+                let m = r.1 - if r.0.ends_with('3') { 4.0 } else { 0.0 };
+                (r.0.clone(), m, zone(m), r.3 + 0.1)
+            })
+            .collect();
+        b.reverse();
+        b.push(("NEW".into(), -1.0, "failed", 70.0));
+        let pa = points(dir.path(), "a.csv", &a);
+        let pb = points(dir.path(), "b.csv", &b);
+        for matching in [Matching::Id, Matching::Xy { within: 0.5 }] {
+            let whole = compare(
+                vec![read_tryout(&pa, 1).unwrap(), read_tryout(&pb, 2).unwrap()],
+                matching,
+                1.0,
+            )
+            .unwrap();
+            let mut text = Vec::new();
+            let runs =
+                compare_files(&[pa.clone(), pb.clone()], matching, 1.0, Some(&mut text)).unwrap();
+            assert!(PARTITION_BYTES < std::fs::metadata(&pa).unwrap().len());
+            assert_eq!(runs.tracks, whole.tracks);
+            assert_eq!(runs.counts, whole.counts);
+            let mut expected = Vec::new();
+            csv_out::write_csv(&whole, &mut expected).unwrap();
+            assert_eq!(
+                String::from_utf8(text).unwrap(),
+                String::from_utf8(expected).unwrap()
+            );
+        }
+    }
+
+    #[test]
+    fn an_id_twice_is_refused_at_its_line() {
+        let dir = tempfile::tempdir().unwrap();
+        let rows: Vec<_> = (0..60)
+            .map(|i| {
+                (
+                    format!("L{}", if i == 45 { 3 } else { i }),
+                    20.0,
+                    "safe",
+                    0.0,
+                )
+            })
+            .collect();
+        let pa = points(dir.path(), "a.csv", &rows);
+        let e = compare_files(&[pa.clone(), pa], Matching::Id, 1.0, None)
+            .unwrap_err()
+            .to_string();
+        // Line 47: the header is line 1 and L3's second row the 46th.
+        assert!(
+            e.contains("a.csv:47:1 (column `id`)") && e.contains("duplicate id `L3`"),
+            "{e}"
+        );
+    }
+}
