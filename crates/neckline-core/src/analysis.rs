@@ -138,7 +138,9 @@ impl Analysis {
     pub fn finish(&mut self) {
         self.summary.flush();
         if self.outline.is_none() {
-            self.outline = crate::part_outline::trace(&self.summary.map, self.summary.map_extent);
+            let map = &self.summary.map;
+            let cells = map.cells().keys().copied();
+            self.outline = crate::part_outline::trace(cells, map.size(), self.summary.map_extent);
         }
         if let (Some((lo, hi)), u) = (self.summary.supported, &self.summary.unsupported) {
             if u.total > 0 {

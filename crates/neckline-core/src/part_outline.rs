@@ -1,8 +1,9 @@
 //! The part's outline on the map: read from a polyline file named by the job's `outline` key,
 //! or traced from the measured locations.
 //!
-//! **Traced** from what the bounded [`Summary`](crate::summary::Summary) holds: the occupied
-//! cells of its map binning ([`Bins`]), so the same steps run at 100 locations and at a million
+//! **Traced** from what the bounded summary holds: the occupied cells of its map binning (the
+//! keys of square cells, doubled in size by halving the keys), so the same steps run at 100
+//! locations and at a million
 //! rows, on at most [`TRACE_CELLS`]² cells. The cells are first made as coarse as the spacing
 //! of the locations (until nine in ten occupied cells touch another, or [`MIN_CELLS`] span the
 //! part), gaps of one cell are closed (a 3×3 dilation, then erosion), the boundary of the union
@@ -20,7 +21,6 @@
 //! ring. A ring needs at least 3 points.
 
 use crate::error::{Error, Location, Result};
-use crate::summary::{Bins, Cell};
 use crate::table::{read_table, Table};
 use rustc_hash::FxHashSet;
 use std::collections::HashMap;
@@ -227,13 +227,21 @@ fn closed_ring(t: &Table, (id, line, mut pts): RingRows) -> Result<Vec<(f64, f64
 // ---------------------------------------------------------------------------------------------
 // Tracing from the binned locations.
 
-/// Trace the outline of the occupied cells of `bins` (see the module's notes), cut to
-/// `extent` (`[x0, y0, x1, y1]`, the box of the locations: the cells reach past it, further on
-/// one side than on the other); `None` when no cell is occupied.
-pub fn trace<C: Cell>(bins: &Bins<C>, extent: Option<[f64; 4]>) -> Option<PartOutline> {
-    let mut b = bins.clone();
-    b.flush();
-    if b.cells().is_empty() {
+/// Trace the outline of the occupied cells `cells` of side `size` (cell `(i, j)` spans
+/// `i·size ..= (i + 1)·size` across and `j·size ..= (j + 1)·size` up, as the map binning's
+/// keys; see the module's notes), cut to `extent` (`[x0, y0, x1, y1]`, the box of the
+/// locations: the cells reach past it, further on one side than on the other); `None` when no
+/// cell is occupied.
+pub fn trace(
+    cells: impl IntoIterator<Item = (i64, i64)>,
+    size: f64,
+    extent: Option<[f64; 4]>,
+) -> Option<PartOutline> {
+    let mut b = Keys {
+        cells: cells.into_iter().collect(),
+        size,
+    };
+    if b.cells.is_empty() {
         return None;
     }
     while across(&b) > TRACE_CELLS {
@@ -245,7 +253,7 @@ pub fn trace<C: Cell>(bins: &Bins<C>, extent: Option<[f64; 4]>) -> Option<PartOu
     let mut grid = Grid::of(&b);
     grid.close();
     grid.fill_saddles();
-    let size = b.size();
+    let size = b.size;
     let rings = grid
         .rings()
         .into_iter()
@@ -302,13 +310,27 @@ fn clip_to_box(ring: &[(f64, f64)], e: [f64; 4]) -> Vec<(f64, f64)> {
 }
 
 /// Cells across the longer side of the occupied keys' box.
-fn across<C: Cell>(b: &Bins<C>) -> i64 {
+/// Occupied cells by key, and their side.
+struct Keys {
+    cells: FxHashSet<(i64, i64)>,
+    size: f64,
+}
+
+impl Keys {
+    /// Double the cells' side (the map binning's own coarsening: each key halved).
+    fn coarsen(&mut self) {
+        self.cells = self.cells.iter().map(|&(i, j)| (i >> 1, j >> 1)).collect();
+        self.size *= 2.0;
+    }
+}
+
+fn across(b: &Keys) -> i64 {
     let (lo, hi) = key_box(b);
     (hi.0 - lo.0 + 1).max(hi.1 - lo.1 + 1)
 }
 
-fn key_box<C: Cell>(b: &Bins<C>) -> ((i64, i64), (i64, i64)) {
-    b.cells().keys().fold(
+fn key_box(b: &Keys) -> ((i64, i64), (i64, i64)) {
+    b.cells.iter().fold(
         ((i64::MAX, i64::MAX), (i64::MIN, i64::MIN)),
         |(lo, hi), &(i, j)| ((lo.0.min(i), lo.1.min(j)), (hi.0.max(i), hi.1.max(j))),
     )
@@ -316,14 +338,14 @@ fn key_box<C: Cell>(b: &Bins<C>) -> ((i64, i64), (i64, i64)) {
 
 /// Whether nine in ten occupied cells have an occupied neighbour (of the eight round them):
 /// the cells are then as coarse as the spacing of the locations.
-fn linked<C: Cell>(b: &Bins<C>) -> bool {
-    let cells = b.cells();
+fn linked(b: &Keys) -> bool {
+    let cells = &b.cells;
     let touching = cells
-        .keys()
+        .iter()
         .filter(|&&(i, j)| {
             NEIGHBOURS
                 .iter()
-                .any(|(di, dj)| cells.contains_key(&(i + di, j + dj)))
+                .any(|(di, dj)| cells.contains(&(i + di, j + dj)))
         })
         .count();
     10 * touching >= 9 * cells.len()
@@ -353,7 +375,7 @@ struct Grid {
 const BORDER: i64 = 2;
 
 impl Grid {
-    fn of<C: Cell>(b: &Bins<C>) -> Self {
+    fn of(b: &Keys) -> Self {
         let (lo, hi) = key_box(b);
         let origin = (lo.0 - BORDER, lo.1 - BORDER);
         let (w, h) = (hi.0 - lo.0 + 1 + 2 * BORDER, hi.1 - lo.1 + 1 + 2 * BORDER);
@@ -363,7 +385,7 @@ impl Grid {
             h,
             on: vec![false; (w * h) as usize],
         };
-        for &(i, j) in b.cells().keys() {
+        for &(i, j) in &b.cells {
             g.set(i - origin.0, j - origin.1, true);
         }
         g
@@ -532,7 +554,7 @@ fn simplify(ring: &[(i64, i64)]) -> Vec<(i64, i64)> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::summary::ZoneCounts;
+    use crate::summary::{Bins, ZoneCounts};
     use std::io::Write;
 
     fn bins_of(pts: &[(f64, f64)]) -> Bins<ZoneCounts> {
@@ -551,7 +573,8 @@ mod tests {
             .fold([f64::MAX, f64::MAX, f64::MIN, f64::MIN], |e, &(x, y)| {
                 [e[0].min(x), e[1].min(y), e[2].max(x), e[3].max(y)]
             });
-        trace(&bins_of(pts), Some(e))
+        let b = bins_of(pts);
+        trace(b.cells().keys().copied(), b.size(), Some(e))
     }
 
     // A filled square of locations: one outer ring, counter-clockwise, holding every location;

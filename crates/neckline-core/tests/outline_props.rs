@@ -33,7 +33,8 @@ fn traced(pts: &[(f64, f64)]) -> Option<PartOutline> {
         .fold([f64::MAX, f64::MAX, f64::MIN, f64::MIN], |e, &(x, y)| {
             [e[0].min(x), e[1].min(y), e[2].max(x), e[3].max(y)]
         });
-    trace(&bins_of(pts), Some(e))
+    let b = bins_of(pts);
+    trace(b.cells().keys().copied(), b.size(), Some(e))
 }
 
 /// Shoelace area of a closed ring, absolute value.
