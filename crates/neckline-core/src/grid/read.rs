@@ -826,6 +826,31 @@ mod tests {
         );
     }
 
+    // A file without ids: a repeated place is a repeated key (`r0c0`), rejected at the later
+    // line; the first node stands and the grid around it is whole.
+    #[test]
+    fn repeated_place_is_rejected_and_the_first_node_stands() {
+        let set = nodes(
+            "row,col,X,Y,x,y\n0,0,0,0,0,0\n0,1,1,0,1.1,0\n0,0,5,5,5,5\n1,0,0,1,0,1\n1,1,1,1,1.1,1\n",
+        )
+        .unwrap();
+        assert_eq!(set.nodes.len(), 4);
+        assert_eq!(set.rejected.len(), 1);
+        let r = set.rejected[0].to_string();
+        assert!(
+            r.starts_with("n.csv:4:1 (column `row`)")
+                && r.contains("node `r0c0` appears twice (first on line 2)"),
+            "{r}"
+        );
+        let (cells, rejected) = grid_cells(&set);
+        assert!(rejected.is_empty(), "{rejected:?}");
+        assert_eq!(cells.len(), 1);
+        let first = set.nodes.reference(cells[0].nodes[0]);
+        assert!(first.norm() < 1e-12, "the node of line 2 at r0c0: {first}");
+        assert_eq!(set.find("r1c1"), Some(cells[0].nodes[2]));
+        assert_eq!(set.find("r01c1"), None);
+    }
+
     #[test]
     fn elements_refer_to_nodes() {
         let set = nodes("id,X,Y,x,y\nA,0,0,0,0\nB,1,0,1,0\nC,0,1,0,1\nD,1,1,abc,1\n").unwrap();
