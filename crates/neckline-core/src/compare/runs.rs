@@ -423,12 +423,26 @@ pub fn compare_files(
             by_part[p].push(f);
         }
     }
-    let joined = by_part
-        .into_par_iter()
-        .enumerate()
-        .map(|(p, inputs)| join(p, inputs, &shape))
-        .try_reduce_with(|a, b| Ok(merge_joined(a, b)))
-        .unwrap_or_else(|| Err(Error::Usage("nothing to compare".into())))?;
+    // As many partitions at a time as there are threads, each batch merged into the one
+    // running result: the partial tallies alive do not grow with the number of partitions.
+    let threads = rayon::current_num_threads().max(1);
+    let mut joined: Option<Joined> = None;
+    let mut parts_left = by_part.into_iter().enumerate().peekable();
+    while parts_left.peek().is_some() {
+        let batch: Vec<(usize, Vec<File>)> = parts_left.by_ref().take(threads).collect();
+        let done: Vec<Result<Joined>> = batch
+            .into_par_iter()
+            .map(|(p, inputs)| join(p, inputs, &shape))
+            .collect();
+        for j in done {
+            let j = j?;
+            joined = Some(match joined {
+                Some(a) => merge_joined(a, j),
+                None => j,
+            });
+        }
+    }
+    let joined = joined.ok_or_else(|| Error::Usage("nothing to compare".into()))?;
     if let Some((_, _, e)) = joined.duplicate {
         return Err(e);
     }
