@@ -159,6 +159,32 @@ fn a_large_comparison_counts_every_change_and_keeps_its_outputs_small() {
     assert!(html.contains(&format!("({still})")), "still at risk count");
     assert!(html.contains(&format!("{} more are in compare.csv", still - 1000)));
 
+    // Paired by position (the same places in both files), the same changes are found: NEW1
+    // sits on P3's place but comes later in the file, so the tie goes to P3 (closest first,
+    // then in file order).
+    let xy = run_in(
+        d,
+        &[
+            "compare",
+            "t1/points.csv",
+            "t2/points.csv",
+            "--match",
+            "xy",
+            "--within",
+            "0.5",
+            "--out",
+            "packxy",
+        ],
+    );
+    assert_eq!(xy.code, 0, "{xy}");
+    let jx = read_json(&xy.path("packxy/compare.json"));
+    assert_eq!(jx["counts"]["both"], N - 1);
+    assert_eq!(jx["counts"]["only_before"], 1);
+    assert_eq!(jx["counts"]["only_after"], 1);
+    assert_eq!(jx["counts"]["losses"], losses);
+    assert_eq!(jx["counts"]["gains"], gains);
+    assert_eq!(jx["counts"]["newly_failed"], newly_failed);
+
     // Pairing by id does not depend on the later file's row order.
     write_pair(d, "t2b", |k| N - 1 - k);
     let again = run_in(

@@ -4,9 +4,8 @@
 //! Greedy closest-first: every pair within reach is a candidate; candidates are taken in order of
 //! distance, each skipped when either end is already used. Candidates are found through a grid
 //! of cells `within` wide, so that each location looks at its own cell and the eight around it
-//! (a spatial hash, common practice) instead of at every location of the other tryout.
-
-use std::collections::HashMap;
+//! (a spatial grid, common practice; the cells sorted and found by binary search) instead of at
+//! every location of the other tryout.
 
 /// One pair: indices into the two lists and their distance.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -26,19 +25,24 @@ fn cell(p: (f64, f64), size: f64) -> (i64, i64) {
 /// Pair `before` with `after` (positions; `None` = no position, never paired). `within` must
 /// be positive and finite. Pairs come back closest first.
 pub fn pair(before: &[Option<(f64, f64)>], after: &[Option<(f64, f64)>], within: f64) -> Vec<Pair> {
-    let mut grid: HashMap<(i64, i64), Vec<usize>> = HashMap::new();
-    for (j, p) in after.iter().enumerate() {
-        if let Some(p) = p {
-            grid.entry(cell(*p, within)).or_default().push(j);
-        }
-    }
+    // The grid: every later location's cell and index, sorted by cell (24 bytes a location,
+    // no table of lists); a cell's locations are found by binary search.
+    let mut grid: Vec<((i64, i64), u32)> = after
+        .iter()
+        .enumerate()
+        .filter_map(|(j, p)| Some((cell((*p)?, within), j as u32)))
+        .collect();
+    grid.sort_unstable();
     let mut candidates = Vec::new();
     for (i, p) in before.iter().enumerate() {
         let Some(p) = *p else { continue };
         let (cx, cy) = cell(p, within);
         for dx in -1..=1 {
             for dy in -1..=1 {
-                for &j in grid.get(&(cx + dx, cy + dy)).into_iter().flatten() {
+                let c = (cx + dx, cy + dy);
+                let start = grid.partition_point(|(k, _)| *k < c);
+                for &(_, j) in grid[start..].iter().take_while(|(k, _)| *k == c) {
+                    let j = j as usize;
                     let q = after[j].unwrap_or(p);
                     let distance = (q.0 - p.0).hypot(q.1 - p.1);
                     if distance <= within {
@@ -52,6 +56,7 @@ pub fn pair(before: &[Option<(f64, f64)>], after: &[Option<(f64, f64)>], within:
             }
         }
     }
+    drop(grid);
     candidates.sort_by(|a, b| {
         a.distance
             .total_cmp(&b.distance)

@@ -10,9 +10,9 @@
 //! 3. The partial tallies merge into one; the partitions' rows are merged by their place into
 //!    compare.csv.
 //!
-//! By position, the tracks are found first: each input's positions (16 bytes a row) are paired
-//! with the previous input's on a grid of cells ([`super::pairing`]), and every row gets the
-//! place of the track it joins (8 bytes a row and input).
+//! By position, the tracks are found first: each input's positions (24 bytes a row) are paired
+//! with the previous input's on a grid of sorted cells ([`super::pairing`]), and every row gets
+//! the place of the track it joins (8 bytes a row and input).
 //!
 //! What stays in memory: a partition being joined (two on two cores), the capped lists and the
 //! densities; by position, the positions of two inputs and the track of every row. The run
@@ -334,26 +334,25 @@ fn tracks_by_position(paths: &[PathBuf], within: f64) -> Result<Vec<Vec<Order>>>
     let mut out: Vec<Vec<Order>> = Vec::with_capacity(paths.len());
     let mut prev: Vec<Option<(f64, f64)>> = Vec::new();
     for (k, path) in paths.iter().enumerate() {
-        let (xy, ids) = positions(path)?;
+        let xy = positions(path)?;
         let mut orders: Vec<Order> = (0..xy.len() as u64).map(|i| order_of(k, i)).collect();
         if k > 0 {
             for p in pairing::pair(&prev, &xy, within) {
                 orders[p.after] = out[k - 1][p.before];
             }
         }
-        drop(ids);
         out.push(orders);
         prev = xy;
     }
     Ok(out)
 }
 
-/// An input's positions, in row order, and the hashes of its ids.
-type Positions = (Vec<Option<(f64, f64)>>, HashSet<u128>);
+/// An input's positions, in row order.
+type Positions = Vec<Option<(f64, f64)>>;
 
-/// The positions of an input's rows, and the check that no id is met twice: a set of 128-bit
-/// hashes of the ids (two ids with one hash, about one chance in 10^26 at a million rows, would
-/// be taken for one).
+/// The positions of an input's rows, after the check that no id is met twice: a set of 128-bit
+/// hashes of the ids, dropped before the pairing (two ids with one hash, about one chance in
+/// 10^26 at a million rows, would be taken for one).
 fn positions(path: &Path) -> Result<Positions> {
     let loc = Location::file(path);
     let mut xy = Vec::new();
@@ -366,7 +365,7 @@ fn positions(path: &Path) -> Result<Positions> {
         xy.push(r.xy());
         Ok(())
     })?;
-    Ok((xy, ids))
+    Ok(xy)
 }
 
 /// Compare the `points.csv` files at `paths` (at least two), writing compare.csv to `csv`
@@ -423,12 +422,26 @@ pub fn compare_files(
             by_part[p].push(f);
         }
     }
-    let joined = by_part
-        .into_par_iter()
-        .enumerate()
-        .map(|(p, inputs)| join(p, inputs, &shape))
-        .try_reduce_with(|a, b| Ok(merge_joined(a, b)))
-        .unwrap_or_else(|| Err(Error::Usage("nothing to compare".into())))?;
+    // As many partitions at a time as there are threads, each batch merged into the one
+    // running result: the partial tallies alive do not grow with the number of partitions.
+    let threads = rayon::current_num_threads().max(1);
+    let mut joined: Option<Joined> = None;
+    let mut parts_left = by_part.into_iter().enumerate().peekable();
+    while parts_left.peek().is_some() {
+        let batch: Vec<(usize, Vec<File>)> = parts_left.by_ref().take(threads).collect();
+        let done: Vec<Result<Joined>> = batch
+            .into_par_iter()
+            .map(|(p, inputs)| join(p, inputs, &shape))
+            .collect();
+        for j in done {
+            let j = j?;
+            joined = Some(match joined {
+                Some(a) => merge_joined(a, j),
+                None => j,
+            });
+        }
+    }
+    let joined = joined.ok_or_else(|| Error::Usage("nothing to compare".into()))?;
     if let Some((_, _, e)) = joined.duplicate {
         return Err(e);
     }
