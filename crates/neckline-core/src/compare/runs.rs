@@ -1,7 +1,7 @@
 //! A comparison of files of any length in bounded memory, through partitioned run files.
 //!
 //! 1. Each input is read as a stream (the inputs on every core at once): each row is folded
-//!    into its tryout's [`TryoutStats`] and appended to one of `P` anonymous temporary run
+//!    into its tryout's [`TryoutStats`](super::read::TryoutStats) and appended to one of `P` anonymous temporary run
 //!    files, chosen by a hash of its id (by id) or of its track (by position).
 //! 2. The partitions are joined on every core: a partition's rows of all inputs are read back,
 //!    joined into tracks (an id met twice in one input is refused there), and each track is
