@@ -178,10 +178,11 @@ pub fn grid_analysis(
     for r in rejected {
         a.summary.rejected.push(r);
     }
-    a.finish();
+    // The job's outline before `finish`, which traces one only when none is set.
     if let Some(o) = outline.filter(|_| a.summary.view.plane == MapPlane::Xy) {
         a.outline = Some(o);
     }
+    a.finish();
     if job_d0 {
         a.warnings.push(
             "d0 in the job file is not used by grid: each element's blank area gives its own"

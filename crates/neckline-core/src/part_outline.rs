@@ -516,35 +516,32 @@ fn from_smallest(ring: &[(i64, i64)]) -> Vec<(i64, i64)> {
 /// Cut each one-cell step: a right turn (a corner whose outside quarter is an empty cell)
 /// between two edges of one cell is replaced by that cell's diagonal.
 fn cut_steps(ring: &[(i64, i64)]) -> Vec<(i64, i64)> {
-    let r = from_smallest(ring);
-    let n = r.len();
-    let mut out: Vec<(i64, i64)> = Vec::with_capacity(n);
-    for i in 0..n {
-        let v = r[i];
-        let w = r[(i + 1) % n];
-        if let Some(&u) = out.last() {
-            if unit(u, v) && unit(v, w) && turn(u, v, w) < 0 {
-                continue;
-            }
-        }
-        out.push(v);
-    }
-    out
+    drop_corners(ring, |u, v, w| {
+        unit(u, v) && unit(v, w) && turn(u, v, w) < 0
+    })
 }
 
 /// Drop the points between two edges in one direction.
 fn simplify(ring: &[(i64, i64)]) -> Vec<(i64, i64)> {
+    drop_corners(ring, |u, v, w| {
+        let same_way = (v.0 - u.0) * (w.0 - v.0) + (v.1 - u.1) * (w.1 - v.1) > 0;
+        turn(u, v, w) == 0 && same_way
+    })
+}
+
+/// The ring, from its smallest point, without each point `v` for which `drop(u, v, w)` holds,
+/// `u` being the last point kept and `w` the next one of the ring.
+fn drop_corners(
+    ring: &[(i64, i64)],
+    drop: impl Fn((i64, i64), (i64, i64), (i64, i64)) -> bool,
+) -> Vec<(i64, i64)> {
     let r = from_smallest(ring);
     let n = r.len();
     let mut out: Vec<(i64, i64)> = Vec::with_capacity(n);
     for i in 0..n {
-        let v = r[i];
-        let w = r[(i + 1) % n];
-        if let Some(&u) = out.last() {
-            let same_way = (v.0 - u.0) * (w.0 - v.0) + (v.1 - u.1) * (w.1 - v.1) > 0;
-            if turn(u, v, w) == 0 && same_way {
-                continue;
-            }
+        let (v, w) = (r[i], r[(i + 1) % n]);
+        if out.last().is_some_and(|&u| drop(u, v, w)) {
+            continue;
         }
         out.push(v);
     }
