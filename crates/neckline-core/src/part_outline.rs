@@ -263,8 +263,10 @@ pub fn trace(
                 .map(|(i, j)| (i as f64 * size, j as f64 * size))
                 .collect();
             match extent {
-                Some(e) => clip_to_box(&ring, e),
-                None => ring,
+                // A box of no width or height (one location, or all on one line across or
+                // up) would cut the ring to nothing: the cells' outline is kept whole.
+                Some(e) if e[2] > e[0] && e[3] > e[1] => clip_to_box(&ring, e),
+                _ => ring,
             }
         })
         .filter(|r| r.len() >= 3)
@@ -591,6 +593,26 @@ mod tests {
             area >= side * side && area <= (side + 2.0 * cell).powi(2),
             "{area} {cell}"
         );
+    }
+
+    // One location, or a row of them on one line: the box of the locations has no area, and
+    // the outline is the cells' own, holding every location (a degenerate box once cut every
+    // ring away).
+    #[test]
+    fn one_location_or_one_line_keeps_an_outline() {
+        for pts in [
+            vec![(32_111.14, -8_118.59)],
+            vec![(0.0, 0.0)],
+            (0..50).map(|k| (f64::from(k) * 0.5, 3.0)).collect(),
+            (0..50)
+                .map(|k| (-2.0, f64::from(k) * 0.5))
+                .collect::<Vec<_>>(),
+        ] {
+            let o = traced(&pts).unwrap();
+            assert!(!o.rings.is_empty(), "{pts:?}");
+            assert!(o.area() > 0.0);
+            assert!(pts.iter().all(|&p| o.contains(p, 1e-9)), "{:?}", o.rings);
+        }
     }
 
     // An L of locations: the notch is left out (a concave outline, not the convex hull).
