@@ -11,6 +11,7 @@ use crate::assess::Zone;
 use crate::measure::RejectedRow;
 use crate::point::PointResult;
 use crate::strain::StrainMeasure;
+use std::sync::Arc;
 
 mod bins;
 mod spread;
@@ -156,7 +157,7 @@ fn widen_by(e: &mut Option<[f64; 4]>, o: Option<[f64; 4]>) {
 
 /// The cell sizes and keeping mode of a summary, for the summaries of the parts that follow it
 /// (any template gives the right merged summary; a recent one saves work).
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Template {
     view: View,
     supported: Option<(f64, f64)>,
@@ -165,6 +166,7 @@ pub struct Template {
     spread_level: u32,
     complete: bool,
     room: Room,
+    spread_bars: Option<Arc<spread::Bars>>,
 }
 
 /// How much of what a merge keeps is still open in the summary a part will be merged into: a
@@ -198,6 +200,7 @@ impl Template {
         s.map.level = self.map_level;
         s.spread.level = self.spread_level;
         s.room = self.room;
+        s.spread_bars = self.spread_bars.clone();
         // Past the size where every location is kept, the parts keep only what a merge keeps.
         s.complete = self.complete;
         s
@@ -270,6 +273,8 @@ pub struct Summary {
     pub unsupported: Capped<String>,
     /// What this summary may still keep (less than the defaults in a part of a file).
     room: Room,
+    /// The spread sample's bars of the summary this part will be merged into.
+    spread_bars: Option<Arc<spread::Bars>>,
 }
 
 impl Summary {
@@ -306,6 +311,7 @@ impl Summary {
             spread: spread::new_spread(),
             unsupported: Capped::default(),
             room: Room::default(),
+            spread_bars: None,
         }
     }
 
@@ -333,6 +339,7 @@ impl Summary {
                 worst_bar: (self.worst.len() == WORST_KEPT)
                     .then(|| worst_key(&self.worst[WORST_KEPT - 1])),
             },
+            spread_bars: spread::Bars::of(&self.spread),
         }
     }
 
@@ -378,7 +385,7 @@ impl Summary {
             self.placed += 1;
             widen(&mut self.map_extent, u, v);
             let cell = MapCell::of(p);
-            self.map.add(u, v, |c| c.absorb(&cell));
+            self.map.add(u, v, |c| c.absorb(cell));
         }
         if let Some(g) = &p.grid {
             self.grid.0 = true;
@@ -405,8 +412,11 @@ impl Summary {
         }
         if at_risk(p) {
             let k = worst_key(p);
-            self.spread
-                .add_in_table(x, y, |c| c.offer((k.0, k.1, p.input.line, &p.input.id), p));
+            let bars = self.spread_bars.as_ref();
+            if !bars.is_some_and(|b| b.shut_out(&self.spread, x, y, k)) {
+                self.spread
+                    .add_in_table(x, y, |c| c.offer((k.0, k.1, p.input.line, &p.input.id), p));
+            }
         }
     }
 
@@ -571,7 +581,7 @@ impl Summary {
         }
         let mut seen = std::collections::HashSet::new();
         let worst = self.worst.iter().filter(|p| at_risk(p));
-        let sample = spread::sample(&self.spread).into_iter().map(|(_, p)| p);
+        let sample = spread::sample(&self.spread).into_iter().map(|(_, p)| &**p);
         worst
             .chain(sample)
             .filter(|p| seen.insert((p.input.line, p.input.id.as_str())))
@@ -810,6 +820,13 @@ mod tests {
                 .map(|p| p.input.id.clone())
                 .collect::<Vec<_>>()
         };
+        // The spread sample alone (the same whatever the order parts are merged in).
+        let sampled = |s: &Summary| {
+            spread::sample(&s.spread)
+                .iter()
+                .map(|(_, p)| p.input.id.clone())
+                .collect::<Vec<_>>()
+        };
         let mut whole = fold_all(&ps);
         whole.flush();
         assert!(!whole.complete);
@@ -844,7 +861,66 @@ mod tests {
             }
             merged.flush();
             assert_eq!(ids(&merged), ids(&whole), "{parts} parts");
+            // Parts merged last first: a later part's lines come before the summary's, so a
+            // tie of keys with a cell's bar must not shut a location out.
+            let mut backwards = Summary::new(View::default());
+            for chunk in ps.chunks(ps.len().div_ceil(parts)).rev() {
+                let mut part = backwards.next_part();
+                for p in chunk {
+                    part.fold(p.clone());
+                }
+                backwards.merge(part);
+            }
+            backwards.flush();
+            assert_eq!(
+                sampled(&backwards),
+                sampled(&whole),
+                "{parts} parts, last first"
+            );
         }
+        // The bars of full cells keep a later part small: the same failures again, each 1 pp
+        // less far past the curve and on a later line, rank after every location the cells
+        // hold, so a part told the bars copies them only into cells not yet full; one told
+        // nothing copies up to SPREAD_PER_CELL a cell. Merged, both give the same sample.
+        let again: Vec<PointResult> = ps
+            .iter()
+            .filter(|p| p.zone() == Zone::Failed)
+            .map(|p| {
+                let mut q = p.clone();
+                q.input.line += 100_000;
+                q.input.id = format!("again-{}", p.input.id);
+                q.judgement.margin_pct = p.judgement.margin_pct.map(|m| m + 1.0);
+                q
+            })
+            .collect();
+        let (mut informed, mut blind) = (whole.next_part(), whole.next_part());
+        blind.spread_bars = None;
+        for p in &again {
+            informed.fold(p.clone());
+            blind.fold(p.clone());
+        }
+        informed.flush();
+        blind.flush();
+        let held = |s: &Summary| s.spread.cells().values().map(|w| w.0.len()).sum::<usize>();
+        // Only cells the summary has not filled take any of them.
+        let open_room: usize = whole
+            .spread
+            .cells()
+            .values()
+            .map(|w| SPREAD_PER_CELL - w.0.len())
+            .sum();
+        assert!(held(&informed) <= open_room, "{}", held(&informed));
+        assert!(
+            held(&blind) > 10 * held(&informed).max(1),
+            "{}",
+            held(&blind)
+        );
+        let (mut a, mut b) = (whole.clone(), whole.clone());
+        a.merge(informed);
+        b.merge(blind);
+        a.flush();
+        b.flush();
+        assert_eq!(sampled(&a), sampled(&b));
     }
 
     #[test]

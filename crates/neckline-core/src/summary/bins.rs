@@ -8,8 +8,8 @@ use rustc_hash::FxHashMap;
 
 /// A value of a cell that absorbs another cell's.
 pub trait Cell: Default + Clone {
-    /// Take `other` into `self`.
-    fn absorb(&mut self, other: &Self);
+    /// Take `other` into `self` (by value: a cell moves its contents, copying nothing).
+    fn absorb(&mut self, other: Self);
 }
 
 /// A sparse square binning of the plane whose cells double in size when there are too many:
@@ -46,7 +46,7 @@ impl<C: Cell> Bins<C> {
     /// Put the pending cell into the table.
     pub fn flush(&mut self) {
         if let Some((k, c)) = self.pending.take() {
-            self.cells.entry(k).or_default().absorb(&c);
+            self.cells.entry(k).or_default().absorb(c);
             if self.cells.len() > self.cap {
                 self.coarsen();
             }
@@ -111,7 +111,7 @@ impl<C: Cell> Bins<C> {
     /// 2^steps × 2^steps cells merged; the same cells as that many [`Bins::coarsen`] calls).
     fn coarsen_by(&mut self, steps: u32) {
         if let Some((k, c)) = self.pending.take() {
-            self.cells.entry(k).or_default().absorb(&c);
+            self.cells.entry(k).or_default().absorb(c);
         }
         if steps == 0 {
             return;
@@ -123,7 +123,7 @@ impl<C: Cell> Bins<C> {
             self.cells
                 .entry((i >> shift, j >> shift))
                 .or_default()
-                .absorb(&c);
+                .absorb(c);
         }
     }
 
@@ -147,7 +147,7 @@ impl<C: Cell> Bins<C> {
             self.cells
                 .entry((i >> shift, j >> shift))
                 .or_default()
-                .absorb(&c);
+                .absorb(c);
         }
         while self.cells.len() > self.cap {
             self.coarsen();
@@ -160,7 +160,7 @@ impl<C: Cell> Bins<C> {
 pub struct ZoneCounts(pub [u32; 6]);
 
 impl Cell for ZoneCounts {
-    fn absorb(&mut self, o: &Self) {
+    fn absorb(&mut self, o: Self) {
         for (a, b) in self.0.iter_mut().zip(o.0) {
             *a += b;
         }
@@ -195,7 +195,7 @@ impl Default for MapCell {
 }
 
 impl Cell for MapCell {
-    fn absorb(&mut self, o: &Self) {
+    fn absorb(&mut self, o: Self) {
         self.n += o.n;
         self.margin = match (self.margin, o.margin) {
             (Some(a), Some(b)) => Some(a.min(b)),
