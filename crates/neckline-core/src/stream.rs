@@ -2,11 +2,12 @@
 //! points.csv in file order and folded into one [`Summary`], in memory that does not grow with
 //! the file (but for one 8-byte hash per location, to find duplicate ids).
 //!
-//! The main thread cuts the file into chunks at record boundaries (a small CSV state machine,
-//! so a quoted field with a line break is never cut) and keeps the order; rayon parses the
-//! chunks, then (after the main thread has marked duplicate ids, which needs the order) judges
-//! and formats them, each chunk into its own text and partial summary; the main thread writes
-//! the texts and merges the summaries in order.
+//! The calling thread cuts the file into chunks at record boundaries (a small CSV state
+//! machine, so a quoted field with a line break is never cut) and hands each to rayon as soon
+//! as it is cut, a few per core in flight; each chunk is parsed, judged and formatted into its
+//! own text and partial summary. The calling thread takes them back in file order, checks
+//! their keys for repeats (which needs the order; a chunk with a repeat is judged again with
+//! those rows rejected), merges the summaries and hands the texts to a writer thread.
 
 pub(crate) use crate::chunk::read_batch;
 pub use crate::chunk::{Chunk, Chunker, CHUNK_BYTES, MAX_RECORD_BYTES};
@@ -15,9 +16,10 @@ use crate::measure::{csv_error, duplicate, Header, Measurement};
 use crate::output::points_csv::Layout;
 use crate::point::{strain_of, Context};
 use crate::summary::{Summary, Template, View};
-use rayon::prelude::*;
 use std::hash::{Hash, Hasher};
 use std::io::{self, Read, Write};
+use std::panic::AssertUnwindSafe;
+use std::sync::Arc;
 
 /// The hash of a location's (id, stage) key.
 fn key_hash(m: &Measurement) -> u64 {
@@ -171,12 +173,20 @@ pub struct Pass<'a> {
     pub size_hint: Option<u64>,
 }
 
+/// What comes back from a chunk judged on the pool: its place in the file, the chunk (judged
+/// again should it hold a repeated key) and the outcome, or the panic of the job.
+type Done = (u64, Chunk, std::thread::Result<Result<Judged>>);
+
 impl Pass<'_> {
     /// Read, judge and summarise every row of `body` (the input after the header), writing
     /// the points table's rows to `sink` in file order. `progress` is told the bytes read.
     ///
-    /// Three things overlap: the next batch of chunks is read while the present one is
-    /// parsed and judged on every core, and the judged text is written by a thread of its own.
+    /// A pipeline without a barrier: this thread reads chunks and hands each to the pool as
+    /// soon as it is cut (up to four chunks a core in flight), takes the judged chunks back in
+    /// file order (checking their keys for repeats, which needs the order), merges their
+    /// summaries and passes their text to a writer thread of its own. Each chunk is judged
+    /// against the summary's template as it was when the chunk was handed out: any earlier
+    /// template gives the same merged summary (see [`Template`]).
     pub fn run(
         &self,
         body: impl Read + Send,
@@ -185,13 +195,12 @@ impl Pass<'_> {
     ) -> Result<Summary> {
         let h = self.header;
         let mut chunks = Chunker::new(body, h.lines + 1, h.dialect.delimiter());
-        let mut seen = SeenIds::default();
         let mut summary = Summary::new(self.view);
         summary.supported = self.ctx.curve.supported_true();
-        let batch = 2 * rayon::current_num_threads().max(1);
+        let window = 4 * rayon::current_num_threads().max(1) as u64;
         let out_err = |e| Error::io(std::path::Path::new("points.csv"), e);
         std::thread::scope(|scope| {
-            let (tx, rx) = std::sync::mpsc::sync_channel::<Vec<u8>>(1);
+            let (tx, rx) = std::sync::mpsc::sync_channel::<Vec<u8>>(2);
             let writer = sink.map(|w| {
                 scope.spawn(move || -> io::Result<()> {
                     for text in rx {
@@ -200,78 +209,129 @@ impl Pass<'_> {
                     Ok(())
                 })
             });
-            let mut todo = read_batch(&mut chunks, batch, &h.file)?;
-            let mut pending: Vec<Judged> = Vec::new();
-            let mut stopped = false;
-            // While one batch is judged on the workers, the one before it is written and
-            // merged and the next one read.
-            let mut take_in = |pending: Vec<Judged>, summary: &mut Summary| {
-                for j in pending {
-                    if writer.is_some() && !stopped && tx.send(j.text).is_err() {
-                        stopped = true; // the writer failed: its error is reported below
-                    }
-                    summary.merge(j.summary);
-                }
+            let mut order = InOrder {
+                pass: self,
+                seen: SeenIds::default(),
+                tx: writer.is_some().then_some(&tx),
+                merged: 0,
             };
-            while !todo.is_empty() {
-                let template = summary.template();
-                let first = summary.total == 0 && summary.rejected.total == 0;
-                let (next, judged) = rayon::join(
-                    || {
-                        take_in(std::mem::take(&mut pending), &mut summary);
-                        read_batch(&mut chunks, batch, &h.file)
-                    },
-                    || self.batch(todo, &mut seen, &template, first),
-                );
-                pending = judged?;
-                progress(chunks.bytes_read);
-                todo = next?;
-            }
-            take_in(pending, &mut summary);
+            let (done_tx, done_rx) = std::sync::mpsc::channel::<Done>();
+            let piped = rayon::in_place_scope_fifo(|s| -> Result<()> {
+                let mut like = Arc::new(summary.template());
+                let (mut sent, mut read_error) = (0u64, None);
+                let mut ready = std::collections::BTreeMap::new();
+                loop {
+                    while read_error.is_none() && sent - order.merged < window {
+                        match read_batch(&mut chunks, 1, &h.file).map(|mut v| v.pop()) {
+                            Ok(Some(chunk)) => {
+                                let (done, like) = (done_tx.clone(), Arc::clone(&like));
+                                s.spawn_fifo(move |_| {
+                                    let judged = std::panic::catch_unwind(AssertUnwindSafe(|| {
+                                        judge_chunk(&chunk, self, &like, &[])
+                                    }));
+                                    // The receiver outlives the scope: a send can not fail.
+                                    let _ = done.send((sent, chunk, judged));
+                                });
+                                sent += 1;
+                            }
+                            Ok(None) => break,
+                            // Reported once the chunks before it are taken in, as their
+                            // faults come first in the file.
+                            Err(e) => read_error = Some(e),
+                        }
+                    }
+                    if order.merged == sent {
+                        return read_error.map_or(Ok(()), Err);
+                    }
+                    let (i, chunk, judged) = wait(&done_rx);
+                    let judged = judged.unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+                    ready.insert(i, (chunk, judged));
+                    while let Some((chunk, judged)) = ready.remove(&order.merged) {
+                        order.take(&chunk, judged?, &mut summary, &like)?;
+                        like = Arc::new(summary.template());
+                        progress(chunks.bytes_read);
+                    }
+                }
+            });
             drop(tx);
-            if let Some(w) = writer {
+            let written = writer.map(|w| {
                 w.join()
                     .unwrap_or_else(|_| Err(io::Error::other("the writer thread failed")))
-                    .map_err(out_err)?;
+            });
+            piped?;
+            if let Some(w) = written {
+                w.map_err(out_err)?;
             }
             Ok(summary)
         })
     }
+}
 
-    /// Judge a batch of chunks in parallel, then check their keys in file order: a chunk with a
-    /// key seen before (rare) is judged again with those rows rejected as duplicates.
-    fn batch(
-        &self,
-        todo: Vec<Chunk>,
-        seen: &mut SeenIds,
-        like: &Template,
-        first: bool,
-    ) -> Result<Vec<Judged>> {
-        let judged: Vec<Result<Judged>> = todo
-            .par_iter()
-            .map(|c| judge_chunk(c, self, like, &[]))
-            .collect();
-        let mut judged = judged.into_iter().collect::<Result<Vec<_>>>()?;
-        if first {
-            // Room for the whole file at this batch's bytes per row, so the set of ids is not
-            // rehashed again and again.
-            let rows: usize = judged.iter().map(|j| j.keys.len()).sum();
-            let bytes: usize = todo.iter().map(|c| c.bytes.len()).sum::<usize>().max(1);
-            let size = self.size_hint.unwrap_or(0) as f64;
-            seen.reserve((rows as f64 * (size / bytes as f64).max(1.0)) as usize);
+/// The next judged chunk. Off the pool, this thread sleeps until one comes; on it (several
+/// files checked at once, each on a worker) the worker runs other jobs meanwhile, so that a
+/// pool of waiting workers can not stall.
+fn wait(done: &std::sync::mpsc::Receiver<Done>) -> Done {
+    loop {
+        if let Ok(d) = done.try_recv() {
+            return d;
         }
-        for (j, chunk) in judged.iter_mut().zip(&todo) {
-            let repeats: Vec<u64> = j
-                .keys
-                .iter()
-                .filter(|(hash, _)| !seen.insert(*hash))
-                .map(|(_, line)| *line)
-                .collect();
-            if !repeats.is_empty() {
-                *j = judge_chunk(chunk, self, like, &repeats)?;
+        match rayon::yield_now() {
+            Some(rayon::Yield::Executed) => {}
+            Some(rayon::Yield::Idle) => {
+                if let Ok(d) = done.recv_timeout(std::time::Duration::from_micros(200)) {
+                    return d;
+                }
+            }
+            // The scope holds a sender until every job has sent: the channel stays open.
+            None => return done.recv().expect("a chunk in flight sends its outcome"),
+        }
+    }
+}
+
+/// The judged chunks taken in file order.
+struct InOrder<'p, 'a> {
+    pass: &'p Pass<'a>,
+    seen: SeenIds,
+    tx: Option<&'p std::sync::mpsc::SyncSender<Vec<u8>>>,
+    merged: u64,
+}
+
+impl InOrder<'_, '_> {
+    /// Check a chunk's keys against those before it (a chunk with a repeat, which is rare, is
+    /// judged again with those rows rejected), pass its text on and merge its summary.
+    fn take(
+        &mut self,
+        chunk: &Chunk,
+        mut judged: Judged,
+        summary: &mut Summary,
+        like: &Template,
+    ) -> Result<()> {
+        if self.merged == 0 {
+            // Room for the whole file at the first chunk's bytes per row, so the set of ids is
+            // not rehashed again and again.
+            let rows = judged.keys.len() as f64;
+            let size = self.pass.size_hint.unwrap_or(0) as f64;
+            let scale = (size / chunk.bytes.len().max(1) as f64).max(1.0);
+            self.seen.reserve((rows * scale) as usize);
+        }
+        let repeats: Vec<u64> = judged
+            .keys
+            .iter()
+            .filter(|(hash, _)| !self.seen.insert(*hash))
+            .map(|(_, line)| *line)
+            .collect();
+        if !repeats.is_empty() {
+            judged = judge_chunk(chunk, self.pass, like, &repeats)?;
+        }
+        // A failed writer ends the channel; its error is reported when it is joined.
+        if let Some(tx) = self.tx {
+            if tx.send(judged.text).is_err() {
+                self.tx = None;
             }
         }
-        Ok(judged)
+        summary.merge(judged.summary);
+        self.merged += 1;
+        Ok(())
     }
 }
 
