@@ -88,21 +88,25 @@ struct Judged {
     keys: Vec<(u64, u64)>,
 }
 
-/// Parse, judge and format the rows of one chunk, the rows at `duplicates` (lines) rejected as
-/// repeats of an earlier key.
+/// Parse, judge and format the rows of one chunk into `text` (emptied first: a buffer the writer
+/// is done with, so that its pages are not faulted in again), the rows at `duplicates` (lines)
+/// rejected as repeats of an earlier key.
 fn judge_chunk(
     chunk: &Chunk,
     pass: &Pass<'_>,
     like: &Template,
     duplicates: &[u64],
+    mut text: Vec<u8>,
 ) -> Result<Judged> {
     let header = pass.header;
     let mut reader = crate::measure::csv_reader(header.dialect, &chunk.bytes[..]);
     let mut record = csv::StringRecord::new();
     // Rows of points.csv are about 190 bytes, input rows 30 or more: room enough not to copy.
     let room = if pass.write { chunk.bytes.len() * 8 } else { 0 };
+    text.clear();
+    text.reserve(room);
     let mut out = Judged {
-        text: Vec::with_capacity(room),
+        text,
         summary: like.part(),
         keys: Vec::with_capacity(chunk.bytes.len() / 24),
     };
@@ -201,10 +205,13 @@ impl Pass<'_> {
         let out_err = |e| Error::io(std::path::Path::new("points.csv"), e);
         std::thread::scope(|scope| {
             let (tx, rx) = std::sync::mpsc::sync_channel::<Vec<u8>>(2);
+            // Written texts come back to be filled again.
+            let (spent_tx, spent) = std::sync::mpsc::channel::<Vec<u8>>();
             let writer = sink.map(|w| {
                 scope.spawn(move || -> io::Result<()> {
                     for text in rx {
                         w.write_all(&text)?;
+                        let _ = spent_tx.send(text);
                     }
                     Ok(())
                 })
@@ -225,9 +232,10 @@ impl Pass<'_> {
                         match read_batch(&mut chunks, 1, &h.file).map(|mut v| v.pop()) {
                             Ok(Some(chunk)) => {
                                 let (done, like) = (done_tx.clone(), Arc::clone(&like));
+                                let text = spent.try_recv().unwrap_or_default();
                                 s.spawn_fifo(move |_| {
                                     let judged = std::panic::catch_unwind(AssertUnwindSafe(|| {
-                                        judge_chunk(&chunk, self, &like, &[])
+                                        judge_chunk(&chunk, self, &like, &[], text)
                                     }));
                                     // The receiver outlives the scope: a send can not fail.
                                     let _ = done.send((sent, chunk, judged));
@@ -321,7 +329,7 @@ impl InOrder<'_, '_> {
             .map(|(_, line)| *line)
             .collect();
         if !repeats.is_empty() {
-            judged = judge_chunk(chunk, self.pass, like, &repeats)?;
+            judged = judge_chunk(chunk, self.pass, like, &repeats, judged.text)?;
         }
         // A failed writer ends the channel; its error is reported when it is joined.
         if let Some(tx) = self.tx {
