@@ -176,8 +176,10 @@ pub fn judge_file(
     if staged && !one_stage {
         // Several stages per location: grouped through run files, in bounded memory.
         let order = prep.job.stages.as_deref();
+        let size = std::fs::metadata(path).ok().map(|m| m.len());
         let run = neckline_core::point::staged_runs::judge_staged_runs(
             &mut input,
+            size,
             &header,
             &ctx,
             order,
