@@ -278,6 +278,31 @@ pub fn one_stage(path: &std::path::Path, header: &Header) -> bool {
     one_stage_body(input, header)
 }
 
+/// Keep `body` (the rows of `file`, read once, as standard input is) in an anonymous
+/// temporary file, so that it can be read again ([`one_stage_body`], then the judgement);
+/// the file, rewound, and its length. A read error is reported as reading the rows in chunks
+/// reports it.
+pub fn spool(mut body: impl Read, file: &std::path::Path) -> Result<(File, u64)> {
+    let mut out = temp()?;
+    let mut buf = vec![0u8; 1 << 16];
+    let mut len = 0u64;
+    loop {
+        let n = match body.read(&mut buf) {
+            Ok(0) => break,
+            Ok(n) => n,
+            Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
+            Err(e) if e.kind() == io::ErrorKind::InvalidData => {
+                return Err(Error::input(Location::file(file), e.to_string()))
+            }
+            Err(e) => return Err(Error::io(file, e)),
+        };
+        out.write_all(&buf[..n]).map_err(run_error)?;
+        len += n as u64;
+    }
+    out.rewind().map_err(run_error)?;
+    Ok((out, len))
+}
+
 /// Whether `body` (the rows after `header`, decoded as [`crate::text`] gives them) has at
 /// most one stage (see [`one_stage`]): read in parallel chunks, only the `stage` field of each
 /// row, stopping at the second stage found; `false` when its rows do not parse (the staged
@@ -871,5 +896,36 @@ mod tests {
         .to_string();
         assert_eq!(got, want);
         assert!(got.contains("op2"), "{got}");
+    }
+
+    /// Rows kept from a reader read once are those read: one stage found in them as in the
+    /// text itself, two stages (or a row with none beside one with a stage) not.
+    #[test]
+    fn kept_rows_tell_one_stage_from_several() {
+        fn header_of(text: &str) -> (Header, &[u8]) {
+            let mut input = text.as_bytes();
+            let h = Header::read(&mut input, Path::new("-"), &ColumnMap::default()).unwrap();
+            (h, input)
+        }
+        for (text, one) in [
+            (
+                "id,stage,major,minor\nA,op10,2.6,2.5\n\nB, op10 ,2.7,2.5\n",
+                true,
+            ),
+            (
+                "id,stage,major,minor\nA,op10,2.6,2.5\nB,op20,2.7,2.5\n",
+                false,
+            ),
+            ("id,stage,major,minor\nA,op10,2.6,2.5\nB,,2.7,2.5\n", false),
+        ] {
+            let (header, body) = header_of(text);
+            let (mut kept, len) = spool(body, Path::new("-")).unwrap();
+            assert_eq!(len, body.len() as u64);
+            let mut again = Vec::new();
+            kept.read_to_end(&mut again).unwrap();
+            assert_eq!(again, body, "the rows kept as they were read");
+            kept.rewind().unwrap();
+            assert_eq!(one_stage_body(&kept, &header), one, "{text}");
+        }
     }
 }
