@@ -465,10 +465,19 @@ pub fn judge_staged_runs(
         }
         let template = summary.template();
         let judged: Vec<(Vec<u8>, Summary)> = todo
-            .slices(BLOCK)
-            .into_par_iter()
-            .map(|(bytes, spans)| {
-                judge_batch(bytes, spans, header, ctx, staged, layout, write, &template)
+            .spans
+            .par_chunks(BLOCK)
+            .map(|spans| {
+                judge_batch(
+                    &todo.bytes,
+                    spans,
+                    header,
+                    ctx,
+                    staged,
+                    layout,
+                    write,
+                    &template,
+                )
             })
             .collect();
         for (text, part) in judged {
@@ -664,14 +673,6 @@ struct Batch {
 impl Batch {
     fn is_empty(&self) -> bool {
         self.spans.is_empty()
-    }
-
-    /// The batch cut into runs of `n` consecutive locations (fewer in the last).
-    fn slices(&self, n: usize) -> Vec<(&[u8], &[(usize, usize)])> {
-        self.spans
-            .chunks(n.max(1))
-            .map(|spans| (&self.bytes[..], spans))
-            .collect()
     }
 }
 
