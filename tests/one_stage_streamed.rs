@@ -142,7 +142,7 @@ fn stdin_gives_what_the_file_gives(text: &str, name: &str) {
 fn a_file_of_one_stage_from_standard_input_gives_what_the_file_gives() {
     // Streamed in one pass whether read from disk or from standard input, with Windows line
     // ends (made LF as the file is read, before its rows are kept).
-    let text = staged_rows(5_000).replace('\n', "\r\n");
+    let text = staged_rows(1_500).replace('\n', "\r\n");
     stdin_gives_what_the_file_gives(&text, "staged.csv");
 }
 
