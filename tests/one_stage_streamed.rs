@@ -1,6 +1,7 @@
 //! A measurement file with a `stage` column whose rows are all of one stage is judged as the
 //! same rows without `stage`, in one streamed pass; its outputs are those the staged path
-//! (which standard input always takes) gives for it.
+//! gives for it. Standard input (read once, its rows kept in a temporary file) is judged as
+//! the same file read from disk, byte for byte.
 
 mod common;
 use common::{neckline, read_json, read_rows, read_text, write};
@@ -79,21 +80,31 @@ fn one_stage_rows_judge_as_the_same_rows_without_stage() {
     assert_eq!(js["verdict"], jp["verdict"]);
 }
 
-#[test]
-fn a_file_of_one_stage_gives_what_the_staged_path_gives() {
+/// Judge `text` from the file `name` and from standard input with `--format csv,json,svg`,
+/// and check that every output is the same, byte for byte, but for what names the input
+/// (`name` or `-`) and the run time.
+fn stdin_gives_what_the_file_gives(text: &str, name: &str) {
     let dir = tempfile::tempdir().unwrap();
     let d = dir.path();
-    let text = staged_rows(20_000);
-    write(d, "staged.csv", &text);
-    check(d, "staged.csv", "file");
-    // Standard input cannot be read twice: it takes the staged path through run files.
+    write(d, name, text);
     let limit = common::repo_arg("limits/steel-0.80mm-n0.20-keeler-brazier.toml");
-    neckline(&[
-        "check", "-", "--limit", &limit, "--out", "stdin", "--format", "csv,json",
-    ])
-    .stdin(text.clone())
-    .run_in(d)
-    .expect(0);
+    let run = |input: &str, out: &str| {
+        let args = [
+            "check",
+            input,
+            "--limit",
+            &limit,
+            "--out",
+            out,
+            "--format",
+            "csv,json,svg",
+        ];
+        let r = neckline(&args);
+        let r = if input == "-" { r.stdin(text) } else { r };
+        r.run_in(d).expect(0)
+    };
+    run(name, "file");
+    run("-", "stdin");
     assert_eq!(
         read_text(&d.join("file/points.csv")),
         read_text(&d.join("stdin/points.csv")),
@@ -101,16 +112,52 @@ fn a_file_of_one_stage_gives_what_the_staged_path_gives() {
     );
     let strip = |p: &str| {
         let mut j = read_json(&d.join(p));
-        // What names the input (`staged.csv` or `-`) or the time apart, all else the same.
-        for k in ["run_time_utc", "input", "files", "points_file"] {
+        // What names the input (`name` or `-`) or the time apart, all else the same.
+        for k in ["run_time_utc", "input", "points_file"] {
             j.as_object_mut().unwrap().remove(k);
+        }
+        for f in j["files"].as_array_mut().unwrap() {
+            f.as_object_mut().unwrap().remove("path");
         }
         for r in j["rejected"].as_array_mut().unwrap() {
             r.as_object_mut().unwrap().remove("file");
         }
         j
     };
-    assert_eq!(strip("file/summary.json"), strip("stdin/summary.json"));
+    let (file, stdin) = (strip("file/summary.json"), strip("stdin/summary.json"));
+    assert_eq!(file, stdin);
+    assert_eq!(
+        file["files"][0]["role"], "measurements",
+        "the digest of what was read, the same from standard input: {file}"
+    );
+    for picture in ["fld.svg", "map.svg"] {
+        // The footer names the input.
+        let named =
+            read_text(&d.join("stdin").join(picture)).replace("input -", &format!("input {name}"));
+        assert_eq!(read_text(&d.join("file").join(picture)), named, "{picture}");
+    }
+}
+
+#[test]
+fn a_file_of_one_stage_from_standard_input_gives_what_the_file_gives() {
+    // Streamed in one pass whether read from disk or from standard input, with Windows line
+    // ends (made LF as the file is read, before its rows are kept).
+    let text = staged_rows(1_500).replace('\n', "\r\n");
+    stdin_gives_what_the_file_gives(&text, "staged.csv");
+}
+
+#[test]
+fn a_file_of_three_stages_from_standard_input_gives_what_the_file_gives() {
+    let one = staged_rows(1_500);
+    let mut text = one.clone();
+    for stage in ["op20", "op30"] {
+        text += &one
+            .lines()
+            .skip(1)
+            .map(|l| l.replace("op10", stage) + "\n")
+            .collect::<String>();
+    }
+    stdin_gives_what_the_file_gives(&text, "three.csv");
 }
 
 #[test]

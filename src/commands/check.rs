@@ -14,10 +14,10 @@ use neckline_core::error::{Error, Result};
 use neckline_core::measure::{Header, RowRules};
 use neckline_core::output::points_csv::Layout;
 use neckline_core::output::push_fixed;
-use neckline_core::point::Context;
+use neckline_core::point::{staged_runs, Context};
 use neckline_core::stream::Pass;
 use rayon::prelude::*;
-use std::io::Write;
+use std::io::{Read, Seek, Write};
 use std::path::{Path, PathBuf};
 
 /// Arguments of `check`.
@@ -134,7 +134,7 @@ pub fn judge_file(
     let rules = RowRules::new(&prep.lengths, prep.settings.reading_error);
     let header = Header::read(&mut hashed, path, &prep.map)?.with_rules(rules);
     header.check_units()?;
-    let mut input = neckline_core::measure::screen(hashed, &header)?;
+    let input = neckline_core::measure::screen(hashed, &header)?;
     let strain_input = header.columns.gives_strains();
     let mut notes = header.notes.clone();
     if strain_input && prep.lengths.d0.is_some() {
@@ -168,16 +168,31 @@ pub fn judge_file(
     };
     let io_err = |e| Error::io(plan.points.as_deref().unwrap_or(Path::new("-")), e);
     let staged = header.columns.has("stage");
+    let stdin = path.as_os_str() == "-";
     // A file of one stage is judged as one without stages (the same outputs, one pass); one
-    // with several (or a job file's stage order) is grouped through run files.
-    let one_stage = staged
-        && prep.job.stages.is_none()
-        && neckline_core::point::staged_runs::one_stage(path, &header);
+    // with several (or a job file's stage order) is grouped through run files. Standard input
+    // is read once: a staged file's rows are kept in an anonymous temporary file (hashed as
+    // they pass), so that they can be read again.
+    let no_order = prep.job.stages.is_none();
+    let (mut input, size, one_stage): (Box<dyn Read + Send>, Option<u64>, bool) = if staged && stdin
+    {
+        let (mut spooled, len) = staged_runs::spool(input, path)?;
+        let one = no_order && staged_runs::one_stage_body(&spooled, &header);
+        spooled
+            .rewind()
+            .map_err(|e| Error::io(&std::env::temp_dir(), e))?;
+        (Box::new(spooled), Some(len), one)
+    } else {
+        let size = std::fs::metadata(path).ok().map(|m| m.len());
+        let one = staged && no_order && staged_runs::one_stage(path, &header);
+        (Box::new(input), size, one)
+    };
     if staged && !one_stage {
         // Several stages per location: grouped through run files, in bounded memory.
         let order = prep.job.stages.as_deref();
-        let run = neckline_core::point::staged_runs::judge_staged_runs(
+        let run = staged_runs::judge_staged_runs(
             &mut input,
+            size,
             &header,
             &ctx,
             order,
@@ -210,7 +225,6 @@ pub fn judge_file(
         w.write_all(layout.header_line().as_bytes())
             .map_err(io_err)?;
     }
-    let size = std::fs::metadata(path).ok().map(|m| m.len());
     let mut progress = Progress::new(&path.display().to_string(), size, bar);
     let pass = Pass {
         header: &header,

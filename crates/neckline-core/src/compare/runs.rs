@@ -368,6 +368,87 @@ fn positions(path: &Path) -> Result<Positions> {
     Ok(xy)
 }
 
+/// The first fault in file order, given `fault`, the first of input `k` (the first input
+/// with one): an id met twice before it, in input `k` or in one before (which the join would
+/// report had the inputs read to their end), or `fault` itself. By id only: by position the
+/// ids are checked as the positions are read, row by row. The ids before the fault are read
+/// again through `parts` run files, each searched alone: no set of every id is held.
+fn earliest_fault(
+    paths: &[PathBuf],
+    k: usize,
+    fault: Error,
+    matching: Matching,
+    parts: usize,
+) -> Error {
+    let at = match &fault {
+        Error::Input { location, .. } => location.line,
+        _ => None,
+    };
+    let (Matching::Id, Some(at)) = (matching, at) else {
+        return fault;
+    };
+    match first_duplicate(&paths[..=k], at, parts) {
+        Ok(Some(e)) => e,
+        _ => fault,
+    }
+}
+
+/// The first id met twice in one of `paths` (by input, then line), the last read only before
+/// line `until`.
+fn first_duplicate(paths: &[PathBuf], until: u64, parts: usize) -> Result<Option<Error>> {
+    let mut files: Vec<BufWriter<File>> = (0..parts)
+        .map(|_| temp().map(|f| BufWriter::with_capacity(1 << 15, f)))
+        .collect::<Result<_>>()?;
+    let last = paths.len() - 1;
+    for (k, path) in paths.iter().enumerate() {
+        let read = for_each_row(open_input(path)?, path, |line, r| {
+            if k == last && line >= until {
+                return Ok(());
+            }
+            let w = &mut files[partition(hash_of(r.id.as_bytes()), parts)];
+            let head = [k as u64, line, r.id_column, r.id.len() as u64];
+            head.iter()
+                .try_for_each(|v| w.write_all(&v.to_le_bytes()))
+                .and_then(|_| w.write_all(r.id.as_bytes()))
+                .map_err(run_error)
+        });
+        // The last input's fault is known; the inputs before it read to their end.
+        if k != last {
+            read?;
+        }
+    }
+    let mut first: Option<(u64, u64, Error)> = None;
+    for w in files {
+        let mut f = w.into_inner().map_err(|e| run_error(e.into_error()))?;
+        f.rewind().map_err(run_error)?;
+        let mut r = BufReader::with_capacity(1 << 16, f);
+        let mut seen: HashSet<(u64, Vec<u8>)> = HashSet::new();
+        let mut head = [0u8; 32];
+        loop {
+            match r.read_exact(&mut head) {
+                Err(e) if e.kind() == io::ErrorKind::UnexpectedEof => break,
+                other => other.map_err(run_error)?,
+            }
+            let v = |i: usize| {
+                u64::from_le_bytes(head[i * 8..i * 8 + 8].try_into().unwrap_or_default())
+            };
+            let (k, line, column) = (v(0), v(1), v(2));
+            let mut id = vec![0u8; v(3) as usize];
+            r.read_exact(&mut id).map_err(run_error)?;
+            // Rows are in file order within each partition: the first repeat is its earliest.
+            if !seen.insert((k, id.clone())) {
+                if first.as_ref().is_none_or(|f| (k, line) < (f.0, f.1)) {
+                    let loc = Location::file(&paths[k as usize]);
+                    let id = String::from_utf8_lossy(&id);
+                    first = Some((k, line, duplicate(&loc, line, column, &id)));
+                }
+                break;
+            }
+        }
+    }
+    Ok(first.map(|(_, _, e)| e))
+}
+
 /// Compare the `points.csv` files at `paths` (at least two), writing compare.csv to `csv`
 /// when given, in bounded memory (see the module's text). The comparison holds the counts of
 /// every location and, beyond [`crate::summary::KEEP_ALL`] locations, the tracks of the capped
@@ -403,8 +484,11 @@ pub fn compare_files(
         .collect();
     drop(orders);
     let mut files: Vec<Vec<File>> = Vec::new();
-    for (t, r) in tryouts.iter_mut().zip(split) {
-        let (stats, f) = r?;
+    for (k, (t, r)) in tryouts.iter_mut().zip(split).enumerate() {
+        let (stats, f) = match r {
+            Ok(r) => r,
+            Err(e) => return Err(earliest_fault(paths, k, e, matching, parts)),
+        };
         t.stats = stats;
         files.push(f);
     }
@@ -548,6 +632,57 @@ mod tests {
         // Line 47: the header is line 1 and L3's second row the 46th.
         assert!(
             e.contains("a.csv:47:1 (column `id`)") && e.contains("duplicate id `L3`"),
+            "{e}"
+        );
+    }
+
+    /// A file with a repeated id (line 5) and a value that is not a number (line 9): the
+    /// repeat is reported, the earlier fault; with the two the other way round, the number.
+    /// Across files the first file's fault comes first, whatever its line.
+    #[test]
+    fn the_earliest_fault_is_reported() {
+        let dir = tempfile::tempdir().unwrap();
+        let rows: Vec<_> = (0..12)
+            .map(|i| (format!("L{i}"), 20.0, "safe", 0.0))
+            .collect();
+        let good = points(dir.path(), "good.csv", &rows);
+        let text = std::fs::read_to_string(&good).unwrap();
+        // Line n of the file is row n - 2 (the header is line 1).
+        let with = |name: &str, dup_line: usize, bad_line: usize| {
+            let mut lines: Vec<String> = text.lines().map(String::from).collect();
+            lines[dup_line - 1] =
+                lines[dup_line - 1].replacen(&format!("L{}", dup_line - 2), "L1", 1);
+            lines[bad_line - 1] = lines[bad_line - 1].replacen(",20.000,", ",2o.000,", 1);
+            let p = dir.path().join(name);
+            std::fs::write(&p, lines.join("\n") + "\n").unwrap();
+            p
+        };
+        let err = |paths: &[PathBuf]| {
+            compare_files(paths, Matching::Id, 1.0, None)
+                .unwrap_err()
+                .to_string()
+        };
+        let dup_first = with("dup-first.csv", 5, 9);
+        let e = err(&[dup_first.clone(), good.clone()]);
+        assert!(
+            e.contains("dup-first.csv:5:1 (column `id`)") && e.contains("duplicate id `L1`"),
+            "{e}"
+        );
+        let e = err(&[good.clone(), dup_first.clone()]);
+        assert!(
+            e.contains("dup-first.csv:5:1"),
+            "in the second file too: {e}"
+        );
+        let bad_first = with("bad-first.csv", 9, 5);
+        let e = err(&[bad_first.clone(), good.clone()]);
+        assert!(
+            e.contains("bad-first.csv:5:") && e.contains("2o.000"),
+            "{e}"
+        );
+        // The first file's repeat (line 9) before the second file's bad number (line 5).
+        let e = err(&[with("dup-late.csv", 9, 11), bad_first]);
+        assert!(
+            e.contains("dup-late.csv:9:1") && e.contains("duplicate id"),
             "{e}"
         );
     }
