@@ -10,13 +10,21 @@
 //! 3. The partial tallies merge into one; the partitions' rows are merged by their place into
 //!    compare.csv.
 //!
-//! By position, the tracks are found first: each input's positions (24 bytes a row) are paired
-//! with the previous input's on a grid of sorted cells ([`super::pairing`]), and every row gets
-//! the place of the track it joins (8 bytes a row and input).
+//! By position, each input is still read once (on every core at once), and then its tracks are
+//! found: each row goes to one run file in row order (input 0's straight to the partition of
+//! its track, which it starts), its position to a file sorted by grid cell in chunks, the hash
+//! of its id to a partition of hashes (each sorted afterwards: two equal hashes, and only then,
+//! send the file to be read again for its ids themselves, so a duplicate is refused at its
+//! line). Each input is paired with the one before it by a sweep over the merged chunks
+//! ([`super::sweep`]: greedy closest-first, the pairs of [`super::pairing::pair`]), which gives
+//! each row of the later input its partner (4 bytes a row); the later inputs' rows are then
+//! routed from their runs to the partitions of their tracks, and joined as by id.
 //!
 //! What stays in memory: a partition being joined (two on two cores), the capped lists and the
-//! densities; by position, the positions of two inputs and the track of every row. The run
-//! files are anonymous temporary files: the system removes them however the run ends.
+//! densities; by position also a chunk of positions being sorted, the sweep's last two rows of
+//! cells with the locations still waiting on them, and the partner of every row of each later
+//! input. The run files are anonymous temporary files: the system removes them however the
+//! run ends.
 
 use super::read::{duplicate, for_each_row, tryout_of, unique_labels, ReadRow};
 use super::tally::{order_of, Order, Tally};

@@ -137,36 +137,31 @@ impl Slab {
 /// One row of cells of one input: (column, slot), by column.
 type Row = Vec<(i64, u32)>;
 
-/// A stream with the next item in view.
-struct Ahead<I: Iterator> {
+/// A stream with the next location in view.
+struct Ahead<I> {
     it: I,
-    next: Option<I::Item>,
+    next: Option<Placed>,
 }
 
 impl<E, I: Iterator<Item = Result<Placed, E>>> Ahead<I> {
     fn new(mut it: I) -> Result<Self, E> {
-        let next = it.next().transpose()?.map(Ok);
+        let next = it.next().transpose()?;
         Ok(Ahead { it, next })
     }
 
     fn row(&self) -> Option<i64> {
-        match &self.next {
-            Some(Ok(p)) => Some(p.cy),
-            _ => None,
-        }
+        self.next.map(|p| p.cy)
     }
 
     /// The next location, if it is in cell row `cy`.
     fn take_in(&mut self, cy: i64) -> Result<Option<Placed>, E> {
-        if self.row() != Some(cy) {
-            return Ok(None);
+        match self.next {
+            Some(p) if p.cy == cy => {
+                self.next = self.it.next().transpose()?;
+                Ok(Some(p))
+            }
+            _ => Ok(None),
         }
-        let p = match self.next.take() {
-            Some(Ok(p)) => p,
-            _ => return Ok(None),
-        };
-        self.next = self.it.next().transpose()?.map(Ok);
-        Ok(Some(p))
     }
 }
 
@@ -185,6 +180,7 @@ pub fn sweep<E>(
     // Rows of cells loaded last (`last`), and the one before it, of each input.
     let mut last: Option<i64> = None;
     let mut rows: [Row; 2] = [Vec::new(), Vec::new()];
+    let mut previous: [Row; 2] = [Vec::new(), Vec::new()];
     // Locations not yet complete, in the order loaded (by row); each slot's row index.
     let mut pending: VecDeque<(i64, u32)> = VecDeque::new();
     let mut index: Vec<u32> = Vec::new();
@@ -205,14 +201,15 @@ pub fn sweep<E>(
         settle(&mut slab, &mut work, &mut out);
         let Some(n) = next else { break };
         // Load row `n` of both inputs.
-        let previous = std::mem::take(&mut rows);
+        std::mem::swap(&mut rows, &mut previous);
+        rows.iter_mut().for_each(Vec::clear);
         let adjacent = last.is_some_and(|l| n.checked_sub(1) == Some(l));
         let near: [&[(i64, u32)]; 2] = if adjacent {
             [&previous[0], &previous[1]]
         } else {
             [&[], &[]]
         };
-        for side in 0..2 {
+        for (side, row) in rows.iter_mut().enumerate() {
             loop {
                 let p = match side {
                     0 => inputs.0.take_in(n)?,
@@ -224,7 +221,7 @@ pub fn sweep<E>(
                     index.resize(s as usize + 1, 0);
                 }
                 index[s as usize] = p.index;
-                rows[side].push((p.cx, s));
+                row.push((p.cx, s));
                 pending.push_back((n, s));
             }
         }
