@@ -3,7 +3,7 @@
 //! - `check` of a file with a `stage` column: ROWS/3 locations measured after three stages,
 //!   and the same ROWS rows all of one stage;
 //! - `grid`: a regular row, col grid of ROWS nodes (1000 columns);
-//! - `compare` of two `check` outputs of ROWS rows each;
+//! - `compare` of two `check` outputs of ROWS rows each, by id and by position (`--match xy`);
 //! - `limit from-parts` of 100 000 circles (a tenth of ROWS).
 //!
 //! Run: `cargo bench --bench scale [-- ROWS] [only NAME]` (default 1 000 000 rows; NAME one
@@ -231,6 +231,14 @@ fn main() {
         c.arg("--out").arg(dir.path().join("cmp"));
         let (t, m) = run(&mut c);
         line("compare (all outputs)", rows, t, m);
+        let mut xy = Command::new(exe);
+        xy.arg("compare")
+            .arg(dir.path().join("flat/points.csv"))
+            .arg(dir.path().join("flat2/points.csv"));
+        xy.args(["--match", "xy", "--within", "0.2", "--out"])
+            .arg(dir.path().join("cmp-xy"));
+        let (t, m) = run(&mut xy);
+        line("compare --match xy --within 0.2", rows, t, m);
         for f in [
             "compare.html",
             "compare-fld.svg",

@@ -14,6 +14,7 @@ pub mod pairing;
 pub mod read;
 pub mod record;
 pub mod runs;
+pub mod sweep;
 pub mod tally;
 
 pub use read::{read_results, read_tryout, RecordedSummary, ResultRow, Tryout, TryoutStats};

@@ -18,7 +18,8 @@ pub struct Pair {
     pub distance: f64,
 }
 
-fn cell(p: (f64, f64), size: f64) -> (i64, i64) {
+/// The cell of `p` in a grid of cells `size` wide: (column, row).
+pub(super) fn cell(p: (f64, f64), size: f64) -> (i64, i64) {
     ((p.0 / size).floor() as i64, (p.1 / size).floor() as i64)
 }
 

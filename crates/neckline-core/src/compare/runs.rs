@@ -10,17 +10,25 @@
 //! 3. The partial tallies merge into one; the partitions' rows are merged by their place into
 //!    compare.csv.
 //!
-//! By position, the tracks are found first: each input's positions (24 bytes a row) are paired
-//! with the previous input's on a grid of sorted cells ([`super::pairing`]), and every row gets
-//! the place of the track it joins (8 bytes a row and input).
+//! By position, each input is still read once (on every core at once), and then its tracks are
+//! found: each row goes to one run file in row order (input 0's straight to the partition of
+//! its track, which it starts), its position to a file sorted by grid cell in chunks, the hash
+//! of its id to a partition of hashes (each sorted afterwards: two equal hashes, and only then,
+//! send the file to be read again for its ids themselves, so a duplicate is refused at its
+//! line). Each input is paired with the one before it by a sweep over the merged chunks
+//! ([`super::sweep`]: greedy closest-first, the pairs of [`super::pairing::pair`]), which gives
+//! each row of the later input its partner (4 bytes a row); the later inputs' rows are then
+//! routed from their runs to the partitions of their tracks, and joined as by id.
 //!
 //! What stays in memory: a partition being joined (two on two cores), the capped lists and the
-//! densities; by position, the positions of two inputs and the track of every row. The run
-//! files are anonymous temporary files: the system removes them however the run ends.
+//! densities; by position also a chunk of positions being sorted, the sweep's last two rows of
+//! cells with the locations still waiting on them, and the partner of every row of each later
+//! input. The run files are anonymous temporary files: the system removes them however the
+//! run ends.
 
 use super::read::{duplicate, for_each_row, tryout_of, unique_labels, ReadRow};
 use super::tally::{order_of, Order, Tally};
-use super::{csv_out, density_for, finish, pairing, Comparison, Matching, ResultRow, Track};
+use super::{csv_out, density_for, finish, sweep, Comparison, Matching, ResultRow, Track};
 use crate::assess::Zone;
 use crate::error::{Error, Location, Result};
 use crate::measure::open_input;
@@ -119,12 +127,8 @@ fn decode(r: &mut impl Read) -> io::Result<Option<RunRow>> {
     }))
 }
 
-/// Read `path` (tryout `k`) into `parts` run files; its stats.
-fn split(
-    path: &Path,
-    parts: usize,
-    tracks: Option<&[Order]>,
-) -> Result<(super::TryoutStats, Vec<File>)> {
+/// Read `path` into `parts` run files by a hash of each row's id; its stats.
+fn split(path: &Path, parts: usize) -> Result<(super::TryoutStats, Vec<File>)> {
     let mut files: Vec<BufWriter<File>> = (0..parts)
         .map(|_| temp().map(|f| BufWriter::with_capacity(1 << 15, f)))
         .collect::<Result<_>>()?;
@@ -133,27 +137,15 @@ fn split(
     let mut index = 0u64;
     for_each_row(open_input(path)?, path, |line, r| {
         stats.fold(&r);
-        let track = tracks.map_or(0, |t| t[index as usize]);
-        let key = match tracks {
-            Some(_) => hash_of(track),
-            None => hash_of(r.id.as_bytes()),
-        };
-        encode(&mut buf, index, line, track, &r);
-        files[partition(key, parts)]
+        encode(&mut buf, index, line, 0, &r);
+        files[partition(hash_of(r.id.as_bytes()), parts)]
             .write_all(&buf)
             .map_err(run_error)?;
         index += 1;
         Ok(())
     })?;
     stats.finish();
-    let files = files
-        .into_iter()
-        .map(|w| {
-            let mut f = w.into_inner().map_err(|e| run_error(e.into_error()))?;
-            f.rewind().map_err(run_error)?;
-            Ok(f)
-        })
-        .collect::<Result<_>>()?;
+    let files = files.into_iter().map(rewound).collect::<Result<_>>()?;
     Ok((stats, files))
 }
 
@@ -329,43 +321,217 @@ fn merge_rows(mut rows: Vec<(usize, File)>, header: &[String], out: &mut dyn Wri
     Ok(())
 }
 
-/// By position: the place of the track each row of each input joins.
-fn tracks_by_position(paths: &[PathBuf], within: f64) -> Result<Vec<Vec<Order>>> {
-    let mut out: Vec<Vec<Order>> = Vec::with_capacity(paths.len());
-    let mut prev: Vec<Option<(f64, f64)>> = Vec::new();
-    for (k, path) in paths.iter().enumerate() {
-        let xy = positions(path)?;
-        let mut orders: Vec<Order> = (0..xy.len() as u64).map(|i| order_of(k, i)).collect();
-        if k > 0 {
-            for p in pairing::pair(&prev, &xy, within) {
-                orders[p.after] = out[k - 1][p.before];
-            }
-        }
-        out.push(orders);
-        prev = xy;
-    }
-    Ok(out)
+/// What the one read of an input gives when pairing by position: its stats, its rows (input 0:
+/// already in the partitions of their tracks; a later input: one run in row order, to be
+/// routed once its pairs are known), its positions sorted by cell, its number of rows.
+struct ReadOnce {
+    stats: super::TryoutStats,
+    rows: Vec<File>,
+    positions: sweep::SortedPositions,
+    count: usize,
 }
 
-/// An input's positions, in row order.
-type Positions = Vec<Option<(f64, f64)>>;
+/// A hash of an id for the check that none is met twice (SipHash with fixed keys; two ids of
+/// one hash are told apart by reading the file again).
+fn id_hash(id: &str) -> u64 {
+    use std::hash::Hasher;
+    let mut h = std::hash::DefaultHasher::new();
+    h.write(id.as_bytes());
+    h.finish()
+}
 
-/// The positions of an input's rows, after the check that no id is met twice: a set of 128-bit
-/// hashes of the ids, dropped before the pairing (two ids with one hash, about one chance in
-/// 10^26 at a million rows, would be taken for one).
-fn positions(path: &Path) -> Result<Positions> {
+/// Read input `k` once, by position: its rows into run files, its positions sorted on disk,
+/// the hashes of its ids into `parts` files; then the check that no id is met twice. The
+/// first error in the file's order is given (a duplicate id before a bad row is the error).
+fn read_placed(path: &Path, k: usize, parts: usize, within: f64) -> Result<ReadOnce> {
+    let writers = |n: usize, cap: usize| -> Result<Vec<BufWriter<File>>> {
+        (0..n)
+            .map(|_| temp().map(|f| BufWriter::with_capacity(cap, f)))
+            .collect()
+    };
+    let mut files = writers(if k == 0 { parts } else { 1 }, 1 << 15)?;
+    let mut ids = writers(parts, 1 << 12)?;
+    let mut sorter = sweep::PositionSorter::new(within, temp()?);
+    let mut stats = super::TryoutStats::default();
+    let mut buf = Vec::with_capacity(256);
+    let mut index = 0u64;
     let loc = Location::file(path);
-    let mut xy = Vec::new();
-    let mut ids: HashSet<u128> = HashSet::new();
+    let read = for_each_row(open_input(path)?, path, |line, r| {
+        let Ok(i) = u32::try_from(index) else {
+            return Err(Error::input(
+                loc.clone().at_line(line),
+                "more than 4 294 967 295 locations: too many to pair by position",
+            ));
+        };
+        stats.fold(&r);
+        let h = id_hash(&r.id);
+        ids[partition(h, parts)]
+            .write_all(&h.to_le_bytes())
+            .map_err(run_error)?;
+        if let Some((x, y)) = r.xy() {
+            sorter.push(i, x, y).map_err(run_error)?;
+        }
+        // A row's own place: its track's when it starts one (always in input 0).
+        let track = order_of(k, index);
+        encode(&mut buf, index, line, track, &r);
+        let f = if k == 0 {
+            partition(hash_of(track), parts)
+        } else {
+            0
+        };
+        files[f].write_all(&buf).map_err(run_error)?;
+        index += 1;
+        Ok(())
+    });
+    check_ids(path, ids)?;
+    read?;
+    stats.finish();
+    Ok(ReadOnce {
+        stats,
+        rows: files.into_iter().map(rewound).collect::<Result<_>>()?,
+        positions: sorter.finish().map_err(run_error)?,
+        count: index as usize,
+    })
+}
+
+fn rewound(w: BufWriter<File>) -> Result<File> {
+    let mut f = w.into_inner().map_err(|e| run_error(e.into_error()))?;
+    f.rewind().map_err(run_error)?;
+    Ok(f)
+}
+
+/// The check that no id of `path` is met twice, from the hashes of its ids in `files`
+/// (partitioned by hash): each partition sorted, equal neighbours noted; only when two agree is
+/// the file read again, its ids of those hashes compared themselves. The error is the first in
+/// the file's order: the id met twice, or a bad row before it.
+fn check_ids(path: &Path, files: Vec<BufWriter<File>>) -> Result<()> {
+    let mut shared: HashSet<u64> = HashSet::new();
+    let (mut bytes, mut hashes) = (Vec::new(), Vec::new());
+    for w in files {
+        bytes.clear();
+        rewound(w)?.read_to_end(&mut bytes).map_err(run_error)?;
+        hashes.clear();
+        hashes.extend(
+            bytes
+                .chunks_exact(8)
+                .map(|c| u64::from_le_bytes(c.try_into().unwrap_or_default())),
+        );
+        hashes.sort_unstable();
+        shared.extend(hashes.windows(2).filter(|w| w[0] == w[1]).map(|w| w[0]));
+    }
+    if shared.is_empty() {
+        return Ok(());
+    }
+    let loc = Location::file(path);
+    let mut seen: HashSet<String> = HashSet::new();
     for_each_row(open_input(path)?, path, |line, r| {
-        let h = (hash_of((1u8, r.id.as_bytes())) as u128) << 64 | hash_of(r.id.as_bytes()) as u128;
-        if !ids.insert(h) {
+        if shared.contains(&id_hash(&r.id)) && !seen.insert(r.id.clone()) {
             return Err(duplicate(&loc, line, r.id_column, &r.id));
         }
-        xy.push(r.xy());
         Ok(())
     })?;
-    Ok(xy)
+    Ok(())
+}
+
+/// No partner.
+const NONE: u32 = u32::MAX;
+
+/// The place of the track of row `i` of input `k`, given each later input's partners (the row
+/// of the input before that each row was paired with).
+fn track_of(partners: &[Vec<u32>], mut k: usize, mut i: u64) -> Order {
+    while k > 0 {
+        match partners[k][i as usize] {
+            NONE => break,
+            p => {
+                k -= 1;
+                i = p as u64;
+            }
+        }
+    }
+    order_of(k, i)
+}
+
+/// Route the rows of input `k` (one run in row order) into `parts` partitions by their track.
+fn route(run: File, k: usize, partners: &[Vec<u32>], parts: usize) -> Result<Vec<File>> {
+    let mut files: Vec<BufWriter<File>> = (0..parts)
+        .map(|_| temp().map(|f| BufWriter::with_capacity(1 << 15, f)))
+        .collect::<Result<_>>()?;
+    let mut r = BufReader::with_capacity(1 << 16, run);
+    let mut rec = Vec::with_capacity(256);
+    loop {
+        rec.resize(36, 0);
+        match r.read_exact(&mut rec[..8]) {
+            Ok(()) => {}
+            Err(e) if e.kind() == io::ErrorKind::UnexpectedEof => break,
+            Err(e) => return Err(run_error(e)),
+        }
+        r.read_exact(&mut rec[8..]).map_err(run_error)?;
+        let len = u32::from_le_bytes(rec[32..36].try_into().unwrap_or_default()) as usize;
+        rec.resize(36 + len + 49, 0);
+        r.read_exact(&mut rec[36..]).map_err(run_error)?;
+        let index = u64::from_le_bytes(rec[..8].try_into().unwrap_or_default());
+        let track = track_of(partners, k, index);
+        rec[16..24].copy_from_slice(&track.to_le_bytes());
+        files[partition(hash_of(track), parts)]
+            .write_all(&rec)
+            .map_err(run_error)?;
+    }
+    files.into_iter().map(rewound).collect()
+}
+
+/// By position: read every input once (on every core), pair each with the one before it on
+/// its positions sorted by cell ([`sweep`]), route the later inputs' rows to their tracks'
+/// partitions. Each input's stats and partitions.
+fn split_by_position(
+    paths: &[PathBuf],
+    parts: usize,
+    within: f64,
+) -> Result<(Vec<super::TryoutStats>, Vec<Vec<File>>)> {
+    let read: Vec<Result<ReadOnce>> = paths
+        .par_iter()
+        .enumerate()
+        .map(|(k, p)| read_placed(p, k, parts, within))
+        .collect();
+    let read: Vec<ReadOnce> = read.into_iter().collect::<Result<_>>()?;
+    // Each later input's partners: for each row, the row of the input before it paired with it.
+    let paired: Vec<Result<Vec<u32>>> = (1..read.len())
+        .into_par_iter()
+        .map(|k| {
+            let mut partners = vec![NONE; read[k].count];
+            let before = read[k - 1].positions.iter().map_err(run_error)?;
+            let after = read[k].positions.iter().map_err(run_error)?;
+            sweep::sweep(before, after, within, |b, a, _| partners[a as usize] = b)
+                .map_err(run_error)?;
+            Ok(partners)
+        })
+        .collect();
+    let mut partners = vec![Vec::new()];
+    for p in paired {
+        partners.push(p?);
+    }
+    let mut stats = Vec::with_capacity(read.len());
+    let mut runs = Vec::with_capacity(read.len());
+    for r in read {
+        stats.push(r.stats);
+        runs.push(r.rows);
+    }
+    let routed: Vec<Result<Vec<File>>> = runs
+        .into_par_iter()
+        .enumerate()
+        .map(|(k, rows)| match k {
+            0 => Ok(rows),
+            _ => route(
+                rows.into_iter()
+                    .next()
+                    .ok_or_else(|| run_error(io::ErrorKind::NotFound.into()))?,
+                k,
+                &partners,
+                parts,
+            ),
+        })
+        .collect();
+    let files = routed.into_iter().collect::<Result<_>>()?;
+    Ok((stats, files))
 }
 
 /// The first fault in file order, given `fault`, the first of input `k` (the first input
@@ -473,24 +639,26 @@ pub fn compare_files(
         .map(|p| std::fs::metadata(p).map_or(0, |m| m.len()))
         .sum();
     let parts = (bytes / PARTITION_BYTES).clamp(1, MAX_PARTITIONS) as usize;
-    let orders = match matching {
-        Matching::Xy { within } => Some(tracks_by_position(paths, within)?),
-        Matching::Id => None,
-    };
-    let split: Vec<Result<_>> = paths
-        .par_iter()
-        .enumerate()
-        .map(|(k, p)| split(p, parts, orders.as_ref().map(|o| &o[k][..])))
-        .collect();
-    drop(orders);
     let mut files: Vec<Vec<File>> = Vec::new();
-    for (k, (t, r)) in tryouts.iter_mut().zip(split).enumerate() {
-        let (stats, f) = match r {
-            Ok(r) => r,
-            Err(e) => return Err(earliest_fault(paths, k, e, matching, parts)),
-        };
-        t.stats = stats;
-        files.push(f);
+    match matching {
+        Matching::Xy { within } => {
+            let (stats, f) = split_by_position(paths, parts, within)?;
+            for (t, s) in tryouts.iter_mut().zip(stats) {
+                t.stats = s;
+            }
+            files = f;
+        }
+        Matching::Id => {
+            let split: Vec<Result<_>> = paths.par_iter().map(|p| split(p, parts)).collect();
+            for (k, (t, r)) in tryouts.iter_mut().zip(split).enumerate() {
+                let (stats, f) = match r {
+                    Ok(r) => r,
+                    Err(e) => return Err(earliest_fault(paths, k, e, matching, parts)),
+                };
+                t.stats = stats;
+                files.push(f);
+            }
+        }
     }
     let density = density_for(&tryouts);
     let shape = Shape {
@@ -610,6 +778,114 @@ mod tests {
                 String::from_utf8(expected).unwrap()
             );
         }
+    }
+
+    /// By position through three inputs, rows shuffled and moved: the tracks and compare.csv
+    /// of the whole comparison (an independent in-memory join), each input read once.
+    #[test]
+    fn three_inputs_by_position_give_the_whole_comparison() {
+        let dir = tempfile::tempdir().unwrap();
+        let rows = |shift: f64, skip: usize, seed: usize| -> Vec<(String, f64, &str, f64)> {
+            let mut v: Vec<_> = (0..300)
+                .filter(|i| i % 97 != skip)
+                .map(|i| {
+                    let m = ((i * 31 + seed) % 45) as f64 - 3.0;
+                    let z = if m <= 0.0 { "failed" } else { "safe" };
+                    // Ids differ between inputs: only positions can pair them.
+                    let x = (i % 50) as f64 + shift * ((i * seed) % 3) as f64;
+                    (format!("S{seed}-{i}"), m, z, x)
+                })
+                .collect();
+            v.rotate_left(seed * 7);
+            v
+        };
+        let paths = [
+            points(dir.path(), "a.csv", &rows(0.0, 5, 1)),
+            points(dir.path(), "b.csv", &rows(0.2, 11, 2)),
+            points(dir.path(), "c.csv", &rows(0.3, 40, 3)),
+        ];
+        let matching = Matching::Xy { within: 0.45 };
+        let whole = compare(
+            paths
+                .iter()
+                .enumerate()
+                .map(|(k, p)| read_tryout(p, k + 1).unwrap())
+                .collect(),
+            matching,
+            1.0,
+        )
+        .unwrap();
+        let mut text = Vec::new();
+        let runs = compare_files(&paths, matching, 1.0, Some(&mut text)).unwrap();
+        // Some locations are followed through all three, some only through part.
+        let through = |t: &Track| t.at.iter().filter(|r| r.is_some()).count();
+        assert!(runs.tracks.iter().filter(|t| through(t) == 3).count() > 100);
+        assert!(runs.tracks.iter().any(|t| through(t) == 1));
+        assert_eq!(runs.tracks, whole.tracks);
+        assert_eq!(runs.counts, whole.counts);
+        let mut expected = Vec::new();
+        csv_out::write_csv(&whole, &mut expected).unwrap();
+        assert_eq!(
+            String::from_utf8(text).unwrap(),
+            String::from_utf8(expected).unwrap()
+        );
+    }
+
+    /// By position the ids are checked too: the first id met twice, at its line; a bad row
+    /// after it does not hide it, a bad row before it is the error.
+    #[test]
+    fn by_position_an_id_twice_is_refused_at_its_line() {
+        let dir = tempfile::tempdir().unwrap();
+        let rows: Vec<_> = (0..60)
+            .map(|i| {
+                (
+                    format!("L{}", if i == 45 { 3 } else { i }),
+                    20.0,
+                    "safe",
+                    0.0,
+                )
+            })
+            .collect();
+        let pa = points(dir.path(), "a.csv", &rows);
+        let xy = Matching::Xy { within: 0.5 };
+        let e = compare_files(&[pa.clone(), pa.clone()], xy, 1.0, None)
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("a.csv:47:1 (column `id`)") && e.contains("duplicate id `L3`"),
+            "{e}"
+        );
+        // Bad numbers in the major column (column 2) after and before line 47.
+        let text = std::fs::read_to_string(&pa).unwrap();
+        let bad = |line: usize| -> PathBuf {
+            let t: Vec<String> = text
+                .lines()
+                .enumerate()
+                .map(|(k, l)| {
+                    let mut f: Vec<&str> = l.split(',').collect();
+                    if k + 1 == line {
+                        f[1] = "x1";
+                    }
+                    f.join(",")
+                })
+                .collect();
+            let p = dir.path().join(format!("bad{line}.csv"));
+            std::fs::write(&p, t.join("\n") + "\n").unwrap();
+            p
+        };
+        let (late, early) = (bad(55), bad(30));
+        let good = points(dir.path(), "g.csv", &rows[..40]);
+        let e = compare_files(&[good.clone(), late], xy, 1.0, None)
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("bad55.csv:47:1") && e.contains("duplicate id"),
+            "{e}"
+        );
+        let e = compare_files(&[good, early], xy, 1.0, None)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("bad30.csv:30:2"), "{e}");
     }
 
     #[test]
