@@ -112,6 +112,10 @@ fn parts(path: &Path, n: usize) {
 // The child is reaped by `wait4`, which also gives its peak memory.
 #[allow(clippy::zombie_processes)]
 fn run(cmd: &mut Command) -> (Duration, f64) {
+    // The previous command's outputs go to disk first, so that their write-back does not fall
+    // on this command's time.
+    // SAFETY: `sync` takes no arguments and only schedules and waits for writes.
+    unsafe { libc::sync() };
     let t = Instant::now();
     let child = cmd
         .stdout(std::process::Stdio::null())
