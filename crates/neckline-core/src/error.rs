@@ -39,7 +39,7 @@ impl Location {
 
 impl fmt::Display for Location {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        if let Some(cell) = crate::workbook::cell_name(&self.file, self.line, self.column) {
+        if let Some(cell) = crate::sheet_cells::cell_name(&self.file, self.line, self.column) {
             write!(f, "{}, {cell}", self.file.display())?;
         } else if let Some(line) = self.line {
             write!(f, "{}", self.file.display())?;
@@ -198,13 +198,6 @@ pub fn clip(raw: &str) -> String {
     }
     let head: String = raw.chars().take(40).collect();
     format!("{head}... ({} bytes)", raw.len())
-}
-
-/// Read a whole text file (a job or curve file) as UTF-8, decoded as
-/// [`crate::text::decode_whole`] says; binary data is refused with [`check_text`]'s advice.
-pub fn read_text(path: &Path) -> Result<String> {
-    let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
-    crate::text::decode_whole(path, bytes)
 }
 
 /// Result with this crate's [`Error`].

@@ -180,7 +180,7 @@ impl std::fmt::Display for SheetKey {
 impl Job {
     /// Load a job file; a relative `limit` path is resolved against the job file's folder.
     pub fn load(path: &Path) -> Result<Self> {
-        let text = crate::error::read_text(path)?;
+        let text = crate::text::read_text(path)?;
         Self::parse(&text, path)
     }
 

@@ -404,6 +404,14 @@ impl<R: Read> Read for LineEnds<R> {
     }
 }
 
+/// Read a whole text file (a job or curve file) as UTF-8, decoded as
+/// [`decode_whole`] says; binary data is refused with [`crate::error::check_text`]'s
+/// advice.
+pub fn read_text(path: &Path) -> Result<String> {
+    let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
+    crate::text::decode_whole(path, bytes)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

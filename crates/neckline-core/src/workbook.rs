@@ -6,12 +6,11 @@
 //!
 //! Messages about a workbook name the workbook, the sheet and the cell (`tryout.xlsx,
 //! Sheet1!C14`): the sheet read from each workbook, and the column the text's first field is in,
-//! are kept here for [`crate::error::Location`]'s display.
+//! are kept in [`crate::sheet_cells`] for [`crate::error::Location`]'s display.
 
 use crate::error::{Error, Location, Result};
 use calamine::{Data, Reader};
-use std::path::{Path, PathBuf};
-use std::sync::Mutex;
+use std::path::Path;
 
 /// The file name endings read as workbooks (case-insensitive).
 pub const EXTENSIONS: [&str; 5] = ["xlsx", "xlsm", "xls", "xlsb", "ods"];
@@ -21,45 +20,6 @@ pub fn is_workbook(path: &Path) -> bool {
     path.extension()
         .and_then(|e| e.to_str())
         .is_some_and(|e| EXTENSIONS.iter().any(|w| e.eq_ignore_ascii_case(w)))
-}
-
-/// A workbook read: its sheet, and the 0-based sheet column of the text's first field.
-struct Sheet {
-    file: PathBuf,
-    name: String,
-    first_column: u32,
-}
-
-static SHEETS: Mutex<Vec<Sheet>> = Mutex::new(Vec::new());
-
-/// The sheet read from `file` and the cell name of its `line` and field `column` (1-based):
-/// `Sheet1!C14`, or `Sheet1!14:14` (the whole row) without a column; `None` for a file that is
-/// not a workbook read here.
-pub fn cell_name(file: &Path, line: Option<u64>, column: Option<u64>) -> Option<String> {
-    let sheets = SHEETS.lock().unwrap_or_else(|e| e.into_inner());
-    let s = sheets.iter().rev().find(|s| s.file == file)?;
-    Some(match (line, column) {
-        (Some(l), Some(c)) => format!(
-            "{}!{}{l}",
-            s.name,
-            column_letters(u64::from(s.first_column) + c)
-        ),
-        (Some(l), None) => format!("{}!{l}:{l}", s.name),
-        _ => s.name.clone(),
-    })
-}
-
-/// The letters of 1-based sheet column `n`: 1 is A, 26 is Z, 27 is AA (bijective base 26, as
-/// spreadsheets name columns: common practice).
-pub fn column_letters(mut n: u64) -> String {
-    let mut letters = Vec::new();
-    while n > 0 {
-        let d = (n - 1) % 26;
-        letters.push(b'A' + d as u8);
-        n = (n - 1) / 26;
-    }
-    letters.reverse();
-    String::from_utf8(letters).unwrap_or_default()
 }
 
 /// The sheet of `bytes` (the workbook `path`) picked by `sheet` (a name, or a 1-based number;
@@ -87,15 +47,7 @@ pub fn to_csv(path: &Path, bytes: Vec<u8>, sheet: Option<&str>) -> Result<Vec<u8
         .worksheet_range(&name)
         .map_err(|e| Error::input(loc.clone(), format!("sheet `{name}` cannot be read: {e}")))?;
     let (first_row, first_column) = range.start().unwrap_or((0, 0));
-    {
-        let mut sheets = SHEETS.lock().unwrap_or_else(|e| e.into_inner());
-        sheets.retain(|s| s.file != path);
-        sheets.push(Sheet {
-            file: path.to_path_buf(),
-            name: name.clone(),
-            first_column,
-        });
-    }
+    crate::sheet_cells::remember(path, &name, first_column);
     let mut out = vec![b'\n'; first_row as usize];
     for row in range.rows() {
         let cells: Vec<String> = row.iter().map(cell_text).collect();
@@ -164,17 +116,6 @@ fn cell_text(c: &Data) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    // Spreadsheet column names: A..Z, then AA (27), AZ (52), BA (53), ZZ (702), AAA (703):
-    // common practice (bijective base 26).
-    #[test]
-    fn column_letters_follow_the_spreadsheet() {
-        let got: Vec<String> = [1, 3, 26, 27, 52, 53, 702, 703]
-            .into_iter()
-            .map(column_letters)
-            .collect();
-        assert_eq!(got, ["A", "C", "Z", "AA", "AZ", "BA", "ZZ", "AAA"]);
-    }
 
     #[test]
     fn a_sheet_is_picked_by_name_or_number() {

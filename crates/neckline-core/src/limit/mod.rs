@@ -127,7 +127,7 @@ impl LimitCurve {
     /// # Ok::<(), neckline_core::Error>(())
     /// ```
     pub fn load(path: &Path) -> Result<Self> {
-        let text = crate::error::read_text(path)?;
+        let text = crate::text::read_text(path)?;
         Self::parse(&text, path)
     }
 
