@@ -12,8 +12,8 @@ use neckline_core::grid::read::{
 };
 use neckline_core::limit::LimitCurve;
 use neckline_core::output::points_csv::Layout;
-use neckline_core::point::elements::{judge_elements, ElementJudge};
 use neckline_core::point::Context;
+use neckline_core::stream::elements::{judge_elements, ElementJudge};
 use neckline_core::summary::MapPlane;
 use neckline_core::table::stream_table;
 use neckline_core::units::LengthUnit;

@@ -38,7 +38,7 @@ pub struct Analysis {
     /// The input files and their SHA-256, where the command recorded them.
     pub files: Vec<crate::digest::FileDigest>,
     /// When the analysis was made: the generation time of every output written from it.
-    pub generated: crate::output::record::RunTime,
+    pub generated: crate::run_time::RunTime,
     /// The part's outline on the map: the job's `outline` file when set before
     /// [`Analysis::finish`], else traced there from the summary's map cells.
     pub outline: Option<crate::part_outline::PartOutline>,
@@ -103,7 +103,7 @@ impl Analysis {
             stages: Vec::new(),
             warnings,
             files: Vec::new(),
-            generated: crate::output::record::RunTime::now(),
+            generated: crate::run_time::RunTime::now(),
             outline: None,
         }
     }

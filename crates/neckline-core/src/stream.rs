@@ -9,6 +9,9 @@
 //! their keys for repeats (which needs the order; a chunk with a repeat is judged again with
 //! those rows rejected), merges the summaries and hands the texts to a writer thread.
 
+pub mod elements;
+pub mod staged_runs;
+
 pub(crate) use crate::chunk::read_batch;
 pub use crate::chunk::{Chunk, Chunker, CHUNK_BYTES, MAX_RECORD_BYTES};
 use crate::error::{Error, Location, Result};

@@ -5,7 +5,7 @@
 use super::{at_risk, Comparison, Track};
 use crate::digest::HashingReader;
 use crate::job::Job;
-use crate::output::record::RunTime;
+use crate::run_time::RunTime;
 use std::io::{self, BufReader};
 use std::path::{Path, PathBuf};
 

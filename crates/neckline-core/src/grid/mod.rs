@@ -4,7 +4,7 @@
 //! [`deformation`]: the kinematics of one gradient (F, C, B, E, Almansi, polar decomposition);
 //! [`mesh`]: triangles and quads (quads at their centre, and why); [`read`]: the node and
 //! element files; [`uncertainty`]: how a reading error on the nodes moves the strains. One layer
-//! up, `point::elements::evaluate` turns a mesh into locations judged like measured circles.
+//! up, `stream::elements::evaluate` turns a mesh into locations judged like measured circles.
 
 pub mod deformation;
 pub mod mesh;

@@ -132,35 +132,7 @@ pub fn summary(a: &Analysis) -> Value {
     })
 }
 
-/// Now, UTC, as ISO 8601 (`2026-11-30T14:05:09Z`).
-pub fn utc_now() -> String {
-    let secs = std::time::SystemTime::now()
-        .duration_since(std::time::UNIX_EPOCH)
-        .map_or(0, |d| d.as_secs());
-    iso8601(secs)
-}
-
-/// Seconds since 1970-01-01T00:00:00Z as ISO 8601 UTC. Days to a civil date by H. Hinnant's
-/// `civil_from_days` ("chrono-Compatible Low-Level Date Algorithms", proleptic Gregorian).
-pub fn iso8601(secs: u64) -> String {
-    let days = (secs / 86_400) as i64;
-    let rem = secs % 86_400;
-    let z = days + 719_468;
-    let era = z.div_euclid(146_097);
-    let doe = z - era * 146_097;
-    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
-    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
-    let mp = (5 * doy + 2) / 153;
-    let d = doy - (153 * mp + 2) / 5 + 1;
-    let m = if mp < 10 { mp + 3 } else { mp - 9 };
-    let y = yoe + era * 400 + i64::from(m <= 2);
-    format!(
-        "{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}Z",
-        rem / 3600,
-        rem % 3600 / 60,
-        rem % 60
-    )
-}
+pub use crate::run_time::{iso8601, utc_now};
 
 /// Write the summary, pretty-printed.
 pub fn write_summary(a: &Analysis, out: &mut dyn Write) -> io::Result<()> {
@@ -206,16 +178,6 @@ pub fn recorded_points(summary_text: &str) -> Option<PointsFile> {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    // Reference instants: the Unix epoch; 2000-02-29 (a leap day of a century year divisible by
-    // 400) = 951 782 400 s; 2038-01-19T03:14:08Z = 2^31 s (the 32-bit time_t rollover).
-    #[test]
-    fn iso8601_of_known_instants() {
-        assert_eq!(iso8601(0), "1970-01-01T00:00:00Z");
-        assert_eq!(iso8601(951_782_400), "2000-02-29T00:00:00Z");
-        assert_eq!(iso8601(1 << 31), "2038-01-19T03:14:08Z");
-        assert!(crate::job::is_date(&utc_now()[..10]));
-    }
 
     #[test]
     fn the_points_table_is_recorded_and_read_back() {

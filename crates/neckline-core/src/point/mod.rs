@@ -6,9 +6,7 @@
 //! [`elements::evaluate`] for the elements of a grid, [`staged::judge_staged`] for a location
 //! measured after several forming stages (judged along its path too).
 
-pub mod elements;
 pub mod staged;
-pub mod staged_runs;
 
 use crate::assess::{judge_reading_of, Judgement, Settings, Zone};
 use crate::error::Location;
@@ -135,7 +133,7 @@ impl Context {
         p.grid = s.grid;
         if p.grid.is_some() {
             // Grid elements: the reading error is on the node coordinates, not on axes.
-            elements::node_reading_uncertainty(&mut p, &self.curve, &self.settings);
+            node_reading_uncertainty(&mut p, &self.curve, &self.settings);
         }
         p
     }
@@ -239,4 +237,30 @@ pub fn strain_of(
             "axes {major} and {minor} with d0 {d0} give no strain"
         ))),
     }
+}
+/// Replace the circle rule's margin uncertainty of a grid element by the node-error one
+/// ([`crate::grid::uncertainty::margin_uncertainty_pct`]), with `settings.reading_error` on every deformed node
+/// coordinate, and set the borderline flag from it.
+pub fn node_reading_uncertainty(
+    p: &mut PointResult,
+    curve: &crate::limit::LimitCurve,
+    settings: &crate::assess::Settings,
+) {
+    let Some(dd) = settings.reading_error else {
+        return;
+    };
+    let (Some(sens), Some(m)) = (
+        p.grid.as_ref().and_then(|g| g.sensitivity),
+        p.judgement.margin_pct,
+    ) else {
+        return;
+    };
+    let u = crate::grid::uncertainty::margin_uncertainty_pct(
+        &sens,
+        curve,
+        p.strain.eng.minor.value(),
+        dd,
+    );
+    p.judgement.uncertainty_pct = Some(u);
+    p.judgement.borderline = crate::assess::is_borderline(m, u, settings);
 }

@@ -96,7 +96,7 @@ pub fn judge_staged<B: std::io::BufRead>(
 
 /// Judge one location from its rows `(stage index, state)`: at its last stage by the strain
 /// curve and, when the file has several stages (`staged`), along its path.
-pub(super) fn judge_location(
+pub(crate) fn judge_location(
     mut list: Vec<(usize, StateInput)>,
     ctx: &Context,
     staged: bool,

@@ -2,15 +2,13 @@
 //! stretches ([`crate::grid`] computes them from the nodes), the equivalent circle's axes, and
 //! the margin's uncertainty from the reading error on the nodes.
 
-use super::{Context, PointResult, StateInput};
-use crate::assess::{is_borderline, Settings};
 use crate::error::Location;
 use crate::grid::mesh::{Element, ElementResult, Mesh, Nodes};
 use crate::grid::{element_name, uncertainty, GridExtras};
 use crate::kinematics::StrainState;
-use crate::limit::LimitCurve;
 use crate::measure::{Measurement, RejectedRow};
 use crate::output::points_csv::Layout;
+use crate::point::{Context, StateInput};
 use crate::strain::Stretch;
 use crate::summary::{Summary, Template};
 use rayon::prelude::*;
@@ -155,22 +153,4 @@ pub fn judge_elements(
             out
         })
         .collect()
-}
-
-/// Replace the circle rule's margin uncertainty of a grid element by the node-error one
-/// ([`uncertainty::margin_uncertainty_pct`]), with `settings.reading_error` on every deformed node
-/// coordinate, and set the borderline flag from it.
-pub fn node_reading_uncertainty(p: &mut PointResult, curve: &LimitCurve, settings: &Settings) {
-    let Some(dd) = settings.reading_error else {
-        return;
-    };
-    let (Some(sens), Some(m)) = (
-        p.grid.as_ref().and_then(|g| g.sensitivity),
-        p.judgement.margin_pct,
-    ) else {
-        return;
-    };
-    let u = uncertainty::margin_uncertainty_pct(&sens, curve, p.strain.eng.minor.value(), dd);
-    p.judgement.uncertainty_pct = Some(u);
-    p.judgement.borderline = is_borderline(m, u, settings);
 }

@@ -1,5 +1,5 @@
 //! A file with a `stage` column judged in memory that does not grow with the file: the same
-//! judgement as [`super::staged::judge_staged`], row for row.
+//! judgement as [`crate::point::staged::judge_staged`], row for row.
 //!
 //! Three passes, through anonymous temporary run files (gone when the run ends however it
 //! ends):
@@ -27,11 +27,11 @@
 //! A file whose rows are all of one stage ([`one_stage`]) needs none of this: `check` judges
 //! it as a file without stages, in one streamed pass, with the same outputs.
 
-use super::{state_of, Context, StateInput};
 use crate::capped::{Capped, LIST_CAP};
 use crate::error::{Error, Location, Result};
 use crate::measure::{csv_error, duplicate_key, Header, RejectedRow};
 use crate::output::points_csv::Layout;
+use crate::point::{state_of, Context, StateInput};
 use crate::stream::{read_batch, Chunk, Chunker};
 use crate::summary::{Summary, Template, View};
 use rayon::prelude::*;
@@ -368,7 +368,7 @@ pub struct StagedRun {
 }
 
 /// Judge the rows of `body` (a file with a `stage` column, after its header; about `size`
-/// bytes, when known) as [`super::staged::judge_staged`] does, in bounded memory, writing
+/// bytes, when known) as [`crate::point::staged::judge_staged`] does, in bounded memory, writing
 /// points.csv (its header line first, in `layout`, whose `path` is set when the file has
 /// several stages) to `sink`.
 #[allow(clippy::too_many_arguments)]
@@ -755,7 +755,9 @@ fn judge_batch(
                 }
             }
         }
-        if let Some(p) = super::staged::judge_location(std::mem::take(&mut list), ctx, staged) {
+        if let Some(p) =
+            crate::point::staged::judge_location(std::mem::take(&mut list), ctx, staged)
+        {
             if write {
                 layout.push_row(&mut text, &p);
             }
@@ -827,7 +829,7 @@ mod tests {
             let mut input = text.as_bytes();
             let header = Header::read(&mut input, path, &ColumnMap::default()).unwrap();
             let rows = MeasurementReader::after(input, header.clone());
-            let mem = super::super::staged::judge_staged(rows, &ctx, None).unwrap();
+            let mem = crate::point::staged::judge_staged(rows, &ctx, None).unwrap();
             let mut layout = Layout {
                 path: mem.stages.len() >= 2,
                 ..Layout::default()
@@ -858,7 +860,7 @@ mod tests {
             );
             assert_eq!(run.stages, mem.stages);
             assert_eq!(run.summary.counts, s.counts);
-            let ids = |v: &[super::super::PointResult]| {
+            let ids = |v: &[crate::point::PointResult]| {
                 v.iter().map(|p| p.input.id.clone()).collect::<Vec<_>>()
             };
             assert_eq!(ids(&run.summary.worst), ids(&s.worst));
@@ -878,7 +880,7 @@ mod tests {
         let header = Header::read(&mut input, Path::new("s.csv"), &ColumnMap::default()).unwrap();
         let order = ["op0".to_string(), "op1".to_string()];
         let rows = MeasurementReader::after(input, header.clone());
-        let want = super::super::staged::judge_staged(rows, &ctx, Some(&order))
+        let want = crate::point::staged::judge_staged(rows, &ctx, Some(&order))
             .err()
             .unwrap()
             .to_string();
