@@ -3,7 +3,7 @@
 //! points.csv and the pictures are made from.
 //!
 //! Where the states come from: [`state_of`] for one measured circle or strain row,
-//! [`elements::evaluate`] for the elements of a grid, [`staged::judge_staged`] for a location
+//! `stream::elements::evaluate` (a layer up) for the elements of a grid, [`staged::judge_staged`] for a location
 //! measured after several forming stages (judged along its path too).
 
 pub mod staged;
