@@ -3,8 +3,9 @@
 //! points.csv and the pictures are made from.
 //!
 //! Where the states come from: [`state_of`] for one measured circle or strain row,
-//! `stream::elements::evaluate` (a layer up) for the elements of a grid, [`staged::judge_staged`] for a location
-//! measured after several forming stages (judged along its path too).
+//! `stream::elements::evaluate` (a layer up) for the elements of a grid,
+//! [`staged::judge_staged`] for a location measured after several forming stages (judged
+//! along its path too).
 
 pub mod staged;
 
