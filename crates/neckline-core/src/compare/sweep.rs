@@ -27,6 +27,7 @@ use std::cmp::Ordering;
 use std::collections::VecDeque;
 use std::fs::File;
 use std::io::{self, BufWriter, Read, Seek, SeekFrom, Write};
+use std::sync::Mutex;
 
 /// A location with its cell: row `cy`, column `cx` (of cells `within` wide), its row index
 /// in its input and its position.
@@ -370,16 +371,18 @@ impl PositionSorter {
         let file = self.out.into_inner().map_err(|e| e.into_error())?;
         Ok(SortedPositions {
             within: self.within,
-            file,
+            file: Mutex::new(file),
             chunks: self.chunks,
         })
     }
 }
 
-/// Locations in sorted chunks on disk.
+/// Locations in sorted chunks on disk. The file's offset is shared by every reader of it (one
+/// input's positions are merged for the pairing before it and the one after it, on two
+/// threads at once): a read seeks and reads under the lock.
 pub struct SortedPositions {
     within: f64,
-    file: File,
+    file: Mutex<File>,
     chunks: Vec<(u64, u64)>,
 }
 
@@ -421,7 +424,7 @@ const CURSOR_BYTES: usize = RECORD * 800;
 
 /// The chunks of [`SortedPositions`] merged, as an iterator.
 pub struct Merge<'a> {
-    file: &'a File,
+    file: &'a Mutex<File>,
     within: f64,
     cursors: Vec<Cursor>,
     heads: std::collections::BinaryHeap<std::cmp::Reverse<Head>>,
@@ -454,7 +457,7 @@ impl Merge<'_> {
             }
             let n = (cur.left as usize).min(CURSOR_BYTES / RECORD);
             cur.buf.resize(n * RECORD, 0);
-            let mut f = self.file;
+            let mut f = self.file.lock().unwrap_or_else(|e| e.into_inner());
             f.seek(SeekFrom::Start(cur.at))?;
             f.read_exact(&mut cur.buf)?;
             cur.at += (n * RECORD) as u64;
@@ -598,6 +601,23 @@ mod tests {
         let got: Vec<Placed> = sorted.iter().unwrap().map(Result::unwrap).collect();
         let wrapped: Vec<Option<(f64, f64)>> = pts.iter().copied().map(Some).collect();
         assert_eq!(got, placed(&wrapped, within));
+        // Read by two threads at once, as the pairings before and after an input read its
+        // positions: each gets every location, in order (the file's offset is shared).
+        for _ in 0..20 {
+            let both: Vec<Vec<Placed>> = std::thread::scope(|t| {
+                let read = || {
+                    sorted
+                        .iter()
+                        .unwrap()
+                        .map(Result::unwrap)
+                        .collect::<Vec<_>>()
+                };
+                let (a, b) = (t.spawn(read), t.spawn(read));
+                vec![a.join().unwrap(), b.join().unwrap()]
+            });
+            assert_eq!(both[0], got);
+            assert_eq!(both[1], got);
+        }
     }
 
     fn points(n: usize, span: f64, step: f64) -> impl Strategy<Value = Vec<Option<(f64, f64)>>> {
