@@ -758,26 +758,31 @@ mod tests {
         b.push(("NEW".into(), -1.0, "failed", 70.0));
         let pa = points(dir.path(), "a.csv", &a);
         let pb = points(dir.path(), "b.csv", &b);
+        assert!(PARTITION_BYTES < std::fs::metadata(&pa).unwrap().len());
         for matching in [Matching::Id, Matching::Xy { within: 0.5 }] {
-            let whole = compare(
-                vec![read_tryout(&pa, 1).unwrap(), read_tryout(&pb, 2).unwrap()],
-                matching,
-                1.0,
-            )
-            .unwrap();
-            let mut text = Vec::new();
-            let runs =
-                compare_files(&[pa.clone(), pb.clone()], matching, 1.0, Some(&mut text)).unwrap();
-            assert!(PARTITION_BYTES < std::fs::metadata(&pa).unwrap().len());
-            assert_eq!(runs.tracks, whole.tracks);
-            assert_eq!(runs.counts, whole.counts);
-            let mut expected = Vec::new();
-            csv_out::write_csv(&whole, &mut expected).unwrap();
-            assert_eq!(
-                String::from_utf8(text).unwrap(),
-                String::from_utf8(expected).unwrap()
-            );
+            same_as_whole(&[pa.clone(), pb.clone()], matching);
         }
+    }
+
+    /// `compare_files` of `paths` against the in-memory comparison of the same files (an
+    /// independent join): the same tracks, counts and compare.csv. The streamed one back.
+    fn same_as_whole(paths: &[PathBuf], matching: Matching) -> Comparison {
+        let tryouts = paths.iter().enumerate();
+        let tryouts = tryouts
+            .map(|(k, p)| read_tryout(p, k + 1).unwrap())
+            .collect();
+        let whole = compare(tryouts, matching, 1.0).unwrap();
+        let mut text = Vec::new();
+        let runs = compare_files(paths, matching, 1.0, Some(&mut text)).unwrap();
+        assert_eq!(runs.tracks, whole.tracks);
+        assert_eq!(runs.counts, whole.counts);
+        let mut expected = Vec::new();
+        csv_out::write_csv(&whole, &mut expected).unwrap();
+        assert_eq!(
+            String::from_utf8(text).unwrap(),
+            String::from_utf8(expected).unwrap()
+        );
+        runs
     }
 
     /// By position through three inputs, rows shuffled and moved: the tracks and compare.csv
@@ -804,31 +809,11 @@ mod tests {
             points(dir.path(), "b.csv", &rows(0.2, 11, 2)),
             points(dir.path(), "c.csv", &rows(0.3, 40, 3)),
         ];
-        let matching = Matching::Xy { within: 0.45 };
-        let whole = compare(
-            paths
-                .iter()
-                .enumerate()
-                .map(|(k, p)| read_tryout(p, k + 1).unwrap())
-                .collect(),
-            matching,
-            1.0,
-        )
-        .unwrap();
-        let mut text = Vec::new();
-        let runs = compare_files(&paths, matching, 1.0, Some(&mut text)).unwrap();
+        let runs = same_as_whole(&paths, Matching::Xy { within: 0.45 });
         // Some locations are followed through all three, some only through part.
         let through = |t: &Track| t.at.iter().filter(|r| r.is_some()).count();
         assert!(runs.tracks.iter().filter(|t| through(t) == 3).count() > 100);
         assert!(runs.tracks.iter().any(|t| through(t) == 1));
-        assert_eq!(runs.tracks, whole.tracks);
-        assert_eq!(runs.counts, whole.counts);
-        let mut expected = Vec::new();
-        csv_out::write_csv(&whole, &mut expected).unwrap();
-        assert_eq!(
-            String::from_utf8(text).unwrap(),
-            String::from_utf8(expected).unwrap()
-        );
     }
 
     /// By position the ids are checked too: the first id met twice, at its line; a bad row
