@@ -228,10 +228,11 @@ impl Pass<'_> {
             let (done_tx, done_rx) = std::sync::mpsc::channel::<Done>();
             let piped = rayon::in_place_scope_fifo(|s| -> Result<()> {
                 let mut like = Arc::new(summary.template());
-                let (mut sent, mut read_error) = (0u64, None);
+                let (mut sent, mut read_error, mut at_end) = (0u64, None, false);
                 let mut ready = std::collections::BTreeMap::new();
                 loop {
-                    while read_error.is_none() && sent - order.merged < window {
+                    // Once the end is met the input is not read again (a terminal would wait).
+                    while !at_end && read_error.is_none() && sent - order.merged < window {
                         match read_batch(&mut chunks, 1, &h.file).map(|mut v| v.pop()) {
                             Ok(Some(chunk)) => {
                                 let (done, like) = (done_tx.clone(), Arc::clone(&like));
@@ -245,7 +246,7 @@ impl Pass<'_> {
                                 });
                                 sent += 1;
                             }
-                            Ok(None) => break,
+                            Ok(None) => at_end = true,
                             // Reported once the chunks before it are taken in, as their
                             // faults come first in the file.
                             Err(e) => read_error = Some(e),
