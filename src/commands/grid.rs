@@ -6,10 +6,11 @@ use crate::args::{JudgeArgs, LengthArgs};
 use clap::Args;
 use neckline_core::analysis::Analysis;
 use neckline_core::error::{Error, Result};
-use neckline_core::grid::mesh::Element;
+use neckline_core::grid::mesh::{Element, Nodes};
 use neckline_core::grid::read::{
     needs_elements, read_nodes, Cells, ElementReader, UniqueIds, ELEMENTS_WHAT,
 };
+use neckline_core::grid::rows::{grid_rows, rows_in_order};
 use neckline_core::limit::LimitCurve;
 use neckline_core::output::points_csv::Layout;
 use neckline_core::point::Context;
@@ -80,7 +81,16 @@ pub fn grid_analysis(
     let settings = resolve_settings(&args.judge, &job, lengths.unit)?;
     let curve = LimitCurve::load(&limit_path(&args.judge, &job)?)?;
     let outline = super::job_outline(&job)?;
-    let set = read_nodes(&args.nodes)?;
+    // A regular grid whose rows come in order is read a few grid rows at a time; any other
+    // nodes file is held whole.
+    let by_rows = match args.elements.is_none() && rows_in_order(&args.nodes) {
+        true => Some(grid_rows(&args.nodes)?),
+        false => None,
+    };
+    let mut set = match &by_rows {
+        Some(rows) => rows.head().clone(),
+        None => read_nodes(&args.nodes)?,
+    };
     if args.elements.is_none() && !set.has_grid {
         return Err(needs_elements(&set));
     }
@@ -119,18 +129,19 @@ pub fn grid_analysis(
         w.write_all(layout.header_line().as_bytes())
             .map_err(points_err)?;
     }
-    let judge = ElementJudge {
-        nodes: &set.nodes,
-        three_d: set.three_d,
-        source: &source,
-        regular_grid: args.elements.is_none(),
-        ctx: &ctx,
-        layout: &layout,
-        write: sink.is_some(),
-    };
+    let (three_d, write) = (set.three_d, sink.is_some());
     // Elements rejected as read (a missing corner, a bad row), and as evaluated.
     let (mut read_bad, mut eval_bad) = (Vec::new(), Vec::new());
-    let mut take = |elements: &[Element], a: &mut Analysis| -> Result<()> {
+    let mut take = |nodes: &Nodes, elements: &[Element], a: &mut Analysis| -> Result<()> {
+        let judge = ElementJudge {
+            nodes,
+            three_d,
+            source: &source,
+            regular_grid: args.elements.is_none(),
+            ctx: &ctx,
+            layout: &layout,
+            write,
+        };
         let template = a.summary.template();
         for piece in judge_elements(&judge, elements, &template) {
             if let Some(w) = sink.as_mut() {
@@ -141,8 +152,15 @@ pub fn grid_analysis(
         }
         Ok(())
     };
-    match &args.elements {
-        Some(path) => {
+    match (&args.elements, by_rows) {
+        (_, Some(rows)) => {
+            let head = rows.for_each_cells(BATCH, |held, elements, bad| {
+                read_bad.extend(bad);
+                take(&held.nodes, elements, &mut a)
+            })?;
+            set.rejected = head.rejected;
+        }
+        (Some(path), None) => {
             let stream = stream_table(path, ELEMENTS_WHAT)?;
             let reader = ElementReader::new(&stream.table, &set)?;
             let mut ids = UniqueIds::default();
@@ -156,15 +174,15 @@ pub fn grid_analysis(
                             Err(r) => read_bad.push(r),
                         }
                     }
-                    take(&elements, &mut a)
+                    take(&set.nodes, &elements, &mut a)
                 },
             )?;
         }
-        None => {
+        (None, None) => {
             let mut cells = Cells::new(&set);
             while let Some((elements, bad)) = cells.next_cells(BATCH) {
                 read_bad.extend(bad);
-                take(&elements, &mut a)?;
+                take(&set.nodes, &elements, &mut a)?;
             }
         }
     }

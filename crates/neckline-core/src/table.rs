@@ -147,6 +147,55 @@ impl<R: Read + Send> TableStream<R> {
     }
 }
 
+impl<R: Read + Send> TableStream<R> {
+    /// One field of every row, a batch of chunks at a time on every core: `field` turns the
+    /// text of column `col` (0-based, as read; `None` when the row has no such field) into an
+    /// item, `take` is given each batch's items in file order. A light pass for a question
+    /// about one column: rows are not checked, lines not counted. A chunk that is not valid
+    /// CSV ends the read with an error.
+    pub fn for_each_field<T: Send>(
+        mut self,
+        col: usize,
+        field: impl Fn(Option<&str>) -> T + Sync,
+        mut take: impl FnMut(Vec<T>) -> Result<()>,
+    ) -> Result<()> {
+        let batch = 2 * rayon::current_num_threads().max(1);
+        let loc = Location::file(&self.table.source);
+        loop {
+            let chunks = read_batch(&mut self.chunks, batch, &self.table.source)?;
+            if chunks.is_empty() {
+                return Ok(());
+            }
+            let dialect = self.table.dialect;
+            let found: Vec<Result<Vec<T>>> = chunks
+                .par_iter()
+                .map(|c| {
+                    let mut reader = csv_builder(dialect)
+                        .has_headers(false)
+                        .trim(csv::Trim::None)
+                        .from_reader(&c.bytes[..]);
+                    let mut record = csv::ByteRecord::new();
+                    let mut out = Vec::new();
+                    while reader
+                        .read_byte_record(&mut record)
+                        .map_err(|e| csv_error(&loc, e))?
+                    {
+                        out.push(field(
+                            record.get(col).and_then(|b| std::str::from_utf8(b).ok()),
+                        ));
+                    }
+                    Ok(out)
+                })
+                .collect();
+            let mut items = Vec::new();
+            for f in found {
+                items.extend(f?);
+            }
+            take(items)?;
+        }
+    }
+}
+
 /// Where each line ends, so that a record's 1-based line comes from its byte offset: the csv
 /// crate's own line count misses blank lines between records, and its offset of a record that
 /// follows blank lines is that of the first blank line.

@@ -242,6 +242,16 @@ impl Nodes {
         Vector3::new(x, y, self.z.get(i).copied().unwrap_or(0.0))
     }
 
+    /// Node `i` whole (its key empty when nodes are not keyed).
+    pub fn node(&self, i: usize) -> Node {
+        Node {
+            key: self.key(i).unwrap_or_default().to_string(),
+            line: self.line(i),
+            reference: self.reference(i),
+            deformed: self.deformed(i),
+        }
+    }
+
     /// The 1-based line of node `i` in the nodes file.
     pub fn line(&self, i: usize) -> u64 {
         self.lines[i]

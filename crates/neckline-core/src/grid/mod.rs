@@ -3,12 +3,13 @@
 //!
 //! [`deformation`]: the kinematics of one gradient (F, C, B, E, Almansi, polar decomposition);
 //! [`mesh`]: triangles and quads (quads at their centre, and why); [`read`]: the node and
-//! element files; [`uncertainty`]: how a reading error on the nodes moves the strains. One layer
+//! element files; [`rows`]: a regular grid's file read a few grid rows at a time; [`uncertainty`]: how a reading error on the nodes moves the strains. One layer
 //! up, `stream::elements::evaluate` turns a mesh into locations judged like measured circles.
 
 pub mod deformation;
 pub mod mesh;
 pub mod read;
+pub mod rows;
 pub mod uncertainty;
 
 use mesh::Element;

@@ -112,6 +112,14 @@ impl Places {
         self.at.is_empty()
     }
 
+    /// Every place and its node, in order of `(row, col)`.
+    pub fn iter(&self) -> impl Iterator<Item = ((i64, i64), usize)> + '_ {
+        self.at
+            .iter()
+            .zip(&self.node)
+            .map(|(&p, &i)| (p, i as usize))
+    }
+
     /// The places on grid row `row`, in column order.
     fn row(&self, row: i64) -> &[(i64, i64)] {
         let a = self.at.partition_point(|p| p.0 < row);
@@ -138,6 +146,14 @@ impl NodeSet {
 /// Largest grid row or column number (a grid of a billion rows is not a circle grid; the bound
 /// also keeps `row + 1` from overflowing).
 pub const MAX_GRID_INDEX: i64 = 1_000_000_000;
+
+/// A grid row or column number as [`integer`] reads it, `None` when it does not read.
+pub fn grid_number(raw: &str) -> Option<i64> {
+    raw.trim()
+        .parse::<i64>()
+        .ok()
+        .filter(|v| (-MAX_GRID_INDEX..=MAX_GRID_INDEX).contains(v))
+}
 
 fn integer(
     t: &Table,
@@ -185,7 +201,7 @@ pub fn read_nodes(path: &Path) -> Result<NodeSet> {
     Ok(set)
 }
 
-const NODES_WHAT: &str = "row, col (or id), X, Y, x, y[, z]";
+pub(crate) const NODES_WHAT: &str = "row, col (or id), X, Y, x, y[, z]";
 
 /// Interpret a table read whole as a nodes file.
 pub fn nodes_from_table(t: Table) -> Result<NodeSet> {
@@ -271,7 +287,7 @@ impl NodeReader {
         })
     }
 
-    fn empty_set(&self, t: &Table) -> NodeSet {
+    pub(crate) fn empty_set(&self, t: &Table) -> NodeSet {
         NodeSet {
             source: t.source.clone(),
             nodes: Nodes::default(),
@@ -284,6 +300,17 @@ impl NodeReader {
             rejected_places: BTreeMap::new(),
             ignored_columns: self.ignored.clone(),
         }
+    }
+
+    /// Whether the file has `row, col` and no `id`: a regular grid whose nodes are found by
+    /// their place alone.
+    pub fn places_only(&self) -> bool {
+        self.has_grid && !self.has_id
+    }
+
+    /// The column of the grid row, when the file has one.
+    pub fn row_column(&self) -> Option<usize> {
+        self.cols.get(&NodeColumn::Row).copied()
     }
 
     /// One row, alone.
@@ -317,7 +344,7 @@ impl NodeReader {
 
     /// Take one row in file order: a repeated id is rejected here (a repeated place of a file
     /// without ids in [`Self::finish`], where the places are sorted).
-    fn take(
+    pub(crate) fn take(
         &self,
         t: &Table,
         row: NodeRow,
@@ -351,7 +378,7 @@ impl NodeReader {
     /// Sort the places: of nodes at one place, the last read stands in a file with ids (its
     /// id tells them apart), and the first in a file without (the others are rejected as
     /// repeated keys). Rejected rows in file order.
-    fn finish(&self, t: &Table, set: &mut NodeSet, mut places: Vec<((i64, i64), u32)>) {
+    pub(crate) fn finish(&self, t: &Table, set: &mut NodeSet, mut places: Vec<((i64, i64), u32)>) {
         places.sort_unstable();
         let mut keep = vec![true; set.nodes.len()];
         let mut repeats = false;
@@ -474,17 +501,38 @@ impl<'a> Cells<'a> {
         Cells { set, rows, next: 0 }
     }
 
+    /// Only the cells of grid rows `lo..=hi` (either end open when `None`).
+    pub fn within(mut self, lo: Option<i64>, hi: Option<i64>) -> Self {
+        self.rows
+            .retain(|&r| lo.is_none_or(|lo| r >= lo) && hi.is_none_or(|hi| r <= hi));
+        self
+    }
+
     /// The cells of the next grid rows, at least `want` of them unless the grid ends, and the
-    /// cells rejected among them; `None` after the last row.
+    /// cells rejected among them; `None` after the last row. Rows are cut into cells a few at
+    /// a time on every core.
     pub fn next_cells(&mut self, want: usize) -> Option<(Vec<Element>, Vec<RejectedRow>)> {
+        use rayon::prelude::*;
         if self.next >= self.rows.len() {
             return None;
         }
         let (mut cells, mut rejected) = (Vec::new(), Vec::new());
+        let group = 4 * rayon::current_num_threads().max(1);
         while self.next < self.rows.len() && cells.len() + rejected.len() < want {
-            let row = self.rows[self.next];
-            self.next += 1;
-            self.row_cells(row, &mut cells, &mut rejected);
+            let rows = &self.rows[self.next..(self.next + group).min(self.rows.len())];
+            self.next += rows.len();
+            let cut: Vec<(Vec<Element>, Vec<RejectedRow>)> = rows
+                .par_iter()
+                .map(|&row| {
+                    let (mut c, mut r) = (Vec::new(), Vec::new());
+                    self.row_cells(row, &mut c, &mut r);
+                    (c, r)
+                })
+                .collect();
+            for (c, r) in cut {
+                cells.extend(c);
+                rejected.extend(r);
+            }
         }
         Some((cells, rejected))
     }
