@@ -137,8 +137,8 @@ pub struct Element {
 
 /// The nodes of a grid as columns: positions in the blank and on the part, lines, and the
 /// keys of a file with an `id` column stored end to end with a hash index (a regular grid's
-/// nodes are found by their place, [`super::read::Places`], and store no key). About 48 bytes
-/// a node on a flat part (56 on a curved one), plus the key and 16 bytes of index when keyed.
+/// nodes are found by their place, [`super::read::Places`], and store no key). 36 bytes a
+/// node on a flat part (44 on a curved one), plus the key and its index when keyed.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct Nodes {
     reference: Vec<[f64; 2]>,
@@ -146,9 +146,16 @@ pub struct Nodes {
     /// Heights on the formed part; empty while every height read is +0 (`has_z` false).
     z: Vec<f64>,
     has_z: bool,
-    lines: Vec<u64>,
+    /// Lines in the nodes file; [`FAR`] for a line past it, found in `far_lines`.
+    lines: Vec<u32>,
+    /// `(node, line)` of the nodes on lines past [`FAR`], in order of node.
+    far_lines: Vec<(usize, u64)>,
     keys: Keys,
 }
+
+/// Lines from here on are kept aside ([`Nodes::line`]): no file of circle-grid nodes comes
+/// near four billion lines, and a line is 4 bytes a node instead of 8.
+const FAR: u32 = u32::MAX;
 
 /// Node keys end to end, and an index from a key's hash to its node.
 #[derive(Debug, Clone, Default, PartialEq)]
@@ -190,7 +197,13 @@ impl Nodes {
         if self.has_z {
             self.z.push(node.deformed.z);
         }
-        self.lines.push(node.line);
+        match u32::try_from(node.line) {
+            Ok(l) if l < FAR => self.lines.push(l),
+            _ => {
+                self.lines.push(FAR);
+                self.far_lines.push((i, node.line));
+            }
+        }
         if keyed {
             let k = &mut self.keys;
             k.text.push_str(&node.key);
@@ -254,19 +267,29 @@ impl Nodes {
 
     /// The 1-based line of node `i` in the nodes file.
     pub fn line(&self, i: usize) -> u64 {
-        self.lines[i]
+        match self.lines[i] {
+            FAR => {
+                let k = self.far_lines.partition_point(|&(n, _)| n < i);
+                self.far_lines[k].1
+            }
+            l => u64::from(l),
+        }
     }
 
     /// Keep the nodes whose `keep` is true (unkeyed nodes only); the new index of each kept.
     pub fn retain(&mut self, keep: &[bool]) -> Vec<Option<usize>> {
         debug_assert!(self.keys.ends.is_empty());
         let mut to = Vec::with_capacity(keep.len());
+        let mut far = Vec::new();
         let mut n = 0;
         for (i, &k) in keep.iter().enumerate() {
             to.push(k.then_some(n));
             if k {
                 self.reference[n] = self.reference[i];
                 self.deformed[n] = self.deformed[i];
+                if self.lines[i] == FAR {
+                    far.push((n, self.line(i)));
+                }
                 self.lines[n] = self.lines[i];
                 if self.has_z {
                     self.z[n] = self.z[i];
@@ -277,6 +300,7 @@ impl Nodes {
         self.reference.truncate(n);
         self.deformed.truncate(n);
         self.lines.truncate(n);
+        self.far_lines = far;
         if self.has_z {
             self.z.truncate(n);
         }
@@ -477,5 +501,33 @@ mod tests {
             epsilon = 1e-12
         );
         assert_abs_diff_eq!(r.reference_centre, Vector2::new(2.5, 2.5), epsilon = 1e-12);
+    }
+
+    #[test]
+    fn lines_past_four_billion_are_kept_whole_through_a_retain() {
+        let node = |line: u64| Node {
+            key: String::new(),
+            line,
+            reference: Vector2::new(line as f64, 0.0),
+            deformed: Vector3::new(0.0, 0.0, 0.0),
+        };
+        let lines = [
+            2,
+            4_294_967_294,
+            4_294_967_295,
+            5_000_000_000,
+            9_000_000_001,
+        ];
+        let mut nodes = Nodes::default();
+        for &l in &lines {
+            nodes.push(&node(l), false);
+        }
+        let read: Vec<u64> = (0..nodes.len()).map(|i| nodes.line(i)).collect();
+        assert_eq!(read, lines);
+        let to = nodes.retain(&[true, false, true, false, true]);
+        assert_eq!(to, [Some(0), None, Some(1), None, Some(2)]);
+        let kept: Vec<u64> = (0..nodes.len()).map(|i| nodes.line(i)).collect();
+        assert_eq!(kept, [2, 4_294_967_295, 9_000_000_001]);
+        assert_eq!(nodes.reference(2).x, 9_000_000_001.0);
     }
 }

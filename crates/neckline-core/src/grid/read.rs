@@ -83,23 +83,50 @@ pub struct NodeSet {
     pub ignored_columns: Vec<String>,
 }
 
-/// The places `(row, col)` of a regular grid's nodes, sorted, each with its node (20 bytes a
+/// A node's place in a regular grid and its index among the nodes (12 bytes: grid numbers are
+/// within ±[`MAX_GRID_INDEX`], well inside `i32`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub(crate) struct Place {
+    row: i32,
+    col: i32,
+    node: u32,
+}
+
+impl Place {
+    /// Node `node` at `(row, col)`, read within ±[`MAX_GRID_INDEX`].
+    pub(crate) fn new(at: (i64, i64), node: usize) -> Place {
+        Place {
+            row: at.0 as i32,
+            col: at.1 as i32,
+            node: node as u32,
+        }
+    }
+
+    fn at(&self) -> (i64, i64) {
+        (i64::from(self.row), i64::from(self.col))
+    }
+}
+
+/// The places `(row, col)` of a regular grid's nodes, sorted, each with its node (12 bytes a
 /// node; found by bisection).
 #[derive(Debug, Clone, Default)]
 pub struct Places {
-    at: Vec<(i64, i64)>,
-    node: Vec<u32>,
+    at: Vec<Place>,
 }
 
 impl Places {
     /// The node at place `p`.
     pub fn get(&self, p: &(i64, i64)) -> Option<usize> {
-        self.at.binary_search(p).ok().map(|k| self.node[k] as usize)
+        let key = (i32::try_from(p.0).ok()?, i32::try_from(p.1).ok()?);
+        self.at
+            .binary_search_by_key(&key, |q| (q.row, q.col))
+            .ok()
+            .map(|k| self.at[k].node as usize)
     }
 
     /// Whether a node is at `p`.
     pub fn contains_key(&self, p: &(i64, i64)) -> bool {
-        self.at.binary_search(p).is_ok()
+        self.get(p).is_some()
     }
 
     /// Number of places.
@@ -114,17 +141,24 @@ impl Places {
 
     /// Every place and its node, in order of `(row, col)`.
     pub fn iter(&self) -> impl Iterator<Item = ((i64, i64), usize)> + '_ {
-        self.at
-            .iter()
-            .zip(&self.node)
-            .map(|(&p, &i)| (p, i as usize))
+        self.at.iter().map(|p| (p.at(), p.node as usize))
     }
 
-    /// The places on grid row `row`, in column order.
-    fn row(&self, row: i64) -> &[(i64, i64)] {
-        let a = self.at.partition_point(|p| p.0 < row);
-        let b = self.at.partition_point(|p| p.0 <= row);
-        &self.at[a..b]
+    /// The columns on grid row `row`, in order.
+    fn row_cols(&self, row: i64) -> impl Iterator<Item = i64> + '_ {
+        let a = self.at.partition_point(|p| i64::from(p.row) < row);
+        let b = self.at.partition_point(|p| i64::from(p.row) <= row);
+        self.at[a..b].iter().map(|p| i64::from(p.col))
+    }
+
+    /// The grid rows with a node, in order, once each.
+    fn rows(&self) -> impl Iterator<Item = i64> + '_ {
+        let mut last = None;
+        self.at.iter().filter_map(move |p| {
+            let new = last != Some(p.row);
+            last = Some(p.row);
+            new.then_some(i64::from(p.row))
+        })
     }
 }
 
@@ -344,13 +378,7 @@ impl NodeReader {
 
     /// Take one row in file order: a repeated id is rejected here (a repeated place of a file
     /// without ids in [`Self::finish`], where the places are sorted).
-    pub(crate) fn take(
-        &self,
-        t: &Table,
-        row: NodeRow,
-        set: &mut NodeSet,
-        places: &mut Vec<((i64, i64), u32)>,
-    ) {
+    pub(crate) fn take(&self, t: &Table, row: NodeRow, set: &mut NodeSet, places: &mut Vec<Place>) {
         match row {
             NodeRow::Rejected(place, line, e) => {
                 if let Some(p) = place {
@@ -369,7 +397,7 @@ impl NodeReader {
                 }
                 let i = set.nodes.push(&node, self.has_id);
                 if let Some(p) = place {
-                    places.push((p, i as u32));
+                    places.push(Place::new(p, i));
                 }
             }
         }
@@ -378,41 +406,42 @@ impl NodeReader {
     /// Sort the places: of nodes at one place, the last read stands in a file with ids (its
     /// id tells them apart), and the first in a file without (the others are rejected as
     /// repeated keys). Rejected rows in file order.
-    pub(crate) fn finish(&self, t: &Table, set: &mut NodeSet, mut places: Vec<((i64, i64), u32)>) {
+    pub(crate) fn finish(&self, t: &Table, set: &mut NodeSet, mut places: Vec<Place>) {
+        // In order of place, then of node (file order): compacted where it lies.
         places.sort_unstable();
         let mut keep = vec![true; set.nodes.len()];
         let mut repeats = false;
-        let mut at = Vec::with_capacity(places.len());
-        let mut node = Vec::with_capacity(places.len());
-        for (k, &(p, i)) in places.iter().enumerate() {
-            let next_same = places.get(k + 1).is_some_and(|q| q.0 == p);
-            let first_of = k == 0 || places[k - 1].0 != p;
+        let mut kept = 0;
+        for k in 0..places.len() {
+            let p = places[k];
+            let next_same = places.get(k + 1).is_some_and(|q| q.at() == p.at());
+            let first_of = k == 0 || places[k - 1].at() != p.at();
             if self.has_id {
                 if !next_same {
-                    at.push(p);
-                    node.push(i);
+                    places[kept] = p;
+                    kept += 1;
                 }
             } else if first_of {
-                at.push(p);
-                node.push(i);
+                places[kept] = p;
+                kept += 1;
             } else {
-                let first = set.nodes.line(*node.last().expect("a first") as usize);
-                let line = set.nodes.line(i as usize);
-                let key = format!("r{}c{}", p.0, p.1);
+                let first = set.nodes.line(places[kept - 1].node as usize);
+                let line = set.nodes.line(p.node as usize);
+                let key = format!("r{}c{}", p.row, p.col);
                 set.rejected
                     .push(duplicate(t, &self.cols, &key, line, first));
-                keep[i as usize] = false;
+                keep[p.node as usize] = false;
                 repeats = true;
             }
         }
-        drop(places);
+        places.truncate(kept);
         if repeats {
             let to = set.nodes.retain(&keep);
-            for n in &mut node {
-                *n = to[*n as usize].expect("a kept node") as u32;
+            for p in &mut places {
+                p.node = to[p.node as usize].expect("a kept node") as u32;
             }
         }
-        set.grid = Places { at, node };
+        set.grid = Places { at: places };
         set.rejected.sort_by_key(|r| r.location.line);
     }
 }
@@ -486,12 +515,8 @@ impl<'a> Cells<'a> {
                 }
             }
         };
-        let mut last = None;
-        for &(r, _) in &set.grid.at {
-            if last != Some(r) {
-                add(r);
-                last = Some(r);
-            }
+        for r in set.grid.rows() {
+            add(r);
         }
         for &(r, _) in set.rejected_places.keys() {
             add(r);
@@ -545,7 +570,7 @@ impl<'a> Cells<'a> {
                 .rejected_places
                 .range((r, i64::MIN)..=(r, i64::MAX))
                 .map(|(p, _)| p.1);
-            for c in set.grid.row(r).iter().map(|p| p.1).chain(rejected_cols) {
+            for c in set.grid.row_cols(r).chain(rejected_cols) {
                 cols.extend([c - 1, c]);
             }
         }

@@ -10,7 +10,7 @@
 //! [`Cells`] on the rows held.
 
 use super::mesh::{Element, Node};
-use super::read::{grid_number, Cells, NodeReader, NodeRow, NodeSet, NODES_WHAT};
+use super::read::{grid_number, Cells, NodeReader, NodeRow, NodeSet, Place, NODES_WHAT};
 use crate::error::{Error, Location, Result};
 use crate::measure::RejectedRow;
 use crate::table::{stream_table, Table, TableStream};
@@ -224,7 +224,7 @@ impl Window<'_> {
         let mut held = self.reader.empty_set(t);
         let mut places = Vec::with_capacity(self.finished.len());
         for (p, node) in &self.finished {
-            places.push((*p, held.nodes.push(node, false) as u32));
+            places.push(Place::new(*p, held.nodes.push(node, false)));
         }
         held.rejected_places = self.finished_rejected.clone();
         self.reader.finish(t, &mut held, places);
