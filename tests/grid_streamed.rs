@@ -90,6 +90,55 @@ fn a_homogeneous_grid_gives_its_closed_form_strains_in_every_cell_in_order() {
     assert_eq!(s["rejected_rows"], 0, "{s}");
 }
 
+/// The same grid written with its grid rows last to first: a file not in order of grid row is
+/// held whole instead of read a few rows at a time, and gives the same cells, in grid order,
+/// with the same values (only the lines they were read from differ).
+#[test]
+fn a_grid_written_backwards_gives_the_same_cells_as_in_order() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    write(d, "limit.toml", CURVE);
+    let text = nodes_text();
+    let (head, body) = text.split_at(text.find("row,col").unwrap());
+    let (header, rows) = body.split_once('\n').unwrap();
+    let mut by_row: Vec<Vec<&str>> = vec![Vec::new(); ROWS];
+    for line in rows.lines().filter(|l| !l.is_empty()) {
+        let r: usize = line.split(',').next().unwrap().parse().unwrap();
+        by_row[r].push(line);
+    }
+    let backwards: Vec<&str> = by_row.iter().rev().flatten().copied().collect();
+    write(d, "ordered.csv", &text);
+    write(
+        d,
+        "backwards.csv",
+        format!("{head}{header}\n{}\n", backwards.join("\n")),
+    );
+    for name in ["ordered", "backwards"] {
+        let args = [
+            "grid",
+            &format!("{name}.csv"),
+            "--limit",
+            "limit.toml",
+            "--out",
+            name,
+        ];
+        neckline(&[&args[..], &["--format", "csv", "--t0", "0.8"]].concat())
+            .run_in(d)
+            .expect(0);
+    }
+    let ordered = read_rows(&d.join("ordered/points.csv"));
+    let backwards = read_rows(&d.join("backwards/points.csv"));
+    assert_eq!(ordered.len(), (ROWS - 1) * (COLS - 1));
+    assert_eq!(ordered.len(), backwards.len());
+    for (a, b) in ordered.iter().zip(&backwards) {
+        for (k, v) in a {
+            if !k.contains("line") {
+                assert_eq!(Some(v), b.get(k), "{k} of {a:?} against {b:?}");
+            }
+        }
+    }
+}
+
 #[test]
 fn a_bad_node_far_into_the_file_is_rejected_at_its_own_line() {
     let dir = tempfile::tempdir().unwrap();
