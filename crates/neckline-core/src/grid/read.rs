@@ -586,7 +586,7 @@ impl<'a> Cells<'a> {
 fn cell(at: (i64, i64), set: &NodeSet, cells: &mut Vec<Element>, rejected: &mut Vec<RejectedRow>) {
     let (r, c) = at;
     let corners = [(r, c), (r, c + 1), (r + 1, c + 1), (r + 1, c)];
-    let found: Vec<Option<usize>> = corners.iter().map(|p| set.grid.get(p)).collect();
+    let found: [Option<usize>; 4] = corners.map(|p| set.grid.get(&p));
     if found.iter().all(Option::is_none) {
         return; // every corner rejected: the node rows already say why
     }
@@ -597,6 +597,14 @@ fn cell(at: (i64, i64), set: &NodeSet, cells: &mut Vec<Element>, rejected: &mut 
         .map(|&i| set.nodes.line(i))
         .min()
         .unwrap_or(0);
+    if let [Some(a), Some(b), Some(c), Some(d)] = found {
+        cells.push(Element {
+            id,
+            line,
+            nodes: vec![a, b, c, d],
+        });
+        return;
+    }
     let missing: Vec<String> = corners
         .iter()
         .zip(&found)
@@ -611,13 +619,7 @@ fn cell(at: (i64, i64), set: &NodeSet, cells: &mut Vec<Element>, rejected: &mut 
         .zip(&found)
         .filter(|(p, f)| f.is_some() || set.rejected_places.contains_key(p))
         .count();
-    if missing.is_empty() {
-        cells.push(Element {
-            id,
-            line,
-            nodes: found.into_iter().flatten().collect(),
-        });
-    } else if known >= 3 {
+    if known >= 3 {
         rejected.push(RejectedRow {
             location: Location::file(&set.source).at_line(line),
             reason: format!(

@@ -44,13 +44,15 @@ pub fn state_input(e: &Element, r: &ElementResult, three_d: bool) -> Option<Stat
 /// Evaluate one element into a judged-ready location, or a rejected row naming the element
 /// (its id in the message itself, not only in the id field) and why (collapsed, inverted, not
 /// convex...). `source` is the file that defined the elements (the elements file, or the nodes
-/// file for a regular grid, `regular_grid`).
+/// file for a regular grid, `regular_grid`). `sensitivity`: also how the stretches move with
+/// each node, which only a reading error on the nodes needs.
 pub fn evaluate_one(
     nodes: &Nodes,
     three_d: bool,
     e: &Element,
     source: &Path,
     regular_grid: bool,
+    sensitivity: bool,
 ) -> Result<StateInput, RejectedRow> {
     let reject = |reason: String| RejectedRow {
         location: Location::file(source).at_line(e.line),
@@ -61,7 +63,7 @@ pub fn evaluate_one(
     match nodes.evaluate(e, three_d) {
         Ok(r) => match state_input(e, &r, three_d) {
             Some(mut s) => {
-                if let Some(g) = s.grid.as_mut() {
+                if let Some(g) = s.grid.as_mut().filter(|_| sensitivity) {
                     g.sensitivity = uncertainty::sensitivity_of(nodes, e);
                 }
                 Ok(s)
@@ -83,7 +85,7 @@ pub fn evaluate(
 ) -> (Vec<StateInput>, Vec<RejectedRow>) {
     let (mut ok, mut rejected) = (Vec::new(), Vec::new());
     for e in &mesh.elements {
-        match evaluate_one(&mesh.nodes, mesh.three_d, e, source, regular_grid) {
+        match evaluate_one(&mesh.nodes, mesh.three_d, e, source, regular_grid, true) {
             Ok(s) => ok.push(s),
             Err(r) => rejected.push(r),
         }
@@ -133,13 +135,14 @@ pub fn judge_elements(
     elements
         .par_chunks(PIECE)
         .map(|piece| {
+            let sensitivity = j.ctx.settings.reading_error.is_some();
             let mut out = JudgedPiece {
                 text: Vec::with_capacity(if j.write { piece.len() * 256 } else { 0 }),
                 summary: like.part(),
                 rejected: Vec::new(),
             };
             for e in piece {
-                match evaluate_one(j.nodes, j.three_d, e, j.source, j.regular_grid) {
+                match evaluate_one(j.nodes, j.three_d, e, j.source, j.regular_grid, sensitivity) {
                     Ok(s) => {
                         let p = j.ctx.judge(s);
                         if j.write {
