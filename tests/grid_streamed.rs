@@ -139,6 +139,32 @@ fn a_grid_written_backwards_gives_the_same_cells_as_in_order() {
     }
 }
 
+/// A nodes file that can be read only once (a named pipe) is read once, held whole.
+#[cfg(unix)]
+#[test]
+fn nodes_through_a_named_pipe_are_read_once() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    write(d, "limit.toml", CURVE);
+    let fifo = d.join("nodes.csv");
+    let made = std::process::Command::new("mkfifo").arg(&fifo).status();
+    if !made.is_ok_and(|s| s.success()) {
+        eprintln!("no mkfifo here: skipped");
+        return;
+    }
+    let text = nodes_text();
+    let writer = std::thread::spawn(move || std::fs::write(&fifo, text));
+    let args = ["grid", "nodes.csv", "--limit", "limit.toml", "--out", "o"];
+    neckline(&[&args[..], &["--format", "csv"]].concat())
+        .run_in(d)
+        .expect(0);
+    writer.join().unwrap().unwrap();
+    assert_eq!(
+        read_rows(&d.join("o/points.csv")).len(),
+        (ROWS - 1) * (COLS - 1)
+    );
+}
+
 #[test]
 fn a_bad_node_far_into_the_file_is_rejected_at_its_own_line() {
     let dir = tempfile::tempdir().unwrap();

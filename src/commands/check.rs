@@ -169,13 +169,15 @@ pub fn judge_file(
     };
     let io_err = |e| Error::io(plan.points.as_deref().unwrap_or(Path::new("-")), e);
     let staged = header.columns.has("stage");
-    let stdin = path.as_os_str() == "-";
+    // Standard input, a named pipe or a device: read once.
+    let regular = std::fs::metadata(path).ok().filter(|m| m.is_file());
+    let once = path.as_os_str() == "-" || regular.is_none();
     // A file of one stage is judged as one without stages (the same outputs, one pass); one
-    // with several (or a job file's stage order) is grouped through run files. Standard input
-    // is read once: a staged file's rows are kept in an anonymous temporary file (hashed as
-    // they pass), so that they can be read again.
+    // with several (or a job file's stage order) is grouped through run files. An input read
+    // once has a staged file's rows kept in an anonymous temporary file (hashed as they
+    // pass), so that they can be read again.
     let no_order = prep.job.stages.is_none();
-    let (mut input, size, one_stage): (Box<dyn Read + Send>, Option<u64>, bool) = if staged && stdin
+    let (mut input, size, one_stage): (Box<dyn Read + Send>, Option<u64>, bool) = if staged && once
     {
         let (mut spooled, len) = staged_runs::spool(input, path)?;
         let one = no_order && staged_runs::one_stage_body(&spooled, &header);
@@ -184,7 +186,7 @@ pub fn judge_file(
             .map_err(|e| Error::io(&std::env::temp_dir(), e))?;
         (Box::new(spooled), Some(len), one)
     } else {
-        let size = std::fs::metadata(path).ok().map(|m| m.len());
+        let size = regular.map(|m| m.len());
         let one = staged && no_order && staged_runs::one_stage(path, &header);
         (Box::new(input), size, one)
     };

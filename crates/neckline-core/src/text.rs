@@ -130,23 +130,11 @@ pub fn open(path: &Path) -> Result<(Box<dyn BufRead + Send>, RawDigest)> {
     let digest = RawDigest::default();
     let opts = options();
     if path.as_os_str() == "-" {
-        let mut raw = Tee {
+        let raw = Tee {
             inner: io::stdin(),
             digest: digest.clone(),
         };
-        let mut head = Vec::new();
-        (&mut raw)
-            .take(SNIFF_BYTES)
-            .read_to_end(&mut head)
-            .map_err(|e| Error::io(path, e))?;
-        let whole = (head.len() as u64) < SNIFF_BYTES;
-        // UTF-8 when the start looked at is (a character cut at the sniff's end aside).
-        let valid = match std::str::from_utf8(&head) {
-            Ok(_) => true,
-            Err(e) => !whole && e.error_len().is_none(),
-        };
-        let raw = io::Cursor::new(head.clone()).chain(raw);
-        return Ok((decoded(raw, &head, valid, path, &opts), digest));
+        return read_once(raw, path, &opts, digest);
     }
     if path.is_dir() {
         return Err(Error::input(
@@ -156,6 +144,7 @@ pub fn open(path: &Path) -> Result<(Box<dyn BufRead + Send>, RawDigest)> {
         ));
     }
     let f = File::open(path).map_err(|e| Error::io(path, e))?;
+    let regular = f.metadata().is_ok_and(|m| m.is_file());
     let mut raw = Tee {
         inner: f,
         digest: digest.clone(),
@@ -167,10 +156,38 @@ pub fn open(path: &Path) -> Result<(Box<dyn BufRead + Send>, RawDigest)> {
         let text = crate::workbook::to_csv(path, bytes, opts.sheet.as_deref())?;
         return Ok((Box::new(io::Cursor::new(text)), digest));
     }
+    if !regular {
+        // A named pipe or a device is read once, as standard input is: opening it again to
+        // look at its encoding would take rows away from this reader.
+        return read_once(raw, path, &opts, digest);
+    }
     let mut raw = BufReader::with_capacity(1 << 16, raw);
     let head = raw.fill_buf().map_err(|e| Error::io(path, e))?.to_vec();
     let valid = opts.encoding.is_some() || utf8_file(path).map_err(|e| Error::io(path, e))?;
     Ok((decoded(raw, &head, valid, path, &opts), digest))
+}
+
+/// An input that can be read only once (standard input, a named pipe): its encoding is told
+/// from its first [`SNIFF_BYTES`], kept and read again ahead of the rest.
+fn read_once(
+    mut raw: impl Read + Send + 'static,
+    path: &Path,
+    opts: &InputOptions,
+    digest: RawDigest,
+) -> Result<(Box<dyn BufRead + Send>, RawDigest)> {
+    let mut head = Vec::new();
+    (&mut raw)
+        .take(SNIFF_BYTES)
+        .read_to_end(&mut head)
+        .map_err(|e| Error::io(path, e))?;
+    let whole = (head.len() as u64) < SNIFF_BYTES;
+    // UTF-8 when the start looked at is (a character cut at the sniff's end aside).
+    let valid = match std::str::from_utf8(&head) {
+        Ok(_) => true,
+        Err(e) => !whole && e.error_len().is_none(),
+    };
+    let raw = io::Cursor::new(head.clone()).chain(raw);
+    Ok((decoded(raw, &head, valid, path, opts), digest))
 }
 
 /// A whole small text file (a job or curve file, as a text editor on Windows saves it) made

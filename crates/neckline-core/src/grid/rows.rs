@@ -20,10 +20,11 @@ use std::path::Path;
 
 /// Whether the nodes file at `path` can be read by grid rows ([`GridRows`]): it has `row, col`
 /// and no `id` (with ids, a key repeated anywhere in the file is refused, which needs every
-/// key), it can be read again (not standard input), it reads as a table, and the grid row of
-/// each row whose place reads is at least that of every row before it.
+/// key), it can be read again (a regular file: not standard input, a pipe or a device), it
+/// reads as a table, and the grid row of each row whose place reads is at least that of every
+/// row before it.
 pub fn rows_in_order(path: &Path) -> bool {
-    if path.as_os_str() == "-" {
+    if path.as_os_str() == "-" || !std::fs::metadata(path).is_ok_and(|m| m.is_file()) {
         return false;
     }
     let Ok(stream) = stream_table(path, NODES_WHAT) else {
@@ -392,6 +393,13 @@ mod tests {
         let keyed = file("id,row,col,X,Y,x,y\na,0,0,0,0,0,0\n");
         assert!(!rows_in_order(keyed.path()));
         assert!(!rows_in_order(Path::new("-")));
+        // A pipe is read once: asking would take its rows (and opening it would wait).
+        let dir = tempfile::tempdir().unwrap();
+        let fifo = dir.path().join("nodes.csv");
+        let made = std::process::Command::new("mkfifo").arg(&fifo).status();
+        if made.is_ok_and(|s| s.success()) {
+            assert!(!rows_in_order(&fifo));
+        }
         assert!(!rows_in_order(Path::new("/nonexistent/nodes.csv")));
     }
 

@@ -259,10 +259,11 @@ fn temp() -> Result<File> {
 /// most one row (a repeated id at one stage is a duplicate), so the judgement of
 /// [`judge_staged_runs`] is that of the streamed `check` row by row, in file order: no path,
 /// no grouping. Decided by reading the file again ([`one_stage_body`]); `false` for standard
-/// input (read once: `check` keeps its body in a temporary file and asks [`one_stage_body`])
-/// and a file that cannot be read again.
+/// input, a named pipe or a device (read once: `check` keeps its body in a temporary file and
+/// asks [`one_stage_body`]) and a file that cannot be read again.
 pub fn one_stage(path: &std::path::Path, header: &Header) -> bool {
-    if path.as_os_str() == "-" || !header.columns.has("stage") {
+    let regular = std::fs::metadata(path).is_ok_and(|m| m.is_file());
+    if path.as_os_str() == "-" || !regular || !header.columns.has("stage") {
         return false;
     }
     let Ok((mut input, _)) = crate::text::open(path) else {
