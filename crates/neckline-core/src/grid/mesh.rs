@@ -528,6 +528,6 @@ mod tests {
         assert_eq!(to, [Some(0), None, Some(1), None, Some(2)]);
         let kept: Vec<u64> = (0..nodes.len()).map(|i| nodes.line(i)).collect();
         assert_eq!(kept, [2, 4_294_967_295, 9_000_000_001]);
-        assert_eq!(nodes.reference(2).x, 9_000_000_001.0);
+        assert_eq!(nodes.reference(2).x.to_bits(), 9_000_000_001f64.to_bits());
     }
 }
