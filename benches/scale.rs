@@ -2,7 +2,8 @@
 //! (`--format csv,json`) on the same machine in the same run, from invented inputs:
 //! - `check` of a file with a `stage` column: ROWS/3 locations measured after three stages,
 //!   and the same ROWS rows all of one stage;
-//! - `grid`: a regular row, col grid of ROWS nodes (1000 columns);
+//! - `grid`: a regular row, col grid of ROWS nodes (1000 columns), its rows in order (read a
+//!   few grid rows at a time) and written backwards (held whole);
 //! - `compare` of two `check` outputs of ROWS rows each, by id and by position (`--match xy`);
 //! - `limit from-parts` of 100 000 circles (a tenth of ROWS).
 //!
@@ -70,12 +71,18 @@ fn staged(path: &Path, rows: usize, stages: usize) {
     f.flush().unwrap();
 }
 
-/// A row, col grid of `nodes` nodes, 1000 columns, pitch 2 mm, stretched by a smooth field.
-fn grid(path: &Path, nodes: usize) {
+/// A row, col grid of `nodes` nodes, 1000 columns, pitch 2 mm, stretched by a smooth field;
+/// `backwards`: its grid rows written last to first (a file not in order of grid row, which
+/// `grid` holds whole).
+fn grid(path: &Path, nodes: usize, backwards: bool) {
     let mut f = create(path);
     writeln!(f, "row,col,X,Y,x,y").unwrap();
+    let rows = nodes.div_ceil(1000);
     for k in 0..nodes {
-        let (i, j) = (k / 1000, k % 1000);
+        let (mut i, j) = (k / 1000, k % 1000);
+        if backwards {
+            i = rows - 1 - i;
+        }
         let (bx, by) = (2.0 * j as f64, 2.0 * i as f64);
         let x = bx * (1.0 + 0.1 * (by / 300.0).sin().abs());
         let y = by * (1.0 + 0.05 * (bx / 400.0).cos().abs());
@@ -139,6 +146,7 @@ struct Inputs {
     staged: PathBuf,
     single: PathBuf,
     nodes: PathBuf,
+    nodes_backwards: PathBuf,
     parts: PathBuf,
 }
 
@@ -149,13 +157,15 @@ fn inputs(dir: &Path, rows: usize) -> Inputs {
         staged: dir.join("staged.csv"),
         single: dir.join("single.csv"),
         nodes: dir.join("nodes.csv"),
+        nodes_backwards: dir.join("nodes-backwards.csv"),
         parts: dir.join("parts.csv"),
     };
     flat(&i.flat, rows, 2207, 1.0);
     flat(&i.flat2, rows, 2207, 1.1);
     staged(&i.staged, rows, 3);
     staged(&i.single, rows, 1);
-    grid(&i.nodes, rows);
+    grid(&i.nodes, rows, false);
+    grid(&i.nodes_backwards, rows, true);
     parts(&i.parts, rows / 10);
     i
 }
@@ -219,12 +229,17 @@ fn main() {
         line("check, one stage", rows, t, m);
     }
     if want("grid") {
-        let mut c = Command::new(exe);
-        c.arg("grid").arg(&i.nodes).arg("--limit").arg(&limit);
-        c.arg("--out").arg(dir.path().join("grid"));
-        c.args(["--format", "csv,json"]);
-        let (t, m) = run(&mut c);
-        line("grid", rows, t, m);
+        for (nodes, out, name) in [
+            (&i.nodes, "grid", "grid, rows in order"),
+            (&i.nodes_backwards, "grid-backwards", "grid, rows backwards"),
+        ] {
+            let mut c = Command::new(exe);
+            c.arg("grid").arg(nodes).arg("--limit").arg(&limit);
+            c.arg("--out").arg(dir.path().join(out));
+            c.args(["--format", "csv,json"]);
+            let (t, m) = run(&mut c);
+            line(name, rows, t, m);
+        }
     }
     if want("compare") {
         run(&mut check(&i.flat2, "flat2"));
