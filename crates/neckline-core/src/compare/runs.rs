@@ -163,9 +163,32 @@ struct Shape<'a> {
     tolerance: f64,
     density: &'a super::tally::Density,
     csv: bool,
+    /// An input has more than [`crate::summary::KEEP_ALL`] locations: the tally keeps only
+    /// its capped lists.
+    beyond_keep_all: bool,
 }
 
-fn join(p: usize, inputs: Vec<File>, shape: &Shape) -> Result<Joined> {
+impl Joined {
+    /// Nothing joined yet.
+    fn empty(shape: &Shape) -> Joined {
+        let n = shape.paths.len();
+        let density = Some(shape.density.clone());
+        let tally = if shape.beyond_keep_all {
+            Tally::beyond_keep_all(n, shape.tolerance, density)
+        } else {
+            Tally::new(n, shape.tolerance, density)
+        };
+        Joined {
+            tally,
+            rows: Vec::new(),
+            duplicate: None,
+        }
+    }
+}
+
+/// Join partition `p` (its run files of every input) into `acc`: its tracks folded into the
+/// tally, their compare.csv rows in order into a run file of their own.
+fn join(p: usize, inputs: Vec<File>, shape: &Shape, acc: &mut Joined) -> Result<()> {
     let n = inputs.len();
     // Tracks by a hash of their key; two keys of one hash (rare) go to `clashes`.
     let mut index: HashMap<u64, usize, rustc_hash::FxBuildHasher> = HashMap::default();
@@ -234,7 +257,7 @@ fn join(p: usize, inputs: Vec<File>, shape: &Shape) -> Result<Joined> {
         }
     }
     tracks.sort_by_key(|(o, _)| *o);
-    let mut tally = Tally::new(n, shape.tolerance, Some(shape.density.clone()));
+    let tally = &mut acc.tally;
     let mut out = BufWriter::with_capacity(1 << 16, temp()?);
     let mut b = Vec::with_capacity(256);
     for (order, t) in &tracks {
@@ -250,11 +273,20 @@ fn join(p: usize, inputs: Vec<File>, shape: &Shape) -> Result<Joined> {
     }
     let mut f = out.into_inner().map_err(|e| run_error(e.into_error()))?;
     f.rewind().map_err(run_error)?;
-    Ok(Joined {
-        tally,
-        rows: vec![(p, f)],
-        duplicate: dup,
-    })
+    acc.rows.push((p, f));
+    acc.duplicate = earlier(acc.duplicate.take(), dup);
+    Ok(())
+}
+
+/// Of two first repeats (tryout, line, error), the earlier.
+fn earlier(
+    a: Option<(usize, u64, Error)>,
+    b: Option<(usize, u64, Error)>,
+) -> Option<(usize, u64, Error)> {
+    match (a, b) {
+        (Some(x), Some(y)) => Some(if (y.0, y.1) < (x.0, x.1) { y } else { x }),
+        (x, y) => x.or(y),
+    }
 }
 
 /// The distance of each step of a track paired by position.
@@ -271,10 +303,7 @@ fn steps(t: &mut Track) {
 fn merge_joined(mut a: Joined, b: Joined) -> Joined {
     a.tally.merge(b.tally);
     a.rows.extend(b.rows);
-    a.duplicate = match (a.duplicate, b.duplicate) {
-        (Some(x), Some(y)) => Some(if (y.0, y.1) < (x.0, x.1) { y } else { x }),
-        (x, y) => x.or(y),
-    };
+    a.duplicate = earlier(a.duplicate, b.duplicate);
     a
 }
 
@@ -667,6 +696,9 @@ pub fn compare_files(
         tolerance,
         density: &density,
         csv: csv.is_some(),
+        beyond_keep_all: tryouts
+            .iter()
+            .any(|t| t.stats.locations > crate::summary::KEEP_ALL),
     };
     let mut by_part: Vec<Vec<File>> = (0..parts).map(|_| Vec::new()).collect();
     for input in files {
@@ -674,24 +706,32 @@ pub fn compare_files(
             by_part[p].push(f);
         }
     }
-    // As many partitions at a time as there are threads, each batch merged into the one
-    // running result: the partial tallies alive do not grow with the number of partitions.
+    // Each thread takes the next partition left and folds it into one running result of its
+    // own (the partial tallies alive do not grow with the number of partitions); the threads'
+    // results merge at the end.
     let threads = rayon::current_num_threads().max(1);
+    let queue = std::sync::Mutex::new(by_part.into_iter().enumerate());
+    let done: Vec<Result<Joined>> = (0..threads)
+        .into_par_iter()
+        .with_max_len(1)
+        .map(|_| {
+            let mut acc = Joined::empty(&shape);
+            loop {
+                let next = queue.lock().unwrap_or_else(|e| e.into_inner()).next();
+                let Some((p, inputs)) = next else {
+                    return Ok(acc);
+                };
+                join(p, inputs, &shape, &mut acc)?;
+            }
+        })
+        .collect();
     let mut joined: Option<Joined> = None;
-    let mut parts_left = by_part.into_iter().enumerate().peekable();
-    while parts_left.peek().is_some() {
-        let batch: Vec<(usize, Vec<File>)> = parts_left.by_ref().take(threads).collect();
-        let done: Vec<Result<Joined>> = batch
-            .into_par_iter()
-            .map(|(p, inputs)| join(p, inputs, &shape))
-            .collect();
-        for j in done {
-            let j = j?;
-            joined = Some(match joined {
-                Some(a) => merge_joined(a, j),
-                None => j,
-            });
-        }
+    for j in done {
+        let j = j?;
+        joined = Some(match joined {
+            Some(a) => merge_joined(a, j),
+            None => j,
+        });
     }
     let joined = joined.ok_or_else(|| Error::Usage("nothing to compare".into()))?;
     if let Some((_, _, e)) = joined.duplicate {
@@ -767,22 +807,84 @@ mod tests {
     /// `compare_files` of `paths` against the in-memory comparison of the same files (an
     /// independent join): the same tracks, counts and compare.csv. The streamed one back.
     fn same_as_whole(paths: &[PathBuf], matching: Matching) -> Comparison {
-        let tryouts = paths.iter().enumerate();
-        let tryouts = tryouts
+        let tryouts: Vec<_> = paths
+            .iter()
+            .enumerate()
             .map(|(k, p)| read_tryout(p, k + 1).unwrap())
             .collect();
+        // Every track in order, held whole (the comparison keeps only the capped lists'
+        // beyond KEEP_ALL locations), for compare.csv.
+        let every = match matching {
+            Matching::Id => crate::compare::tracks_by_id(&tryouts),
+            Matching::Xy { within } => crate::compare::tracks_by_position(&tryouts, within),
+        };
         let whole = compare(tryouts, matching, 1.0).unwrap();
         let mut text = Vec::new();
         let runs = compare_files(paths, matching, 1.0, Some(&mut text)).unwrap();
         assert_eq!(runs.tracks, whole.tracks);
         assert_eq!(runs.counts, whole.counts);
         let mut expected = Vec::new();
-        csv_out::write_csv(&whole, &mut expected).unwrap();
+        {
+            let mut w = csv::Writer::from_writer(&mut expected);
+            w.write_record(csv_out::header_of(paths.len(), matching))
+                .unwrap();
+            for t in &every {
+                w.write_record(csv_out::record_of(matching, 1.0, t))
+                    .unwrap();
+            }
+        }
         assert_eq!(
             String::from_utf8(text).unwrap(),
             String::from_utf8(expected).unwrap()
         );
         runs
+    }
+
+    /// Beyond [`crate::summary::KEEP_ALL`] locations (where only the capped lists are kept),
+    /// on one thread and on several: the tracks, counts and compare.csv of the whole
+    /// comparison (an independent in-memory join).
+    #[test]
+    fn beyond_keep_all_as_the_whole_comparison_on_any_threads() {
+        let dir = tempfile::tempdir().unwrap();
+        let n = crate::summary::KEEP_ALL + 700;
+        let zone = |m: f64| if m <= 0.0 { "failed" } else { "safe" };
+        let a: Vec<_> = (0..n)
+            .map(|i| {
+                let m = (i * 37 % 50) as f64 - 5.0;
+                (format!("L{i}"), m, zone(m), (i % 50) as f64)
+            })
+            .collect();
+        let mut b: Vec<_> = a
+            .iter()
+            .filter(|r| !r.0.ends_with("17"))
+            .map(|r| {
+                let m = r.1 - if r.0.ends_with('3') { 4.0 } else { 0.0 };
+                (r.0.clone(), m, zone(m), r.3 + 0.1)
+            })
+            .collect();
+        b.rotate_left(n / 3);
+        let paths = [
+            points(dir.path(), "a.csv", &a),
+            points(dir.path(), "b.csv", &b),
+        ];
+        let pool = |threads| {
+            rayon::ThreadPoolBuilder::new()
+                .num_threads(threads)
+                .build()
+                .unwrap()
+        };
+        let (one, two) = (pool(1), pool(2));
+        for matching in [Matching::Id, Matching::Xy { within: 0.5 }] {
+            // On one thread against the whole; on two, the same again.
+            let runs = one.install(|| same_as_whole(&paths, matching));
+            assert!(runs.counts.tracks > crate::summary::KEEP_ALL);
+            let mut text = (Vec::new(), Vec::new());
+            let a = one.install(|| compare_files(&paths, matching, 1.0, Some(&mut text.0)));
+            let b = two.install(|| compare_files(&paths, matching, 1.0, Some(&mut text.1)));
+            let (a, b) = (a.unwrap(), b.unwrap());
+            assert_eq!((&a.tracks, &a.counts), (&b.tracks, &b.counts));
+            assert_eq!(text.0, text.1);
+        }
     }
 
     /// By position through three inputs, rows shuffled and moved: the tracks and compare.csv
