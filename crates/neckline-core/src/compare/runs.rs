@@ -149,11 +149,78 @@ fn split(path: &Path, parts: usize) -> Result<(super::TryoutStats, Vec<File>)> {
     Ok((stats, files))
 }
 
+/// A partition's compare.csv rows, in order, in a run file: each row its place in order
+/// (8 bytes), its length (4 bytes) and its text. `blocks` gives the offset in the file of the
+/// first row of each block of places met ([`block_of`]), in order; `len` the file's length.
+struct RowRun {
+    part: usize,
+    file: std::sync::Mutex<File>,
+    blocks: Vec<(u64, u64)>,
+    len: u64,
+}
+
+/// Writes a [`RowRun`].
+struct RowWriter {
+    out: BufWriter<File>,
+    blocks: Vec<(u64, u64)>,
+    len: u64,
+}
+
+impl RowWriter {
+    fn new() -> Result<Self> {
+        Ok(RowWriter {
+            out: BufWriter::with_capacity(1 << 16, temp()?),
+            blocks: Vec::new(),
+            len: 0,
+        })
+    }
+
+    /// Add the row `text` at place `order` (each later than the one before).
+    fn push(&mut self, order: Order, text: &[u8]) -> Result<()> {
+        if self
+            .blocks
+            .last()
+            .is_none_or(|&(k, _)| k != block_of(order))
+        {
+            self.blocks.push((block_of(order), self.len));
+        }
+        let head = [&order.to_le_bytes()[..], &(text.len() as u32).to_le_bytes()];
+        for part in head.into_iter().chain([text]) {
+            self.out.write_all(part).map_err(run_error)?;
+        }
+        self.len += 12 + text.len() as u64;
+        Ok(())
+    }
+
+    /// The run of partition `part`.
+    fn finish(self, part: usize) -> Result<RowRun> {
+        let f = self
+            .out
+            .into_inner()
+            .map_err(|e| run_error(e.into_error()))?;
+        Ok(RowRun {
+            part,
+            file: std::sync::Mutex::new(f),
+            blocks: self.blocks,
+            len: self.len,
+        })
+    }
+}
+
+/// Places in order per block of compare.csv rows merged at a time, as a power of two.
+const BLOCK_SHIFT: u32 = if cfg!(test) { 6 } else { 13 };
+
+/// The block of a place in order: places of one block are consecutive in order, and a later
+/// block holds only later places.
+fn block_of(order: Order) -> u64 {
+    order >> BLOCK_SHIFT
+}
+
 /// What one partition gives: its tally, its compare.csv rows in order, and the first id met
 /// twice in one input (tryout, line, error).
 struct Joined {
     tally: Tally,
-    rows: Vec<(usize, File)>,
+    rows: Vec<RowRun>,
     duplicate: Option<(usize, u64, Error)>,
 }
 
@@ -258,22 +325,17 @@ fn join(p: usize, inputs: Vec<File>, shape: &Shape, acc: &mut Joined) -> Result<
     }
     tracks.sort_by_key(|(o, _)| *o);
     let tally = &mut acc.tally;
-    let mut out = BufWriter::with_capacity(1 << 16, temp()?);
+    let mut out = RowWriter::new()?;
     let mut b = Vec::with_capacity(256);
     for (order, t) in &tracks {
         tally.fold(t, *order);
         if shape.csv {
             b.clear();
             csv_out::push_record(shape.matching, shape.tolerance, t, &mut b);
-            out.write_all(&order.to_le_bytes()).map_err(run_error)?;
-            out.write_all(&(b.len() as u32).to_le_bytes())
-                .map_err(run_error)?;
-            out.write_all(&b).map_err(run_error)?;
+            out.push(*order, &b)?;
         }
     }
-    let mut f = out.into_inner().map_err(|e| run_error(e.into_error()))?;
-    f.rewind().map_err(run_error)?;
-    acc.rows.push((p, f));
+    acc.rows.push(out.finish(p)?);
     acc.duplicate = earlier(acc.duplicate.take(), dup);
     Ok(())
 }
@@ -307,47 +369,119 @@ fn merge_joined(mut a: Joined, b: Joined) -> Joined {
     a
 }
 
-/// Merge the partitions' compare.csv rows by their place into `out`, after the header.
-fn merge_rows(mut rows: Vec<(usize, File)>, header: &[String], out: &mut dyn Write) -> Result<()> {
-    rows.sort_by_key(|(p, _)| *p);
+/// Merge the partitions' compare.csv rows by their place into `out`, after the header. The
+/// blocks of places ([`block_of`]) are merged on every core, a few at a time ahead of the one
+/// written; this thread writes them in order.
+fn merge_rows(mut rows: Vec<RowRun>, header: &[String], out: &mut dyn Write) -> Result<()> {
+    rows.sort_by_key(|r| r.part);
     let mut w = csv::Writer::from_writer(&mut *out);
     w.write_record(header)
         .map_err(|e| run_error(io::Error::other(e)))?;
     w.flush().map_err(run_error)?;
     drop(w);
-    let mut readers: Vec<BufReader<File>> = rows
-        .into_iter()
-        .map(|(_, f)| BufReader::with_capacity(1 << 16, f))
+    let mut blocks: Vec<u64> = rows
+        .iter()
+        .flat_map(|r| r.blocks.iter().map(|b| b.0))
         .collect();
-    let next = |r: &mut BufReader<File>| -> io::Result<Option<(Order, Vec<u8>)>> {
-        let mut head = [0u8; 12];
-        match r.read_exact(&mut head) {
-            Ok(()) => {}
-            Err(e) if e.kind() == io::ErrorKind::UnexpectedEof => return Ok(None),
-            Err(e) => return Err(e),
+    blocks.sort_unstable();
+    blocks.dedup();
+    let rows = &rows;
+    let ahead = 2 * rayon::current_num_threads().max(1);
+    let (tx, rx) = std::sync::mpsc::channel::<(usize, io::Result<Vec<u8>>)>();
+    rayon::in_place_scope(|s| {
+        let spawn = |i: usize| {
+            let tx = tx.clone();
+            let block = blocks[i];
+            s.spawn(move |_| {
+                // The receiver is gone only when writing failed: nothing is left to do.
+                let _ = tx.send((i, merge_block(rows, block)));
+            });
+        };
+        let mut spawned = blocks.len().min(ahead);
+        (0..spawned).for_each(spawn);
+        let mut ready: HashMap<usize, Vec<u8>> = HashMap::new();
+        for i in 0..blocks.len() {
+            let bytes = loop {
+                if let Some(b) = ready.remove(&i) {
+                    break b;
+                }
+                let (k, r) = wait(&rx);
+                ready.insert(k, r.map_err(run_error)?);
+            };
+            out.write_all(&bytes).map_err(run_error)?;
+            if spawned < blocks.len() {
+                spawn(spawned);
+                spawned += 1;
+            }
         }
-        let order = u64::from_le_bytes(head[..8].try_into().unwrap_or_default());
-        let len = u32::from_le_bytes(head[8..].try_into().unwrap_or_default()) as usize;
-        let mut bytes = vec![0u8; len];
-        r.read_exact(&mut bytes)?;
-        Ok(Some((order, bytes)))
+        Ok(())
+    })
+}
+
+/// The next merged block. Off the pool, this thread sleeps until one comes; on it, the worker
+/// runs other jobs meanwhile (the merges themselves, on a pool of one thread), so that a
+/// waiting worker can not stall the pool.
+fn wait<T>(rx: &std::sync::mpsc::Receiver<T>) -> T {
+    loop {
+        if let Ok(v) = rx.try_recv() {
+            return v;
+        }
+        match rayon::yield_now() {
+            Some(rayon::Yield::Executed) => {}
+            Some(rayon::Yield::Idle) => {
+                if let Ok(v) = rx.recv_timeout(std::time::Duration::from_micros(200)) {
+                    return v;
+                }
+            }
+            // Every block spawned sends once, and the sender of each is alive until it has.
+            None => return rx.recv().expect("a block in flight sends its rows"),
+        }
+    }
+}
+
+/// The rows of block `block` of every partition, merged by their place, without their heads.
+fn merge_block(rows: &[RowRun], block: u64) -> io::Result<Vec<u8>> {
+    let mut runs: Vec<Vec<u8>> = Vec::new();
+    for r in rows {
+        let Ok(k) = r.blocks.binary_search_by_key(&block, |b| b.0) else {
+            continue;
+        };
+        let (at, end) = (r.blocks[k].1, r.blocks.get(k + 1).map_or(r.len, |b| b.1));
+        let mut buf = vec![0u8; (end - at) as usize];
+        let mut f = r.file.lock().unwrap_or_else(|e| e.into_inner());
+        f.seek(io::SeekFrom::Start(at))?;
+        f.read_exact(&mut buf)?;
+        runs.push(buf);
+    }
+    let head = |run: &[u8], at: usize| -> io::Result<(Order, usize)> {
+        let h = run
+            .get(at..at + 12)
+            .ok_or_else(|| io::Error::from(io::ErrorKind::UnexpectedEof))?;
+        let order = u64::from_le_bytes(h[..8].try_into().unwrap_or_default());
+        let len = u32::from_le_bytes(h[8..].try_into().unwrap_or_default()) as usize;
+        Ok((order, len))
     };
+    let mut out = Vec::with_capacity(runs.iter().map(Vec::len).sum());
+    let mut at = vec![0usize; runs.len()];
     let mut heap = BinaryHeap::new();
-    let mut pending: Vec<Vec<u8>> = vec![Vec::new(); readers.len()];
-    for (i, r) in readers.iter_mut().enumerate() {
-        if let Some((o, b)) = next(r).map_err(run_error)? {
-            pending[i] = b;
-            heap.push(std::cmp::Reverse((o, i)));
+    for (i, run) in runs.iter().enumerate() {
+        if !run.is_empty() {
+            heap.push(std::cmp::Reverse((head(run, 0)?.0, i)));
         }
     }
     while let Some(std::cmp::Reverse((_, i))) = heap.pop() {
-        out.write_all(&pending[i]).map_err(run_error)?;
-        if let Some((o, b)) = next(&mut readers[i]).map_err(run_error)? {
-            pending[i] = b;
-            heap.push(std::cmp::Reverse((o, i)));
+        let (run, a) = (&runs[i], at[i]);
+        let len = head(run, a)?.1;
+        let text = run
+            .get(a + 12..a + 12 + len)
+            .ok_or_else(|| io::Error::from(io::ErrorKind::UnexpectedEof))?;
+        out.extend_from_slice(text);
+        at[i] = a + 12 + len;
+        if at[i] < run.len() {
+            heap.push(std::cmp::Reverse((head(run, at[i])?.0, i)));
         }
     }
-    Ok(())
+    Ok(out)
 }
 
 /// What the one read of an input gives when pairing by position: its stats, its rows (input 0:
@@ -884,6 +1018,57 @@ mod tests {
             let (a, b) = (a.unwrap(), b.unwrap());
             assert_eq!((&a.tracks, &a.counts), (&b.tracks, &b.counts));
             assert_eq!(text.0, text.1);
+        }
+    }
+
+    /// The rows of partitions merged by place, blocks on every core and written in order:
+    /// every row once, in order of place (checked against the rows sorted whole), on a pool
+    /// of one thread and of two; places sparse and dense, blocks shared or not.
+    #[test]
+    fn rows_merged_by_place_as_sorted_whole() {
+        let mut r = 0x2545f4914f6cdd1du64;
+        let mut next = |m: u64| {
+            r ^= r << 13;
+            r ^= r >> 7;
+            r ^= r << 17;
+            r % m
+        };
+        for (parts, rows, spread) in [(1, 50, 1), (3, 400, 1), (7, 900, 5), (5, 300, 1 << 12)] {
+            // Distinct places, each given to a partition at random.
+            let mut places: Vec<Order> = (0..rows).map(|i| i * spread + next(spread)).collect();
+            places.extend((0..rows / 10).map(|i| order_of(1, i * 3)));
+            let mut by_part: Vec<Vec<Order>> = vec![Vec::new(); parts];
+            for &o in &places {
+                by_part[next(parts as u64) as usize].push(o);
+            }
+            let text = |o: Order| format!("row {o},{}\n", "x".repeat((o % 17) as usize));
+            let mut expected = String::from("h1,h2\n");
+            for &o in &places {
+                expected.push_str(&text(o));
+            }
+            for threads in [1, 2] {
+                let pool = rayon::ThreadPoolBuilder::new()
+                    .num_threads(threads)
+                    .build()
+                    .unwrap();
+                let runs: Vec<RowRun> = by_part
+                    .iter()
+                    .enumerate()
+                    .rev()
+                    .map(|(p, os)| {
+                        let mut w = RowWriter::new().unwrap();
+                        for &o in os {
+                            w.push(o, text(o).as_bytes()).unwrap();
+                        }
+                        w.finish(p).unwrap()
+                    })
+                    .collect();
+                let mut out = Vec::new();
+                let header = ["h1".to_string(), "h2".to_string()];
+                pool.install(|| merge_rows(runs, &header, &mut out))
+                    .unwrap();
+                assert_eq!(String::from_utf8(out).unwrap(), expected);
+            }
         }
     }
 
