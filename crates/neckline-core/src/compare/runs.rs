@@ -660,12 +660,18 @@ fn split_by_position(
     let paired: Vec<Result<Vec<u32>>> = (1..read.len())
         .into_par_iter()
         .map(|k| {
-            let mut partners = vec![NONE; read[k].count];
-            let before = read[k - 1].positions.iter().map_err(run_error)?;
-            let after = read[k].positions.iter().map_err(run_error)?;
-            sweep::sweep(before, after, within, |b, a, _| partners[a as usize] = b)
-                .map_err(run_error)?;
-            Ok(partners)
+            use std::sync::atomic::{AtomicU32, Ordering::Relaxed};
+            let partners: Vec<AtomicU32> =
+                (0..read[k].count).map(|_| AtomicU32::new(NONE)).collect();
+            // Bands of cell rows on every core: each row of the later input is paired in one
+            // band at most, and read once all bands are done.
+            let bands = 4 * rayon::current_num_threads().max(1);
+            let (before, after) = (&read[k - 1].positions, &read[k].positions);
+            sweep::sweep_bands(before, after, within, bands, |b, a, _| {
+                partners[a as usize].store(b, Relaxed)
+            })
+            .map_err(run_error)?;
+            Ok(partners.into_iter().map(AtomicU32::into_inner).collect())
         })
         .collect();
     let mut partners = vec![Vec::new()];
