@@ -152,24 +152,35 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
         }
         None => None,
     };
-    // Each input's SHA-256 (when its summary records it) on its own thread while the inputs
-    // are compared, read once: the record reuses them. A pair refused for its SHA-256 is
-    // reported before any error of the comparison.
-    let (digests, compared) = std::thread::scope(|s| {
-        let runs: Vec<_> = args
+    // Each input's SHA-256 is taken as the comparison reads it (once), and checked against
+    // the one its summary records, if any. A pair refused for its SHA-256 is reported before
+    // any error of the comparison: the inputs are then hashed on their own.
+    let recorded: Vec<Option<String>> = args
+        .inputs
+        .iter()
+        .map(|p| super::outputs::recorded_sha256(p))
+        .collect();
+    let compared = compare_all(args, how, set);
+    let digests = match &compared {
+        Ok((_, _, _, found)) => args
             .inputs
             .iter()
-            .map(|p| s.spawn(move || super::outputs::check_recorded_points(p)))
-            .collect();
-        let compared = compare_all(args, how, set);
-        let digests = runs
-            .into_iter()
-            .map(|h| h.join().unwrap_or(Ok(None)))
-            .collect::<Result<Vec<Option<String>>>>();
-        (digests, compared)
-    });
+            .zip(&recorded)
+            .zip(found)
+            .map(|((p, r), f)| match r {
+                Some(_) if p.as_os_str() == "-" => super::outputs::check_recorded_points(p),
+                Some(r) => super::outputs::check_sha256(p, r, f.clone()).map(Some),
+                None => Ok(None),
+            })
+            .collect::<Result<Vec<Option<String>>>>(),
+        Err(_) => args
+            .inputs
+            .iter()
+            .map(|p| super::outputs::check_recorded_points(p))
+            .collect(),
+    };
     let digests = digests?;
-    let (job, c, set) = compared?;
+    let (job, c, set, _) = compared?;
     for w in &c.warnings {
         eprint!("{}", paragraph(&format!("warning: {w}")));
     }
@@ -199,11 +210,13 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
     Ok(gate(&c, args.fail_on))
 }
 
-/// The review's job file (when given) and the comparison, compare.csv staged in `set`.
+/// The review's job file (when given), the comparison, compare.csv staged in `set`, and the
+/// SHA-256 of each input as read.
 type Compared = (
     Option<(neckline_core::job::Job, PathBuf)>,
     Comparison,
     Option<OutputSet>,
+    Vec<String>,
 );
 
 fn compare_all(args: &CompareArgs, how: Matching, set: Option<OutputSet>) -> Result<Compared> {
@@ -214,14 +227,14 @@ fn compare_all(args: &CompareArgs, how: Matching, set: Option<OutputSet>) -> Res
         .transpose()?;
     match (set, &args.out) {
         (Some(mut set), Some(out)) => {
-            let c = compare_into(args, how, &mut set, &out.join("compare.csv"))?;
-            Ok((job, c, Some(set)))
+            let (c, digests) = compare_into(args, how, &mut set, &out.join("compare.csv"))?;
+            Ok((job, c, Some(set), digests))
         }
-        _ => Ok((
-            job,
-            compare::compare_files(&args.inputs, how, args.tolerance, None)?,
-            None,
-        )),
+        _ => {
+            let (c, digests) =
+                compare::compare_files_digested(&args.inputs, how, args.tolerance, None)?;
+            Ok((job, c, None, digests))
+        }
     }
 }
 
@@ -232,13 +245,13 @@ fn compare_into(
     how: Matching,
     set: &mut OutputSet,
     target: &Path,
-) -> Result<Comparison> {
+) -> Result<(Comparison, Vec<String>)> {
     let mut staged = set.create(target)?;
     let c = if args.decimal_comma {
         use std::io::Seek;
         let temp = compare::runs::temp()?;
         let mut w = std::io::BufWriter::with_capacity(1 << 16, temp);
-        let c = compare::compare_files(&args.inputs, how, args.tolerance, Some(&mut w))?;
+        let c = compare::compare_files_digested(&args.inputs, how, args.tolerance, Some(&mut w))?;
         let mut temp = w
             .into_inner()
             .map_err(|e| Error::io(target, e.into_error()))?;
@@ -248,7 +261,7 @@ fn compare_into(
             .map_err(|e| Error::io(target, e))?;
         c
     } else {
-        compare::compare_files(&args.inputs, how, args.tolerance, Some(&mut staged))?
+        compare::compare_files_digested(&args.inputs, how, args.tolerance, Some(&mut staged))?
     };
     staged.finish()?;
     Ok(c)

@@ -127,15 +127,17 @@ fn decode(r: &mut impl Read) -> io::Result<Option<RunRow>> {
     }))
 }
 
-/// Read `path` into `parts` run files by a hash of each row's id; its stats.
-fn split(path: &Path, parts: usize) -> Result<(super::TryoutStats, Vec<File>)> {
+/// Read `path` into `parts` run files by a hash of each row's id; its stats and the SHA-256 of
+/// its bytes.
+fn split(path: &Path, parts: usize) -> Result<(super::TryoutStats, Vec<File>, String)> {
     let mut files: Vec<BufWriter<File>> = (0..parts)
         .map(|_| temp().map(|f| BufWriter::with_capacity(1 << 15, f)))
         .collect::<Result<_>>()?;
     let mut stats = super::TryoutStats::default();
     let mut buf = Vec::with_capacity(256);
     let mut index = 0u64;
-    for_each_row(open_input(path)?, path, |line, r| {
+    let (input, digest) = crate::text::open(path)?;
+    for_each_row(input, path, |line, r| {
         stats.fold(&r);
         encode(&mut buf, index, line, 0, &r);
         files[partition(hash_of(r.id.as_bytes()), parts)]
@@ -146,7 +148,7 @@ fn split(path: &Path, parts: usize) -> Result<(super::TryoutStats, Vec<File>)> {
     })?;
     stats.finish();
     let files = files.into_iter().map(rewound).collect::<Result<_>>()?;
-    Ok((stats, files))
+    Ok((stats, files, digest.hex()))
 }
 
 /// A partition's compare.csv rows, in order, in a run file: each row its place in order
@@ -492,6 +494,8 @@ struct ReadOnce {
     rows: Vec<File>,
     positions: sweep::SortedPositions,
     count: usize,
+    /// The SHA-256 of its bytes.
+    digest: String,
 }
 
 /// A hash of an id for the check that none is met twice (SipHash with fixed keys; two ids of
@@ -519,7 +523,8 @@ fn read_placed(path: &Path, k: usize, parts: usize, within: f64) -> Result<ReadO
     let mut buf = Vec::with_capacity(256);
     let mut index = 0u64;
     let loc = Location::file(path);
-    let read = for_each_row(open_input(path)?, path, |line, r| {
+    let (input, digest) = crate::text::open(path)?;
+    let read = for_each_row(input, path, |line, r| {
         let Ok(i) = u32::try_from(index) else {
             return Err(Error::input(
                 loc.clone().at_line(line),
@@ -554,6 +559,7 @@ fn read_placed(path: &Path, k: usize, parts: usize, within: f64) -> Result<ReadO
         rows: files.into_iter().map(rewound).collect::<Result<_>>()?,
         positions: sorter.finish().map_err(run_error)?,
         count: index as usize,
+        digest: digest.hex(),
     })
 }
 
@@ -649,7 +655,7 @@ fn split_by_position(
     paths: &[PathBuf],
     parts: usize,
     within: f64,
-) -> Result<(Vec<super::TryoutStats>, Vec<Vec<File>>)> {
+) -> Result<(Vec<super::TryoutStats>, Vec<Vec<File>>, Vec<String>)> {
     let read: Vec<Result<ReadOnce>> = paths
         .par_iter()
         .enumerate()
@@ -680,9 +686,11 @@ fn split_by_position(
     }
     let mut stats = Vec::with_capacity(read.len());
     let mut runs = Vec::with_capacity(read.len());
+    let mut digests = Vec::with_capacity(read.len());
     for r in read {
         stats.push(r.stats);
         runs.push(r.rows);
+        digests.push(r.digest);
     }
     let routed: Vec<Result<Vec<File>>> = runs
         .into_par_iter()
@@ -700,7 +708,7 @@ fn split_by_position(
         })
         .collect();
     let files = routed.into_iter().collect::<Result<_>>()?;
-    Ok((stats, files))
+    Ok((stats, files, digests))
 }
 
 /// The first fault in file order, given `fault`, the first of input `k` (the first input
@@ -794,6 +802,17 @@ pub fn compare_files(
     tolerance: f64,
     csv: Option<&mut dyn Write>,
 ) -> Result<Comparison> {
+    compare_files_digested(paths, matching, tolerance, csv).map(|(c, _)| c)
+}
+
+/// As [`compare_files`], with the SHA-256 of each input's bytes as read (lower-case
+/// hexadecimal, in input order): each input is read once, for both.
+pub fn compare_files_digested(
+    paths: &[PathBuf],
+    matching: Matching,
+    tolerance: f64,
+    csv: Option<&mut dyn Write>,
+) -> Result<(Comparison, Vec<String>)> {
     if paths.len() < 2 {
         return Err(Error::Usage("compare needs at least two results".into()));
     }
@@ -809,23 +828,26 @@ pub fn compare_files(
         .sum();
     let parts = (bytes / PARTITION_BYTES).clamp(1, MAX_PARTITIONS) as usize;
     let mut files: Vec<Vec<File>> = Vec::new();
+    let mut digests = Vec::with_capacity(paths.len());
     match matching {
         Matching::Xy { within } => {
-            let (stats, f) = split_by_position(paths, parts, within)?;
+            let (stats, f, d) = split_by_position(paths, parts, within)?;
             for (t, s) in tryouts.iter_mut().zip(stats) {
                 t.stats = s;
             }
             files = f;
+            digests = d;
         }
         Matching::Id => {
             let split: Vec<Result<_>> = paths.par_iter().map(|p| split(p, parts)).collect();
             for (k, (t, r)) in tryouts.iter_mut().zip(split).enumerate() {
-                let (stats, f) = match r {
+                let (stats, f, d) = match r {
                     Ok(r) => r,
                     Err(e) => return Err(earliest_fault(paths, k, e, matching, parts)),
                 };
                 t.stats = stats;
                 files.push(f);
+                digests.push(d);
             }
         }
     }
@@ -880,7 +902,7 @@ pub fn compare_files(
     if let Some(out) = csv {
         merge_rows(joined.rows, &csv_out::header_of(paths.len(), matching), out)?;
     }
-    finish(tryouts, joined.tally, matching, tolerance)
+    Ok((finish(tryouts, joined.tally, matching, tolerance)?, digests))
 }
 
 #[cfg(test)]
