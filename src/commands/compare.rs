@@ -267,28 +267,43 @@ fn compare_into(
     Ok(c)
 }
 
-/// Render every other file of the pack in memory, stage each in `set`, then move them in
-/// together with compare.csv (a failure leaves the folder as it was).
+/// Render every other file of the pack in memory (on every core at once), stage each in `set`,
+/// then move them in together with compare.csv (a failure leaves the folder as it was).
 fn write_pack(c: &Comparison, rec: &Record, mut set: OutputSet, out: &Path) -> Result<Committed> {
-    let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
     let target = |name: &str| out.join(name);
     let render = |name: &str, e: std::io::Error| Error::io(&target(name), e);
-    let mut json = Vec::new();
-    json_out::write_json(c, &mut json).map_err(|e| render("compare.json", e))?;
-    files.push((target("compare.json"), json));
-    let svg = fld::fld_svg(c).map_err(|e| render("compare-fld.svg", e))?;
-    files.push((target("compare-fld.svg"), svg.into_bytes()));
-    let png = fld::fld_png(c).map_err(|e| render("compare-fld.png", e))?;
-    files.push((target("compare-fld.png"), png));
-    if let Some(svg) = map::map_svg(c).map_err(|e| render("compare-map.svg", e))? {
+    let json = || -> Result<Vec<u8>> {
+        let mut json = Vec::new();
+        json_out::write_json(c, &mut json).map_err(|e| render("compare.json", e))?;
+        Ok(json)
+    };
+    let fld_svg = || fld::fld_svg(c).map_err(|e| render("compare-fld.svg", e));
+    let fld_png = || fld::fld_png(c).map_err(|e| render("compare-fld.png", e));
+    let map_svg = || map::map_svg(c).map_err(|e| render("compare-map.svg", e));
+    let map_png = || map::map_png(c).map_err(|e| render("compare-map.png", e));
+    let html = || page::page_html_with(c, Some(rec)).map_err(|e| render("compare.html", e));
+    let review = || neckline_render::review::compare_review_html(c);
+    let ((json, (fld_svg, fld_png)), ((map_svg, map_png), (html, review))) = rayon::join(
+        || rayon::join(json, || rayon::join(fld_svg, fld_png)),
+        || {
+            rayon::join(
+                || rayon::join(map_svg, map_png),
+                || rayon::join(html, review),
+            )
+        },
+    );
+    let mut files: Vec<(PathBuf, Vec<u8>)> = vec![
+        (target("compare.json"), json?),
+        (target("compare-fld.svg"), fld_svg?.into_bytes()),
+        (target("compare-fld.png"), fld_png?),
+    ];
+    if let Some(svg) = map_svg? {
         files.push((target("compare-map.svg"), svg.into_bytes()));
     }
-    if let Some(png) = map::map_png(c).map_err(|e| render("compare-map.png", e))? {
+    if let Some(png) = map_png? {
         files.push((target("compare-map.png"), png));
     }
-    let html = page::page_html_with(c, Some(rec)).map_err(|e| render("compare.html", e))?;
-    files.push((target("compare.html"), html.into_bytes()));
-    let review = neckline_render::review::compare_review_html(c);
+    files.push((target("compare.html"), html?.into_bytes()));
     files.push((target("compare-review.html"), review.into_bytes()));
     for (p, bytes) in files {
         set.write(&p, &bytes)?;
