@@ -648,14 +648,13 @@ fn route(run: File, k: usize, partners: &[Vec<u32>], parts: usize) -> Result<Vec
     files.into_iter().map(rewound).collect()
 }
 
+/// Each input's stats, its rows in partitions, and the SHA-256 of its bytes.
+type Split = (Vec<super::TryoutStats>, Vec<Vec<File>>, Vec<String>);
+
 /// By position: read every input once (on every core), pair each with the one before it on
 /// its positions sorted by cell ([`sweep`]), route the later inputs' rows to their tracks'
-/// partitions. Each input's stats and partitions.
-fn split_by_position(
-    paths: &[PathBuf],
-    parts: usize,
-    within: f64,
-) -> Result<(Vec<super::TryoutStats>, Vec<Vec<File>>, Vec<String>)> {
+/// partitions. Each input's stats, partitions and SHA-256.
+fn split_by_position(paths: &[PathBuf], parts: usize, within: f64) -> Result<Split> {
     let read: Vec<Result<ReadOnce>> = paths
         .par_iter()
         .enumerate()

@@ -533,7 +533,7 @@ pub fn sweep_bands(
         .try_for_each(|(from, to)| {
             let b = before.rows_in(from, to)?;
             let a = after.rows_in(from, to)?;
-            sweep(b, a, within, |i, j, d| out(i, j, d))
+            sweep(b, a, within, &out)
         })
 }
 
