@@ -387,8 +387,15 @@ fn merge_rows(mut rows: Vec<RowRun>, header: &[String], out: &mut dyn Write) -> 
         .collect();
     blocks.sort_unstable();
     blocks.dedup();
-    let rows = &rows;
     let ahead = 2 * rayon::current_num_threads().max(1);
+    let written = merge_blocks(&rows, &blocks, ahead, out);
+    // The run files are closed (their pages freed) on the pool, off this thread.
+    rayon::spawn(move || drop(rows));
+    written
+}
+
+/// Merge `blocks` of `rows`, `ahead` at a time on the pool, and write them in order to `out`.
+fn merge_blocks(rows: &[RowRun], blocks: &[u64], ahead: usize, out: &mut dyn Write) -> Result<()> {
     let (tx, rx) = std::sync::mpsc::channel::<(usize, io::Result<Vec<u8>>)>();
     rayon::in_place_scope(|s| {
         let spawn = |i: usize| {
