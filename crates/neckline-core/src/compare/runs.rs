@@ -257,14 +257,16 @@ impl Joined {
 
 /// Join partition `p` (its run files of every input) into `acc`: its tracks folded into the
 /// tally, their compare.csv rows in order into a run file of their own.
-fn join(p: usize, inputs: Vec<File>, shape: &Shape, acc: &mut Joined) -> Result<()> {
-    let n = inputs.len();
+fn join(p: usize, inputs: Vec<(usize, File)>, shape: &Shape, acc: &mut Joined) -> Result<()> {
+    let n = shape.paths.len();
     // Tracks by a hash of their key; two keys of one hash (rare) go to `clashes`.
     let mut index: HashMap<u64, usize, rustc_hash::FxBuildHasher> = HashMap::default();
     let mut clashes: HashMap<Vec<u8>, usize> = HashMap::new();
     let mut tracks: Vec<(Order, Track)> = Vec::new();
     let mut dup: Option<(usize, u64, Error)> = None;
-    for (k, f) in inputs.into_iter().enumerate() {
+    // The files of one input are together, the inputs in order (an id's track takes its place
+    // from the first input that has it).
+    for (k, f) in inputs {
         let mut r = BufReader::with_capacity(1 << 16, f);
         while let Some(row) = decode(&mut r).map_err(run_error)? {
             let order = match shape.matching {
@@ -499,6 +501,9 @@ fn merge_block(rows: &[RowRun], block: u64) -> io::Result<Vec<u8>> {
 struct ReadOnce {
     stats: super::TryoutStats,
     rows: Vec<File>,
+    /// A later input's run: the offset of every [`SEGMENT`]th row, and its length.
+    segments: Vec<u64>,
+    written: u64,
     positions: sweep::SortedPositions,
     count: usize,
     /// The SHA-256 of its bytes.
@@ -529,6 +534,7 @@ fn read_placed(path: &Path, k: usize, parts: usize, within: f64) -> Result<ReadO
     let mut stats = super::TryoutStats::default();
     let mut buf = Vec::with_capacity(256);
     let mut index = 0u64;
+    let (mut segments, mut written) = (Vec::new(), 0u64);
     let loc = Location::file(path);
     let (input, digest) = crate::text::open(path)?;
     let read = for_each_row(input, path, |line, r| {
@@ -552,6 +558,10 @@ fn read_placed(path: &Path, k: usize, parts: usize, within: f64) -> Result<ReadO
         let f = if k == 0 {
             partition(hash_of(track), parts)
         } else {
+            if index.is_multiple_of(SEGMENT) {
+                segments.push(written);
+            }
+            written += buf.len() as u64;
             0
         };
         files[f].write_all(&buf).map_err(run_error)?;
@@ -564,6 +574,8 @@ fn read_placed(path: &Path, k: usize, parts: usize, within: f64) -> Result<ReadO
     Ok(ReadOnce {
         stats,
         rows: files.into_iter().map(rewound).collect::<Result<_>>()?,
+        segments,
+        written,
         positions: sorter.finish().map_err(run_error)?,
         count: index as usize,
         digest: digest.hex(),
@@ -627,12 +639,75 @@ fn track_of(partners: &[Vec<u32>], mut k: usize, mut i: u64) -> Order {
     order_of(k, i)
 }
 
-/// Route the rows of input `k` (one run in row order) into `parts` partitions by their track.
-fn route(run: File, k: usize, partners: &[Vec<u32>], parts: usize) -> Result<Vec<File>> {
+/// Rows of a later input's run per segment, routed on one core: its segments are shared out
+/// among the cores.
+const SEGMENT: u64 = if cfg!(test) { 16 } else { 1 << 16 };
+
+/// Bytes `at..end` of a file shared by several readers (each read seeks under the lock).
+struct Slice<'a> {
+    file: &'a std::sync::Mutex<File>,
+    at: u64,
+    end: u64,
+}
+
+impl Read for Slice<'_> {
+    fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
+        let want = (self.end - self.at).min(buf.len() as u64) as usize;
+        if want == 0 {
+            return Ok(0);
+        }
+        let mut f = self.file.lock().unwrap_or_else(|e| e.into_inner());
+        f.seek(io::SeekFrom::Start(self.at))?;
+        let n = f.read(&mut buf[..want])?;
+        self.at += n as u64;
+        Ok(n)
+    }
+}
+
+/// Route the rows of input `k` (one run in row order, `segments` the offsets of its segments,
+/// `len` its length) into `parts` partitions by their track, the segments shared out in
+/// contiguous groups among the cores: the partitions of each group.
+fn route(
+    run: File,
+    segments: &[u64],
+    len: u64,
+    k: usize,
+    partners: &[Vec<u32>],
+    parts: usize,
+) -> Result<Vec<Vec<File>>> {
+    let groups = rayon::current_num_threads().clamp(1, segments.len().max(1));
+    let run = std::sync::Mutex::new(run);
+    let bound = |g: usize| -> u64 {
+        segments
+            .get(g * segments.len() / groups)
+            .copied()
+            .unwrap_or(len)
+    };
+    (0..groups)
+        .into_par_iter()
+        .with_max_len(1)
+        .map(|g| {
+            let slice = Slice {
+                file: &run,
+                at: bound(g),
+                end: if g + 1 == groups { len } else { bound(g + 1) },
+            };
+            route_slice(slice, k, partners, parts)
+        })
+        .collect()
+}
+
+/// Route the rows of `slice` (of input `k`'s run) into `parts` partitions by their track.
+fn route_slice(
+    slice: Slice<'_>,
+    k: usize,
+    partners: &[Vec<u32>],
+    parts: usize,
+) -> Result<Vec<File>> {
     let mut files: Vec<BufWriter<File>> = (0..parts)
         .map(|_| temp().map(|f| BufWriter::with_capacity(1 << 15, f)))
         .collect::<Result<_>>()?;
-    let mut r = BufReader::with_capacity(1 << 16, run);
+    let mut r = BufReader::with_capacity(1 << 16, slice);
     let mut rec = Vec::with_capacity(256);
     loop {
         rec.resize(36, 0);
@@ -655,8 +730,13 @@ fn route(run: File, k: usize, partners: &[Vec<u32>], parts: usize) -> Result<Vec
     files.into_iter().map(rewound).collect()
 }
 
-/// Each input's stats, its rows in partitions, and the SHA-256 of its bytes.
-type Split = (Vec<super::TryoutStats>, Vec<Vec<File>>, Vec<String>);
+/// Each input's stats, the sources of rows (an input, and rows of it in partitions; the
+/// inputs in order), and each input's SHA-256.
+type Split = (
+    Vec<super::TryoutStats>,
+    Vec<(usize, Vec<File>)>,
+    Vec<String>,
+);
 
 /// By position: read every input once (on every core), pair each with the one before it on
 /// its positions sorted by cell ([`sweep`]), route the later inputs' rows to their tracks'
@@ -695,25 +775,30 @@ fn split_by_position(paths: &[PathBuf], parts: usize, within: f64) -> Result<Spl
     let mut digests = Vec::with_capacity(read.len());
     for r in read {
         stats.push(r.stats);
-        runs.push(r.rows);
+        runs.push((r.rows, r.segments, r.written));
         digests.push(r.digest);
     }
-    let routed: Vec<Result<Vec<File>>> = runs
+    let routed: Vec<Result<Vec<Vec<File>>>> = runs
         .into_par_iter()
         .enumerate()
-        .map(|(k, rows)| match k {
-            0 => Ok(rows),
+        .map(|(k, (rows, segments, len))| match k {
+            0 => Ok(vec![rows]),
             _ => route(
                 rows.into_iter()
                     .next()
                     .ok_or_else(|| run_error(io::ErrorKind::NotFound.into()))?,
+                &segments,
+                len,
                 k,
                 &partners,
                 parts,
             ),
         })
         .collect();
-    let files = routed.into_iter().collect::<Result<_>>()?;
+    let mut files = Vec::new();
+    for (k, r) in routed.into_iter().enumerate() {
+        files.extend(r?.into_iter().map(|f| (k, f)));
+    }
     Ok((stats, files, digests))
 }
 
@@ -833,7 +918,8 @@ pub fn compare_files_digested(
         .map(|p| std::fs::metadata(p).map_or(0, |m| m.len()))
         .sum();
     let parts = (bytes / PARTITION_BYTES).clamp(1, MAX_PARTITIONS) as usize;
-    let mut files: Vec<Vec<File>> = Vec::new();
+    // Each source of rows: its input, and its rows in `parts` partitions.
+    let mut files: Vec<(usize, Vec<File>)> = Vec::new();
     let mut digests = Vec::with_capacity(paths.len());
     match matching {
         Matching::Xy { within } => {
@@ -852,7 +938,7 @@ pub fn compare_files_digested(
                     Err(e) => return Err(earliest_fault(paths, k, e, matching, parts)),
                 };
                 t.stats = stats;
-                files.push(f);
+                files.push((k, f));
                 digests.push(d);
             }
         }
@@ -868,10 +954,10 @@ pub fn compare_files_digested(
             .iter()
             .any(|t| t.stats.locations > crate::summary::KEEP_ALL),
     };
-    let mut by_part: Vec<Vec<File>> = (0..parts).map(|_| Vec::new()).collect();
-    for input in files {
+    let mut by_part: Vec<Vec<(usize, File)>> = (0..parts).map(|_| Vec::new()).collect();
+    for (k, input) in files {
         for (p, f) in input.into_iter().enumerate() {
-            by_part[p].push(f);
+            by_part[p].push((k, f));
         }
     }
     // Each thread takes the next partition left and folds it into one running result of its
