@@ -3,12 +3,16 @@
 //! 1. Each input is read as a stream (the inputs on every core at once): each row is folded
 //!    into its tryout's [`TryoutStats`](super::read::TryoutStats) and appended to one of `P` anonymous temporary run
 //!    files, chosen by a hash of its id (by id) or of its track (by position).
-//! 2. The partitions are joined on every core: a partition's rows of all inputs are read back,
-//!    joined into tracks (an id met twice in one input is refused there), and each track is
-//!    folded into a partial [`Tally`] and written as its compare.csv row, with its place in
-//!    the first file's order, to another run file, in that order.
-//! 3. The partial tallies merge into one; the partitions' rows are merged by their place into
-//!    compare.csv.
+//! 2. The partitions are joined on every core, each thread folding those it takes into one
+//!    partial [`Tally`] of its own: a partition's rows of all inputs are read back, joined into
+//!    tracks (an id met twice in one input is refused there), and each track is folded into
+//!    the tally and written as its compare.csv row, with its place in the first file's order,
+//!    to another run file, in that order.
+//! 3. The threads' tallies merge into one; the partitions' rows are merged by their place into
+//!    compare.csv, block by block of places on every core, written in order by the caller's
+//!    thread.
+//!
+//! Each input's SHA-256 is taken as it is read ([`compare_files_digested`]).
 //!
 //! By position, each input is still read once (on every core at once), and then its tracks are
 //! found: each row goes to one run file in row order (input 0's straight to the partition of
@@ -17,13 +21,15 @@
 //! send the file to be read again for its ids themselves, so a duplicate is refused at its
 //! line). Each input is paired with the one before it by a sweep over the merged chunks
 //! ([`super::sweep`]: greedy closest-first, the pairs of [`super::pairing::pair`]), which gives
-//! each row of the later input its partner (4 bytes a row); the later inputs' rows are then
-//! routed from their runs to the partitions of their tracks, and joined as by id.
+//! each row of the later input its partner (4 bytes a row), in bands of cell rows on every
+//! core ([`sweep::sweep_bands`]); the later inputs' rows are then routed from their runs to
+//! the partitions of their tracks, their segments shared out among the cores, and joined as by
+//! id.
 //!
 //! What stays in memory: a partition being joined (two on two cores), the capped lists and the
-//! densities; by position also a chunk of positions being sorted, the sweep's last two rows of
-//! cells with the locations still waiting on them, and the partner of every row of each later
-//! input. The run files are anonymous temporary files: the system removes them however the
+//! densities of each thread, and a few blocks of compare.csv rows being merged; by position
+//! also a chunk of positions being sorted, each band's last two rows of cells with the
+//! locations still waiting on them, and the partner of every row of each later input. The run files are anonymous temporary files: the system removes them however the
 //! run ends.
 
 use super::read::{duplicate, for_each_row, tryout_of, unique_labels, ReadRow};
