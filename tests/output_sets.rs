@@ -181,6 +181,47 @@ fn summary_records_its_points_and_compare_refuses_a_pair_that_does_not_match() {
     assert!(r.stderr.contains("different runs"), "{r}");
 }
 
+/// The SHA-256 that compare checks and records is that of each table's bytes (computed
+/// here on its own), by id and by position; a table that does not match its summary is refused
+/// before any fault of the comparison itself (here an id met twice).
+#[test]
+fn compare_records_each_tables_sha256_and_refuses_a_mismatch_first() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    check_demo(d, 1, &["--out", "a", "--format", "csv,json"]).ok();
+    check_demo(d, 2, &["--out", "b", "--format", "csv,json"]).ok();
+    let (a, b) = (
+        sha256(&d.join("a/points.csv")),
+        sha256(&d.join("b/points.csv")),
+    );
+    for how in [&["--match", "id"][..], &["--match", "xy", "--within", "5"]] {
+        let mut args = vec!["compare", "a/points.csv", "b/points.csv", "--out", "pack"];
+        args.extend_from_slice(how);
+        run_in(d, &args).ok();
+        let page = std::fs::read_to_string(d.join("pack/compare.html")).unwrap();
+        assert!(page.contains(&a) && page.contains(&b), "{how:?}");
+    }
+    // b's points, with a row repeated, beside a's summary.
+    let mut text = std::fs::read_to_string(d.join("b/points.csv")).unwrap();
+    let row = text.lines().nth(3).unwrap().to_string();
+    text.push_str(&row);
+    text.push('\n');
+    std::fs::write(d.join("a/points.csv"), &text).unwrap();
+    for how in [&["--match", "id"][..], &["--match", "xy", "--within", "5"]] {
+        let mut args = vec!["compare", "a/points.csv", "b/points.csv"];
+        args.extend_from_slice(how);
+        let r = run_in(d, &args).expect(2);
+        assert!(r.stderr.contains("different runs"), "{how:?} {r}");
+        assert!(!r.stderr.contains("duplicate"), "{how:?} {r}");
+    }
+    // Its summary recording no table: the repeat is the error.
+    let mut summary = read_json(&d.join("a/summary.json"));
+    summary["points_file"] = serde_json::Value::Null;
+    std::fs::write(d.join("a/summary.json"), summary.to_string()).unwrap();
+    let r = run_in(d, &["compare", "a/points.csv", "b/points.csv"]).expect(2);
+    assert!(r.stderr.contains("duplicate id"), "{r}");
+}
+
 #[test]
 fn decimal_comma_points_are_recorded_as_written() {
     let dir = tempfile::tempdir().unwrap();

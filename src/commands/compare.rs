@@ -152,24 +152,35 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
         }
         None => None,
     };
-    // Each input's SHA-256 (when its summary records it) on its own thread while the inputs
-    // are compared, read once: the record reuses them. A pair refused for its SHA-256 is
-    // reported before any error of the comparison.
-    let (digests, compared) = std::thread::scope(|s| {
-        let runs: Vec<_> = args
+    // Each input's SHA-256 is taken as the comparison reads it (once), and checked against
+    // the one its summary records, if any. A pair refused for its SHA-256 is reported before
+    // any error of the comparison: the inputs are then hashed on their own.
+    let recorded: Vec<Option<String>> = args
+        .inputs
+        .iter()
+        .map(|p| super::outputs::recorded_sha256(p))
+        .collect();
+    let compared = compare_all(args, how, set);
+    let digests = match &compared {
+        Ok((_, _, _, found)) => args
             .inputs
             .iter()
-            .map(|p| s.spawn(move || super::outputs::check_recorded_points(p)))
-            .collect();
-        let compared = compare_all(args, how, set);
-        let digests = runs
-            .into_iter()
-            .map(|h| h.join().unwrap_or(Ok(None)))
-            .collect::<Result<Vec<Option<String>>>>();
-        (digests, compared)
-    });
+            .zip(&recorded)
+            .zip(found)
+            .map(|((p, r), f)| match r {
+                Some(_) if p.as_os_str() == "-" => super::outputs::check_recorded_points(p),
+                Some(r) => super::outputs::check_sha256(p, r, f.clone()).map(Some),
+                None => Ok(None),
+            })
+            .collect::<Result<Vec<Option<String>>>>(),
+        Err(_) => args
+            .inputs
+            .iter()
+            .map(|p| super::outputs::check_recorded_points(p))
+            .collect(),
+    };
     let digests = digests?;
-    let (job, c, set) = compared?;
+    let (job, c, set, _) = compared?;
     for w in &c.warnings {
         eprint!("{}", paragraph(&format!("warning: {w}")));
     }
@@ -199,11 +210,13 @@ pub fn run(args: &CompareArgs) -> Result<Outcome> {
     Ok(gate(&c, args.fail_on))
 }
 
-/// The review's job file (when given) and the comparison, compare.csv staged in `set`.
+/// The review's job file (when given), the comparison, compare.csv staged in `set`, and the
+/// SHA-256 of each input as read.
 type Compared = (
     Option<(neckline_core::job::Job, PathBuf)>,
     Comparison,
     Option<OutputSet>,
+    Vec<String>,
 );
 
 fn compare_all(args: &CompareArgs, how: Matching, set: Option<OutputSet>) -> Result<Compared> {
@@ -214,14 +227,14 @@ fn compare_all(args: &CompareArgs, how: Matching, set: Option<OutputSet>) -> Res
         .transpose()?;
     match (set, &args.out) {
         (Some(mut set), Some(out)) => {
-            let c = compare_into(args, how, &mut set, &out.join("compare.csv"))?;
-            Ok((job, c, Some(set)))
+            let (c, digests) = compare_into(args, how, &mut set, &out.join("compare.csv"))?;
+            Ok((job, c, Some(set), digests))
         }
-        _ => Ok((
-            job,
-            compare::compare_files(&args.inputs, how, args.tolerance, None)?,
-            None,
-        )),
+        _ => {
+            let (c, digests) =
+                compare::compare_files_digested(&args.inputs, how, args.tolerance, None)?;
+            Ok((job, c, None, digests))
+        }
     }
 }
 
@@ -232,13 +245,13 @@ fn compare_into(
     how: Matching,
     set: &mut OutputSet,
     target: &Path,
-) -> Result<Comparison> {
+) -> Result<(Comparison, Vec<String>)> {
     let mut staged = set.create(target)?;
     let c = if args.decimal_comma {
         use std::io::Seek;
         let temp = compare::runs::temp()?;
         let mut w = std::io::BufWriter::with_capacity(1 << 16, temp);
-        let c = compare::compare_files(&args.inputs, how, args.tolerance, Some(&mut w))?;
+        let c = compare::compare_files_digested(&args.inputs, how, args.tolerance, Some(&mut w))?;
         let mut temp = w
             .into_inner()
             .map_err(|e| Error::io(target, e.into_error()))?;
@@ -248,34 +261,49 @@ fn compare_into(
             .map_err(|e| Error::io(target, e))?;
         c
     } else {
-        compare::compare_files(&args.inputs, how, args.tolerance, Some(&mut staged))?
+        compare::compare_files_digested(&args.inputs, how, args.tolerance, Some(&mut staged))?
     };
     staged.finish()?;
     Ok(c)
 }
 
-/// Render every other file of the pack in memory, stage each in `set`, then move them in
-/// together with compare.csv (a failure leaves the folder as it was).
+/// Render every other file of the pack in memory (on every core at once), stage each in `set`,
+/// then move them in together with compare.csv (a failure leaves the folder as it was).
 fn write_pack(c: &Comparison, rec: &Record, mut set: OutputSet, out: &Path) -> Result<Committed> {
-    let mut files: Vec<(PathBuf, Vec<u8>)> = Vec::new();
     let target = |name: &str| out.join(name);
     let render = |name: &str, e: std::io::Error| Error::io(&target(name), e);
-    let mut json = Vec::new();
-    json_out::write_json(c, &mut json).map_err(|e| render("compare.json", e))?;
-    files.push((target("compare.json"), json));
-    let svg = fld::fld_svg(c).map_err(|e| render("compare-fld.svg", e))?;
-    files.push((target("compare-fld.svg"), svg.into_bytes()));
-    let png = fld::fld_png(c).map_err(|e| render("compare-fld.png", e))?;
-    files.push((target("compare-fld.png"), png));
-    if let Some(svg) = map::map_svg(c).map_err(|e| render("compare-map.svg", e))? {
+    let json = || -> Result<Vec<u8>> {
+        let mut json = Vec::new();
+        json_out::write_json(c, &mut json).map_err(|e| render("compare.json", e))?;
+        Ok(json)
+    };
+    let fld_svg = || fld::fld_svg(c).map_err(|e| render("compare-fld.svg", e));
+    let fld_png = || fld::fld_png(c).map_err(|e| render("compare-fld.png", e));
+    let map_svg = || map::map_svg(c).map_err(|e| render("compare-map.svg", e));
+    let map_png = || map::map_png(c).map_err(|e| render("compare-map.png", e));
+    let html = || page::page_html_with(c, Some(rec)).map_err(|e| render("compare.html", e));
+    let review = || neckline_render::review::compare_review_html(c);
+    let ((json, (fld_svg, fld_png)), ((map_svg, map_png), (html, review))) = rayon::join(
+        || rayon::join(json, || rayon::join(fld_svg, fld_png)),
+        || {
+            rayon::join(
+                || rayon::join(map_svg, map_png),
+                || rayon::join(html, review),
+            )
+        },
+    );
+    let mut files: Vec<(PathBuf, Vec<u8>)> = vec![
+        (target("compare.json"), json?),
+        (target("compare-fld.svg"), fld_svg?.into_bytes()),
+        (target("compare-fld.png"), fld_png?),
+    ];
+    if let Some(svg) = map_svg? {
         files.push((target("compare-map.svg"), svg.into_bytes()));
     }
-    if let Some(png) = map::map_png(c).map_err(|e| render("compare-map.png", e))? {
+    if let Some(png) = map_png? {
         files.push((target("compare-map.png"), png));
     }
-    let html = page::page_html_with(c, Some(rec)).map_err(|e| render("compare.html", e))?;
-    files.push((target("compare.html"), html.into_bytes()));
-    let review = neckline_render::review::compare_review_html(c);
+    files.push((target("compare.html"), html?.into_bytes()));
     files.push((target("compare-review.html"), review.into_bytes()));
     for (p, bytes) in files {
         set.write(&p, &bytes)?;

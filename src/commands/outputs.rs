@@ -373,29 +373,38 @@ pub fn points_out(plan: &Plan, set: &mut OutputSet, text: &[u8]) -> Result<Optio
 /// then of different runs. A summary that records no table (an earlier version's) or records
 /// another file name is not checked. Gives the table's SHA-256 when it was computed.
 pub fn check_recorded_points(points: &Path) -> Result<Option<String>> {
-    let beside = points.with_file_name("summary.json");
-    let Ok(text) = std::fs::read_to_string(&beside) else {
+    let Some(recorded) = recorded_sha256(points) else {
         return Ok(None);
     };
-    let Some(recorded) = summary_json::recorded_points(&text) else {
-        return Ok(None);
-    };
-    if points.file_name() != Some(std::ffi::OsStr::new(&recorded.name)) {
-        return Ok(None);
-    }
     let found = crate::output_set::sha256_of(points).map_err(|e| Error::io(points, e))?;
-    if found != recorded.sha256 {
+    check_sha256(points, &recorded, found).map(Some)
+}
+
+/// The SHA-256 that the summary.json beside `points` records for it (when it records one for
+/// a file of that name).
+pub fn recorded_sha256(points: &Path) -> Option<String> {
+    let beside = points.with_file_name("summary.json");
+    let text = std::fs::read_to_string(&beside).ok()?;
+    let recorded = summary_json::recorded_points(&text)?;
+    (points.file_name() == Some(std::ffi::OsStr::new(&recorded.name))).then_some(recorded.sha256)
+}
+
+/// `found`, the SHA-256 of `points`, against the one its summary records: refused when they
+/// differ.
+pub fn check_sha256(points: &Path, recorded: &str, found: String) -> Result<String> {
+    if found != recorded {
+        let name = points.file_name().unwrap_or_default().to_string_lossy();
         return Err(Error::Usage(format!(
             "{} does not belong with {}: the summary records SHA-256 {} for {}, the file has {}; \
              the two are from different runs. Run check again to make a matching pair",
             points.display(),
-            beside.display(),
-            recorded.sha256,
-            recorded.name,
+            points.with_file_name("summary.json").display(),
+            recorded,
+            name,
             found
         )));
     }
-    Ok(Some(found))
+    Ok(found)
 }
 
 /// Write to standard output; a closed pipe is not an error.

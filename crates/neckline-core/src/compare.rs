@@ -18,7 +18,7 @@ pub mod sweep;
 pub mod tally;
 
 pub use read::{read_results, read_tryout, RecordedSummary, ResultRow, Tryout, TryoutStats};
-pub use runs::compare_files;
+pub use runs::{compare_files, compare_files_digested};
 use tally::{change_index, status_index, zone_index, Counts, Density, Tally};
 
 use crate::assess::Zone;

@@ -3,12 +3,16 @@
 //! 1. Each input is read as a stream (the inputs on every core at once): each row is folded
 //!    into its tryout's [`TryoutStats`](super::read::TryoutStats) and appended to one of `P` anonymous temporary run
 //!    files, chosen by a hash of its id (by id) or of its track (by position).
-//! 2. The partitions are joined on every core: a partition's rows of all inputs are read back,
-//!    joined into tracks (an id met twice in one input is refused there), and each track is
-//!    folded into a partial [`Tally`] and written as its compare.csv row, with its place in
-//!    the first file's order, to another run file, in that order.
-//! 3. The partial tallies merge into one; the partitions' rows are merged by their place into
-//!    compare.csv.
+//! 2. The partitions are joined on every core, each thread folding those it takes into one
+//!    partial [`Tally`] of its own: a partition's rows of all inputs are read back, joined into
+//!    tracks (an id met twice in one input is refused there), and each track is folded into
+//!    the tally and written as its compare.csv row, with its place in the first file's order,
+//!    to another run file, in that order.
+//! 3. The threads' tallies merge into one; the partitions' rows are merged by their place into
+//!    compare.csv, block by block of places on every core, written in order by the caller's
+//!    thread.
+//!
+//! Each input's SHA-256 is taken as it is read ([`compare_files_digested`]).
 //!
 //! By position, each input is still read once (on every core at once), and then its tracks are
 //! found: each row goes to one run file in row order (input 0's straight to the partition of
@@ -17,13 +21,15 @@
 //! send the file to be read again for its ids themselves, so a duplicate is refused at its
 //! line). Each input is paired with the one before it by a sweep over the merged chunks
 //! ([`super::sweep`]: greedy closest-first, the pairs of [`super::pairing::pair`]), which gives
-//! each row of the later input its partner (4 bytes a row); the later inputs' rows are then
-//! routed from their runs to the partitions of their tracks, and joined as by id.
+//! each row of the later input its partner (4 bytes a row), in bands of cell rows on every
+//! core ([`sweep::sweep_bands`]); the later inputs' rows are then routed from their runs to
+//! the partitions of their tracks, their segments shared out among the cores, and joined as by
+//! id.
 //!
 //! What stays in memory: a partition being joined (two on two cores), the capped lists and the
-//! densities; by position also a chunk of positions being sorted, the sweep's last two rows of
-//! cells with the locations still waiting on them, and the partner of every row of each later
-//! input. The run files are anonymous temporary files: the system removes them however the
+//! densities of each thread, and a few blocks of compare.csv rows being merged; by position
+//! also a chunk of positions being sorted, each band's last two rows of cells with the
+//! locations still waiting on them, and the partner of every row of each later input. The run files are anonymous temporary files: the system removes them however the
 //! run ends.
 
 use super::read::{duplicate, for_each_row, tryout_of, unique_labels, ReadRow};
@@ -127,15 +133,17 @@ fn decode(r: &mut impl Read) -> io::Result<Option<RunRow>> {
     }))
 }
 
-/// Read `path` into `parts` run files by a hash of each row's id; its stats.
-fn split(path: &Path, parts: usize) -> Result<(super::TryoutStats, Vec<File>)> {
+/// Read `path` into `parts` run files by a hash of each row's id; its stats and the SHA-256 of
+/// its bytes.
+fn split(path: &Path, parts: usize) -> Result<(super::TryoutStats, Vec<File>, String)> {
     let mut files: Vec<BufWriter<File>> = (0..parts)
         .map(|_| temp().map(|f| BufWriter::with_capacity(1 << 15, f)))
         .collect::<Result<_>>()?;
     let mut stats = super::TryoutStats::default();
     let mut buf = Vec::with_capacity(256);
     let mut index = 0u64;
-    for_each_row(open_input(path)?, path, |line, r| {
+    let (input, digest) = crate::text::open(path)?;
+    for_each_row(input, path, |line, r| {
         stats.fold(&r);
         encode(&mut buf, index, line, 0, &r);
         files[partition(hash_of(r.id.as_bytes()), parts)]
@@ -146,14 +154,81 @@ fn split(path: &Path, parts: usize) -> Result<(super::TryoutStats, Vec<File>)> {
     })?;
     stats.finish();
     let files = files.into_iter().map(rewound).collect::<Result<_>>()?;
-    Ok((stats, files))
+    Ok((stats, files, digest.hex()))
+}
+
+/// A partition's compare.csv rows, in order, in a run file: each row its place in order
+/// (8 bytes), its length (4 bytes) and its text. `blocks` gives the offset in the file of the
+/// first row of each block of places met ([`block_of`]), in order; `len` the file's length.
+struct RowRun {
+    part: usize,
+    file: std::sync::Mutex<File>,
+    blocks: Vec<(u64, u64)>,
+    len: u64,
+}
+
+/// Writes a [`RowRun`].
+struct RowWriter {
+    out: BufWriter<File>,
+    blocks: Vec<(u64, u64)>,
+    len: u64,
+}
+
+impl RowWriter {
+    fn new() -> Result<Self> {
+        Ok(RowWriter {
+            out: BufWriter::with_capacity(1 << 16, temp()?),
+            blocks: Vec::new(),
+            len: 0,
+        })
+    }
+
+    /// Add the row `text` at place `order` (each later than the one before).
+    fn push(&mut self, order: Order, text: &[u8]) -> Result<()> {
+        if self
+            .blocks
+            .last()
+            .is_none_or(|&(k, _)| k != block_of(order))
+        {
+            self.blocks.push((block_of(order), self.len));
+        }
+        let head = [&order.to_le_bytes()[..], &(text.len() as u32).to_le_bytes()];
+        for part in head.into_iter().chain([text]) {
+            self.out.write_all(part).map_err(run_error)?;
+        }
+        self.len += 12 + text.len() as u64;
+        Ok(())
+    }
+
+    /// The run of partition `part`.
+    fn finish(self, part: usize) -> Result<RowRun> {
+        let f = self
+            .out
+            .into_inner()
+            .map_err(|e| run_error(e.into_error()))?;
+        Ok(RowRun {
+            part,
+            file: std::sync::Mutex::new(f),
+            blocks: self.blocks,
+            len: self.len,
+        })
+    }
+}
+
+/// Places in order per block of compare.csv rows merged at a time, as a power of two.
+const BLOCK_SHIFT: u32 = if cfg!(test) { 6 } else { 13 };
+
+/// The block of a place in order: places of one block are consecutive in order, and a later
+/// block holds only later places.
+fn block_of(order: Order) -> u64 {
+    order >> BLOCK_SHIFT
 }
 
 /// What one partition gives: its tally, its compare.csv rows in order, and the first id met
 /// twice in one input (tryout, line, error).
 struct Joined {
     tally: Tally,
-    rows: Vec<(usize, File)>,
+    rows: Vec<RowRun>,
     duplicate: Option<(usize, u64, Error)>,
 }
 
@@ -163,16 +238,41 @@ struct Shape<'a> {
     tolerance: f64,
     density: &'a super::tally::Density,
     csv: bool,
+    /// An input has more than [`crate::summary::KEEP_ALL`] locations: the tally keeps only
+    /// its capped lists.
+    beyond_keep_all: bool,
 }
 
-fn join(p: usize, inputs: Vec<File>, shape: &Shape) -> Result<Joined> {
-    let n = inputs.len();
+impl Joined {
+    /// Nothing joined yet.
+    fn empty(shape: &Shape) -> Joined {
+        let n = shape.paths.len();
+        let density = Some(shape.density.clone());
+        let tally = if shape.beyond_keep_all {
+            Tally::beyond_keep_all(n, shape.tolerance, density)
+        } else {
+            Tally::new(n, shape.tolerance, density)
+        };
+        Joined {
+            tally,
+            rows: Vec::new(),
+            duplicate: None,
+        }
+    }
+}
+
+/// Join partition `p` (its run files of every input) into `acc`: its tracks folded into the
+/// tally, their compare.csv rows in order into a run file of their own.
+fn join(p: usize, inputs: Vec<(usize, File)>, shape: &Shape, acc: &mut Joined) -> Result<()> {
+    let n = shape.paths.len();
     // Tracks by a hash of their key; two keys of one hash (rare) go to `clashes`.
     let mut index: HashMap<u64, usize, rustc_hash::FxBuildHasher> = HashMap::default();
     let mut clashes: HashMap<Vec<u8>, usize> = HashMap::new();
     let mut tracks: Vec<(Order, Track)> = Vec::new();
     let mut dup: Option<(usize, u64, Error)> = None;
-    for (k, f) in inputs.into_iter().enumerate() {
+    // The files of one input are together, the inputs in order (an id's track takes its place
+    // from the first input that has it).
+    for (k, f) in inputs {
         let mut r = BufReader::with_capacity(1 << 16, f);
         while let Some(row) = decode(&mut r).map_err(run_error)? {
             let order = match shape.matching {
@@ -234,27 +334,31 @@ fn join(p: usize, inputs: Vec<File>, shape: &Shape) -> Result<Joined> {
         }
     }
     tracks.sort_by_key(|(o, _)| *o);
-    let mut tally = Tally::new(n, shape.tolerance, Some(shape.density.clone()));
-    let mut out = BufWriter::with_capacity(1 << 16, temp()?);
+    let tally = &mut acc.tally;
+    let mut out = RowWriter::new()?;
     let mut b = Vec::with_capacity(256);
     for (order, t) in &tracks {
         tally.fold(t, *order);
         if shape.csv {
             b.clear();
             csv_out::push_record(shape.matching, shape.tolerance, t, &mut b);
-            out.write_all(&order.to_le_bytes()).map_err(run_error)?;
-            out.write_all(&(b.len() as u32).to_le_bytes())
-                .map_err(run_error)?;
-            out.write_all(&b).map_err(run_error)?;
+            out.push(*order, &b)?;
         }
     }
-    let mut f = out.into_inner().map_err(|e| run_error(e.into_error()))?;
-    f.rewind().map_err(run_error)?;
-    Ok(Joined {
-        tally,
-        rows: vec![(p, f)],
-        duplicate: dup,
-    })
+    acc.rows.push(out.finish(p)?);
+    acc.duplicate = earlier(acc.duplicate.take(), dup);
+    Ok(())
+}
+
+/// Of two first repeats (tryout, line, error), the earlier.
+fn earlier(
+    a: Option<(usize, u64, Error)>,
+    b: Option<(usize, u64, Error)>,
+) -> Option<(usize, u64, Error)> {
+    match (a, b) {
+        (Some(x), Some(y)) => Some(if (y.0, y.1) < (x.0, x.1) { y } else { x }),
+        (x, y) => x.or(y),
+    }
 }
 
 /// The distance of each step of a track paired by position.
@@ -271,54 +375,130 @@ fn steps(t: &mut Track) {
 fn merge_joined(mut a: Joined, b: Joined) -> Joined {
     a.tally.merge(b.tally);
     a.rows.extend(b.rows);
-    a.duplicate = match (a.duplicate, b.duplicate) {
-        (Some(x), Some(y)) => Some(if (y.0, y.1) < (x.0, x.1) { y } else { x }),
-        (x, y) => x.or(y),
-    };
+    a.duplicate = earlier(a.duplicate, b.duplicate);
     a
 }
 
-/// Merge the partitions' compare.csv rows by their place into `out`, after the header.
-fn merge_rows(mut rows: Vec<(usize, File)>, header: &[String], out: &mut dyn Write) -> Result<()> {
-    rows.sort_by_key(|(p, _)| *p);
+/// Merge the partitions' compare.csv rows by their place into `out`, after the header. The
+/// blocks of places ([`block_of`]) are merged on every core, a few at a time ahead of the one
+/// written; this thread writes them in order.
+fn merge_rows(mut rows: Vec<RowRun>, header: &[String], out: &mut dyn Write) -> Result<()> {
+    rows.sort_by_key(|r| r.part);
     let mut w = csv::Writer::from_writer(&mut *out);
     w.write_record(header)
         .map_err(|e| run_error(io::Error::other(e)))?;
     w.flush().map_err(run_error)?;
     drop(w);
-    let mut readers: Vec<BufReader<File>> = rows
-        .into_iter()
-        .map(|(_, f)| BufReader::with_capacity(1 << 16, f))
+    let mut blocks: Vec<u64> = rows
+        .iter()
+        .flat_map(|r| r.blocks.iter().map(|b| b.0))
         .collect();
-    let next = |r: &mut BufReader<File>| -> io::Result<Option<(Order, Vec<u8>)>> {
-        let mut head = [0u8; 12];
-        match r.read_exact(&mut head) {
-            Ok(()) => {}
-            Err(e) if e.kind() == io::ErrorKind::UnexpectedEof => return Ok(None),
-            Err(e) => return Err(e),
+    blocks.sort_unstable();
+    blocks.dedup();
+    let ahead = 2 * rayon::current_num_threads().max(1);
+    let written = merge_blocks(&rows, &blocks, ahead, out);
+    // The run files are closed (their pages freed) on the pool, off this thread.
+    rayon::spawn(move || drop(rows));
+    written
+}
+
+/// Merge `blocks` of `rows`, `ahead` at a time on the pool, and write them in order to `out`.
+fn merge_blocks(rows: &[RowRun], blocks: &[u64], ahead: usize, out: &mut dyn Write) -> Result<()> {
+    let (tx, rx) = std::sync::mpsc::channel::<(usize, io::Result<Vec<u8>>)>();
+    rayon::in_place_scope(|s| {
+        let spawn = |i: usize| {
+            let tx = tx.clone();
+            let block = blocks[i];
+            s.spawn(move |_| {
+                // The receiver is gone only when writing failed: nothing is left to do.
+                let _ = tx.send((i, merge_block(rows, block)));
+            });
+        };
+        let mut spawned = blocks.len().min(ahead);
+        (0..spawned).for_each(spawn);
+        let mut ready: HashMap<usize, Vec<u8>> = HashMap::new();
+        for i in 0..blocks.len() {
+            let bytes = loop {
+                if let Some(b) = ready.remove(&i) {
+                    break b;
+                }
+                let (k, r) = wait(&rx);
+                ready.insert(k, r.map_err(run_error)?);
+            };
+            out.write_all(&bytes).map_err(run_error)?;
+            if spawned < blocks.len() {
+                spawn(spawned);
+                spawned += 1;
+            }
         }
-        let order = u64::from_le_bytes(head[..8].try_into().unwrap_or_default());
-        let len = u32::from_le_bytes(head[8..].try_into().unwrap_or_default()) as usize;
-        let mut bytes = vec![0u8; len];
-        r.read_exact(&mut bytes)?;
-        Ok(Some((order, bytes)))
+        Ok(())
+    })
+}
+
+/// The next merged block. Off the pool, this thread sleeps until one comes; on it, the worker
+/// runs other jobs meanwhile (the merges themselves, on a pool of one thread), so that a
+/// waiting worker can not stall the pool.
+fn wait<T>(rx: &std::sync::mpsc::Receiver<T>) -> T {
+    loop {
+        if let Ok(v) = rx.try_recv() {
+            return v;
+        }
+        match rayon::yield_now() {
+            Some(rayon::Yield::Executed) => {}
+            Some(rayon::Yield::Idle) => {
+                if let Ok(v) = rx.recv_timeout(std::time::Duration::from_micros(200)) {
+                    return v;
+                }
+            }
+            // Every block spawned sends once, and the sender of each is alive until it has.
+            None => return rx.recv().expect("a block in flight sends its rows"),
+        }
+    }
+}
+
+/// The rows of block `block` of every partition, merged by their place, without their heads.
+fn merge_block(rows: &[RowRun], block: u64) -> io::Result<Vec<u8>> {
+    let mut runs: Vec<Vec<u8>> = Vec::new();
+    for r in rows {
+        let Ok(k) = r.blocks.binary_search_by_key(&block, |b| b.0) else {
+            continue;
+        };
+        let (at, end) = (r.blocks[k].1, r.blocks.get(k + 1).map_or(r.len, |b| b.1));
+        let mut buf = vec![0u8; (end - at) as usize];
+        let mut f = r.file.lock().unwrap_or_else(|e| e.into_inner());
+        f.seek(io::SeekFrom::Start(at))?;
+        f.read_exact(&mut buf)?;
+        runs.push(buf);
+    }
+    let head = |run: &[u8], at: usize| -> io::Result<(Order, usize)> {
+        let h = run
+            .get(at..at + 12)
+            .ok_or_else(|| io::Error::from(io::ErrorKind::UnexpectedEof))?;
+        let order = u64::from_le_bytes(h[..8].try_into().unwrap_or_default());
+        let len = u32::from_le_bytes(h[8..].try_into().unwrap_or_default()) as usize;
+        Ok((order, len))
     };
+    let mut out = Vec::with_capacity(runs.iter().map(Vec::len).sum());
+    let mut at = vec![0usize; runs.len()];
     let mut heap = BinaryHeap::new();
-    let mut pending: Vec<Vec<u8>> = vec![Vec::new(); readers.len()];
-    for (i, r) in readers.iter_mut().enumerate() {
-        if let Some((o, b)) = next(r).map_err(run_error)? {
-            pending[i] = b;
-            heap.push(std::cmp::Reverse((o, i)));
+    for (i, run) in runs.iter().enumerate() {
+        if !run.is_empty() {
+            heap.push(std::cmp::Reverse((head(run, 0)?.0, i)));
         }
     }
     while let Some(std::cmp::Reverse((_, i))) = heap.pop() {
-        out.write_all(&pending[i]).map_err(run_error)?;
-        if let Some((o, b)) = next(&mut readers[i]).map_err(run_error)? {
-            pending[i] = b;
-            heap.push(std::cmp::Reverse((o, i)));
+        let (run, a) = (&runs[i], at[i]);
+        let len = head(run, a)?.1;
+        let text = run
+            .get(a + 12..a + 12 + len)
+            .ok_or_else(|| io::Error::from(io::ErrorKind::UnexpectedEof))?;
+        out.extend_from_slice(text);
+        at[i] = a + 12 + len;
+        if at[i] < run.len() {
+            heap.push(std::cmp::Reverse((head(run, at[i])?.0, i)));
         }
     }
-    Ok(())
+    Ok(out)
 }
 
 /// What the one read of an input gives when pairing by position: its stats, its rows (input 0:
@@ -327,8 +507,13 @@ fn merge_rows(mut rows: Vec<(usize, File)>, header: &[String], out: &mut dyn Wri
 struct ReadOnce {
     stats: super::TryoutStats,
     rows: Vec<File>,
+    /// A later input's run: the offset of every [`SEGMENT`]th row, and its length.
+    segments: Vec<u64>,
+    written: u64,
     positions: sweep::SortedPositions,
     count: usize,
+    /// The SHA-256 of its bytes.
+    digest: String,
 }
 
 /// A hash of an id for the check that none is met twice (SipHash with fixed keys; two ids of
@@ -355,8 +540,10 @@ fn read_placed(path: &Path, k: usize, parts: usize, within: f64) -> Result<ReadO
     let mut stats = super::TryoutStats::default();
     let mut buf = Vec::with_capacity(256);
     let mut index = 0u64;
+    let (mut segments, mut written) = (Vec::new(), 0u64);
     let loc = Location::file(path);
-    let read = for_each_row(open_input(path)?, path, |line, r| {
+    let (input, digest) = crate::text::open(path)?;
+    let read = for_each_row(input, path, |line, r| {
         let Ok(i) = u32::try_from(index) else {
             return Err(Error::input(
                 loc.clone().at_line(line),
@@ -377,6 +564,10 @@ fn read_placed(path: &Path, k: usize, parts: usize, within: f64) -> Result<ReadO
         let f = if k == 0 {
             partition(hash_of(track), parts)
         } else {
+            if index.is_multiple_of(SEGMENT) {
+                segments.push(written);
+            }
+            written += buf.len() as u64;
             0
         };
         files[f].write_all(&buf).map_err(run_error)?;
@@ -389,8 +580,11 @@ fn read_placed(path: &Path, k: usize, parts: usize, within: f64) -> Result<ReadO
     Ok(ReadOnce {
         stats,
         rows: files.into_iter().map(rewound).collect::<Result<_>>()?,
+        segments,
+        written,
         positions: sorter.finish().map_err(run_error)?,
         count: index as usize,
+        digest: digest.hex(),
     })
 }
 
@@ -451,12 +645,75 @@ fn track_of(partners: &[Vec<u32>], mut k: usize, mut i: u64) -> Order {
     order_of(k, i)
 }
 
-/// Route the rows of input `k` (one run in row order) into `parts` partitions by their track.
-fn route(run: File, k: usize, partners: &[Vec<u32>], parts: usize) -> Result<Vec<File>> {
+/// Rows of a later input's run per segment, routed on one core: its segments are shared out
+/// among the cores.
+const SEGMENT: u64 = if cfg!(test) { 16 } else { 1 << 16 };
+
+/// Bytes `at..end` of a file shared by several readers (each read seeks under the lock).
+struct Slice<'a> {
+    file: &'a std::sync::Mutex<File>,
+    at: u64,
+    end: u64,
+}
+
+impl Read for Slice<'_> {
+    fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
+        let want = (self.end - self.at).min(buf.len() as u64) as usize;
+        if want == 0 {
+            return Ok(0);
+        }
+        let mut f = self.file.lock().unwrap_or_else(|e| e.into_inner());
+        f.seek(io::SeekFrom::Start(self.at))?;
+        let n = f.read(&mut buf[..want])?;
+        self.at += n as u64;
+        Ok(n)
+    }
+}
+
+/// Route the rows of input `k` (one run in row order, `segments` the offsets of its segments,
+/// `len` its length) into `parts` partitions by their track, the segments shared out in
+/// contiguous groups among the cores: the partitions of each group.
+fn route(
+    run: File,
+    segments: &[u64],
+    len: u64,
+    k: usize,
+    partners: &[Vec<u32>],
+    parts: usize,
+) -> Result<Vec<Vec<File>>> {
+    let groups = rayon::current_num_threads().clamp(1, segments.len().max(1));
+    let run = std::sync::Mutex::new(run);
+    let bound = |g: usize| -> u64 {
+        segments
+            .get(g * segments.len() / groups)
+            .copied()
+            .unwrap_or(len)
+    };
+    (0..groups)
+        .into_par_iter()
+        .with_max_len(1)
+        .map(|g| {
+            let slice = Slice {
+                file: &run,
+                at: bound(g),
+                end: if g + 1 == groups { len } else { bound(g + 1) },
+            };
+            route_slice(slice, k, partners, parts)
+        })
+        .collect()
+}
+
+/// Route the rows of `slice` (of input `k`'s run) into `parts` partitions by their track.
+fn route_slice(
+    slice: Slice<'_>,
+    k: usize,
+    partners: &[Vec<u32>],
+    parts: usize,
+) -> Result<Vec<File>> {
     let mut files: Vec<BufWriter<File>> = (0..parts)
         .map(|_| temp().map(|f| BufWriter::with_capacity(1 << 15, f)))
         .collect::<Result<_>>()?;
-    let mut r = BufReader::with_capacity(1 << 16, run);
+    let mut r = BufReader::with_capacity(1 << 16, slice);
     let mut rec = Vec::with_capacity(256);
     loop {
         rec.resize(36, 0);
@@ -479,14 +736,18 @@ fn route(run: File, k: usize, partners: &[Vec<u32>], parts: usize) -> Result<Vec
     files.into_iter().map(rewound).collect()
 }
 
+/// Each input's stats, the sources of rows (an input, and rows of it in partitions; the
+/// inputs in order), and each input's SHA-256.
+type Split = (
+    Vec<super::TryoutStats>,
+    Vec<(usize, Vec<File>)>,
+    Vec<String>,
+);
+
 /// By position: read every input once (on every core), pair each with the one before it on
 /// its positions sorted by cell ([`sweep`]), route the later inputs' rows to their tracks'
-/// partitions. Each input's stats and partitions.
-fn split_by_position(
-    paths: &[PathBuf],
-    parts: usize,
-    within: f64,
-) -> Result<(Vec<super::TryoutStats>, Vec<Vec<File>>)> {
+/// partitions. Each input's stats, partitions and SHA-256.
+fn split_by_position(paths: &[PathBuf], parts: usize, within: f64) -> Result<Split> {
     let read: Vec<Result<ReadOnce>> = paths
         .par_iter()
         .enumerate()
@@ -497,12 +758,18 @@ fn split_by_position(
     let paired: Vec<Result<Vec<u32>>> = (1..read.len())
         .into_par_iter()
         .map(|k| {
-            let mut partners = vec![NONE; read[k].count];
-            let before = read[k - 1].positions.iter().map_err(run_error)?;
-            let after = read[k].positions.iter().map_err(run_error)?;
-            sweep::sweep(before, after, within, |b, a, _| partners[a as usize] = b)
-                .map_err(run_error)?;
-            Ok(partners)
+            use std::sync::atomic::{AtomicU32, Ordering::Relaxed};
+            let partners: Vec<AtomicU32> =
+                (0..read[k].count).map(|_| AtomicU32::new(NONE)).collect();
+            // Bands of cell rows on every core: each row of the later input is paired in one
+            // band at most, and read once all bands are done.
+            let bands = 4 * rayon::current_num_threads().max(1);
+            let (before, after) = (&read[k - 1].positions, &read[k].positions);
+            sweep::sweep_bands(before, after, within, bands, |b, a, _| {
+                partners[a as usize].store(b, Relaxed)
+            })
+            .map_err(run_error)?;
+            Ok(partners.into_iter().map(AtomicU32::into_inner).collect())
         })
         .collect();
     let mut partners = vec![Vec::new()];
@@ -511,27 +778,34 @@ fn split_by_position(
     }
     let mut stats = Vec::with_capacity(read.len());
     let mut runs = Vec::with_capacity(read.len());
+    let mut digests = Vec::with_capacity(read.len());
     for r in read {
         stats.push(r.stats);
-        runs.push(r.rows);
+        runs.push((r.rows, r.segments, r.written));
+        digests.push(r.digest);
     }
-    let routed: Vec<Result<Vec<File>>> = runs
+    let routed: Vec<Result<Vec<Vec<File>>>> = runs
         .into_par_iter()
         .enumerate()
-        .map(|(k, rows)| match k {
-            0 => Ok(rows),
+        .map(|(k, (rows, segments, len))| match k {
+            0 => Ok(vec![rows]),
             _ => route(
                 rows.into_iter()
                     .next()
                     .ok_or_else(|| run_error(io::ErrorKind::NotFound.into()))?,
+                &segments,
+                len,
                 k,
                 &partners,
                 parts,
             ),
         })
         .collect();
-    let files = routed.into_iter().collect::<Result<_>>()?;
-    Ok((stats, files))
+    let mut files = Vec::new();
+    for (k, r) in routed.into_iter().enumerate() {
+        files.extend(r?.into_iter().map(|f| (k, f)));
+    }
+    Ok((stats, files, digests))
 }
 
 /// The first fault in file order, given `fault`, the first of input `k` (the first input
@@ -625,6 +899,17 @@ pub fn compare_files(
     tolerance: f64,
     csv: Option<&mut dyn Write>,
 ) -> Result<Comparison> {
+    compare_files_digested(paths, matching, tolerance, csv).map(|(c, _)| c)
+}
+
+/// As [`compare_files`], with the SHA-256 of each input's bytes as read (lower-case
+/// hexadecimal, in input order): each input is read once, for both.
+pub fn compare_files_digested(
+    paths: &[PathBuf],
+    matching: Matching,
+    tolerance: f64,
+    csv: Option<&mut dyn Write>,
+) -> Result<(Comparison, Vec<String>)> {
     if paths.len() < 2 {
         return Err(Error::Usage("compare needs at least two results".into()));
     }
@@ -639,24 +924,28 @@ pub fn compare_files(
         .map(|p| std::fs::metadata(p).map_or(0, |m| m.len()))
         .sum();
     let parts = (bytes / PARTITION_BYTES).clamp(1, MAX_PARTITIONS) as usize;
-    let mut files: Vec<Vec<File>> = Vec::new();
+    // Each source of rows: its input, and its rows in `parts` partitions.
+    let mut files: Vec<(usize, Vec<File>)> = Vec::new();
+    let mut digests = Vec::with_capacity(paths.len());
     match matching {
         Matching::Xy { within } => {
-            let (stats, f) = split_by_position(paths, parts, within)?;
+            let (stats, f, d) = split_by_position(paths, parts, within)?;
             for (t, s) in tryouts.iter_mut().zip(stats) {
                 t.stats = s;
             }
             files = f;
+            digests = d;
         }
         Matching::Id => {
             let split: Vec<Result<_>> = paths.par_iter().map(|p| split(p, parts)).collect();
             for (k, (t, r)) in tryouts.iter_mut().zip(split).enumerate() {
-                let (stats, f) = match r {
+                let (stats, f, d) = match r {
                     Ok(r) => r,
                     Err(e) => return Err(earliest_fault(paths, k, e, matching, parts)),
                 };
                 t.stats = stats;
-                files.push(f);
+                files.push((k, f));
+                digests.push(d);
             }
         }
     }
@@ -667,31 +956,42 @@ pub fn compare_files(
         tolerance,
         density: &density,
         csv: csv.is_some(),
+        beyond_keep_all: tryouts
+            .iter()
+            .any(|t| t.stats.locations > crate::summary::KEEP_ALL),
     };
-    let mut by_part: Vec<Vec<File>> = (0..parts).map(|_| Vec::new()).collect();
-    for input in files {
+    let mut by_part: Vec<Vec<(usize, File)>> = (0..parts).map(|_| Vec::new()).collect();
+    for (k, input) in files {
         for (p, f) in input.into_iter().enumerate() {
-            by_part[p].push(f);
+            by_part[p].push((k, f));
         }
     }
-    // As many partitions at a time as there are threads, each batch merged into the one
-    // running result: the partial tallies alive do not grow with the number of partitions.
+    // Each thread takes the next partition left and folds it into one running result of its
+    // own (the partial tallies alive do not grow with the number of partitions); the threads'
+    // results merge at the end.
     let threads = rayon::current_num_threads().max(1);
+    let queue = std::sync::Mutex::new(by_part.into_iter().enumerate());
+    let done: Vec<Result<Joined>> = (0..threads)
+        .into_par_iter()
+        .with_max_len(1)
+        .map(|_| {
+            let mut acc = Joined::empty(&shape);
+            loop {
+                let next = queue.lock().unwrap_or_else(|e| e.into_inner()).next();
+                let Some((p, inputs)) = next else {
+                    return Ok(acc);
+                };
+                join(p, inputs, &shape, &mut acc)?;
+            }
+        })
+        .collect();
     let mut joined: Option<Joined> = None;
-    let mut parts_left = by_part.into_iter().enumerate().peekable();
-    while parts_left.peek().is_some() {
-        let batch: Vec<(usize, Vec<File>)> = parts_left.by_ref().take(threads).collect();
-        let done: Vec<Result<Joined>> = batch
-            .into_par_iter()
-            .map(|(p, inputs)| join(p, inputs, &shape))
-            .collect();
-        for j in done {
-            let j = j?;
-            joined = Some(match joined {
-                Some(a) => merge_joined(a, j),
-                None => j,
-            });
-        }
+    for j in done {
+        let j = j?;
+        joined = Some(match joined {
+            Some(a) => merge_joined(a, j),
+            None => j,
+        });
     }
     let joined = joined.ok_or_else(|| Error::Usage("nothing to compare".into()))?;
     if let Some((_, _, e)) = joined.duplicate {
@@ -700,7 +1000,7 @@ pub fn compare_files(
     if let Some(out) = csv {
         merge_rows(joined.rows, &csv_out::header_of(paths.len(), matching), out)?;
     }
-    finish(tryouts, joined.tally, matching, tolerance)
+    Ok((finish(tryouts, joined.tally, matching, tolerance)?, digests))
 }
 
 #[cfg(test)]
@@ -767,22 +1067,135 @@ mod tests {
     /// `compare_files` of `paths` against the in-memory comparison of the same files (an
     /// independent join): the same tracks, counts and compare.csv. The streamed one back.
     fn same_as_whole(paths: &[PathBuf], matching: Matching) -> Comparison {
-        let tryouts = paths.iter().enumerate();
-        let tryouts = tryouts
+        let tryouts: Vec<_> = paths
+            .iter()
+            .enumerate()
             .map(|(k, p)| read_tryout(p, k + 1).unwrap())
             .collect();
+        // Every track in order, held whole (the comparison keeps only the capped lists'
+        // beyond KEEP_ALL locations), for compare.csv.
+        let every = match matching {
+            Matching::Id => crate::compare::tracks_by_id(&tryouts),
+            Matching::Xy { within } => crate::compare::tracks_by_position(&tryouts, within),
+        };
         let whole = compare(tryouts, matching, 1.0).unwrap();
         let mut text = Vec::new();
         let runs = compare_files(paths, matching, 1.0, Some(&mut text)).unwrap();
         assert_eq!(runs.tracks, whole.tracks);
         assert_eq!(runs.counts, whole.counts);
         let mut expected = Vec::new();
-        csv_out::write_csv(&whole, &mut expected).unwrap();
+        {
+            let mut w = csv::Writer::from_writer(&mut expected);
+            w.write_record(csv_out::header_of(paths.len(), matching))
+                .unwrap();
+            for t in &every {
+                w.write_record(csv_out::record_of(matching, 1.0, t))
+                    .unwrap();
+            }
+        }
         assert_eq!(
             String::from_utf8(text).unwrap(),
             String::from_utf8(expected).unwrap()
         );
         runs
+    }
+
+    /// Beyond [`crate::summary::KEEP_ALL`] locations (where only the capped lists are kept),
+    /// on one thread and on several: the tracks, counts and compare.csv of the whole
+    /// comparison (an independent in-memory join).
+    #[test]
+    fn beyond_keep_all_as_the_whole_comparison_on_any_threads() {
+        let dir = tempfile::tempdir().unwrap();
+        let n = crate::summary::KEEP_ALL + 700;
+        let zone = |m: f64| if m <= 0.0 { "failed" } else { "safe" };
+        let a: Vec<_> = (0..n)
+            .map(|i| {
+                let m = (i * 37 % 50) as f64 - 5.0;
+                (format!("L{i}"), m, zone(m), (i % 50) as f64)
+            })
+            .collect();
+        let mut b: Vec<_> = a
+            .iter()
+            .filter(|r| !r.0.ends_with("17"))
+            .map(|r| {
+                let m = r.1 - if r.0.ends_with('3') { 4.0 } else { 0.0 };
+                (r.0.clone(), m, zone(m), r.3 + 0.1)
+            })
+            .collect();
+        b.rotate_left(n / 3);
+        let paths = [
+            points(dir.path(), "a.csv", &a),
+            points(dir.path(), "b.csv", &b),
+        ];
+        let pool = |threads| {
+            rayon::ThreadPoolBuilder::new()
+                .num_threads(threads)
+                .build()
+                .unwrap()
+        };
+        let (one, two) = (pool(1), pool(2));
+        for matching in [Matching::Id, Matching::Xy { within: 0.5 }] {
+            // On one thread against the whole; on two, the same again.
+            let runs = one.install(|| same_as_whole(&paths, matching));
+            assert!(runs.counts.tracks > crate::summary::KEEP_ALL);
+            let mut text = (Vec::new(), Vec::new());
+            let a = one.install(|| compare_files(&paths, matching, 1.0, Some(&mut text.0)));
+            let b = two.install(|| compare_files(&paths, matching, 1.0, Some(&mut text.1)));
+            let (a, b) = (a.unwrap(), b.unwrap());
+            assert_eq!((&a.tracks, &a.counts), (&b.tracks, &b.counts));
+            assert_eq!(text.0, text.1);
+        }
+    }
+
+    /// The rows of partitions merged by place, blocks on every core and written in order:
+    /// every row once, in order of place (checked against the rows sorted whole), on a pool
+    /// of one thread and of two; places sparse and dense, blocks shared or not.
+    #[test]
+    fn rows_merged_by_place_as_sorted_whole() {
+        let mut r = 0x2545f4914f6cdd1du64;
+        let mut next = |m: u64| {
+            r ^= r << 13;
+            r ^= r >> 7;
+            r ^= r << 17;
+            r % m
+        };
+        for (parts, rows, spread) in [(1, 50, 1), (3, 400, 1), (7, 900, 5), (5, 300, 1 << 12)] {
+            // Distinct places, each given to a partition at random.
+            let mut places: Vec<Order> = (0..rows).map(|i| i * spread + next(spread)).collect();
+            places.extend((0..rows / 10).map(|i| order_of(1, i * 3)));
+            let mut by_part: Vec<Vec<Order>> = vec![Vec::new(); parts];
+            for &o in &places {
+                by_part[next(parts as u64) as usize].push(o);
+            }
+            let text = |o: Order| format!("row {o},{}\n", "x".repeat((o % 17) as usize));
+            let mut expected = String::from("h1,h2\n");
+            for &o in &places {
+                expected.push_str(&text(o));
+            }
+            for threads in [1, 2] {
+                let pool = rayon::ThreadPoolBuilder::new()
+                    .num_threads(threads)
+                    .build()
+                    .unwrap();
+                let runs: Vec<RowRun> = by_part
+                    .iter()
+                    .enumerate()
+                    .rev()
+                    .map(|(p, os)| {
+                        let mut w = RowWriter::new().unwrap();
+                        for &o in os {
+                            w.push(o, text(o).as_bytes()).unwrap();
+                        }
+                        w.finish(p).unwrap()
+                    })
+                    .collect();
+                let mut out = Vec::new();
+                let header = ["h1".to_string(), "h2".to_string()];
+                pool.install(|| merge_rows(runs, &header, &mut out))
+                    .unwrap();
+                assert_eq!(String::from_utf8(out).unwrap(), expected);
+            }
+        }
     }
 
     /// By position through three inputs, rows shuffled and moved: the tracks and compare.csv

@@ -320,6 +320,8 @@ pub struct PositionSorter {
     out: BufWriter<File>,
     chunks: Vec<(u64, u64)>,
     written: u64,
+    /// Lowest and highest cell row met.
+    rows: Option<(i64, i64)>,
 }
 
 /// Locations held in a chunk before it is sorted and written.
@@ -336,12 +338,16 @@ impl PositionSorter {
             out: BufWriter::with_capacity(1 << 15, file),
             chunks: Vec::new(),
             written: 0,
+            rows: None,
         }
     }
 
     /// Add location `index` at `(x, y)`.
     pub fn push(&mut self, index: u32, x: f64, y: f64) -> io::Result<()> {
-        self.chunk.push(Placed::new(index, x, y, self.within));
+        let p = Placed::new(index, x, y, self.within);
+        let (lo, hi) = self.rows.get_or_insert((p.cy, p.cy));
+        (*lo, *hi) = ((*lo).min(p.cy), (*hi).max(p.cy));
+        self.chunk.push(p);
         if self.chunk.len() == CHUNK {
             self.flush()?;
         }
@@ -373,6 +379,7 @@ impl PositionSorter {
             within: self.within,
             file: Mutex::new(file),
             chunks: self.chunks,
+            rows: self.rows,
         })
     }
 }
@@ -384,31 +391,150 @@ pub struct SortedPositions {
     within: f64,
     file: Mutex<File>,
     chunks: Vec<(u64, u64)>,
+    rows: Option<(i64, i64)>,
 }
 
 impl SortedPositions {
     /// Every location, by cell row, column and index (the chunks merged).
     pub fn iter(&self) -> io::Result<Merge<'_>> {
+        self.rows_in(i64::MIN, i64::MAX)
+    }
+
+    /// The locations of cell rows `from` (included) to `to` (excluded; `i64::MAX`: to the
+    /// end), by cell row, column and index (the chunks merged; each chunk's start found by
+    /// binary search).
+    pub fn rows_in(&self, from: i64, to: i64) -> io::Result<Merge<'_>> {
+        let mut cursors = Vec::with_capacity(self.chunks.len());
+        for c in 0..self.chunks.len() {
+            let (at, n) = self.chunks[c];
+            let skip = self.below(c, from)?;
+            cursors.push(Cursor {
+                at: at + skip * RECORD as u64,
+                left: n - skip,
+                buf: Vec::new(),
+                used: 0,
+            });
+        }
         let mut m = Merge {
             file: &self.file,
             within: self.within,
-            cursors: self
-                .chunks
-                .iter()
-                .map(|&(at, n)| Cursor {
-                    at,
-                    left: n,
-                    buf: Vec::new(),
-                    used: 0,
-                })
-                .collect(),
+            cursors,
             heads: std::collections::BinaryHeap::new(),
+            to,
         };
         for c in 0..m.cursors.len() {
             m.advance(c)?;
         }
         Ok(m)
     }
+
+    /// How many locations of chunk `c` lie in cell rows below `row`.
+    fn below(&self, c: usize, row: i64) -> io::Result<u64> {
+        let (at, n) = self.chunks[c];
+        let (mut lo, mut hi) = (0u64, n);
+        let mut f = self.file.lock().unwrap_or_else(|e| e.into_inner());
+        let mut r = [0u8; RECORD];
+        while lo < hi {
+            let mid = lo + (hi - lo) / 2;
+            f.seek(SeekFrom::Start(at + mid * RECORD as u64))?;
+            f.read_exact(&mut r)?;
+            if decode(&r, self.within).cy < row {
+                lo = mid + 1;
+            } else {
+                hi = mid;
+            }
+        }
+        Ok(lo)
+    }
+
+    /// Whether no location lies in cell row `row`.
+    fn row_is_empty(&self, row: i64) -> io::Result<bool> {
+        let Some(next) = row.checked_add(1) else {
+            return Ok(false);
+        };
+        for c in 0..self.chunks.len() {
+            if self.below(c, row)? != self.below(c, next)? {
+                return Ok(false);
+            }
+        }
+        Ok(true)
+    }
+}
+
+/// A location as written by [`PositionSorter`].
+fn decode(r: &[u8], within: f64) -> Placed {
+    let word =
+        |k: usize| u64::from_le_bytes(r[4 + 8 * k..12 + 8 * k].try_into().unwrap_or_default());
+    let index = u32::from_le_bytes(r[..4].try_into().unwrap_or_default());
+    Placed::new(
+        index,
+        f64::from_bits(word(0)),
+        f64::from_bits(word(1)),
+        within,
+    )
+}
+
+/// Cell rows tried on each side of an even split of the rows when looking for a row empty in
+/// both inputs.
+const BAND_SEARCH: i64 = 16;
+
+/// The bands of cell rows `[from, to)` of [`sweep_bands`]: about `bands` of them, cut at rows
+/// empty in both inputs (no candidate pair crosses such a row), fewer where none is found.
+fn band_rows(
+    before: &SortedPositions,
+    after: &SortedPositions,
+    bands: usize,
+) -> io::Result<Vec<(i64, i64)>> {
+    let (lo, hi) = match (before.rows, after.rows) {
+        (Some(a), Some(b)) => (a.0.max(b.0), a.1.min(b.1)),
+        _ => return Ok(Vec::new()),
+    };
+    if lo > hi {
+        // The inputs' rows do not overlap: one band.
+        return Ok(vec![(i64::MIN, i64::MAX)]);
+    }
+    let mut cuts = vec![i64::MIN];
+    let span = hi as i128 - lo as i128 + 1;
+    for j in 1..bands {
+        let target = (lo as i128 + span * j as i128 / bands as i128) as i64;
+        let found = (0..=BAND_SEARCH)
+            .flat_map(|d| [target.saturating_add(d), target.saturating_sub(d)])
+            .filter(|&e| e > lo && e < hi && cuts.last().is_some_and(|&c| e > c))
+            .find_map(|e| match (before.row_is_empty(e), after.row_is_empty(e)) {
+                (Ok(true), Ok(true)) => Some(Ok(e)),
+                (Err(x), _) | (_, Err(x)) => Some(Err(x)),
+                _ => None,
+            })
+            .transpose()?;
+        if let Some(e) = found {
+            cuts.push(e);
+        }
+    }
+    cuts.push(i64::MAX);
+    Ok(cuts.windows(2).map(|w| (w[0], w[1])).collect())
+}
+
+/// [`sweep`] of two inputs' sorted positions, in about `bands` bands of cell rows at once
+/// (on every core): each band is cut at a row of cells empty in both inputs, so that no
+/// candidate pair joins two bands, and the greedy pairing of the whole is the union of the
+/// bands' (it decides between candidates sharing an end only). Pairs go to `out` as found,
+/// from any thread.
+pub fn sweep_bands(
+    before: &SortedPositions,
+    after: &SortedPositions,
+    within: f64,
+    bands: usize,
+    out: impl Fn(u32, u32, f64) + Sync,
+) -> io::Result<()> {
+    use rayon::prelude::*;
+    band_rows(before, after, bands.max(1))?
+        .into_par_iter()
+        .with_max_len(1)
+        .try_for_each(|(from, to)| {
+            let b = before.rows_in(from, to)?;
+            let a = after.rows_in(from, to)?;
+            sweep(b, a, within, &out)
+        })
 }
 
 struct Cursor {
@@ -428,6 +554,8 @@ pub struct Merge<'a> {
     within: f64,
     cursors: Vec<Cursor>,
     heads: std::collections::BinaryHeap<std::cmp::Reverse<Head>>,
+    /// The first cell row not given (`i64::MAX`: none).
+    to: i64,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -464,17 +592,14 @@ impl Merge<'_> {
             cur.left -= n as u64;
             cur.used = 0;
         }
-        let r = &cur.buf[cur.used..cur.used + RECORD];
+        let p = decode(&cur.buf[cur.used..cur.used + RECORD], self.within);
         cur.used += RECORD;
-        let word =
-            |k: usize| u64::from_le_bytes(r[4 + 8 * k..12 + 8 * k].try_into().unwrap_or_default());
-        let index = u32::from_le_bytes(r[..4].try_into().unwrap_or_default());
-        let p = Placed::new(
-            index,
-            f64::from_bits(word(0)),
-            f64::from_bits(word(1)),
-            self.within,
-        );
+        if p.cy >= self.to && self.to != i64::MAX {
+            // The rest of this chunk lies beyond too.
+            cur.left = 0;
+            cur.used = cur.buf.len();
+            return Ok(());
+        }
         self.heads.push(std::cmp::Reverse(Head(p, c)));
         Ok(())
     }
@@ -634,6 +759,85 @@ mod tests {
         )
     }
 
+    /// [`sweep_bands`] of `before` and `after` (sorted on disk in chunks) in `bands` bands,
+    /// on a pool of `threads`: the pairs, in the order of [`swept`].
+    fn banded(
+        before: &[Option<(f64, f64)>],
+        after: &[Option<(f64, f64)>],
+        within: f64,
+        bands: usize,
+        threads: usize,
+    ) -> Vec<(usize, usize, f64)> {
+        let sorted = |pts: &[Option<(f64, f64)>]| {
+            let mut s = PositionSorter::new(within, tempfile::tempfile().unwrap());
+            for (i, p) in pts.iter().enumerate() {
+                if let Some((x, y)) = p {
+                    s.push(i as u32, *x, *y).unwrap();
+                }
+            }
+            s.finish().unwrap()
+        };
+        let (b, a) = (sorted(before), sorted(after));
+        let got = Mutex::new(Vec::new());
+        let pool = rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .unwrap();
+        pool.install(|| {
+            sweep_bands(&b, &a, within, bands, |i, j, d| {
+                got.lock().unwrap().push((i as usize, j as usize, d))
+            })
+        })
+        .unwrap();
+        let mut got = got.into_inner().unwrap();
+        got.sort_by(|a, b| a.2.total_cmp(&b.2).then(a.0.cmp(&b.0)).then(a.1.cmp(&b.1)));
+        got
+    }
+
+    /// Rows of locations far apart (many cell rows empty in both inputs): the bands are cut
+    /// there, and the pairs are still those of greedy over the whole.
+    #[test]
+    fn bands_cut_at_empty_rows_pair_as_the_whole() {
+        let within = 0.2;
+        let grid = |shift: f64, skip: usize| -> Vec<Option<(f64, f64)>> {
+            (0..2000)
+                .map(|i: usize| {
+                    (i % 101 != skip).then(|| {
+                        let (c, r) = ((i % 40) as f64, (i / 40) as f64);
+                        (
+                            c * 0.5 + shift * (i % 3) as f64,
+                            r * 0.5 + shift * (i % 5) as f64,
+                        )
+                    })
+                })
+                .collect()
+        };
+        let (before, after) = (grid(0.0, 3), grid(0.03, 50));
+        let whole = brute(&before, &after, within);
+        assert!(whole.len() > 1500);
+        for threads in [1, 2] {
+            for bands in [1, 2, 5, 16] {
+                assert_eq!(banded(&before, &after, within, bands, threads), whole);
+            }
+        }
+        // The bands are cut where asked (rows 0.5 apart, cells 0.2 high: empty rows abound).
+        let sorted = |pts: &[Option<(f64, f64)>]| {
+            let mut s = PositionSorter::new(within, tempfile::tempfile().unwrap());
+            for (i, p) in pts.iter().enumerate() {
+                if let Some((x, y)) = p {
+                    s.push(i as u32, *x, *y).unwrap();
+                }
+            }
+            s.finish().unwrap()
+        };
+        assert_eq!(
+            band_rows(&sorted(&before), &sorted(&after), 5)
+                .unwrap()
+                .len(),
+            5
+        );
+    }
+
     proptest! {
         #![proptest_config(ProptestConfig::with_cases(300))]
 
@@ -647,6 +851,19 @@ mod tests {
         ) {
             let got = swept(&before, &after, within);
             prop_assert_eq!(&got, &in_memory(&before, &after, within));
+            prop_assert_eq!(&got, &brute(&before, &after, within));
+        }
+
+        /// In bands of cell rows on one thread and on two: the pairs of greedy over the whole.
+        #[test]
+        fn bands_pair_as_the_whole(
+            before in points(150, 12.0, 0.25),
+            after in points(150, 12.0, 0.25),
+            within in prop_oneof![Just(0.1), Just(0.25), Just(0.6)],
+            bands in 1usize..7,
+            threads in 1usize..3,
+        ) {
+            let got = banded(&before, &after, within, bands, threads);
             prop_assert_eq!(&got, &brute(&before, &after, within));
         }
 

@@ -176,9 +176,21 @@ impl Smallest {
         }
         self.heap.push(Entry(key, t.clone()));
     }
+    /// As [`Smallest::push`], the track moved in rather than copied.
+    fn push_owned(&mut self, e: Entry) {
+        if self.heap.len() >= self.cap {
+            match self.heap.peek() {
+                Some(top) if e.0 < top.0 => {
+                    self.heap.pop();
+                }
+                _ => return,
+            }
+        }
+        self.heap.push(e);
+    }
     fn merge(&mut self, o: Smallest) {
         for e in o.heap {
-            self.push(e.0, &e.1);
+            self.push_owned(e);
         }
     }
 }
@@ -335,6 +347,16 @@ impl Tally {
             lists: (0..LISTS).map(|_| Smallest::new(LIST_CAP)).collect(),
             all: Smallest::new(KEEP_ALL + 1),
             density,
+        }
+    }
+
+    /// An empty tally that will hold more than [`KEEP_ALL`] tracks (the caller knows: an input
+    /// has more locations than that): it keeps only the capped lists, for
+    /// [`Tally::finish`] would not use the first [`KEEP_ALL`] + 1 tracks.
+    pub fn beyond_keep_all(tryouts: usize, tolerance: f64, density: Option<Density>) -> Self {
+        Tally {
+            all: Smallest::new(0),
+            ..Tally::new(tryouts, tolerance, density)
         }
     }
 
