@@ -181,7 +181,8 @@ impl NodeSet {
 /// also keeps `row + 1` from overflowing).
 pub const MAX_GRID_INDEX: i64 = 1_000_000_000;
 
-/// A grid row or column number as [`integer`] reads it, `None` when it does not read.
+/// A grid row or column number as a nodes row is read (trimmed, a whole number within
+/// ±[`MAX_GRID_INDEX`]), `None` when it does not read.
 pub fn grid_number(raw: &str) -> Option<i64> {
     raw.trim()
         .parse::<i64>()
