@@ -41,6 +41,7 @@ pub mod output;
 pub mod part_outline;
 pub mod path;
 pub mod point;
+pub mod pool;
 pub mod run_time;
 pub mod sheet_cells;
 pub mod strain;

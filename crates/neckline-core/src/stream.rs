@@ -255,7 +255,7 @@ impl Pass<'_> {
                     if order.merged == sent {
                         return read_error.map_or(Ok(()), Err);
                     }
-                    let (i, chunk, judged) = wait(&done_rx);
+                    let (i, chunk, judged) = crate::pool::wait(&done_rx, "its judged chunk");
                     let judged = judged.unwrap_or_else(|panic| std::panic::resume_unwind(panic));
                     ready.insert(i, (chunk, judged));
                     while let Some((chunk, judged)) = ready.remove(&order.merged) {
@@ -276,27 +276,6 @@ impl Pass<'_> {
             }
             Ok(summary)
         })
-    }
-}
-
-/// The next judged chunk. Off the pool, this thread sleeps until one comes; on it (several
-/// files checked at once, each on a worker) the worker runs other jobs meanwhile, so that a
-/// pool of waiting workers can not stall.
-fn wait(done: &std::sync::mpsc::Receiver<Done>) -> Done {
-    loop {
-        if let Ok(d) = done.try_recv() {
-            return d;
-        }
-        match rayon::yield_now() {
-            Some(rayon::Yield::Executed) => {}
-            Some(rayon::Yield::Idle) => {
-                if let Ok(d) = done.recv_timeout(std::time::Duration::from_micros(200)) {
-                    return d;
-                }
-            }
-            // The scope holds a sender until every job has sent: the channel stays open.
-            None => return done.recv().expect("a chunk in flight sends its outcome"),
-        }
     }
 }
 

@@ -422,7 +422,7 @@ fn merge_blocks(rows: &[RowRun], blocks: &[u64], ahead: usize, out: &mut dyn Wri
                 if let Some(b) = ready.remove(&i) {
                     break b;
                 }
-                let (k, r) = wait(&rx);
+                let (k, r) = crate::pool::wait(&rx, "its merged block");
                 ready.insert(k, r.map_err(run_error)?);
             };
             out.write_all(&bytes).map_err(run_error)?;
@@ -433,27 +433,6 @@ fn merge_blocks(rows: &[RowRun], blocks: &[u64], ahead: usize, out: &mut dyn Wri
         }
         Ok(())
     })
-}
-
-/// The next merged block. Off the pool, this thread sleeps until one comes; on it, the worker
-/// runs other jobs meanwhile (the merges themselves, on a pool of one thread), so that a
-/// waiting worker can not stall the pool.
-fn wait<T>(rx: &std::sync::mpsc::Receiver<T>) -> T {
-    loop {
-        if let Ok(v) = rx.try_recv() {
-            return v;
-        }
-        match rayon::yield_now() {
-            Some(rayon::Yield::Executed) => {}
-            Some(rayon::Yield::Idle) => {
-                if let Ok(v) = rx.recv_timeout(std::time::Duration::from_micros(200)) {
-                    return v;
-                }
-            }
-            // Every block spawned sends once, and the sender of each is alive until it has.
-            None => return rx.recv().expect("a block in flight sends its rows"),
-        }
-    }
 }
 
 /// The rows of block `block` of every partition, merged by their place, without their heads.
@@ -1025,6 +1004,20 @@ mod tests {
         p
     }
 
+    /// The earlier tryout of the tests below: `n` locations `L{i}` with margins from -5 to 44
+    /// pp, each zoned by `zone`, at `x` 0 to 49.
+    fn earlier(
+        n: usize,
+        zone: impl Fn(f64) -> &'static str,
+    ) -> Vec<(String, f64, &'static str, f64)> {
+        (0..n)
+            .map(|i| {
+                let m = (i * 37 % 50) as f64 - 5.0;
+                (format!("L{i}"), m, zone(m), (i % 50) as f64)
+            })
+            .collect()
+    }
+
     /// The comparison through run files equals the one held whole (an independent in-memory
     /// join), rows of compare.csv in the same order.
     #[test]
@@ -1039,12 +1032,7 @@ mod tests {
                 "safe"
             }
         };
-        let a: Vec<_> = (0..400)
-            .map(|i| {
-                let m = (i * 37 % 50) as f64 - 5.0;
-                (format!("L{i}"), m, zone(m), (i % 50) as f64)
-            })
-            .collect();
+        let a = earlier(400, zone);
         // The later file: in another order, one missing, one new, some moved.
         let mut b: Vec<_> = a
             .iter()
@@ -1108,12 +1096,7 @@ mod tests {
         let dir = tempfile::tempdir().unwrap();
         let n = crate::summary::KEEP_ALL + 700;
         let zone = |m: f64| if m <= 0.0 { "failed" } else { "safe" };
-        let a: Vec<_> = (0..n)
-            .map(|i| {
-                let m = (i * 37 % 50) as f64 - 5.0;
-                (format!("L{i}"), m, zone(m), (i % 50) as f64)
-            })
-            .collect();
+        let a = earlier(n, zone);
         let mut b: Vec<_> = a
             .iter()
             .filter(|r| !r.0.ends_with("17"))

@@ -759,6 +759,17 @@ mod tests {
         )
     }
 
+    /// The positions of `pts` (their index, where given) sorted on disk as a pairing reads them.
+    fn sorted_positions(pts: &[Option<(f64, f64)>], within: f64) -> SortedPositions {
+        let mut s = PositionSorter::new(within, tempfile::tempfile().unwrap());
+        for (i, p) in pts.iter().enumerate() {
+            if let Some((x, y)) = p {
+                s.push(i as u32, *x, *y).unwrap();
+            }
+        }
+        s.finish().unwrap()
+    }
+
     /// [`sweep_bands`] of `before` and `after` (sorted on disk in chunks) in `bands` bands,
     /// on a pool of `threads`: the pairs, in the order of [`swept`].
     fn banded(
@@ -768,15 +779,7 @@ mod tests {
         bands: usize,
         threads: usize,
     ) -> Vec<(usize, usize, f64)> {
-        let sorted = |pts: &[Option<(f64, f64)>]| {
-            let mut s = PositionSorter::new(within, tempfile::tempfile().unwrap());
-            for (i, p) in pts.iter().enumerate() {
-                if let Some((x, y)) = p {
-                    s.push(i as u32, *x, *y).unwrap();
-                }
-            }
-            s.finish().unwrap()
-        };
+        let sorted = |pts: &[Option<(f64, f64)>]| sorted_positions(pts, within);
         let (b, a) = (sorted(before), sorted(after));
         let got = Mutex::new(Vec::new());
         let pool = rayon::ThreadPoolBuilder::new()
@@ -821,15 +824,7 @@ mod tests {
             }
         }
         // The bands are cut where asked (rows 0.5 apart, cells 0.2 high: empty rows abound).
-        let sorted = |pts: &[Option<(f64, f64)>]| {
-            let mut s = PositionSorter::new(within, tempfile::tempfile().unwrap());
-            for (i, p) in pts.iter().enumerate() {
-                if let Some((x, y)) = p {
-                    s.push(i as u32, *x, *y).unwrap();
-                }
-            }
-            s.finish().unwrap()
-        };
+        let sorted = |pts: &[Option<(f64, f64)>]| sorted_positions(pts, within);
         assert_eq!(
             band_rows(&sorted(&before), &sorted(&after), 5)
                 .unwrap()
