@@ -66,22 +66,20 @@ pub struct GridRows<R: std::io::Read> {
 /// Open the nodes file at `path` to read it by grid rows, its header read; the file must have
 /// `row, col` and no `id` ([`rows_in_order`] tells).
 pub fn grid_rows(path: &Path) -> Result<GridRows<impl BufRead + Send>> {
-    {
-        let stream = stream_table(path, NODES_WHAT)?;
-        let reader = NodeReader::new(&stream.table)?;
-        if !reader.places_only() {
-            return Err(Error::Usage(format!(
-                "{}: only a file with `row, col` and no `id` is read by grid rows",
-                path.display()
-            )));
-        }
-        let head = reader.empty_set(&stream.table);
-        Ok(GridRows {
-            stream,
-            reader,
-            head,
-        })
+    let stream = stream_table(path, NODES_WHAT)?;
+    let reader = NodeReader::new(&stream.table)?;
+    if !reader.places_only() {
+        return Err(Error::Usage(format!(
+            "{}: only a file with `row, col` and no `id` is read by grid rows",
+            path.display()
+        )));
     }
+    let head = reader.empty_set(&stream.table);
+    Ok(GridRows {
+        stream,
+        reader,
+        head,
+    })
 }
 
 impl<R: BufRead + Send> GridRows<R> {
